@@ -22,6 +22,8 @@ export interface Image2D {
   quantity: ImageQuantity;
   /** Attenuation of water, 1/mm, when known (needed for HU). */
   muWater?: number;
+  /** Radius of the scan's measured field of view about the isocentre, mm, when known. */
+  fovRadius?: number;
 }
 
 /** Centre of pixel (0, 0), mm. */

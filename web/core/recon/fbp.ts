@@ -11,19 +11,13 @@ import { checkFilter, type FilterWindow } from './filter-design';
 import { prepareFilter } from './filter-response';
 import { require2d, requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
+import type { RunHooks } from '../run-hooks';
 
 export interface FbpParams {
   grid: ImageGrid;
   filter?: FilterWindow;
   /** Frequency scaling of the window, (0, 1]. */
   cutoff?: number;
-}
-
-/** Progress and cancellation hooks for long runs. */
-export interface RunHooks {
-  /** Fraction done in [0, 1] and a short stage name. */
-  onProgress?: (fraction: number, stage: string) => void;
-  signal?: AbortSignal;
 }
 
 export interface FbpResult {

@@ -1,7 +1,9 @@
 // Builds the engine: assembly/ -> build/engine.wasm (private memory) and
 // build/engine-shared.wasm (shared memory, for worker pools), plus build/engine-wasm.js, the
-// same bytes as base64 ES exports so the page can compile them without fetch (works from file://).
+// same bytes as base64 ES exports so the page can compile them without fetch (works from file://);
+// then bundles the Node CLI (build/cli.mjs) and its kernel worker (build/kernel-worker.mjs).
 import { main } from 'assemblyscript/asc';
+import { build } from 'esbuild';
 import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
 
 const targets = process.argv.includes('--debug') ? ['debug'] : ['release', 'shared'];
@@ -27,4 +29,17 @@ if (!process.argv.includes('--debug')) {
     'export declare const engineWasmBase64: string;\nexport declare const engineSharedWasmBase64: string;\n',
   );
 }
-console.log(`wasm built: ${targets.join(', ')}`);
+if (!process.argv.includes('--debug')) {
+  await build({
+    entryPoints: { cli: 'web/cli/main.ts', 'kernel-worker': 'web/worker/node-kernel-worker.ts' },
+    outdir: 'build',
+    outExtension: { '.js': '.mjs' },
+    bundle: true,
+    platform: 'node',
+    format: 'esm',
+    target: 'node20',
+    sourcemap: true,
+    logLevel: 'warning',
+  });
+}
+console.log(`engine built: ${targets.join(', ')} wasm${process.argv.includes('--debug') ? '' : ', CLI bundle'}`);

@@ -1,0 +1,28 @@
+// Loading the engine in Node: the built wasm files and the bundled kernel worker sit in build/.
+import { readFileSync, existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { LocalWorkspace } from '../core/engine/local-workspace';
+import type { Workspace } from '../core/engine/workspace';
+import { createNodePool } from '../worker/node-pool';
+
+/** build/ next to the bundled CLI (build/cli.mjs), or relative to this source file under tests. */
+function buildDir(): URL {
+  const here = new URL('.', import.meta.url);
+  if (existsSync(fileURLToPath(new URL('engine.wasm', here)))) return here;
+  return new URL('../../build/', import.meta.url);
+}
+
+function load(name: string): WebAssembly.Module {
+  const url = new URL(name, buildDir());
+  if (!existsSync(fileURLToPath(url))) throw new Error(`${fileURLToPath(url)} is missing: run npm run build:engine`);
+  return new WebAssembly.Module(readFileSync(url));
+}
+
+/**
+ * A workspace for CLI work: `workers` kernel workers over shared memory (default: one per
+ * core), or the calling thread alone when workers is 0.
+ */
+export async function openWorkspace(workers?: number): Promise<Workspace> {
+  if (workers === 0) return LocalWorkspace.create(load('engine.wasm'));
+  return createNodePool(load('engine-shared.wasm'), new URL('kernel-worker.mjs', buildDir()), workers);
+}

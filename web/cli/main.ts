@@ -1,0 +1,56 @@
+// The rimfill command line (design.md, "Command line"): exit 0 ok, 2 bad input (one line on
+// stderr, nothing written), 1 internal error.
+import { InputError } from '../core/errors';
+import { bench, benchHelp } from './commands/bench';
+import { compare, compareHelp } from './commands/compare';
+import { demo, demoHelp } from './commands/demo';
+import { inspect, inspectHelp } from './commands/inspect';
+import { reconstruct, reconstructHelp } from './commands/reconstruct';
+import { simulate, simulateHelp } from './commands/simulate';
+import type { CommandResult } from './commands/types';
+
+const COMMANDS: Record<string, { run: (argv: string[]) => Promise<CommandResult>; help: string }> = {
+  simulate: { run: simulate, help: simulateHelp },
+  inspect: { run: inspect, help: inspectHelp },
+  reconstruct: { run: reconstruct, help: reconstructHelp },
+  compare: { run: compare, help: compareHelp },
+  bench: { run: bench, help: benchHelp },
+  demo: { run: demo, help: demoHelp },
+};
+
+const USAGE = `rimfill: reconstruction of truncated CT scans (research and quality work, not for diagnosis)
+
+${Object.values(COMMANDS).map((c) => c.help).join('\n\n')}
+
+Exit codes: 0 ok, 2 bad input, 1 internal error.`;
+
+/** Runs the CLI; returns the exit code. */
+export async function main(argv: string[]): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === '--help' || name === 'help' || name === '-h') {
+    process.stdout.write(USAGE + '\n');
+    return name ? 0 : 2;
+  }
+  const cmd = COMMANDS[name];
+  if (!cmd) {
+    process.stderr.write(`rimfill: unknown command "${name}" (expected one of ${Object.keys(COMMANDS).join(', ')})\n`);
+    return 2;
+  }
+  if (rest.includes('--help')) {
+    process.stdout.write(cmd.help + '\n');
+    return 0;
+  }
+  try {
+    const r = await cmd.run(rest);
+    for (const w of r.warnings ?? []) process.stderr.write(`rimfill ${name}: warning: ${w}\n`);
+    process.stdout.write(rest.includes('--json') ? JSON.stringify(r.json) + '\n' : r.text + '\n');
+    return 0;
+  } catch (err) {
+    if (err instanceof InputError) {
+      process.stderr.write(`rimfill ${name}: ${err.message}\n`);
+      return 2;
+    }
+    process.stderr.write(`rimfill ${name}: internal error: ${err instanceof Error ? err.stack ?? err.message : String(err)}\n`);
+    return 1;
+  }
+}

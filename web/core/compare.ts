@@ -1,0 +1,85 @@
+// Comparing a reconstruction with a reference image: RMSE, PSNR and SSIM over the image, the
+// object, and inside / outside the measured field of view. The same function serves the CLI
+// and the page.
+import { InputError } from './errors';
+import type { Image2D } from './image';
+import { circleMask, psnr, rmse, ssim } from './metrics';
+import { resampleBilinear, sameGrid } from './resample';
+
+export interface RegionFigures {
+  pixels: number;
+  rmse: number;
+  psnr: number;
+  ssim: number;
+}
+
+export interface Comparison {
+  /** 'HU' when mu_water is known, else '1/mm'. */
+  unit: 'HU' | '1/mm';
+  regions: Record<'image' | 'object' | 'insideFov' | 'outsideFov', RegionFigures | null>;
+  /** True when the reference was resampled onto the image grid. */
+  resampled: boolean;
+  fovRadiusMm: number | null;
+  notes: string[];
+}
+
+/** Reference values above this fraction of mu_water (or of the reference maximum) count as object. */
+const OBJECT_THRESHOLD = 0.05;
+
+/**
+ * Compares `image` with `reference` (both mu). The reference is resampled onto the image grid
+ * when the grids differ. `fovRadius` (mm), when given, splits the object into inside / outside
+ * the field of view.
+ */
+export function compareImages(image: Image2D, reference: Image2D, fovRadius?: number): Comparison {
+  const notes: string[] = [];
+  const g = image.grid;
+  const resampled = !sameGrid(g, reference.grid);
+  const ref = resampled ? resampleBilinear(reference.data, reference.grid, g) : reference.data;
+  if (resampled) notes.push('reference resampled (bilinear) onto the image grid');
+  const muWater = image.muWater ?? reference.muWater;
+  const scale = muWater ? 1000 / muWater : 1;
+  const toUnit = (d: Float32Array) => (muWater ? d.map((v) => (v - muWater) * scale) : d);
+  const a = toUnit(image.data), b = toUnit(ref);
+  let bad = 0;
+  for (const v of image.data) if (!Number.isFinite(v)) bad++;
+  if (bad) throw new InputError(`image: ${bad} pixels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
+  let lo = Infinity, hi = -Infinity, refMax = 0;
+  for (let i = 0; i < b.length; i++) {
+    lo = Math.min(lo, b[i]);
+    hi = Math.max(hi, b[i]);
+    refMax = Math.max(refMax, ref[i]);
+  }
+  const range = hi - lo || 1;
+  const threshold = OBJECT_THRESHOLD * (muWater ?? refMax);
+  const object = ref.map((v) => (v > threshold ? 1 : 0)) as unknown as Uint8Array;
+  const figures = (mask?: Uint8Array): RegionFigures | null => {
+    const pixels = mask ? mask.reduce((s, v) => s + v, 0) : a.length;
+    if (pixels === 0) return null;
+    return { pixels, rmse: rmse(a, b, mask), psnr: psnr(a, b, range, mask), ssim: ssim(a, b, g.nx, g.ny, range, mask) };
+  };
+  const fov = fovRadius;
+  let inside: Uint8Array | null = null, outside: Uint8Array | null = null;
+  if (fov !== undefined) {
+    const c = circleMask(g, fov);
+    inside = new Uint8Array(c.length);
+    outside = new Uint8Array(c.length);
+    for (let i = 0; i < c.length; i++) {
+      inside[i] = c[i] & object[i];
+      outside[i] = (1 - c[i]) & object[i];
+    }
+  } else {
+  }
+  return {
+    unit: muWater ? 'HU' : '1/mm',
+    regions: {
+      image: figures(),
+      object: figures(Uint8Array.from(object)),
+      insideFov: inside ? figures(inside) : null,
+      outsideFov: outside ? figures(outside) : null,
+    },
+    resampled,
+    fovRadiusMm: fov ?? null,
+    notes,
+  };
+}

@@ -1,0 +1,53 @@
+// A recipe: everything that decides how a scan becomes an image. The CLI builds one from its
+// options, the page from its form; both run it with runRecipe (run.ts). Plain JSON, so it can
+// be stored with the result and shown in reports.
+import { InputError } from '../errors';
+import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
+
+/** Reconstruction methods available in this build. */
+export const METHODS = ['fbp'] as const;
+export type Method = (typeof METHODS)[number];
+
+export interface GridChoice {
+  /** Pixels along x and y. */
+  size: number;
+  /** Pixel size, mm. */
+  pixel: number;
+}
+
+export interface Recipe {
+  method: Method;
+  /** Reconstruction grid; absent: chosen from the scan (grid.ts). */
+  grid?: GridChoice;
+  filter: FilterWindow;
+  /** Frequency scaling of the filter window, (0, 1]. */
+  cutoff: number;
+}
+
+export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ram-lak', cutoff: 1 };
+
+function isObject(v: unknown): v is Record<string, unknown> {
+  return typeof v === 'object' && v !== null && !Array.isArray(v);
+}
+
+/** Checks a recipe from JSON (page form, stored record, CLI) and fills defaults. */
+export function validateRecipe(input: unknown): Recipe {
+  if (!isObject(input)) throw new InputError('recipe: expected an object');
+  const r = { ...DEFAULT_RECIPE, ...input } as Record<string, unknown>;
+  if (!(METHODS as readonly string[]).includes(r.method as string)) {
+    throw new InputError(`recipe method: got "${r.method}", expected one of ${METHODS.join(', ')}`);
+  }
+  if (!(FILTER_WINDOWS as readonly string[]).includes(r.filter as string)) {
+    throw new InputError(`recipe filter: got "${r.filter}", expected one of ${FILTER_WINDOWS.join(', ')}`);
+  }
+  if (typeof r.cutoff !== 'number' || !(r.cutoff > 0 && r.cutoff <= 1)) throw new InputError(`recipe cutoff: got ${r.cutoff}, expected a number in (0, 1]`);
+  const out: Recipe = { method: r.method as Method, filter: r.filter as FilterWindow, cutoff: r.cutoff };
+  if (r.grid !== undefined) {
+    const g = r.grid;
+    if (!isObject(g)) throw new InputError('recipe grid: expected {size, pixel}');
+    if (!Number.isInteger(g.size) || (g.size as number) < 8 || (g.size as number) > 4096) throw new InputError(`recipe grid.size: got ${g.size}, expected a whole number from 8 to 4096`);
+    if (typeof g.pixel !== 'number' || !(g.pixel > 0) || g.pixel > 100) throw new InputError(`recipe grid.pixel: got ${g.pixel}, expected a pixel size in mm (0 to 100)`);
+    out.grid = { size: g.size as number, pixel: g.pixel };
+  }
+  return out;
+}
