@@ -53,3 +53,19 @@ export function cropDetector(g: Geometry, channels: number, offsetMm = 0): { geo
     first,
   };
 }
+
+/**
+ * The same geometry with `left` channels added before channel 0 and `right` after the last
+ * (same pitch): the extended detector that extrapolation and prior-guided methods fill.
+ * Channel k of the original detector is channel left + k of the extended one.
+ */
+export function extendDetector(g: Geometry, left: number, right: number): Geometry {
+  const d = g.detector;
+  if (!Number.isInteger(left) || !Number.isInteger(right) || left < 0 || right < 0) {
+    throw new InputError(`detector extension: got ${left} + ${right} channels, expected whole numbers >= 0`);
+  }
+  const channels = d.channels + left + right;
+  const u0 = -((d.channels - 1) / 2) * d.pitch[0] + d.offset[0] - left * d.pitch[0];
+  const offset = u0 + ((channels - 1) / 2) * d.pitch[0];
+  return { ...g, detector: { ...d, channels, offset: [offset, d.offset[1]] } };
+}
