@@ -17,6 +17,16 @@ export const reconstructHelp = `rimfill reconstruct scan.nrrd --method ${METHODS
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
   512 pixels covering the measured field of view). --hu writes HU (needs mu_water in the scan).`;
 
+/** Recipe fields and the options that set them, so errors speak of what the user typed. */
+const FIELD_OPTIONS: Record<string, string> = { method: 'method', filter: 'filter', cutoff: 'cutoff', 'grid.size': 'size', 'grid.pixel': 'pixel' };
+
+function asOptionError(err: unknown): unknown {
+  if (!(err instanceof InputError)) return err;
+  const m = /^recipe ([\w.]+): (.*)$/s.exec(err.message);
+  const option = m && FIELD_OPTIONS[m[1]];
+  return option ? new InputError(`option --${option}: ${m[2]}`) : err;
+}
+
 /** The recipe the options describe (validated). */
 export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe> {
   const o = a.options;
@@ -27,7 +37,11 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
     if (o.size === undefined || o.pixel === undefined) throw new InputError('options --size and --pixel go together (pixels and mm per pixel)');
     raw.grid = { size: o.size, pixel: o.pixel };
   }
-  return validateRecipe(raw);
+  try {
+    return validateRecipe(raw);
+  } catch (err) {
+    throw asOptionError(err);
+  }
 }
 
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
