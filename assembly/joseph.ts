@@ -5,7 +5,7 @@
 // Images are given padded (arith.ts padImage2d): `pad` is x-fastest ((nx+2) x (ny+2)) and is
 // read by y-major sweeps; `padT` is y-fastest and read by x-major sweeps, so that both sweeps
 // interpolate between neighbours adjacent in memory (one 64-bit load per lane).
-import { ldf, ldi, stf, MAGIC, MAGIC_BITS } from './memory';
+import { clampIndex, ldf, ldi, stf, MAGIC, MAGIC_BITS } from './memory';
 import { buildRayTable } from './rays';
 
 /**
@@ -98,7 +98,7 @@ export function josephAdjoint2d(
   let line = pad + <usize>(lo + 1) * lineBytes;
   let fi = <f32>lo;
   for (let i = lo; i <= hi; i++) {
-    const t = f32x4.min(f32x4.max(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero), top);
+    const t = clampIndex(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero, top);
     const r = f32x4.add(f32x4.sub(t, half), magic);
     const off = i32x4.shl(i32x4.sub(r, magicBits), 2);
     const frac = f32x4.sub(t, f32x4.sub(r, magic));
@@ -133,7 +133,7 @@ export function josephAdjoint2d(
   let line = pad + <usize>(lo + 1) * lineBytes;
   let fi = <f32>lo;
   for (let i = lo; i <= hi; i++) {
-    const t = f32x4.min(f32x4.max(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero), top);
+    const t = clampIndex(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero, top);
     const r = f32x4.add(f32x4.sub(t, half), magic);
     const off = i32x4.shl(i32x4.sub(r, magicBits), 2);
     const frac = f32x4.sub(t, f32x4.sub(r, magic));

@@ -33,3 +33,12 @@
  */
 export const MAGIC: f32 = 8388608.0;
 export const MAGIC_BITS: i32 = 0x4b000000;
+
+/**
+ * Clamps four lanes to [lo, hi] with the pseudo-min/max instructions (one machine instruction
+ * each; f32x4.min/max must propagate NaN and order -0 < +0, which costs about seven). A NaN
+ * lane becomes lo, so an index computed from it stays inside the array.
+ */
+@inline export function clampIndex(x: v128, lo: v128, hi: v128): v128 {
+  return f32x4.pmin(hi, f32x4.pmax(lo, x));
+}
