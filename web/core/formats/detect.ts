@@ -16,8 +16,9 @@ function isNrrd(b: Uint8Array): boolean {
 
 function kindOf(f: NamedBytes): FileFormat | undefined {
   if (isNrrd(f.bytes)) return 'nrrd';
-  if (looksLikeTiff(f.bytes)) return 'tiff';
+  // DICOM first: a DICOM preamble may itself hold a TIFF header (PS3.10 7.5).
   if (looksLikeDicom(f.bytes)) return 'dicom';
+  if (looksLikeTiff(f.bytes)) return 'tiff';
   const ext = extension(f.name);
   if (ext === 'mha' || ext === 'mhd' || looksLikeMetaImage(f.bytes)) return 'metaimage';
   if (ext === 'json') return 'raw-json';

@@ -12,7 +12,7 @@ export interface TiffPage {
   bitsPerSample: number;
   /** 1 unsigned integer, 2 signed integer, 3 IEEE float (tag 339). */
   sampleFormat: number;
-  /** 1 none, 8/32946 deflate, 32773 PackBits. */
+  /** 1 none, 8/32946 deflate. */
   compression: number;
   /** 1 none, 2 horizontal differencing. */
   predictor: number;
@@ -36,7 +36,7 @@ const NESTING_TAGS = new Set([330, 37500, 50740]);
 const EXIF_IFD = 34665;
 const MAX_PAGES = 1_000_000;
 const MAX_ENTRIES = 4096;
-const SUPPORTED_COMPRESSION = new Set([1, 8, 32946, 32773]);
+const SUPPORTED_COMPRESSION = new Set([1, 8, 32946]);
 
 interface Entry {
   type: number;
@@ -127,7 +127,7 @@ function readPage(r: Reader, entries: Map<number, Entry>, at: number): TiffPage 
   if (sampleFormat === 3 && bps[0] < 32) throw new InputError(`TIFF: ${bps[0]}-bit floats are not read, expected 32 or 64 bits`);
   const compression = one(r, entries, 259, 'Compression', 1);
   if (!SUPPORTED_COMPRESSION.has(compression)) {
-    throw new InputError(`TIFF Compression: got ${compression}, expected 1 (none), 8 (deflate) or 32773 (PackBits); save the stack uncompressed`);
+    throw new InputError(`TIFF Compression: got ${compression}, expected 1 (none) or 8 (deflate); save the stack uncompressed`);
   }
   const predictor = one(r, entries, 317, 'Predictor', 1);
   if (predictor !== 1 && !(predictor === 2 && bps[0] <= 16)) throw new InputError(`TIFF Predictor: got ${predictor} for ${bps[0]}-bit samples, expected none (1) or horizontal differencing (2) of integers`);

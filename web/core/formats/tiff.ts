@@ -1,7 +1,7 @@
 // TIFF stacks (multi-page files, or one frame per file in name order) of 8/16/32-bit integers
 // or 32/64-bit floats, as float32 frames. The structure is checked first (tiff-structure.ts);
 // uncompressed strips, the usual case for detector frames, are converted straight from the
-// file bytes (one copy); compressed pages (deflate, PackBits) and tiles are decoded by UTIF
+// file bytes (one copy); compressed pages (deflate) and tiles are decoded by UTIF
 // (npm "utif", Photopea), after deflate streams were checked to inflate within their size.
 import UTIF from 'utif';
 import { InputError } from '../errors';
