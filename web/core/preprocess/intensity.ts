@@ -14,7 +14,7 @@ export interface IntensityCorrection {
   dark?: ReferenceFrame;
   /** Flat (open-beam) level: one frame or a constant. Either this or i0. */
   flat?: ReferenceFrame;
-  /** Unattenuated intensity I0 when there is no flat frame. */
+  /** Reading of the unattenuated beam, I0, when there is no flat frame (a constant flat level: the dark is subtracted from it too). */
   i0?: number;
   /** Readings at or above this level are saturated: counted and capped at it. */
   saturation?: number;
