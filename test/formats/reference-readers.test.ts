@@ -31,7 +31,10 @@ describe('DICOM', () => {
     expect(volume.quantity).toBe('hu');
     expect(volume.spacing[0]).toBeCloseTo(0.661468, 6);
     expect(volume.spacing[1]).toBeCloseTo(0.661468, 6);
-    expect(volume.origin).toEqual([-158.135803, -179.035797, -75.699997]);
+    // Rimfill y is anterior (patient y negated): voxel (0, 0) is the last stored row.
+    expect(volume.origin[0]).toBe(-158.135803);
+    expect(volume.origin[1]).toBeCloseTo(179.035797 - 127 * 0.661468, 9);
+    expect(volume.origin[2]).toBe(-75.699997);
     let min = Infinity, max = -Infinity, sum = 0;
     for (const v of volume.data) {
       min = Math.min(min, v);
@@ -43,7 +46,7 @@ describe('DICOM', () => {
     expect(sum).toBe(14826310 - 1024 * 128 * 128);
     // Pixel by pixel against pydicom's own decoding.
     const py = runPython(
-      `import pydicom, numpy as np\nd = pydicom.dcmread(${JSON.stringify(CT_SMALL)})\nhu = d.pixel_array.astype(np.float32) * float(d.RescaleSlope) + float(d.RescaleIntercept)\nhu.astype('<f4').tofile('ref.f32')`,
+      `import pydicom, numpy as np\nd = pydicom.dcmread(${JSON.stringify(CT_SMALL)})\nhu = d.pixel_array.astype(np.float32) * float(d.RescaleSlope) + float(d.RescaleIntercept)\nhu[::-1, :].astype('<f4').tofile('ref.f32')`,
       ['pydicom', 'numpy'],
     );
     expect(volume.data).toEqual(reference(py.files));
@@ -86,15 +89,18 @@ for k, z in enumerate([12.5, 10.0, 15.0, 7.5]):
     ds.PixelData = stored.tobytes() if k != 1 else stored.byteswap().tobytes()
     ds.save_as(f's{k}.dcm', write_like_original=False)
     hu = (stored.astype(np.float32) % 4096) * 2 - 1000
-    vol.append((z, hu[:, ::-1]))
+    vol.append((z, hu[::-1, ::-1]))  # rows along -x: columns reversed; Rimfill y = -patient y: rows reversed
 vol.sort(key=lambda t: t[0])
 np.stack([h for _, h in vol]).astype('<f4').tofile('ref.f32')
 `, ['pydicom', 'numpy']);
     const { volume } = await readImageFile(named(py.files, (n) => n.endsWith('.dcm')));
     expect([volume.nx, volume.ny, volume.nz]).toEqual([6, 5, 4]);
     expect(volume.spacing).toEqual([0.5, 0.7, 2.5]);
-    // Rows run along -x: the first stored pixel (x = 20) becomes the last of the flipped row.
-    expect(volume.origin).toEqual([20 - 5 * 0.5, -3, 7.5]);
+    // Rows run along -x: the first stored pixel (x = 20) becomes the last of the flipped row;
+    // columns run posterior from patient y = -3, so Rimfill y runs from 3 - 4 x 0.7 up to 3.
+    expect(volume.origin[0]).toBe(20 - 5 * 0.5);
+    expect(volume.origin[1]).toBeCloseTo(3 - 4 * 0.7, 12);
+    expect(volume.origin[2]).toBe(7.5);
     expect(volume.data).toEqual(reference(py.files));
   });
 });

@@ -4,7 +4,10 @@
 // Pixel Spacing (0028,0030) is "row spacing \ column spacing" (PS3.3 10.7.1.3); slices are
 // sorted by Image Position (Patient) along the slice normal (PS3.3 C.7.6.2.1.1), which for the
 // axial slices accepted here (rows and columns along +-x and +-y by Image Orientation
-// (Patient)) is z; flipped axes are turned to +x, +y.
+// (Patient)) is z. Patient coordinates (x to the patient's left, y posterior, z superior;
+// PS3.3 C.7.6.2.1.1) become Rimfill's (x left, y ANTERIOR, as the demo thorax has its
+// sternum at +y), so y changes sign: an image shown with +y up has the patient's front at the
+// top and the patient's left on the right, as radiologists view axial slices.
 import * as dicomParser from 'dicom-parser';
 import { InputError } from '../errors';
 import { checkAllocation, type ReadLimits } from './limits';
@@ -144,8 +147,8 @@ function stack(slices: Slice[]): { sorted: Slice[]; dz: number; z0: number } {
 }
 
 /**
- * Reads DICOM CT files (one image, or the slices of one series) as a volume in HU, x along
- * +x (patient left), y along +y (posterior), z increasing.
+ * Reads DICOM CT files (one image, or the slices of one series) as a volume in HU: x toward
+ * the patient's left, y anterior, z superior (slices in increasing z).
  */
 export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimits): { volume: ImageVolume; paddingPixels: number } {
   if (files.length === 0) throw new InputError('DICOM: no files given');
@@ -166,17 +169,19 @@ export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimit
   const nx = a.cols, ny = a.rows, n = nx * ny;
   checkAllocation(sorted.length * n * 4 * 2, limits, `DICOM series of ${sorted.length} slices of ${nx} x ${ny}`);
   const data = new Float32Array(sorted.length * n);
+  // Stored row r lies at patient y = p_y + sy r dy, i.e. Rimfill y = -p_y - sy r dy: rows are
+  // reversed when the columns run posterior (sy > 0), columns when the rows run right (sx < 0).
   sorted.forEach((s, k) => {
     for (let j = 0; j < ny; j++) {
-      const srcRow = sy > 0 ? j : ny - 1 - j;
+      const srcRow = sy > 0 ? ny - 1 - j : j;
       for (let i = 0; i < nx; i++) data[k * n + j * nx + i] = s.hu[srcRow * nx + (sx > 0 ? i : nx - 1 - i)];
     }
   });
   const dx = a.colSpacing, dy = a.rowSpacing;
   const p = a.position ?? [0, 0, 0];
-  // Centre of the first voxel after the flips: the stored first pixel sits at Image Position.
+  // Centre of voxel (0, 0) in Rimfill coordinates; the stored first pixel sits at Image Position.
   const x0 = sx > 0 ? p[0] : p[0] - (nx - 1) * dx;
-  const y0 = sy > 0 ? p[1] : p[1] - (ny - 1) * dy;
+  const y0 = sy > 0 ? -p[1] - (ny - 1) * dy : -p[1];
   return {
     volume: { nx, ny, nz: sorted.length, spacing: [dx, dy, dz], origin: [x0, y0, z0], data, quantity: 'hu', format: 'DICOM' },
     paddingPixels: slices.reduce((t, s) => t + s.paddingPixels, 0),
