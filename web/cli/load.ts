@@ -17,10 +17,11 @@ import { readJson } from './io';
 
 /** Options every command that reads a scan accepts (design.md, "Command line"). */
 export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
-  geometry: 'string', flat: 'string', dark: 'string', i0: 'number', 'mu-water': 'number', 'memory-limit': 'number',
+  geometry: 'string', flat: 'string', dark: 'string', i0: 'number', 'mu-water': 'number', 'memory-limit': 'number', 'line-integrals': 'flag',
 };
 
-export const SCAN_INPUT_HELP = `    [--geometry geom.json] [--flat F] [--dark F] [--i0 N] [--mu-water X] [--memory-limit MB]`;
+export const SCAN_INPUT_HELP = `    [--geometry geom.json] [--flat F] [--dark F] [--i0 N] [--mu-water X] [--memory-limit MB]
+    [--line-integrals]  (TIFF frames are read as intensities unless --line-integrals)`;
 
 /** A geometry from a preset name or a JSON file. */
 export function loadGeometry(nameOrPath: string): Geometry {
@@ -57,6 +58,7 @@ export async function loadScanWithReport(path: string, a?: ParsedArgs): Promise<
   return readScanFile(gatherFiles(path, 'scan'), {
     geometry: str('geometry') ? loadGeometry(str('geometry')!) : undefined,
     flat: level('flat'), dark: level('dark'), i0,
+    quantity: o['line-integrals'] ? 'line-integral' : undefined,
     muWater: mw === undefined ? undefined : checkMuWater(mw, 'option --mu-water'),
     maxBytes: memoryLimit(a),
   });

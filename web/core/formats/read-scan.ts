@@ -1,7 +1,8 @@
 // The one entry point for reading projections, used by the CLI and the page alike:
 // readScanFile(files, options) accepts NRRD (attached or detached), MetaImage (.mha, .mhd +
-// raw), raw + JSON sidecar and TIFF stacks (one page per view), attaches the geometry, and
-// turns intensities into line integrals with the dark/flat/i0 given.
+// raw), raw + JSON sidecar and TIFF stacks (one page per view, taken as detector intensities
+// unless options.quantity says line-integral), attaches the geometry, and turns intensities
+// into line integrals with the dark/flat/i0 given.
 import { InputError } from '../errors';
 import type { ReferenceFrame } from '../preprocess/frames';
 import { averageFrames } from '../preprocess/frames';
@@ -66,7 +67,8 @@ export async function readProjectionData(input: readonly NamedBytes[], limits?: 
   }
   if (format === 'tiff') {
     const s = await readTiffStack(files, limits);
-    return { channels: s.width, rows: s.height, views: s.frames, data: s.data, format: 'TIFF' };
+    // TIFF frames come from detectors: intensities unless the caller says otherwise.
+    return { channels: s.width, rows: s.height, views: s.frames, data: s.data, format: 'TIFF', quantity: 'intensity' };
   }
   throw new InputError('DICOM files hold images, not projections; use them as an image (prior, reference or phantom)');
 }
