@@ -42,6 +42,11 @@ export function decodeSamples(src: Uint8Array, type: SampleType, littleEndian: b
   const size = SAMPLE_BYTES[type];
   if (src.length < count * size) throw new InputError(`data: ${count} samples of ${type} need ${count * size} bytes, ${src.length} present`);
   const native = size === 1 || littleEndian === HOST_LITTLE_ENDIAN;
+  if (native && type === 'float32') {
+    // Same type and byte order: a byte copy into the output, aligned or not.
+    new Uint8Array(out.buffer, out.byteOffset + outOffset * 4, count * 4).set(src.subarray(0, count * 4));
+    return;
+  }
   if (native && src.byteOffset % size === 0) {
     out.set(new VIEWS[type](src.buffer, src.byteOffset, count), outOffset);
     return;

@@ -127,19 +127,24 @@ export async function readTiffStack(files: readonly NamedBytes[], limits?: ReadL
   return { width: first.width, height: first.height, frames: frames.length, data };
 }
 
-/** Writes frames as an uncompressed little-endian multi-page TIFF of 32-bit floats (for tests and export). */
-export function writeTiffStack(stack: FrameStack): Uint8Array {
+/**
+ * Writes frames as an uncompressed little-endian multi-page TIFF of 32-bit floats or (rounded,
+ * clamped) 16-bit unsigned integers, one strip per page (for tests, benchmarks and export).
+ */
+export function writeTiffStack(stack: FrameStack, sampleType: 'float32' | 'uint16' = 'float32'): Uint8Array {
   const { width, height, frames } = stack;
-  const frameBytes = width * height * 4;
+  const bytesPer = sampleType === 'uint16' ? 2 : 4;
+  const frameBytes = width * height * bytesPer;
   const entries: Array<[number, number, number]> = [
-    [256, 4, width], [257, 4, height], [258, 3, 32], [259, 3, 1], [262, 3, 1], [273, 4, 0],
-    [277, 3, 1], [278, 4, height], [279, 4, frameBytes], [284, 3, 1], [339, 3, 3],
+    [256, 4, width], [257, 4, height], [258, 3, bytesPer * 8], [259, 3, 1], [262, 3, 1], [273, 4, 0],
+    [277, 3, 1], [278, 4, height], [279, 4, frameBytes], [284, 3, 1], [339, 3, sampleType === 'uint16' ? 1 : 3],
   ];
   const ifdBytes = 2 + entries.length * 12 + 4;
   const out = new Uint8Array(8 + frames * (ifdBytes + frameBytes));
   const v = new DataView(out.buffer);
   out.set([0x49, 0x49, 42, 0]);
   v.setUint32(4, 8, true);
+  const n = width * height;
   for (let f = 0; f < frames; f++) {
     const ifd = 8 + f * (ifdBytes + frameBytes);
     const dataAt = ifd + ifdBytes;
@@ -154,7 +159,11 @@ export function writeTiffStack(stack: FrameStack): Uint8Array {
       else v.setUint32(e + 8, val, true);
     });
     v.setUint32(ifd + ifdBytes - 4, f + 1 < frames ? dataAt + frameBytes : 0, true);
-    out.set(new Uint8Array(stack.data.buffer, stack.data.byteOffset + f * frameBytes, frameBytes), dataAt);
+    for (let i = 0; i < n; i++) {
+      const x = stack.data[f * n + i];
+      if (sampleType === 'float32') v.setFloat32(dataAt + 4 * i, x, true);
+      else v.setUint16(dataAt + 2 * i, Math.min(65535, Math.max(0, Math.round(x) || 0)), true);
+    }
   }
   return out;
 }
