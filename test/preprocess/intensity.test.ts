@@ -133,3 +133,18 @@ function solve3(A: number[][], b: number[]): number[] {
   }
   return x;
 }
+
+describe('corrections of line-integral scans', () => {
+  it('bad elements and the water polynomial apply to line integrals read from a file; saturation does not', async () => {
+    const g = { kind: 'parallel', detector: { channels: 4, pitch: 1 }, anglesDeg: { start: 0, step: 90, count: 2 } };
+    const data = new Float32Array([1, 2, 99, 4, 2, 4, 99, 8]);
+    const files = () => [
+      { name: 's.json', bytes: new TextEncoder().encode(JSON.stringify({ ...g, dtype: 'float32', sizes: [4, 2] })) },
+      { name: 's.raw', bytes: new Uint8Array(data.slice().buffer) },
+    ];
+    const r = await readScanFile(files(), { badPixels: new Uint8Array([0, 0, 1, 0]), correction: { waterPolynomial: [1, 0.5] } });
+    // Filled: 3 and 6; then p + 0.5 p^2.
+    expect(Array.from(r.scan.data)).toEqual([1, 2, 3, 4, 2, 4, 6, 8].map((p) => p + 0.5 * p * p));
+    await expect(readScanFile(files(), { correction: { saturation: 10 } })).rejects.toThrow(/line integrals already/);
+  });
+});

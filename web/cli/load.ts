@@ -18,10 +18,13 @@ import { readJson } from './io';
 /** Options every command that reads a scan accepts (design.md, "Command line"). */
 export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
   geometry: 'string', flat: 'string', dark: 'string', i0: 'number', 'mu-water': 'number', 'memory-limit': 'number', 'line-integrals': 'flag',
+  saturation: 'number', 'bad-pixels': 'string', 'water-polynomial': 'string',
 };
 
 export const SCAN_INPUT_HELP = `    [--geometry geom.json] [--flat F] [--dark F] [--i0 N] [--mu-water X] [--memory-limit MB]
-    [--line-integrals]  (TIFF frames are read as intensities unless --line-integrals)`;
+    [--line-integrals] [--saturation N] [--bad-pixels mask] [--water-polynomial c1,c2,...]
+    (TIFF frames are intensities unless --line-integrals; the mask is one frame, non-zero = bad;
+    the polynomial maps each line integral p to c1 p + c2 p^2 + ...)`;
 
 /** A geometry from a preset name or a JSON file. */
 export function loadGeometry(nameOrPath: string): Geometry {
@@ -39,6 +42,13 @@ export function memoryLimit(a?: ParsedArgs): number | undefined {
   if (mb === undefined) return undefined;
   if (typeof mb !== 'number' || !(mb > 0)) throw new InputError(`option --memory-limit: got ${mb}, expected megabytes (> 0)`);
   return mb * 2 ** 20;
+}
+
+function polynomial(text: string | undefined): number[] | undefined {
+  if (text === undefined) return undefined;
+  const c = text.split(',').map(Number);
+  if (text.trim() === '' || c.some((x) => !Number.isFinite(x))) throw new InputError(`option --water-polynomial: got "${text}", expected coefficients c1,c2,... separated by commas`);
+  return c;
 }
 
 /** Reads a scan (file or folder) with the scan-input options of `a`, reporting what preprocessing did. */
@@ -59,6 +69,8 @@ export async function loadScanWithReport(path: string, a?: ParsedArgs): Promise<
     geometry: str('geometry') ? loadGeometry(str('geometry')!) : undefined,
     flat: level('flat'), dark: level('dark'), i0,
     quantity: o['line-integrals'] ? 'line-integral' : undefined,
+    badPixels: str('bad-pixels') ? gatherFiles(str('bad-pixels')!, 'bad-pixel mask') : undefined,
+    correction: { saturation: num('saturation'), waterPolynomial: polynomial(str('water-polynomial')) },
     muWater: mw === undefined ? undefined : checkMuWater(mw, 'option --mu-water'),
     maxBytes: memoryLimit(a),
   });

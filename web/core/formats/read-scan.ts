@@ -24,8 +24,10 @@ export interface ScanFileOptions extends ReadLimits, Omit<ScanAssemblyOptions, '
   dark?: ReferenceInput;
   flat?: ReferenceInput;
   i0?: number;
-  /** Other corrections (saturation, bad pixels, beam hardening). */
-  correction?: Omit<IntensityCorrection, 'dark' | 'flat' | 'i0'>;
+  /** Bad detector elements: a mask frame (non-zero = bad), given or as files of one frame. */
+  badPixels?: Uint8Array | NamedBytes[];
+  /** Other corrections (saturation, minimum transmission, beam hardening). */
+  correction?: Omit<IntensityCorrection, 'dark' | 'flat' | 'i0' | 'badPixels'>;
 }
 
 function quantityOf(text: unknown, field: string): ProjectionQuantity | undefined {
@@ -80,12 +82,20 @@ async function reference(r: ReferenceInput | undefined, frameSize: number, what:
   return averageFrames(p.data, frameSize, what);
 }
 
+async function mask(m: Uint8Array | NamedBytes[] | undefined, frameSize: number, limits?: ReadLimits): Promise<Uint8Array | undefined> {
+  if (m === undefined || m instanceof Uint8Array) return m;
+  const p = await readProjectionData(m, limits);
+  if (p.data.length !== frameSize) throw new InputError(`bad-pixel mask: ${p.channels} x ${p.rows} x ${p.views} values, expected one frame of ${frameSize} elements (rows x channels)`);
+  return Uint8Array.from(p.data, (v) => (v !== 0 ? 1 : 0));
+}
+
 /** Reads a scan from files of any supported format. */
 export async function readScanFile(files: readonly NamedBytes[], options: ScanFileOptions = {}): Promise<ScanReadResult> {
   const p = await readProjectionData(files, options);
   const frame = p.channels * p.rows;
   const dark = await reference(options.dark, frame, 'dark frame', options);
   const flat = await reference(options.flat, frame, 'flat frame', options);
-  const correction: IntensityCorrection = { ...options.correction, dark, flat, i0: options.i0 };
+  const badPixels = await mask(options.badPixels, frame, options);
+  const correction: IntensityCorrection = { ...options.correction, dark, flat, i0: options.i0, badPixels };
   return assembleScan(p, { ...options, correction });
 }

@@ -3,6 +3,8 @@
 import { InputError } from '../errors';
 import type { Geometry } from '../geometry/types';
 import { checkGeometryMatchesData, validateGeometry } from '../geometry/validate';
+import { fillBadElements } from '../preprocess/bad-pixels';
+import { applyWaterPolynomial, checkWaterPolynomial } from '../preprocess/beam-hardening';
 import { checkMuWater } from '../preprocess/hu-calibration';
 import { describeIntensityReport, intensitiesToLineIntegrals, type IntensityCorrection, type IntensityReport } from '../preprocess/intensity';
 import type { RunHooks } from '../run-hooks';
@@ -54,9 +56,18 @@ export function assembleScan(p: ProjectionData, o: ScanAssemblyOptions = {}): Sc
     intensity = intensitiesToLineIntegrals(p.data, p.channels, p.rows, { ...c, i0 }, o.hooks);
     warnings.push(...describeIntensityReport(intensity));
   } else {
-    if (corrections) throw new InputError(`scan (${p.format}): the values are line integrals already; flat, dark and i0 apply to intensity data`);
+    if (corrections || c.saturation !== undefined) {
+      throw new InputError(`scan (${p.format}): the values are line integrals already; flat, dark, i0 and saturation apply to intensity data`);
+    }
     const bad = countNonFinite(p.data);
     if (bad) throw new InputError(`scan (${p.format}): ${bad} line integrals are not finite numbers (NaN or infinite)`);
+    if (c.badPixels) {
+      const mask = c.badPixels;
+      if (mask.length !== p.channels * p.rows) throw new InputError(`bad-pixel mask: got ${mask.length} values, expected one frame of ${p.channels * p.rows}`);
+      const f = fillBadElements(p.data, p.channels, p.rows, (_, i) => mask[i] === 1);
+      if (f.rowsWithoutGood) warnings.push(`${f.rowsWithoutGood} detector rows had no good element and were left as read`);
+    }
+    if (c.waterPolynomial) applyWaterPolynomial(p.data, checkWaterPolynomial(c.waterPolynomial));
   }
   const scan: Scan = { geometry, data: p.data };
   const mw = o.muWater ?? p.muWater;
