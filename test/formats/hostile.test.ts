@@ -1,5 +1,6 @@
 // Named lies, each rejected with one clear InputError that names the field, before any
 // allocation the ceiling forbids.
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import { gzip } from '../../web/core/formats/gzip';
@@ -82,6 +83,14 @@ describe('TIFF lies', () => {
     for (let i = 0; i < n; i++) if (v.getUint16(10 + i * 12, true) === 273) v.setUint32(10 + i * 12 + 8, 1 << 30, true);
     await rejects([{ name: 'far.tif', bytes: b }], /runs past the end of the file/);
   });
+});
+
+describe('DICOM files we do not read', () => {
+  const dir = '/usr/lib/python3/dist-packages/pydicom/data/test_files/';
+  const file = (name: string) => [{ name, bytes: new Uint8Array(readFileSync(dir + name)) }];
+  it('a compressed transfer syntax (pydicom JPEG2000.dcm)', () => rejects(file('JPEG2000.dcm'), /transfer syntax 1\.2\.840\.10008\.1\.2\.4\.9\d is compressed/));
+  it('an MR image (pydicom MR_small.dcm)', () => rejects(file('MR_small.dcm'), /modality "MR", expected CT/));
+  it('a truncated file (pydicom MR_truncated.dcm)', () => rejects(file('MR_truncated.dcm'), /DICOM MR_truncated.dcm/));
 });
 
 describe('scan lies', () => {

@@ -130,11 +130,11 @@ function alongAxis(v: number[], axis: number): number {
 }
 
 /** Sorts slices along z and returns their spacing (mm), checking it is even. */
-function stack(slices: Slice[]): { sorted: Slice[]; dz: number; z0: number } {
+function stack(slices: Slice[]): { sorted: Slice[]; dz: number; z0: number; warning?: string } {
   if (slices.length === 1) return { sorted: slices, dz: 1, z0: slices[0].position?.[2] ?? 0 };
   if (slices.some((s) => !s.position)) {
     const sorted = [...slices].sort((a, b) => a.instance - b.instance);
-    return { sorted, dz: 1, z0: 0 };
+    return { sorted, dz: 1, z0: 0, warning: 'DICOM series: slices lack Image Position (Patient); sorted by Instance Number with 1 mm spacing assumed' };
   }
   const sorted = [...slices].sort((a, b) => a.position![2] - b.position![2]);
   const gaps = sorted.slice(1).map((s, i) => s.position![2] - sorted[i].position![2]);
@@ -150,7 +150,7 @@ function stack(slices: Slice[]): { sorted: Slice[]; dz: number; z0: number } {
  * Reads DICOM CT files (one image, or the slices of one series) as a volume in HU: x toward
  * the patient's left, y anterior, z superior (slices in increasing z).
  */
-export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimits): { volume: ImageVolume; paddingPixels: number } {
+export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimits): { volume: ImageVolume; paddingPixels: number; warnings: string[] } {
   if (files.length === 0) throw new InputError('DICOM: no files given');
   const slices = files.map((f) => readSlice(f, limits));
   const a = slices[0];
@@ -165,7 +165,7 @@ export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimit
     }
     if (s.orientation.some((v, i) => Math.abs(v - a.orientation[i]) > 1e-3)) throw new InputError(`DICOM: ${s.name} has another orientation than ${a.name}`);
   }
-  const { sorted, dz, z0 } = stack(slices);
+  const { sorted, dz, z0, warning } = stack(slices);
   const nx = a.cols, ny = a.rows, n = nx * ny;
   checkAllocation(sorted.length * n * 4 * 2, limits, `DICOM series of ${sorted.length} slices of ${nx} x ${ny}`);
   const data = new Float32Array(sorted.length * n);
@@ -185,5 +185,6 @@ export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimit
   return {
     volume: { nx, ny, nz: sorted.length, spacing: [dx, dy, dz], origin: [x0, y0, z0], data, quantity: 'hu', format: 'DICOM' },
     paddingPixels: slices.reduce((t, s) => t + s.paddingPixels, 0),
+    warnings: warning ? [warning] : [],
   };
 }

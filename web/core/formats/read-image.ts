@@ -49,7 +49,8 @@ async function readVolume(input: readonly NamedBytes[], o: ImageFileOptions): Pr
   const warnings: string[] = [];
   if (format === 'nrrd') return { volume: await volumeFromNrrd(files, o), warnings };
   if (format === 'dicom') {
-    const { volume, paddingPixels } = readDicomSeries(files, o);
+    const { volume, paddingPixels, warnings: dicomWarnings } = readDicomSeries(files, o);
+    warnings.push(...dicomWarnings);
     if (paddingPixels) warnings.push(`${paddingPixels} DICOM padding pixels (outside the reconstructed field) were set to -1000 HU`);
     return { volume, warnings };
   }
