@@ -2,6 +2,7 @@
 // image, 720 views over 360 degrees, 1024 channels, fan beam with a flat detector), with one
 // and with two workers, against a plain TypeScript baseline.
 import { availableParallelism } from 'node:os';
+import { InputError } from '../../core/errors';
 import { validateGeometry } from '../../core/geometry/validate';
 import { firstChannelU, viewVectors } from '../../core/geometry/view-vectors';
 import { gridOrigin, squareGrid } from '../../core/image';
@@ -11,11 +12,13 @@ import { fbp2d } from '../../core/recon/fbp';
 import { Projector2d } from '../../core/recon/projector';
 import { parseArgs } from '../args';
 import { backprojectFanFlatTs } from '../bench/ts-backproject';
+import { benchFormats, formatFiguresText, measureRead } from '../bench/formats';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
-export const benchHelp = `rimfill bench [--repeat K] [--json]
-  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam).`;
+export const benchHelp = `rimfill bench [--repeat K] [--only formats] [--json]
+  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam).
+  --only formats: read speed and peak memory for a 200 MB NRRD scan and a 200 MB TIFF stack.`;
 
 const now = () => performance.now() / 1000;
 
@@ -25,7 +28,17 @@ function median(xs: number[]): number {
 }
 
 export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', json: 'flag' }, 0);
+  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string', read: 'string' }, 0);
+  if (typeof a.options.read === 'string') {
+    // One measured read, run in a child process by --only formats; prints JSON either way.
+    const figures = await measureRead(a.options.read);
+    return { json: figures, text: JSON.stringify(figures) };
+  }
+  if (a.options.only !== undefined && a.options.only !== 'formats') throw new InputError(`option --only: got "${a.options.only}", expected formats`);
+  if (a.options.only === 'formats') {
+    const rows = await benchFormats(process.argv[1]);
+    return { json: { formats: rows }, text: formatFiguresText(rows).join('\n') };
+  }
   const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
   const geometry = validateGeometry({
     kind: 'fan', detector: { shape: 'flat', channels: 1024, rows: 1, pitch: [1.0, 1.0], offset: [0, 0] },
