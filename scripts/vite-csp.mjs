@@ -24,7 +24,9 @@ export function policyFor(scripts, styles) {
 /** Inline <script> and <style> bodies of an HTML document. */
 export function inlineBodies(html) {
   const scripts = [...html.matchAll(/<script\b[^>]*>([\s\S]*?)<\/script>/gi)].map((m) => m[1]);
-  const styles = [...html.matchAll(/<style\b[^>]*>([\s\S]*?)<\/style>/gi)].map((m) => m[1]);
+  // Styles outside the scripts only (a script may hold "<style>" in a string).
+  const outside = html.replace(/<script\b[^>]*>[\s\S]*?<\/script>/gi, '');
+  const styles = [...outside.matchAll(/<style\b[^>]*>([\s\S]*?)<\/style>/gi)].map((m) => m[1]);
   return { scripts, styles };
 }
 

@@ -89,6 +89,7 @@ export class AppShell extends LitElement {
     @media (max-width: 1100px) { .reconstruct { grid-template-columns: 1fr; } }
     .alert { margin: 12px 18px 0; display: flex; justify-content: space-between; gap: 10px; align-items: flex-start; }
     .placeholder { color: var(--muted); }
+    section[hidden] { display: none; }
     progress { width: 100%; accent-color: var(--accent); }
   `];
 
@@ -313,13 +314,20 @@ export class AppShell extends LitElement {
         ? html`<p>Preparing the demo scan: simulating a truncated fan-beam scan of the thorax phantom and its ground truth…</p><progress max="1" .value=${this.demoFraction}></progress>`
         : this.ready ? 'Import a scan, or add the demo scan, to begin.' : 'Opening the library…'}</div>`;
     }
-    if (this.tab === 'scan') {
-      return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
+    return html`
+      <section role="tabpanel" aria-labelledby="tab-scan" ?hidden=${this.tab !== 'scan'}>${this.scanTab(scan)}</section>
+      <section role="tabpanel" aria-labelledby="tab-reconstruct" ?hidden=${this.tab !== 'reconstruct'}>${this.reconstructTab(scan)}</section>
+      <section role="tabpanel" aria-labelledby="tab-images" ?hidden=${this.tab !== 'images'}>${this.imagesTab(scan)}</section>`;
+  }
+
+  private scanTab(scan: ScanMeta) {
+    return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
         .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .geometryError=${this.geometryError}
         @geometry-apply=${(e: CustomEvent) => this.applyGeometry(e.detail.geometry)}></rf-scan-view>`;
-    }
-    if (this.tab === 'reconstruct') {
-      return html`<div class="reconstruct">
+  }
+
+  private reconstructTab(scan: ScanMeta) {
+    return html`<div class="reconstruct">
         <div class="card"><h2>Recipe for “${scan.name}”</h2>
           <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined}
             @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
@@ -337,7 +345,9 @@ export class AppShell extends LitElement {
               }
             }}></rf-run-queue></div>
       </div>`;
-    }
+  }
+
+  private imagesTab(scan: ScanMeta) {
     return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images}
       .truth=${this.loaded?.id === scan.id ? this.loaded.truth : undefined} .referenceId=${this.referenceId} .comparisons=${this.comparisons}
       .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)}

@@ -57,6 +57,7 @@ export class ImageViewer extends LitElement {
   private size = { w: 0, h: 0 };
   private drag?: { mode: Tool; x: number; y: number; window: DisplayWindow; view: ViewState; p0: Point };
   private resize = new ResizeObserver(() => this.measure());
+  private observed?: Element;
 
   static styles = [theme, css`
     .panel { position: relative; background: var(--panel); border-radius: 8px; overflow: hidden; aspect-ratio: 1 / 1; border: 2px solid transparent; }
@@ -81,17 +82,10 @@ export class ImageViewer extends LitElement {
     this.active = false;
   }
 
-  connectedCallback() {
-    super.connectedCallback();
-    this.updateComplete.then(() => {
-      const panel = this.renderRoot.querySelector('.panel');
-      if (panel) this.resize.observe(panel);
-    });
-  }
-
   disconnectedCallback() {
     super.disconnectedCallback();
     this.resize.disconnect();
+    this.observed = undefined;
   }
 
   private measure() {
@@ -106,6 +100,12 @@ export class ImageViewer extends LitElement {
   }
 
   updated() {
+    const panel = this.renderRoot.querySelector('.panel');
+    if (panel && panel !== this.observed) {
+      if (this.observed) this.resize.unobserve(this.observed);
+      this.resize.observe(panel);
+      this.observed = panel;
+    }
     this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = this.colour));
     this.renderRoot.querySelector<HTMLElement>('.panel')?.style.setProperty('--swatch', this.colour);
     this.draw();

@@ -34,9 +34,11 @@ export class RecipeForm extends LitElement {
     .field.wide { grid-column: 1 / -1; }
     .help { font-size: 12px; color: var(--muted); }
     select, input { width: 100%; }
-    .grid-row { display: flex; gap: 14px; flex-wrap: wrap; align-items: center; font-size: 13px; color: var(--text); }
-    .grid-row label { color: var(--text); display: flex; gap: 5px; align-items: center; }
-    .grid-row input[type='number'] { width: 90px; }
+    .grid-choices { display: flex; flex-direction: column; gap: 6px; font-size: 13px; }
+    .grid-choices label { color: var(--text); display: flex; gap: 7px; align-items: center; }
+    .grid-choices input[type='radio'] { width: auto; margin: 0; }
+    .grid-choices input[type='number'] { width: 90px; }
+    .custom { display: flex; gap: 10px; align-items: center; flex-wrap: wrap; }
     .actions { display: flex; gap: 10px; align-items: center; margin-top: 14px; }
     .summary { font-size: 13px; color: var(--muted); }
   `];
@@ -94,14 +96,14 @@ export class RecipeForm extends LitElement {
   private gridInput() {
     const g = this.referenceGrid;
     const mode = (m: GridMode) => () => { this.gridMode = m; this.error = ''; };
-    return html`<div class="grid-row" role="radiogroup" aria-label="Image grid">
-      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view</label>
-      ${g ? html`<label><input type="radio" name="grid" value="reference" .checked=${live(this.gridMode === 'reference')} @change=${mode('reference')}>Match the ground truth (${g.nx} px × ${g.dx} mm)</label>` : nothing}
-      <label><input type="radio" name="grid" value="custom" .checked=${live(this.gridMode === 'custom')} @change=${mode('custom')}>Choose:</label>
+    return html`<div class="grid-choices" role="radiogroup" aria-label="Image grid">
+      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view (512 px)</label>
+      ${g ? html`<label><input type="radio" name="grid" value="reference" .checked=${live(this.gridMode === 'reference')} @change=${mode('reference')}>Match the ground truth: ${g.nx} px × ${g.dx} mm</label>` : nothing}
+      <div class="custom"><label><input type="radio" name="grid" value="custom" .checked=${live(this.gridMode === 'custom')} @change=${mode('custom')}>Choose:</label>
       <label>size <input type="number" name="gridSize" min="8" max="4096" step="1" .value=${live(String(this.customGrid.size))} ?disabled=${this.gridMode !== 'custom'}
         @input=${(e: Event) => { this.customGrid = { ...this.customGrid, size: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); }}> px</label>
       <label>pixel <input type="number" name="gridPixel" min="0.01" max="100" step="0.05" .value=${live(String(this.customGrid.pixel))} ?disabled=${this.gridMode !== 'custom'}
-        @input=${(e: Event) => { this.customGrid = { ...this.customGrid, pixel: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); }}> mm</label>
+        @input=${(e: Event) => { this.customGrid = { ...this.customGrid, pixel: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); }}> mm</label></div>
     </div>`;
   }
 

@@ -277,6 +277,15 @@ export class ResultsView extends LitElement {
             .line=${this.line} .region=${this.region} .colour=${p.colour} .showFov=${this.showFov} .active=${p.key === this.activeKey}
             @panel-focus=${() => (this.activeKey = p.key)}></rf-image-viewer>`)}
         </div>
+        ${metricsRows.length ? html`<div class="card"><h2>Agreement with ${this.referenceLabel()}</h2>
+          <rf-metrics-table .rows=${metricsRows} .referenceLabel=${this.referenceLabel()}></rf-metrics-table></div>` : nothing}
+        ${this.line ? html`<div class="card"><h2>Line profile</h2>
+          <rf-line-plot id="profile" xLabel="distance along the line (mm)" yLabel=${unit} caption="Values along the drawn line" .series=${profile}></rf-line-plot></div>` : nothing}
+        ${this.region ? html`<div class="card"><h2>Region</h2>
+          <rf-region-table .unit=${unit} .radius=${this.region.radius}
+            .rows=${shown.map((p) => ({ label: p.display.label, colour: p.colour, stats: regionStats(p.display.values, p.display.grid, this.region!.centre, this.region!.radius) }))}></rf-region-table></div>` : nothing}
+        ${this.convergence(panels)}
+        ${compared.some((p) => p.meta!.warnings.length) ? html`<div class="card"><h2>Warnings</h2>${compared.flatMap((p) => p.meta!.warnings.map((x) => html`<p class="warning">${p.label}: ${x}</p>`))}</div>` : nothing}
         <div class="card">
           <h2>Export</h2>
           <div class="exports">
@@ -290,15 +299,6 @@ export class ResultsView extends LitElement {
           <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header.</p>
           ${this.exportError ? html`<div class="error" role="alert">${this.exportError}</div>` : nothing}
         </div>
-        ${metricsRows.length ? html`<div class="card"><h2>Agreement with ${this.referenceLabel()}</h2>
-          <rf-metrics-table .rows=${metricsRows} .referenceLabel=${this.referenceLabel()}></rf-metrics-table></div>` : nothing}
-        ${this.line ? html`<div class="card"><h2>Line profile</h2>
-          <rf-line-plot id="profile" xLabel="distance along the line (mm)" yLabel=${unit} caption="Values along the drawn line" .series=${profile}></rf-line-plot></div>` : nothing}
-        ${this.region ? html`<div class="card"><h2>Region</h2>
-          <rf-region-table .unit=${unit} .radius=${this.region.radius}
-            .rows=${shown.map((p) => ({ label: p.display.label, colour: p.colour, stats: regionStats(p.display.values, p.display.grid, this.region!.centre, this.region!.radius) }))}></rf-region-table></div>` : nothing}
-        ${this.convergence(panels)}
-        ${compared.some((p) => p.meta!.warnings.length) ? html`<div class="card"><h2>Warnings</h2>${compared.flatMap((p) => p.meta!.warnings.map((x) => html`<p class="warning">${p.label}: ${x}</p>`))}</div>` : nothing}
       `}
       </div>`;
   }

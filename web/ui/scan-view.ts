@@ -53,7 +53,7 @@ export class ScanView extends LitElement {
     return html`
       <div class="top">
         <div class="card">
-          <h2>Projections</h2>
+          <h2>Sinogram</h2>
           ${this.projections && r
             ? html`<rf-sinogram-image .projections=${this.projections} .channels=${m.geometry.detector.channels} .report=${r} .anglesDeg=${this.angles()}></rf-sinogram-image>`
             : html`<p class="muted">Loading…</p>`}
