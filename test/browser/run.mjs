@@ -3,8 +3,8 @@
 // engine memory) and once opened from disk (file://: separate memories). Builds the page first
 // when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
 // Usage: node test/browser/run.mjs [--rebuild] [--only http|file]
-import { execFileSync, execSync } from 'node:child_process';
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { execSync } from 'node:child_process';
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -12,32 +12,14 @@ import { chromium } from 'playwright-core';
 import { cliReference } from './cli-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
-import { serveDirectory } from './serve.mjs';
+import { ensurePageBuilt } from '../../scripts/page-build.mjs';
+import { serveDirectory } from '../../scripts/serve-page.mjs';
 
 const root = resolve(import.meta.dirname, '../..');
 const dist = join(root, 'dist/index.html');
 const artifacts = join(root, 'test-artifacts');
 const argv = process.argv.slice(2);
 const only = argv.includes('--only') ? argv[argv.indexOf('--only') + 1] : undefined;
-
-/** Newest modification time under the page's sources. */
-function newestSource() {
-  let newest = 0;
-  const walk = (p) => {
-    const s = statSync(p);
-    if (s.isDirectory()) readdirSync(p).forEach((n) => walk(join(p, n)));
-    else newest = Math.max(newest, s.mtimeMs);
-  };
-  for (const p of ['web', 'assembly', 'vite.config.ts', 'scripts/vite-csp.mjs', 'package.json']) if (existsSync(join(root, p))) walk(join(root, p));
-  return newest;
-}
-
-function ensureBuilt() {
-  const stale = !existsSync(dist) || !existsSync(join(root, 'build/cli.mjs')) || statSync(dist).mtimeMs < newestSource();
-  if (!stale && !argv.includes('--rebuild')) return;
-  console.log('building the page (npm run build)…');
-  execFileSync('npm', ['run', 'build'], { cwd: root, stdio: 'inherit' });
-}
 
 function chromiumPath() {
   try {
@@ -53,7 +35,7 @@ async function main() {
   const h = new Harness();
   let executablePath;
   try {
-    ensureBuilt();
+    ensurePageBuilt(root, argv.includes('--rebuild'));
     executablePath = chromiumPath();
   } catch (err) {
     console.error(err.message);

@@ -385,6 +385,7 @@ export class AppShell extends LitElement {
             @scan-rename=${(e: CustomEvent) => this.storeAction(() => renameScan(e.detail.id, e.detail.name))}
             @scan-delete=${(e: CustomEvent) => this.deleteScan(e.detail.id)}
             @files-chosen=${(e: CustomEvent) => this.importFiles(e.detail.files)}
+            @import-error-dismiss=${() => (this.importError = '')}
             @demo-request=${() => this.createDemo()}
             @persist-request=${async () => { await requestPersistence(); await this.storageUseRefresh(); }}></rf-scan-library>
         </aside>

@@ -63,10 +63,10 @@ export class ImageViewer extends LitElement {
     .panel { position: relative; background: var(--panel); border-radius: 8px; overflow: hidden; aspect-ratio: 1 / 1; border: 2px solid transparent; }
     .panel.active { border-color: var(--swatch, #888); }
     canvas { position: absolute; inset: 0; width: 100%; height: 100%; touch-action: none; }
-    .label { position: absolute; left: 8px; top: 6px; color: #e8ecf1; font-size: 12px; text-shadow: 0 1px 2px #000; pointer-events: none; display: flex; gap: 6px; align-items: center; max-width: calc(100% - 16px); }
+    .label { position: absolute; left: 6px; top: 6px; color: #e8ecf1; font-size: 12px; pointer-events: none; display: flex; gap: 6px; align-items: center; max-width: calc(100% - 12px); background: rgba(15, 19, 24, 0.72); padding: 2px 8px; border-radius: 4px; }
     .label span { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
     .dot { width: 9px; height: 9px; border-radius: 50%; flex: none; }
-    .corner { position: absolute; right: 8px; bottom: 6px; color: #aab4c0; font-size: 11px; pointer-events: none; }
+    .corner { position: absolute; right: 6px; bottom: 6px; color: #c3ccd6; font-size: 11px; pointer-events: none; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
     .readout { font-size: 12px; color: var(--muted); min-height: 18px; margin-top: 4px; }
   `];
 

@@ -182,8 +182,10 @@ export class ResultsView extends LitElement {
 
   private async exportImage(kind: 'nrrd-hu' | 'nrrd-mu' | 'png') {
     this.exportError = '';
-    const p = this.shown(this.panels()).find((x) => x.key === this.activeKey) ?? this.shown(this.panels())[0];
-    if (!p) return;
+    const panels = this.panels();
+    const shown = this.shown(panels);
+    const p = shown.find((x) => x.key === this.activeKey) ?? shown[0];
+    if (!p || (kind !== 'png' && shown !== panels)) return;
     try {
       if (kind === 'png') {
         saveFile(await pngBlob(p.display, this.currentWindow()), fileName(p.display.label, 'png'), 'image/png');
@@ -255,6 +257,7 @@ export class ResultsView extends LitElement {
       ? shown.map((p) => { const s = sampleProfile(p.display.values, p.display.grid, this.line!.p0, this.line!.p1); return { label: p.display.label, colour: p.colour, x: s.distance, y: s.values }; })
       : [];
     const active = shown.find((p) => p.key === this.activeKey);
+    const differenceShown = shown !== panels;
     return html`
       <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}></rf-result-list>
       <div class="main">
@@ -290,13 +293,13 @@ export class ResultsView extends LitElement {
           <h2>Export</h2>
           <div class="exports">
             <span class="muted">Highlighted image${active ? html` (<strong>${active.display.label}</strong>)` : nothing}:</span>
-            <button id="export-nrrd-hu" ?disabled=${!active || active.display.unit !== 'HU'} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
-            <button id="export-nrrd-mu" ?disabled=${!active} @click=${() => this.exportImage('nrrd-mu')}>NRRD in µ (1/mm)</button>
+            <button id="export-nrrd-hu" ?disabled=${!active || active.display.unit !== 'HU' || differenceShown} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
+            <button id="export-nrrd-mu" ?disabled=${!active || differenceShown} @click=${() => this.exportImage('nrrd-mu')}>NRRD in µ (1/mm)</button>
             <button id="export-png" ?disabled=${!active} @click=${() => this.exportImage('png')}>PNG at this window</button>
             <span class="muted">All shown:</span>
             <button id="export-report" class="primary" @click=${() => this.exportReport(panels)}>Report (HTML, printable)</button>
           </div>
-          <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header.</p>
+          <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header${differenceShown ? '; they hold images, not differences (turn the difference off to save one)' : ''}.</p>
           ${this.exportError ? html`<div class="error" role="alert">${this.exportError}</div>` : nothing}
         </div>
       `}

@@ -16,6 +16,7 @@ const emit = (el: HTMLElement, name: string, detail: unknown = {}) =>
  * @fires scan-delete - detail: { id }
  * @fires demo-request - the user asks for the demo scan (shown when it is not in the library)
  * @fires files-chosen - from the drop area, detail: { files }
+ * @fires import-error-dismiss - the user closed the import error
  */
 export class ScanLibrary extends LitElement {
   static properties = {
@@ -62,6 +63,8 @@ export class ScanLibrary extends LitElement {
     .actions { display: flex; gap: 6px; margin-top: 7px; }
     .rename { width: 100%; }
     .empty { font-size: 13px; color: var(--muted); }
+    .dismissable { display: flex; gap: 8px; align-items: flex-start; justify-content: space-between; }
+    .dismissable button { padding: 0 6px; line-height: 18px; }
   `];
 
   constructor() {
@@ -122,7 +125,8 @@ export class ScanLibrary extends LitElement {
     return html`
       <h2>Scans</h2>
       <rf-file-drop ?busy=${this.importing}></rf-file-drop>
-      ${this.importError ? html`<div class="error" role="alert" id="import-error">${this.importError}</div>` : nothing}
+      ${this.importError ? html`<div class="error dismissable" role="alert" id="import-error"><span>${this.importError}</span>
+        <button class="small" aria-label="Dismiss" @click=${() => emit(this, 'import-error-dismiss')}>×</button></div>` : nothing}
       ${this.scans.length
         ? html`<ul role="listbox" aria-label="Stored scans">${this.scans.map((s) => this.item(s))}</ul>`
         : html`<p class="empty">${this.demoBusy ? 'Preparing the demo scan…' : 'No scans stored yet.'}</p>`}
