@@ -155,3 +155,15 @@ describe('descriptions', () => {
     expect(geometrySummary(presetGeometry('demo')!)).toBe('Fan beam, flat detector 1100 × 1 mm, 720 views over 360°, source 600 mm / detector 1000 mm from the source');
   });
 });
+
+describe('convergence histories', () => {
+  it('take every numeric series of report.convergence, arrays or typed arrays', async () => {
+    const { convergenceHistories } = await import('../../web/ui/logic/convergence');
+    expect(convergenceHistories({ convergence: { residual: [3, 2, 1], tv: Float32Array.from([5, 4]), note: 'x', one: [1], mixed: [1, 'a'] } })).toEqual([
+      { label: 'residual', values: [3, 2, 1] },
+      { label: 'tv', values: [5, 4] },
+    ]);
+    expect(convergenceHistories({ timings: { a: 1 } })).toEqual([]);
+    expect(convergenceHistories({ convergence: [1, 2] })).toEqual([]);
+  });
+});

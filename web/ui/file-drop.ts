@@ -37,9 +37,9 @@ export class FileDrop extends LitElement {
         @dragover=${(e: DragEvent) => { e.preventDefault(); this.dragging = true; }}
         @dragleave=${() => (this.dragging = false)}
         @drop=${(e: DragEvent) => { e.preventDefault(); this.dragging = false; this.emit(e.dataTransfer?.files); }}>
-      ${this.busy ? 'Reading the file…' : html`Drop a scan file here (.nrrd, with an optional .json geometry)`}
+      ${this.busy ? 'Reading the file…' : html`Drop scan files here: a scan file, with a .json geometry beside it when the file has none`}
       <div><button ?disabled=${this.busy} @click=${() => this.renderRoot.querySelector('input')!.click()}>Choose files…</button></div>
-      <input type="file" multiple accept=".nrrd,.json" aria-label="Scan files"
+      <input type="file" multiple aria-label="Scan files"
         @change=${(e: Event) => { const input = e.target as HTMLInputElement; this.emit(input.files); input.value = ''; }}>
     </div>`;
   }

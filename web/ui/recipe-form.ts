@@ -3,6 +3,7 @@ import { live } from 'lit/directives/live.js';
 import { InputError } from '../core/errors';
 import type { ImageGrid } from '../core/image';
 import { describeRecipeFields, recipeSummary, type RecipeField } from '../core/recipe/fields';
+import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
 import { theme } from './theme';
 
@@ -97,7 +98,7 @@ export class RecipeForm extends LitElement {
     const g = this.referenceGrid;
     const mode = (m: GridMode) => () => { this.gridMode = m; this.error = ''; };
     return html`<div class="grid-choices" role="radiogroup" aria-label="Image grid">
-      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view (512 px)</label>
+      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view (${DEFAULT_GRID_SIZE} px)</label>
       ${g ? html`<label><input type="radio" name="grid" value="reference" .checked=${live(this.gridMode === 'reference')} @change=${mode('reference')}>Match the ground truth: ${g.nx} px × ${g.dx} mm</label>` : nothing}
       <div class="custom"><label><input type="radio" name="grid" value="custom" .checked=${live(this.gridMode === 'custom')} @change=${mode('custom')}>Choose:</label>
       <label>size <input type="number" name="gridSize" min="8" max="4096" step="1" .value=${live(String(this.customGrid.size))} ?disabled=${this.gridMode !== 'custom'}

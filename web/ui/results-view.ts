@@ -7,6 +7,7 @@ import { fileName, saveFile } from './export/download';
 import { pngBlob, pngDataUrl } from './export/png';
 import { buildReport } from './export/report';
 import type { LineMark, RegionMark, Tool } from './image-viewer';
+import { convergenceHistories } from './logic/convergence';
 import { difference, toDisplay, type DisplayImage } from './logic/display';
 import { regionStats, sampleProfile, type Point } from './logic/measure';
 import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
@@ -236,11 +237,9 @@ export class ResultsView extends LitElement {
 
   private convergence(panels: Panel[]) {
     return panels.filter((p) => p.meta).map((p) => {
-      const c = p.meta!.report.convergence as Record<string, unknown> | undefined;
-      if (!c || typeof c !== 'object') return nothing;
-      const series: PlotSeries[] = Object.entries(c)
-        .filter(([, v]) => (Array.isArray(v) || ArrayBuffer.isView(v)) && (v as ArrayLike<number>).length > 1)
-        .map(([k, v], i) => ({ label: k, colour: SERIES_COLOURS[i % SERIES_COLOURS.length], x: Array.from({ length: (v as ArrayLike<number>).length }, (_, n) => n + 1), y: v as ArrayLike<number> }));
+      const series: PlotSeries[] = convergenceHistories(p.meta!.report).map((hst, i) => ({
+        label: hst.label, colour: SERIES_COLOURS[i % SERIES_COLOURS.length], x: hst.values.map((_, n) => n + 1), y: hst.values,
+      }));
       return series.length ? html`<div class="card"><h2>Convergence: ${p.label}</h2><rf-line-plot xLabel="iteration" yLabel="value" .series=${series}></rf-line-plot></div>` : nothing;
     });
   }
