@@ -48,6 +48,9 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
   const ok = await h.step(`${mode}: (a) the built page loads with its caution, policy and engine`, async () => {
     await page.goto(url);
     check((await page.title()).startsWith('Rimfill'), `title: ${await page.title()}`);
+    // First visit: the demo scan is being simulated in the engine, with a progress bar.
+    await page.locator('rf-app progress').waitFor({ timeout: 15_000 });
+    await shot(page, '0-first-visit');
     const caution = await page.locator('#caution').innerText();
     check(/not for diagnosis/i.test(caution) && /licensed clinical practice/i.test(caution), `caution text: ${caution}`);
     const csp = await page.locator('meta[http-equiv="Content-Security-Policy"]').getAttribute('content');

@@ -90,7 +90,6 @@ export class AppShell extends LitElement {
     .alert { margin: 12px 18px 0; display: flex; justify-content: space-between; gap: 10px; align-items: flex-start; }
     .placeholder { color: var(--muted); }
     section[hidden] { display: none; }
-    progress { width: 100%; accent-color: var(--accent); }
   `];
 
   constructor() {

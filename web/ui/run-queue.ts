@@ -47,7 +47,7 @@ export class RunQueue extends LitElement {
     .state.running { background: var(--accent-soft); color: var(--accent); }
     .state.done { background: #e6f4ea; color: var(--ok); }
     .state.failed { background: var(--danger-soft); color: var(--danger); }
-    progress { width: 100%; height: 8px; margin-top: 7px; accent-color: var(--accent); }
+    progress { margin-top: 7px; }
     .line { display: flex; justify-content: space-between; align-items: center; gap: 8px; font-size: 12px; color: var(--muted); margin-top: 4px; }
     .empty { color: var(--muted); font-size: 13px; }
     .bar { display: flex; justify-content: flex-end; margin-top: 8px; }

@@ -48,6 +48,10 @@ export const theme = css`
   .error { color: var(--danger); background: var(--danger-soft); border-radius: 6px; padding: 8px 10px; font-size: 13px; }
   .warning { color: var(--warn); background: var(--warn-soft); border-radius: 6px; padding: 8px 10px; font-size: 13px; }
   .num { font-variant-numeric: tabular-nums; }
+  progress { -webkit-appearance: none; appearance: none; width: 100%; height: 8px; border: none; border-radius: 4px; background: var(--border); overflow: hidden; }
+  progress::-webkit-progress-bar { background: var(--border); border-radius: 4px; }
+  progress::-webkit-progress-value { background: var(--accent); border-radius: 4px; transition: width 0.2s; }
+  progress::-moz-progress-bar { background: var(--accent); }
   table { border-collapse: collapse; font-size: 13px; }
   th, td { padding: 4px 10px; text-align: right; border-bottom: 1px solid var(--border); }
   th:first-child, td:first-child { text-align: left; }
