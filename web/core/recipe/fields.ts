@@ -1,0 +1,128 @@
+// What a recipe form shows: one description per recipe field, built from the recipe module's
+// own lists (METHODS, FILTER_WINDOWS, DEFAULT_RECIPE), so a new method or option appears in the
+// page without touching the page. Whoever adds a recipe field adds its description here;
+// a field of DEFAULT_RECIPE that has none still appears, as a plain input of its default's type
+// (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
+import { FILTER_WINDOWS } from '../recon/filter-design';
+import { DEFAULT_RECIPE, METHODS } from './recipe';
+
+export interface FieldChoice {
+  value: string;
+  label: string;
+}
+
+interface FieldBase {
+  /** Key in the recipe object. */
+  key: string;
+  /** Plain-words label. */
+  label: string;
+  /** One sentence on what the field does. */
+  help: string;
+  /** When present, the field matters only for recipes where this returns true. */
+  appliesTo?: (recipe: Record<string, unknown>) => boolean;
+}
+
+export interface ChoiceField extends FieldBase {
+  kind: 'choice';
+  choices: FieldChoice[];
+}
+
+export interface NumberField extends FieldBase {
+  kind: 'number' | 'integer';
+  min: number;
+  max: number;
+  step: number;
+  unit?: string;
+}
+
+/** The reconstruction grid: automatic, or size (pixels) and pixel size (mm). */
+export interface GridField extends FieldBase {
+  kind: 'grid';
+}
+
+export interface TextField extends FieldBase {
+  kind: 'text';
+}
+
+export type RecipeField = ChoiceField | NumberField | GridField | TextField;
+
+/** Readable names for known choice values; unknown values show as they are. */
+const CHOICE_LABELS: Record<string, string> = {
+  fbp: 'Filtered backprojection (FBP)',
+  sart: 'SART (algebraic, iterative)',
+  tv: 'Total variation (iterative)',
+  wtv: 'Reweighted total variation (iterative)',
+  prior: 'Prior-guided, data-consistent (iterative)',
+  'ram-lak': 'Ramp (sharpest)',
+  'shepp-logan': 'Shepp-Logan',
+  cosine: 'Cosine',
+  hamming: 'Hamming',
+  hann: 'Hann (smoothest)',
+  none: 'None',
+  edge: 'Repeat the edge value',
+  mirror: 'Mirror with taper',
+  water: 'Water cylinder fit',
+};
+
+/** Choices of a list, with readable labels. */
+export function choicesOf(values: readonly string[]): FieldChoice[] {
+  return values.map((value) => ({ value, label: CHOICE_LABELS[value] ?? value }));
+}
+
+/** The readable label of a choice value. */
+export function choiceLabel(value: string): string {
+  return CHOICE_LABELS[value] ?? value;
+}
+
+const isFbp = (r: Record<string, unknown>) => r.method === 'fbp';
+
+/** Described fields, in form order. */
+export const RECIPE_FIELDS: RecipeField[] = [
+  { key: 'method', label: 'Method', kind: 'choice', choices: choicesOf(METHODS), help: 'How the image is computed from the projections.' },
+  {
+    key: 'filter', label: 'Filter window', kind: 'choice', choices: choicesOf(FILTER_WINDOWS), appliesTo: isFbp,
+    help: 'Apodization of the ramp filter: smoother windows trade resolution for less noise.',
+  },
+  {
+    key: 'cutoff', label: 'Filter cutoff', kind: 'number', min: 0.05, max: 1, step: 0.05, appliesTo: isFbp,
+    help: 'Fraction of the Nyquist frequency where the window ends (1 = full band).',
+  },
+  { key: 'grid', label: 'Image grid', kind: 'grid', help: 'Pixels along each side and pixel size; automatic covers the measured field of view.' },
+];
+
+/**
+ * Every field a form should offer: the described ones, then any field of DEFAULT_RECIPE that has
+ * no description yet, as a plain input of its default's type.
+ */
+export function describeRecipeFields(): RecipeField[] {
+  const known = new Set(RECIPE_FIELDS.map((f) => f.key));
+  const extra: RecipeField[] = [];
+  for (const [key, value] of Object.entries(DEFAULT_RECIPE as unknown as Record<string, unknown>)) {
+    if (known.has(key)) continue;
+    const label = key.replace(/([A-Z])/g, ' $1').replace(/^./, (c) => c.toUpperCase());
+    const help = `Recipe option "${key}".`;
+    if (typeof value === 'number') {
+      extra.push({ key, label, help, kind: Number.isInteger(value) ? 'integer' : 'number', min: -1e9, max: 1e9, step: Number.isInteger(value) ? 1 : 0.01 });
+    } else {
+      extra.push({ key, label, help, kind: 'text' });
+    }
+  }
+  return [...RECIPE_FIELDS, ...extra];
+}
+
+function formatValue(f: RecipeField, v: unknown): string {
+  if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
+  if (f.kind === 'grid') {
+    const g = v as { size: number; pixel: number } | undefined;
+    return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
+  }
+  return `${f.key} ${String(v)}`;
+}
+
+/** A one-line description of a recipe, e.g. "FBP, hann, cutoff 0.8, 576 px × 1 mm". */
+export function recipeSummary(recipe: Record<string, unknown>): string {
+  return describeRecipeFields()
+    .filter((f) => (f.appliesTo ? f.appliesTo(recipe) : true) && (recipe[f.key] !== undefined || f.kind === 'grid'))
+    .map((f) => formatValue(f, recipe[f.key]))
+    .join(', ');
+}
