@@ -107,7 +107,7 @@ describe('scan lies', () => {
   it('NaN line integrals are reported, not hidden', async () => {
     const g = { kind: 'parallel', detector: { channels: 2, pitch: 1 }, anglesDeg: { start: 0, step: 1, count: 1 } };
     const files = [{ name: 's.json', bytes: enc(JSON.stringify({ ...g, dtype: 'float32', sizes: [2, 1] })) }, { name: 's.raw', bytes: new Uint8Array(new Float32Array([1, Number.NaN]).buffer) }];
-    await expect(readScanFile(files)).rejects.toThrow(/1 line integrals are not finite/);
+    await expect(readScanFile(files)).rejects.toThrow(/1 of 2 line integrals are not finite/);
   });
   it('DICOM given as projections', async () => {
     const b = new Uint8Array(200);

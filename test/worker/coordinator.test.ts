@@ -55,11 +55,11 @@ describe('import', () => {
     const { c, store } = coordinator();
     const good = await writeScanNrrd(smallScan().scan);
     const damaged = new File([good.subarray(0, good.length - 1000) as BlobPart], 'cut.nrrd');
-    await expect(c.importScan([damaged], undefined, {})).rejects.toThrow(/cut\.nrrd: NRRD: the header promises 46080 bytes of data, the file holds 45080/);
+    await expect(c.importScan([damaged], undefined, {})).rejects.toThrow(/cut\.nrrd: NRRD: the header promises 46080 bytes of data from byte \d+, the file holds 45080/);
     await expect(c.importScan([new File(['hello'], 'notes.txt')], undefined, {})).rejects.toThrow(InputError);
     const nan = smallScan().scan;
     nan.data[7] = NaN;
-    await expect(c.importScan([new File([(await writeScanNrrd(nan)) as BlobPart], 'nan.nrrd')], undefined, {})).rejects.toThrow(/1 of 11520 values are not finite/);
+    await expect(c.importScan([new File([(await writeScanNrrd(nan)) as BlobPart], 'nan.nrrd')], undefined, {})).rejects.toThrow(/1 of 11520 line integrals are not finite numbers/);
     expect(await listScans(store)).toEqual([]);
   });
 
@@ -143,5 +143,20 @@ describe('demo scan', () => {
     const ctl = new AbortController();
     const p = buildDemoScan({ signal: ctl.signal, onProgress: (f) => f > 0.1 && ctl.abort() });
     await expect(p).rejects.toThrow(CancelledError);
+  });
+});
+
+describe('import of other formats through the page', () => {
+  // The page reads with the same entry point as the CLI (readScanFile): a raw + JSON sidecar
+  // scan, and TIFF-free intensity data with flat and dark files named flat* / dark*.
+  it('reads a raw file with its JSON sidecar', async () => {
+    const { readScanFiles } = await import('../../web/worker/import-scan');
+    const geometry = { kind: 'parallel', detector: { shape: 'flat', channels: 4, rows: 1, pitch: [1, 1], offset: [0, 0] }, anglesDeg: { start: 0, step: 90, count: 2 } };
+    const data = new Float32Array([0, 1, 2, 3, 4, 5, 6, 7]);
+    const sidecar = JSON.stringify({ dtype: 'float32', sizes: [4, 1, 2], geometry, quantity: 'line-integral' });
+    const files = [new File([data as BlobPart], 's.raw'), new File([sidecar], 's.json')];
+    const { scan } = await readScanFiles(files);
+    expect(Array.from(scan.data)).toEqual(Array.from(data));
+    expect(scan.geometry.kind).toBe('parallel');
   });
 });

@@ -1,7 +1,8 @@
 // Reading dropped or picked files into a validated scan: the one place the page calls a format
-// reader, so a reader for more formats swaps in here.
+// reader (readScanFile, the same entry point as the CLI).
 import { InputError } from '../core/errors';
-import { readScanNrrd } from '../core/formats/scan-nrrd';
+import type { NamedBytes } from '../core/formats/named-file';
+import { readScanFile } from '../core/formats/read-scan';
 import { validateGeometry } from '../core/geometry/validate';
 import type { Scan } from '../core/scan';
 
@@ -14,18 +15,25 @@ export interface InputFile {
 /** Line integrals below this count as suspicious (noise gives small negatives; common practice). */
 const NEGATIVE_LIMIT = -0.05;
 
+const isJson = (f: InputFile) => /\.json$/i.test(f.name);
+const isReference = (kind: 'flat' | 'dark') => (f: InputFile) => new RegExp(`^${kind}[^/]*\\.(tiff?|nrrd|mha|raw)$`, 'i').test(f.name.split('/').pop()!);
+
 /**
- * Reads a scan from the files: a .nrrd scan file, optionally with a .json geometry that
- * supplies or replaces the one in the file. Throws InputError naming what is wrong.
+ * Reads a scan from the files (any format readScanFile knows: NRRD, MetaImage, raw + JSON
+ * sidecar, TIFF frames). A .json file beside data that is not raw is a geometry that supplies
+ * or replaces the file's; files named flat* and dark* are flat and dark fields for intensity
+ * data. Throws InputError naming what is wrong.
  */
 export async function readScanFiles(files: InputFile[]): Promise<{ scan: Scan; warnings: string[] }> {
-  if (files.length === 0) throw new InputError('import: no file given; expected a .nrrd scan file');
-  const scanFiles = files.filter((f) => /\.nrrd$/i.test(f.name));
-  const geometryFiles = files.filter((f) => /\.json$/i.test(f.name));
-  const other = files.filter((f) => !scanFiles.includes(f) && !geometryFiles.includes(f));
-  if (other.length) throw new InputError(`import ${other[0].name}: not a file this page reads; expected a .nrrd scan file and optionally a .json geometry`);
-  if (scanFiles.length !== 1) throw new InputError(`import: got ${scanFiles.length} .nrrd files, expected exactly one scan file`);
+  if (files.length === 0) throw new InputError('import: no file given; expected a scan (NRRD, MetaImage, raw + JSON or TIFF frames)');
+  const read = async (f: InputFile): Promise<NamedBytes> => ({ name: f.name, bytes: new Uint8Array(await f.arrayBuffer()) });
+  const hasRaw = files.some((f) => /\.raw$/i.test(f.name) && !isReference('flat')(f) && !isReference('dark')(f));
+  const geometryFiles = hasRaw ? [] : files.filter(isJson);
   if (geometryFiles.length > 1) throw new InputError(`import: got ${geometryFiles.length} .json files, expected at most one geometry`);
+  const flat = files.filter(isReference('flat'));
+  const dark = files.filter(isReference('dark'));
+  const data = files.filter((f) => !geometryFiles.includes(f) && !flat.includes(f) && !dark.includes(f));
+  if (data.length === 0) throw new InputError('import: only geometry or reference files given; expected the projections too');
   let geometry;
   if (geometryFiles.length) {
     const f = geometryFiles[0];
@@ -37,15 +45,19 @@ export async function readScanFiles(files: InputFile[]): Promise<{ scan: Scan; w
     }
     geometry = validateGeometry(parsed);
   }
-  const f = scanFiles[0];
-  let scan: Scan;
+  let result;
   try {
-    scan = await readScanNrrd(new Uint8Array(await f.arrayBuffer()), geometry);
+    result = await readScanFile(await Promise.all(data.map(read)), {
+      geometry,
+      flat: flat.length ? await Promise.all(flat.map(read)) : undefined,
+      dark: dark.length ? await Promise.all(dark.map(read)) : undefined,
+    });
   } catch (err) {
-    if (err instanceof InputError) throw new InputError(`${f.name}: ${err.message}`);
+    const names = data.map((f) => f.name).join(', ');
+    if (err instanceof InputError && !err.message.includes(data[0].name)) throw new InputError(`${names}: ${err.message}`);
     throw err;
   }
-  return { scan, warnings: checkValues(scan.data) };
+  return { scan: result.scan, warnings: [...result.warnings, ...checkValues(result.scan.data)] };
 }
 
 /** Refuses non-finite values; notes clearly negative line integrals. */

@@ -60,7 +60,7 @@ export function assembleScan(p: ProjectionData, o: ScanAssemblyOptions = {}): Sc
       throw new InputError(`scan (${p.format}): the values are line integrals already; flat, dark, i0 and saturation apply to intensity data`);
     }
     const bad = countNonFinite(p.data);
-    if (bad) throw new InputError(`scan (${p.format}): ${bad} line integrals are not finite numbers (NaN or infinite)`);
+    if (bad) throw new InputError(`scan (${p.format}): ${bad} of ${p.data.length} line integrals are not finite numbers (NaN or infinite)`);
     if (c.badPixels) {
       const mask = c.badPixels;
       if (mask.length !== p.channels * p.rows) throw new InputError(`bad-pixel mask: got ${mask.length} values, expected one frame of ${p.channels * p.rows}`);
