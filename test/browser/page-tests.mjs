@@ -93,7 +93,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const err = page.locator('#import-error');
     await err.waitFor({ timeout: 30_000 });
     const text = await err.innerText();
-    check(/broken\.nrrd: NRRD: the header promises 200 bytes of data, the file holds 16/.test(text), `message: ${text}`);
+    check(/broken\.nrrd: NRRD: the header promises 200 bytes of data from byte 0, the file holds 16/.test(text), `message: ${text}`);
     check((await page.locator('rf-scan-library li').count()) === 1, 'still one scan');
     await shot(page, '2-import-error');
   });
