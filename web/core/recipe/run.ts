@@ -5,6 +5,8 @@ import type { Image2D } from '../image';
 import { fbp2d } from '../recon/fbp';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
+import { analyseEdges, objectRadius } from '../truncation/edges';
+import { planExtension } from '../truncation/extension-plan';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
 
@@ -18,11 +20,18 @@ export interface RecipeResult {
 
 /** Reconstructs `scan` as the recipe says. */
 export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
-  const grid = chooseGrid(scan, recipe.grid);
-  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff }, hooks);
+  const t0 = performance.now();
+  const extend = recipe.extend ?? 'none';
+  const analysis = extend !== 'none' || !recipe.grid ? analyseEdges(scan) : undefined;
+  const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
+  const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
+  const planSeconds = (performance.now() - t0) / 1000;
+  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension: plan }, hooks);
+  const warnings = [...r.warnings];
+  if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {
     image: { ...r.image, fovRadius: fovRadius(scan.geometry) },
-    warnings: r.warnings,
-    report: { timings: r.timings },
+    warnings,
+    report: { timings: { ...r.timings, plan: planSeconds }, ...(plan ? { extension: plan.summary } : {}) },
   };
 }

@@ -113,18 +113,30 @@ export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = 
     warnings.push(`limited-angle scan (${(coverage * 180 / Math.PI).toFixed(1)} degrees): FBP cannot recover the missing directions`);
   }
 
+  // Fan angle and cosine pre-weight per channel, recomputed only when a view's distances differ
+  // from the previous view's (circular scans: once).
+  const gammas = new Float64Array(channels), cosines = new Float64Array(channels).fill(1);
+  let lastR = NaN, lastD = NaN;
   for (let v = 0; v < n; v++) {
     const { R, D } = fan ? distances(v) : { R: 1, D: 1 };
+    if (fan && (R !== lastR || D !== lastD)) {
+      for (let k = 0; k < channels; k++) {
+        gammas[k] = fanAngle(u0 + k * pitch, D, kind === KernelKind.fanCurved);
+        cosines[k] = kind === KernelKind.fanCurved ? R * Math.cos(gammas[k]) : Math.cos(gammas[k]);
+      }
+      [lastR, lastD] = [R, D];
+    }
     const betaRel = sign * (beta[v] - beta[0]);
+    const row = v * channels;
+    if (scanType === 'full') {
+      for (let k = 0; k < channels; k++) weights[row + k] = dBeta[v] * 0.5 * cosines[k];
+      continue;
+    }
     for (let k = 0; k < channels; k++) {
-      const u = u0 + k * pitch;
-      const gamma = fan ? fanAngle(u, D, kind === KernelKind.fanCurved) : 0;
       let red = 1;
-      if (scanType === 'full') red = 0.5;
-      else if (scanType === 'short') red = parkerWeight(betaRel, -sign * gamma, fan ? Math.max(deltaScan, 1e-9) : deltaScan);
+      if (scanType === 'short') red = parkerWeight(betaRel, -sign * gammas[k], fan ? Math.max(deltaScan, 1e-9) : deltaScan);
       if (scanType === 'short' && !fan && deltaScan < 1e-9) red = 1;
-      const cosine = !fan ? 1 : kind === KernelKind.fanCurved ? R * Math.cos(gamma) : Math.cos(gamma);
-      weights[v * channels + k] = dBeta[v] * red * cosine;
+      weights[row + k] = dBeta[v] * red * cosines[k];
     }
   }
   return { weights, warnings, scanType };
