@@ -48,10 +48,8 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const table = viewVectors(g);
   const nViews = table.length / VIEW_STRIDE;
   const t0 = now();
-  const pre = fbpPreweights(ge);
-  const weights = pre.weights;
-  // Warnings describe the measured detector (the extended fan is wider than what was scanned).
-  const warnings = ext && pre.scanType !== 'full' ? fbpPreweights(g).warnings : pre.warnings;
+  // Weights for the extended channels; the measured detector (g) sets the redundancy.
+  const { weights, warnings } = fbpPreweights(g, nCh, firstChannelU(ge));
   const t1 = now();
   throwIfCancelled(hooks.signal);
 

@@ -7,9 +7,11 @@ import type { Geometry } from '../geometry/types';
 import { firstChannelU } from '../geometry/view-vectors';
 import type { Scan } from '../scan';
 import type { PerSide } from './edge-stats';
+import { displacedDetectorMargin } from './displaced-margin';
 import { analyseEdges, type EdgeAnalysis } from './edges';
 import { EDGE_PLATEAU, EXTEND_CODES, EXTEND_DESCRIPTIONS, EXTEND_PARAMS, type ExtendMethod } from './extend-methods';
 import { massConsistency, massUnavailable, type MassReport } from './mass';
+import { rayCoordinates } from './ray-coords';
 import { tailMassTargets } from './mass-targets';
 import { cylinderWithLength, tailArea, type CylinderTail } from './water-fit';
 
@@ -119,16 +121,16 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
     }
   }
 
-  // Channels to add: enough for the longest tail on each side.
+  // Channels to add: enough for the longest tail on each side, and for a displaced detector's
+  // short side to mirror its long one.
   const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
   const uLast = u0 + (nCh - 1) * pitch;
   const reach = (side: 0 | 1) => Math.max(0, ...lengths[side]);
-  const left = reach(0) > 0 ? Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1 : 0;
-  const right = reach(1) > 0 ? Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1 : 0;
-  const geometry = extendDetector(g, left, right);
+  const margin = displacedDetectorMargin(g);
+  const left = Math.max(margin.left, reach(0) > 0 ? Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1 : 0);
+  const right = Math.max(margin.right, reach(1) > 0 ? Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1 : 0);
+  const { geometry, coord } = extendedLayout(g, left, right);
   const nExt = left + nCh + right;
-  const coord = new Float32Array(nExt);
-  for (let j = 0; j < nExt; j++) coord[j] = a.rays.s(u0 + (j - left) * pitch);
 
   const params = new Float32Array(nViews * EXTEND_PARAMS);
   for (let v = 0; v < nViews; v++) {
@@ -160,6 +162,26 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
       muWater: a.mu, muAssumed: a.muAssumed,
     },
   };
+}
+
+/** The extended detector and the s coordinate of each of its channels. */
+function extendedLayout(g: Geometry, left: number, right: number): { geometry: Geometry; coord: Float32Array } {
+  const rays = rayCoordinates(g);
+  const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
+  const coord = new Float32Array(left + g.detector.channels + right);
+  for (let j = 0; j < coord.length; j++) coord[j] = rays.s(u0 + (j - left) * pitch);
+  return { geometry: extendDetector(g, left, right), coord };
+}
+
+/**
+ * The extension FBP needs without any extrapolation ('none'): zero channels on a displaced
+ * detector's short side (displaced-margin.ts), or undefined when none are needed.
+ */
+export function zeroExtension(scan: Scan): DetectorExtension | undefined {
+  const { left, right } = displacedDetectorMargin(scan.geometry);
+  if (!left && !right) return undefined;
+  const nViews = scan.data.length / scan.geometry.detector.channels;
+  return { left, right, code: EXTEND_CODES.none, params: new Float32Array(nViews * EXTEND_PARAMS), coord: extendedLayout(scan.geometry, left, right).coord };
 }
 
 /**
