@@ -1,5 +1,6 @@
 // Running a recipe on a scan: the one entry point the CLI, the page's workers and the tests use.
 import type { Workspace } from '../engine/workspace';
+import { InputError } from '../errors';
 import { fovRadius } from '../geometry/view-vectors';
 import type { Image2D } from '../image';
 import { fbp2d } from '../recon/fbp';
@@ -22,7 +23,10 @@ export interface RecipeResult {
 export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
-  const analysis = extend !== 'none' || !recipe.grid ? analyseEdges(scan) : undefined;
+  const g = scan.geometry;
+  const is2d = g.kind !== 'cone' && g.detector.rows === 1;
+  if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on 2D scans)`);
+  const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
   const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
   const planSeconds = (performance.now() - t0) / 1000;
