@@ -65,26 +65,35 @@ export interface EdgeOptions {
  */
 export function smoothAcrossViews(x: Float64Array, valid: Uint8Array, half: number, circular: boolean): Float64Array {
   const n = x.length;
-  const index = (i: number) => (circular ? ((i % n) + n) % n : i);
-  const window = (src: Float64Array, v: number, h: number, pick: (vals: number[]) => number) => {
-    const vals: number[] = [];
-    for (let k = v - h; k <= v + h; k++) {
-      const i = index(k);
-      if (i >= 0 && i < n && valid[i]) vals.push(src[i]);
-    }
-    return vals.length ? pick(vals) : src[v];
-  };
-  const median = (vals: number[]) => {
-    vals.sort((a, b) => a - b);
-    const m = vals.length >> 1;
-    return vals.length % 2 ? vals[m] : (vals[m - 1] + vals[m]) / 2;
-  };
-  const mean = (vals: number[]) => vals.reduce((a, b) => a + b, 0) / vals.length;
+  const h1 = Math.min(half, (n - 1) >> 1), h2 = Math.min(Math.ceil(half / 2), (n - 1) >> 1);
+  const win = new Float64Array(2 * h1 + 1);
+  const at = (k: number) => (circular ? ((k % n) + n) % n : k);
   const med = new Float64Array(n);
-  for (let v = 0; v < n; v++) med[v] = valid[v] ? window(x, v, Math.min(half, (n - 1) >> 1), median) : x[v];
+  for (let v = 0; v < n; v++) {
+    med[v] = x[v];
+    if (!valid[v]) continue;
+    let m = 0;
+    for (let k = v - h1; k <= v + h1; k++) {
+      const i = at(k);
+      if (i < 0 || i >= n || !valid[i]) continue;
+      // Insertion into the sorted window (at most 2 h1 + 1 values).
+      let j = m++;
+      while (j > 0 && win[j - 1] > x[i]) { win[j] = win[j - 1]; j--; }
+      win[j] = x[i];
+    }
+    med[v] = m % 2 ? win[m >> 1] : (win[(m >> 1) - 1] + win[m >> 1]) / 2;
+  }
   const out = new Float64Array(n);
-  const h2 = Math.ceil(half / 2);
-  for (let v = 0; v < n; v++) out[v] = valid[v] ? window(med, v, Math.min(h2, (n - 1) >> 1), mean) : x[v];
+  for (let v = 0; v < n; v++) {
+    out[v] = med[v];
+    if (!valid[v]) continue;
+    let sum = 0, m = 0;
+    for (let k = v - h2; k <= v + h2; k++) {
+      const i = at(k);
+      if (i >= 0 && i < n && valid[i]) { sum += med[i]; m++; }
+    }
+    out[v] = sum / m;
+  }
   return out;
 }
 

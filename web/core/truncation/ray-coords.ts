@@ -34,7 +34,7 @@ export function rayCoordinates(g: Geometry): RayCoordinates {
   if (kind === KernelKind.parallel) {
     return { form: 'parallel', sourceIsocenter: Infinity, sourceDetector: NaN, s: (u) => u, u: (s) => s, dsdu: () => 1, gamma: () => 0 };
   }
-  const v = viewVectors(g).subarray(0, VIEW_STRIDE);
+  const v = viewVectors(firstViewOnly(g)).subarray(0, VIEW_STRIDE);
   const nx = v[3] - v[0], ny = v[4] - v[1];
   const D = Math.hypot(nx, ny);
   const R = -(v[0] * nx + v[1] * ny) / D;
@@ -57,6 +57,13 @@ export function rayCoordinates(g: Geometry): RayCoordinates {
     dsdu: (u) => (R * D * D) / Math.pow(D * D + u * u, 1.5),
     gamma: (u) => Math.atan(u / D),
   };
+}
+
+/** The geometry reduced to its first view (the distances R and D are read from it). */
+function firstViewOnly(g: Geometry): Geometry {
+  if (g.views) return { ...g, views: g.views.slice(0, 1), anglesDeg: undefined };
+  const a = g.anglesDeg!;
+  return { ...g, anglesDeg: [Array.isArray(a) ? a[0] : a.start] };
 }
 
 /** s of every channel of the geometry's detector, mm. */
