@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { smoothAcrossViews } from '../../web/core/truncation/edges';
 import { constrainedCylinder, cylinderWithLength, fitCylinder, tailArea, tailLength, tailValue } from '../../web/core/truncation/water-fit';
 
 describe('water cylinder fit (Hsieh et al. 2004)', () => {
@@ -43,5 +44,24 @@ describe('water cylinder fit (Hsieh et al. 2004)', () => {
       for (let i = 0; i < n; i++) area += tailValue(t, ((i + 0.5) * L) / n) * (L / n);
       expect(tailArea(t)).toBeCloseTo(area, 4);
     }
+  });
+});
+
+describe('smoothing fitted tail lengths across views', () => {
+  // Hsieh et al. 2004 low-pass the fits across neighbouring views; a median first keeps one bad
+  // fit from spreading (common practice).
+  it('removes a single outlier, keeps a constant, wraps around a full turn and skips uncut views', () => {
+    const x = new Float64Array(36).fill(40);
+    x[5] = 400;
+    const valid = new Uint8Array(36).fill(1);
+    valid[20] = 0;
+    x[20] = 0;
+    const s = smoothAcrossViews(x, valid, 3, true);
+    for (let v = 0; v < 36; v++) expect(s[v]).toBe(v === 20 ? 0 : 40);
+    const ramp = Float64Array.from({ length: 36 }, (_, v) => v);
+    const r = smoothAcrossViews(ramp, new Uint8Array(36).fill(1), 2, true);
+    expect(r[10]).toBeCloseTo(10, 12);
+    // View 0's neighbours across the wrap are 34 and 35: the median window {34, 35, 0, 1, 2}.
+    expect(r[0]).toBeGreaterThan(1);
   });
 });

@@ -7,7 +7,7 @@ import { fbp2d } from '../recon/fbp';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { analyseEdges, objectRadius } from '../truncation/edges';
-import { planExtension, zeroExtension } from '../truncation/extension-plan';
+import { planExtension } from '../truncation/extension-plan';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
 
@@ -30,8 +30,7 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
   const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
   const planSeconds = (performance.now() - t0) / 1000;
-  const extension = plan ?? zeroExtension(scan);
-  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension }, hooks);
+  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension: plan }, hooks);
   const warnings = [...r.warnings];
   if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {

@@ -13,7 +13,7 @@ import { prepareFilter } from './filter-response';
 import { require2d, requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 import type { RunHooks } from '../run-hooks';
-import type { DetectorExtension } from '../truncation/extension-plan';
+import { zeroExtension, type DetectorExtension } from '../truncation/extension-plan';
 import { runExtension } from '../truncation/extend-scan';
 
 export interface FbpParams {
@@ -21,7 +21,10 @@ export interface FbpParams {
   filter?: FilterWindow;
   /** Frequency scaling of the window, (0, 1]. */
   cutoff?: number;
-  /** Detector extension applied before filtering (truncation/extension-plan.ts planExtension). */
+  /**
+   * Detector extension applied before filtering (truncation/extension-plan.ts planExtension).
+   * Absent: zero channels where a displaced detector needs them (zeroExtension), else none.
+   */
   extension?: DetectorExtension;
 }
 
@@ -41,7 +44,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const grid = checkGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
   const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
-  const ext = params.extension;
+  const ext = params.extension ?? zeroExtension(scan);
   // With an extension, filtering and backprojection see the extended detector.
   const ge = ext ? extendDetector(g, ext.left, ext.right) : g;
   const nCh = ge.detector.channels;
