@@ -26,13 +26,13 @@ export interface EdgeStats {
 }
 
 /**
- * Robust noise level of a sinogram: median absolute second difference along channels,
- * scaled to a Gaussian sigma (MAD / 0.6745, and / sqrt(6) for the second difference of white
- * noise; common practice).
+ * Robust noise level of a sinogram: median absolute second difference along channels over
+ * about 32 evenly spread views, scaled to a Gaussian sigma (MAD / 0.6745, and / sqrt(6) for
+ * the second difference of white noise; common practice).
  */
 export function estimateNoise(data: Float32Array, nCh: number): number {
   const nViews = data.length / nCh;
-  const stride = Math.max(1, Math.floor(nViews / 64));
+  const stride = Math.max(1, Math.floor(nViews / 32));
   if (nCh < 3 || nViews < 1) return 0;
   const diffs = new Float32Array(Math.ceil(nViews / stride) * (nCh - 2));
   let n = 0;
