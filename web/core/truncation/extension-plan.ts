@@ -13,7 +13,7 @@ import { EDGE_PLATEAU, EXTEND_CODES, EXTEND_DESCRIPTIONS, EXTEND_PARAMS, type Ex
 import { massConsistency, massUnavailable, type MassReport } from './mass';
 import { rayCoordinates } from './ray-coords';
 import { tailMassTargets } from './mass-targets';
-import { cylinderWithLength, tailArea, type CylinderTail } from './water-fit';
+import { tailArea, type CylinderTail } from './water-fit';
 
 /** What the extension kernel needs (assembly/extend.ts extendViews). */
 export interface DetectorExtension {
@@ -99,8 +99,9 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
   const water = [a.tails[0].slice(), a.tails[1].slice()] as PerSide<CylinderTail[]>;
   const pe = (side: 0 | 1, v: number) => Math.max(0, a.stats.value[side][v]);
   const row = (v: number) => scan.data.subarray(v * nCh, (v + 1) * nCh);
-  const area = (side: 0 | 1, v: number, length: number) => methodArea(method, pe(side, v), length,
-    length === a.extent[side][v] ? water[side][v] : cylinderWithLength(pe(side, v), length, a.mu), () => mirrorArea(row(v), a.s, side, length));
+  // Tail area before mass scaling (water: the analysed cylinder, whose area scales with its stretch).
+  const area = (side: 0 | 1, v: number, length: number) =>
+    methodArea(method, pe(side, v), length, water[side][v], () => mirrorArea(row(v), a.s, side, length));
 
   let scaled = 0;
   if (m && m.basis === 'complete-views') {
