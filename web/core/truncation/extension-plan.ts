@@ -126,7 +126,7 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
   // short side to mirror its long one.
   const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
   const uLast = u0 + (nCh - 1) * pitch;
-  const reach = (side: 0 | 1) => Math.max(0, ...lengths[side]);
+  const reach = (side: 0 | 1) => lengths[side].reduce((x, y) => Math.max(x, y), 0);
   const margin = displacedDetectorMargin(g);
   const left = Math.max(margin.left, reach(0) > 0 ? Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1 : 0);
   const right = Math.max(margin.right, reach(1) > 0 ? Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1 : 0);

@@ -105,7 +105,7 @@ export function massConsistency(scan: Scan, threshold: number): MassReport {
   }
   const full = Array.from(totals).filter((_, v) => complete[v]).sort((a, b) => a - b);
   const known = full.length >= MIN_COMPLETE_VIEWS;
-  const totalMass = known ? full[full.length >> 1] : Math.max(...totals);
+  const totalMass = known ? full[full.length >> 1] : totals.reduce((x, y) => Math.max(x, y), 0);
   const missing = totals.map((t, v) => (complete[v] ? 0 : totalMass - t));
   return {
     form, angles, totals, complete, totalMass,
