@@ -61,3 +61,12 @@ describe('truncation detection with a detector offset', () => {
     expect(borderline).toBeLessThanOrEqual(8);
   });
 });
+
+describe('untrustworthy data', () => {
+  it('reports non-finite line integrals instead of analysing them', () => {
+    const data = analyticSinogram(ellipse, g);
+    data[5 * 236 + 7] = NaN;
+    data[9 * 236] = Infinity;
+    expect(() => detectTruncation({ geometry: g, data })).toThrow(/scan: 2 of 84960 line integrals are not finite \(NaN or infinity\), the first at view 5 channel 7/);
+  });
+});

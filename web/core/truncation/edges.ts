@@ -4,6 +4,7 @@
 // neighbouring views (Hsieh et al. 2004 low-pass filter the fits across views; references.md
 // section 4a). Both the truncation report (detect.ts) and the detector extension
 // (extension-plan.ts) start from this one analysis.
+import { InputError } from '../errors';
 import { isFullScan } from '../geometry/coverage';
 import type { Geometry } from '../geometry/types';
 import { kernelKind, viewVectors } from '../geometry/view-vectors';
@@ -107,6 +108,20 @@ function reachBound(rays: RayCoordinates, s: Float64Array): number {
   return 8 * Math.max(Math.abs(s[0]), Math.abs(s[s.length - 1]));
 }
 
+/** Throws InputError naming how many line integrals are NaN or infinite, and the first one. */
+function requireFinite(data: Float32Array, nCh: number): void {
+  let bad = 0, first = -1;
+  for (let i = 0; i < data.length; i++) {
+    if (!Number.isFinite(data[i])) {
+      bad++;
+      if (first < 0) first = i;
+    }
+  }
+  if (bad) {
+    throw new InputError(`scan: ${bad} of ${data.length} line integrals are not finite (NaN or infinity), the first at view ${Math.floor(first / nCh)} channel ${first % nCh}; expected finite values (check the flat/dark correction)`);
+  }
+}
+
 /** Analyses both edges of every view of a 2D scan. */
 export function analyseEdges(scan: Scan, options: EdgeOptions = {}): EdgeAnalysis {
   const g = scan.geometry;
@@ -114,6 +129,7 @@ export function analyseEdges(scan: Scan, options: EdgeOptions = {}): EdgeAnalysi
   const s = channelS(g, rays);
   const nCh = s.length;
   const nViews = scan.data.length / nCh;
+  requireFinite(scan.data, nCh);
   const noiseSigma = estimateNoise(scan.data, nCh);
   // Five standard errors of the edge value above zero, and never below 0.01 (about 0.5 mm of
   // water): a complete projection falls to air before the detector ends (common practice).
