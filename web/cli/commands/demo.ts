@@ -47,8 +47,10 @@ export async function demo(argv: string[]): Promise<CommandResult> {
   const f = (name: string) => join(dir, name);
   const log: string[] = [];
   const grid = ['--size', '576', '--pixel', '1'];
-  log.push((await simulate(['--phantom', 'thorax', '--geometry', 'demo', '--channels', '345', '--photons', '200000', '--seed', '7',
-    '--out', f('scan.nrrd'), '--complete', f('scan-complete.nrrd'), '--truth', f('truth.nrrd'), ...grid])).text);
+  const sim = await simulate(['--phantom', 'thorax', '--geometry', 'demo', '--channels', '345', '--photons', '200000', '--seed', '7',
+    '--out', f('scan.nrrd'), '--complete', f('scan-complete.nrrd'), '--truth', f('truth.nrrd'), ...grid]);
+  log.push(sim.text);
+  const fov = String((sim.json as { fovRadiusMm: number }).fovRadiusMm);
   log.push((await inspect([f('scan.nrrd')])).text);
   const rows: Row[] = [];
   const jobs: Array<[string, string, string[]]> = [
@@ -59,7 +61,7 @@ export async function demo(argv: string[]): Promise<CommandResult> {
     const out = f(`fbp-${name.replace(/[^a-z]+/g, '-')}.nrrd`);
     log.push((await reconstruct([f(scan), '--method', 'fbp', '--filter', 'shepp-logan', ...extra, ...grid, '--out', out, '--json'])).text);
     // Every image is judged inside the truncated scan's FOV, and against the data it came from.
-    const c = await compare([out, '--reference', f('truth.nrrd'), '--scan', f(scan), '--fov-radius', '102.28', '--json']);
+    const c = await compare([out, '--reference', f('truth.nrrd'), '--scan', f(scan), '--fov-radius', fov, '--json']);
     const json = c.json as Comparison & { residual: DataResidual };
     rows.push({ name, comparison: json, residual: json.residual });
   }
