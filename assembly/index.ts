@@ -7,6 +7,7 @@ export { fftPrepare, fft, realEvenResponse, filterViews } from './fft';
 export { rayTableFloats } from './rays';
 export { josephForward2d, josephAdjoint2d } from './joseph';
 export { backproject2d, atanApprox } from './backproject';
+export { extendViews, EXTEND_ZERO, EXTEND_EDGE, EXTEND_MIRROR, EXTEND_WATER, EXTEND_COSINE, EXTEND_PARAMS } from './extend';
 
 /** First byte the host may use for its buffers. */
 export function heapBase(): usize {

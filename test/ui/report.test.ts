@@ -16,6 +16,7 @@ const comparison: Comparison = {
   resampled: false,
   fovRadiusMm: 100,
   notes: [],
+  cupping: null,
 };
 
 const report = () => buildReport({
@@ -26,7 +27,10 @@ const report = () => buildReport({
   window: { width: 400, level: 40 },
   unit: 'HU',
   createdAt: new Date(Date.UTC(2026, 0, 2, 3, 4)),
-  images: [{ label: 'FBP "sharp"', colour: '#2f6fb0', png: 'data:image/png;base64,AAAA', recipe: { method: 'fbp' }, seconds: 1.25, warnings: ['w<1>'], metrics: comparison }],
+  images: [{
+    label: 'FBP "sharp"', colour: '#2f6fb0', png: 'data:image/png;base64,AAAA', recipe: { method: 'fbp' }, seconds: 1.25, warnings: ['w<1>'], metrics: comparison,
+    residual: { rays: 10, rms: 0.0123, relative: 0.0456, bias: -0.001, maxAbs: 0.1, worstView: 7, worstViewRms: 0.05, perViewRms: [] },
+  }],
 });
 
 describe('report', () => {
@@ -48,6 +52,8 @@ describe('report', () => {
     expect(html).toContain('{&quot;method&quot;:&quot;fbp&quot;}');
     expect(html).toContain('w&lt;1&gt;');
     expect(html).toContain('2026-01-02 03:04');
+    expect(html).toContain('Agreement with the measured data');
+    expect(html).toContain('<td>4.6%</td><td>0.0123</td><td>-0.00100</td><td>7</td>');
   });
 
   it('file names keep only safe characters', () => {

@@ -89,6 +89,12 @@ describe('runs', () => {
     expect(whole.rmse).toBeLessThan(0.5 * blank.regions.image!.rmse);
     expect(whole.ssim).toBeGreaterThan(blank.regions.image!.ssim + 0.3);
     expect((await listResults(s.id, store)).map((x) => x.id)).toEqual([r.id]);
+    // The stored result carries its agreement with the measured data (re-projection residual):
+    // a complete scan's FBP re-projects onto its data within a few percent, far below the 100%
+    // of an empty image (||0 - p|| / ||p|| = 1 by definition).
+    expect(r.residual!.rays).toBe(scan.data.length);
+    expect(r.residual!.relative).toBeGreaterThan(0);
+    expect(r.residual!.relative).toBeLessThan(0.2);
     const cmp = await c.compare(r.id, { kind: 'reference' });
     expect(cmp.regions.image!.rmse).toBeCloseTo(whole.rmse, 6);
     const self = await c.compare(r.id, { kind: 'result', id: r.id });

@@ -1,6 +1,7 @@
 // Records kept in IndexedDB. Every record carries `schema` and `kind`; a reader checks both, so
 // data written by another version is upgraded or refused with a reason, never misread.
 // Metadata and bulk arrays live under separate keys: listing reads only the small records.
+import type { DataResidual } from '../core/data-residual';
 import type { Comparison } from '../core/compare';
 import type { Geometry } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
@@ -68,6 +69,8 @@ export interface ResultMeta {
   report: Record<string, unknown>;
   /** Comparison with the scan's reference image, when it has one. */
   metrics: Comparison | null;
+  /** The image re-projected onto the measured channels against the measured data (absent in records stored before it was computed). */
+  residual?: DataResidual | null;
   /** Wall-clock seconds of the run. */
   seconds: number;
   bytes: number;

@@ -222,6 +222,7 @@ export class ResultsView extends LitElement {
         seconds: p.meta?.seconds,
         warnings: p.meta?.warnings ?? [],
         metrics: p.meta ? this.comparisonOf(p.meta) : undefined,
+        residual: p.meta?.residual,
         region: this.region ? regionStats(p.display.values, p.display.grid, this.region.centre, this.region.radius) : undefined,
       })).map((i) => ({ ...i, metrics: typeof i.metrics === 'object' ? i.metrics : undefined })),
     });
@@ -251,7 +252,7 @@ export class ResultsView extends LitElement {
     const unit = shown[0]?.display.unit ?? 'HU';
     const ref = this.reference(panels);
     const compared = panels.filter((p) => p.meta && p.key !== this.referenceId);
-    const metricsRows: MetricsRow[] = compared.map((p) => ({ label: p.label, colour: p.colour, comparison: this.comparisonOf(p.meta!) }));
+    const metricsRows: MetricsRow[] = compared.map((p) => ({ label: p.label, colour: p.colour, comparison: this.comparisonOf(p.meta!), residual: p.meta!.residual }));
     const profile: PlotSeries[] = this.line
       ? shown.map((p) => { const s = sampleProfile(p.display.values, p.display.grid, this.line!.p0, this.line!.p1); return { label: p.display.label, colour: p.colour, x: s.distance, y: s.values }; })
       : [];

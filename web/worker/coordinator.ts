@@ -1,6 +1,7 @@
 // The coordinator: imports, the demo, recipe runs and comparisons, off the page's main thread.
 // It is the only writer of scans and results; runs take turns on one engine workspace.
 import { compareImages, type Comparison } from '../core/compare';
+import { dataResidual } from '../core/data-residual';
 import { InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
@@ -96,6 +97,8 @@ export class Coordinator {
         warnings.push(`no comparison with the reference: ${err.message}`);
       }
     }
+    hooks.onProgress?.(0.99, 'checking against the measured data');
+    const residual = await dataResidual(ws, out.image, scan, hooks);
     hooks.onProgress?.(1, 'storing');
     return saveResult({
       scanId,
@@ -104,6 +107,7 @@ export class Coordinator {
       warnings,
       report: out.report,
       metrics,
+      residual,
       seconds: (performance.now() - t0) / 1000,
     }, out.image, this.store);
   }

@@ -13,6 +13,7 @@ import { Projector2d } from '../../core/recon/projector';
 import { parseArgs } from '../args';
 import { backprojectFanFlatTs } from '../bench/ts-backproject';
 import { benchFormats, formatFiguresText, measureRead } from '../bench/formats';
+import { benchExtension, extensionBenchLines } from '../bench/extension-overhead';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
@@ -98,13 +99,15 @@ export async function bench(argv: string[]): Promise<CommandResult> {
   const bp1 = rows.find((r) => r.name.startsWith('backprojection (') && r.workers === 1)!.seconds;
   const bpN = rows.filter((r) => r.name.startsWith('backprojection (')).at(-1)!.seconds;
   const ratios = { simdVsTypeScript: tsSeconds / bp1, twoWorkerSpeedup: bp1 / bpN };
+  const extension = await benchExtension(Math.min(2, availableParallelism()), repeat);
   const peakRssMb = process.resourceUsage().maxRSS / 1024;
   const text = [
     'problem: 512x512 image, 720 views over 360 degrees, 1024 channels, fan beam, flat detector',
     ...rows.map((r) => `${r.name.padEnd(44)} ${String(r.workers).padStart(2)} worker(s)  ${(r.seconds * 1000).toFixed(0).padStart(6)} ms${r.mupdPerS ? `  ${r.mupdPerS.toFixed(0).padStart(5)} M pixel-view updates/s` : ''}`),
     `ratio SIMD Wasm / plain TypeScript backprojection: ${ratios.simdVsTypeScript.toFixed(1)}x`,
     `speed-up 1 -> 2 workers (backprojection): ${ratios.twoWorkerSpeedup.toFixed(2)}x`,
+    ...extensionBenchLines(extension),
     `peak resident memory: ${peakRssMb.toFixed(0)} MB`,
   ].join('\n');
-  return { json: { rows, ratios, peakRssMb }, text };
+  return { json: { rows, ratios, extension, peakRssMb }, text };
 }

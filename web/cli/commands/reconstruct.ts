@@ -3,6 +3,7 @@ import { InputError } from '../../core/errors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
+import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { runRecipe } from '../../core/recipe/run';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { PendingWrites } from '../io';
@@ -12,14 +13,17 @@ import { progressLine } from '../progress';
 import type { CommandResult } from './types';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
-    [--filter ram-lak|shepp-logan|cosine|hamming|hann] [--cutoff 0..1] [--size N] [--pixel mm]
-    [--hu] [--workers N] [--json]
+    [--extend ${EXTEND_METHODS.join('|')}] [--filter ram-lak|shepp-logan|cosine|hamming|hann]
+    [--cutoff 0..1] [--size N] [--pixel mm] [--hu] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
-  512 pixels covering the measured field of view). --hu writes HU (needs mu_water in the scan).`;
+  512 pixels covering the measured field of view or, when larger, the object as estimated from
+  the truncated edges). --extend extends the detector before filtering to correct truncation:
+  edge (constant + roll-off), mirror (Ohnesorge 2000), water (Hsieh 2004), cosine (taper), each
+  as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
-const FIELD_OPTIONS: Record<string, string> = { method: 'method', filter: 'filter', cutoff: 'cutoff', 'grid.size': 'size', 'grid.pixel': 'pixel' };
+const FIELD_OPTIONS: Record<string, string> = { method: 'method', filter: 'filter', cutoff: 'cutoff', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel' };
 
 function asOptionError(err: unknown): unknown {
   if (!(err instanceof InputError)) return err;
@@ -34,6 +38,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
   const raw: Record<string, unknown> = { method: requireString(a, 'method') };
   if (o.filter !== undefined) raw.filter = o.filter;
   if (o.cutoff !== undefined) raw.cutoff = o.cutoff;
+  if (o.extend !== undefined) raw.extend = o.extend;
   if (o.size !== undefined || o.pixel !== undefined) {
     if (o.size === undefined || o.pixel === undefined) throw new InputError('options --size and --pixel go together (pixels and mm per pixel)');
     raw.grid = { size: o.size, pixel: o.pixel };
@@ -47,7 +52,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
-    method: 'string', out: 'string', filter: 'string', cutoff: 'number', size: 'int', pixel: 'number',
+    method: 'string', out: 'string', filter: 'string', cutoff: 'number', extend: 'string', size: 'int', pixel: 'number',
     hu: 'flag', workers: 'int', json: 'flag', ...SCAN_INPUT_OPTIONS,
   }, 1);
   const path = a.positional[0];
@@ -69,7 +74,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     const g = image.grid;
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method} in ${seconds.toFixed(2)} s`,
+      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s`,
       warnings: [...readWarnings, ...r.warnings],
     };
   } finally {

@@ -4,6 +4,7 @@
 // a field of DEFAULT_RECIPE that has none still appears, as a plain input of its default's type
 // (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
 import { FILTER_WINDOWS } from '../recon/filter-design';
+import { EXTEND_METHODS } from '../truncation/extend-methods';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
 
 export interface FieldChoice {
@@ -64,9 +65,9 @@ const CHOICE_LABELS: Record<string, string> = {
   water: 'Water cylinder fit',
 };
 
-/** Choices of a list, with readable labels. */
-export function choicesOf(values: readonly string[]): FieldChoice[] {
-  return values.map((value) => ({ value, label: CHOICE_LABELS[value] ?? value }));
+/** Choices of a list, with readable labels (`labels` overrides the shared ones for this list). */
+export function choicesOf(values: readonly string[], labels: Record<string, string> = {}): FieldChoice[] {
+  return values.map((value) => ({ value, label: labels[value] ?? CHOICE_LABELS[value] ?? value }));
 }
 
 /** The readable label of a choice value. */
@@ -87,7 +88,11 @@ export const RECIPE_FIELDS: RecipeField[] = [
     key: 'cutoff', label: 'Filter cutoff', kind: 'number', min: 0.05, max: 1, step: 0.05, appliesTo: isFbp,
     help: 'Fraction of the Nyquist frequency where the window ends (1 = full band).',
   },
-  { key: 'grid', label: 'Image grid', kind: 'grid', help: 'Pixels along each side and pixel size; automatic covers the measured field of view.' },
+  {
+    key: 'extend', label: 'Truncation correction', kind: 'choice', choices: choicesOf(EXTEND_METHODS, { cosine: 'Cosine taper of the edge value' }), appliesTo: isFbp,
+    help: 'How the cut-off projections are continued beyond the detector edges before filtering, as far as the object is estimated to reach.',
+  },
+  { key: 'grid', label: 'Image grid', kind: 'grid', help: 'Pixels along each side and pixel size; automatic covers the measured field of view and the estimated object.' },
 ];
 
 /**
@@ -111,6 +116,7 @@ export function describeRecipeFields(): RecipeField[] {
 }
 
 function formatValue(f: RecipeField, v: unknown): string {
+  if (f.key === 'extend') return `${String(v)} extension`;
   if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
   if (f.kind === 'grid') {
     const g = v as { size: number; pixel: number } | undefined;
@@ -123,6 +129,7 @@ function formatValue(f: RecipeField, v: unknown): string {
 export function recipeSummary(recipe: Record<string, unknown>): string {
   return describeRecipeFields()
     .filter((f) => (f.appliesTo ? f.appliesTo(recipe) : true) && (recipe[f.key] !== undefined || f.kind === 'grid'))
+    .filter((f) => !(f.key === 'extend' && recipe.extend === 'none'))
     .map((f) => formatValue(f, recipe[f.key]))
     .join(', ');
 }

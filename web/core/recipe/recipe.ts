@@ -3,6 +3,7 @@
 // be stored with the result and shown in reports.
 import { InputError } from '../errors';
 import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
+import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
 
 /** Reconstruction methods available in this build. */
 export const METHODS = ['fbp'] as const;
@@ -22,9 +23,11 @@ export interface Recipe {
   filter: FilterWindow;
   /** Frequency scaling of the filter window, (0, 1]. */
   cutoff: number;
+  /** Detector extension before filtering (truncation correction); absent means 'none'. */
+  extend?: ExtendMethod;
 }
 
-export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ram-lak', cutoff: 1 };
+export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ram-lak', cutoff: 1, extend: 'none' };
 
 function isObject(v: unknown): v is Record<string, unknown> {
   return typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -42,6 +45,12 @@ export function validateRecipe(input: unknown): Recipe {
   }
   if (typeof r.cutoff !== 'number' || !(r.cutoff > 0 && r.cutoff <= 1)) throw new InputError(`recipe cutoff: got ${r.cutoff}, expected a number in (0, 1]`);
   const out: Recipe = { method: r.method as Method, filter: r.filter as FilterWindow, cutoff: r.cutoff };
+  if (r.extend !== undefined) {
+    if (!(EXTEND_METHODS as readonly string[]).includes(r.extend as string)) {
+      throw new InputError(`recipe extend: got "${r.extend}", expected one of ${EXTEND_METHODS.join(', ')}`);
+    }
+    out.extend = r.extend as ExtendMethod;
+  }
   if (r.grid !== undefined) {
     const g = r.grid;
     if (!isObject(g)) throw new InputError('recipe grid: expected {size, pixel}');

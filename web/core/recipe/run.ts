@@ -1,10 +1,13 @@
 // Running a recipe on a scan: the one entry point the CLI, the page's workers and the tests use.
 import type { Workspace } from '../engine/workspace';
+import { InputError } from '../errors';
 import { fovRadius } from '../geometry/view-vectors';
 import type { Image2D } from '../image';
 import { fbp2d } from '../recon/fbp';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
+import { analyseEdges, objectRadius } from '../truncation/edges';
+import { planExtension } from '../truncation/extension-plan';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
 
@@ -18,11 +21,21 @@ export interface RecipeResult {
 
 /** Reconstructs `scan` as the recipe says. */
 export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
-  const grid = chooseGrid(scan, recipe.grid);
-  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff }, hooks);
+  const t0 = performance.now();
+  const extend = recipe.extend ?? 'none';
+  const g = scan.geometry;
+  const is2d = g.kind !== 'cone' && g.detector.rows === 1;
+  if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on 2D scans)`);
+  const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
+  const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
+  const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
+  const planSeconds = (performance.now() - t0) / 1000;
+  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension: plan }, hooks);
+  const warnings = [...r.warnings];
+  if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {
     image: { ...r.image, fovRadius: fovRadius(scan.geometry) },
-    warnings: r.warnings,
-    report: { timings: r.timings },
+    warnings,
+    report: { timings: { ...r.timings, plan: planSeconds }, ...(plan ? { extension: plan.summary } : {}) },
   };
 }

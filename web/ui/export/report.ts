@@ -1,6 +1,7 @@
 // The printable report: one self-contained HTML file (images as data: URLs, inline styles, a
 // policy that forbids loading anything) with the recipe, the figures and the caution.
 import type { Comparison, RegionFigures } from '../../core/compare';
+import type { DataResidual } from '../../core/data-residual';
 
 export interface ReportImage {
   label: string;
@@ -11,6 +12,8 @@ export interface ReportImage {
   seconds?: number;
   warnings: string[];
   metrics?: Comparison | null;
+  /** Re-projection against the measured data. */
+  residual?: DataResidual | null;
   region?: { mean: number; sd: number; pixels: number };
 }
 
@@ -41,8 +44,11 @@ const CAUTION = 'For research and quality work, not for diagnosis. Defer to loca
 /** The report as a complete HTML document. */
 export function buildReport(r: ReportInput): string {
   const unit = r.images.find((i) => i.metrics)?.metrics?.unit ?? r.unit;
+  const pct = (v: number | undefined, signed = false) => (v === undefined || !Number.isFinite(v) ? '–' : `${signed && v >= 0 ? '+' : ''}${(100 * v).toFixed(1)}%`);
   const rows = r.images.filter((i) => i.metrics).map((i) => `<tr><th scope="row"><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</th>
-    ${figures(i.metrics!.regions.image)}${figures(i.metrics!.regions.insideFov)}${figures(i.metrics!.regions.outsideFov)}</tr>`).join('');
+    ${figures(i.metrics!.regions.image)}${figures(i.metrics!.regions.insideFov)}${figures(i.metrics!.regions.outsideFov)}<td>${pct(i.metrics!.cupping?.excess, true)}</td></tr>`).join('');
+  const residualRows = r.images.filter((i) => i.residual).map((i) => `<tr><th scope="row"><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</th>
+    <td>${pct(i.residual!.relative)}</td><td>${i.residual!.rms.toPrecision(3)}</td><td>${i.residual!.bias.toPrecision(3)}</td><td>${i.residual!.worstView}</td></tr>`).join('');
   const regionRows = r.images.filter((i) => i.region).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td>${f(i.region!.mean, 1)}</td><td>${f(i.region!.sd, 1)}</td><td>${i.region!.pixels}</td></tr>`).join('');
   const recipes = r.images.filter((i) => i.recipe).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td class="left"><code>${esc(JSON.stringify(i.recipe))}</code></td><td>${f(i.seconds, 1)} s</td></tr>`).join('');
   const warnings = r.images.flatMap((i) => i.warnings.map((w) => `<li>${esc(i.label)}: ${esc(w)}</li>`)).join('');
@@ -72,8 +78,12 @@ export function buildReport(r: ReportInput): string {
 <h2>Images</h2>
 <div class="images">${r.images.map((i) => `<figure><img alt="${esc(i.label)}" src="${i.png}"><figcaption><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</figcaption></figure>`).join('')}</div>
 ${rows ? `<h2>Agreement with ${esc(r.referenceLabel)} (${esc(unit)})</h2>
-<table><thead><tr><th></th><th colspan="3">Whole image</th><th colspan="3">Inside the measured field</th><th colspan="3">Outside it</th></tr>
-<tr><th></th>${'<th>RMSE</th><th>PSNR dB</th><th>SSIM</th>'.repeat(3)}</tr></thead><tbody>${rows}</tbody></table>` : ''}
+<table><thead><tr><th></th><th colspan="3">Whole image</th><th colspan="3">Inside the measured field</th><th colspan="3">Outside it</th><th>Shape</th></tr>
+<tr><th></th>${'<th>RMSE</th><th>PSNR dB</th><th>SSIM</th>'.repeat(3)}<th>Cupping</th></tr></thead><tbody>${rows}</tbody></table>
+<p class="meta">Cupping: the rim / centre ratio inside the measured field relative to the reference's (0% = the right shape).</p>` : ''}
+${residualRows ? `<h2>Agreement with the measured data</h2>
+<table><thead><tr><th></th><th>Relative residual</th><th>RMS (line integral)</th><th>Mean (line integral)</th><th>Worst view</th></tr></thead><tbody>${residualRows}</tbody></table>
+<p class="meta">Each image re-projected onto the measured detector channels and compared with the measured line integrals: ‖Af − p‖ / ‖p‖. A positive mean means the image holds too much along the measured rays.</p>` : ''}
 ${regionRows ? `<h2>Region statistics (${esc(r.unit)})</h2><table><thead><tr><th></th><th>Mean</th><th>SD</th><th>Pixels</th></tr></thead><tbody>${regionRows}</tbody></table>` : ''}
 ${r.profileSvg ? `<h2>Line profile</h2>${r.profileCaption ? `<p class="meta">${esc(r.profileCaption)}</p>` : ''}${r.profileSvg}` : ''}
 ${recipes ? `<h2>Recipes</h2><table><tbody>${recipes}</tbody></table>` : ''}
