@@ -1,6 +1,9 @@
 // Statistics of a reprojection residual r = A f - p over the measured rays of a scan: per view,
 // per channel, one overall consistency figure, and the rays that disagree beyond the residual's
-// own spread.
+// own spread. Disagreement is judged on the residual averaged over a few neighbouring channels
+// (a structure's width on the detector): the prior's pixel grid and the data's noise leave
+// residual spikes one or two channels wide at sharp edges, while a structure that is wrong in
+// the image leaves a band as wide as the structure's shadow.
 
 /** The overall figures of a residual sinogram. */
 export interface ResidualSummary {
@@ -20,9 +23,11 @@ export interface ResidualSummary {
   rays: number;
   /** Rays left out because their measured value is NaN or infinite. */
   excludedRays: number;
-  /** Robust spread of the residual: 1.4826 * median |r - median r| (a Gaussian's sigma). */
+  /** Channels averaged before flagging (odd; 1 = none). */
+  averagedChannels: number;
+  /** Robust spread of the channel-averaged residual: 1.4826 * median |a - median a| (a Gaussian's sigma). */
   robustSigma: number;
-  /** Residual magnitude above which a ray counts as disagreeing. */
+  /** Channel-averaged residual magnitude above which a ray counts as disagreeing. */
   threshold: number;
   /** Rays above the threshold, and their share of the measured rays. */
   flaggedRays: number;
@@ -32,6 +37,8 @@ export interface ResidualSummary {
 }
 
 export interface ResidualProfiles {
+  /** 1 where the ray disagrees ([view][channel]). */
+  flagged: Uint8Array;
   /** Per view: RMS residual, RMS relative to that view's RMS data, largest |residual|, flagged rays. */
   viewRms: Float32Array;
   viewRelative: Float32Array;
@@ -41,8 +48,33 @@ export interface ResidualProfiles {
   channelRms: Float32Array;
 }
 
-/** Rays flagged when |r| exceeds this many robust sigmas (Hampel's outlier rule, common practice). */
+/** Rays flagged when |a| exceeds this many robust sigmas (Hampel's outlier rule, common practice). */
 export const FLAG_SIGMAS = 5;
+
+/** Moving average over `width` channels (odd) within each view, skipping NaN values. */
+export function averageChannels(residual: Float32Array, nViews: number, nCh: number, width: number): Float32Array {
+  const half = width >> 1;
+  const out = new Float32Array(residual.length);
+  for (let v = 0; v < nViews; v++) {
+    const row = v * nCh;
+    for (let k = 0; k < nCh; k++) {
+      if (!Number.isFinite(residual[row + k])) {
+        out[row + k] = NaN;
+        continue;
+      }
+      let s = 0, n = 0;
+      for (let j = Math.max(0, k - half); j <= Math.min(nCh - 1, k + half); j++) {
+        const r = residual[row + j];
+        if (Number.isFinite(r)) {
+          s += r;
+          n++;
+        }
+      }
+      out[row + k] = s / n;
+    }
+  }
+  return out;
+}
 
 /** Median of a copy of the values. */
 function median(values: Float32Array): number {
@@ -54,16 +86,18 @@ function median(values: Float32Array): number {
 
 /**
  * Summarizes `residual` = A f - p ([view][channel]; NaN where the measured value is not
- * finite) against `measured`. `floor` is the smallest threshold (line-integral units), so
- * that an almost perfect image does not flag its rounding.
+ * finite) against `measured`. Flags use the residual averaged over `width` channels (odd);
+ * `floor` is the smallest threshold (line-integral units), so that an almost perfect image
+ * does not flag its rounding.
  */
-export function residualStats(residual: Float32Array, measured: Float32Array, nViews: number, nCh: number, floor: number): { summary: ResidualSummary; profiles: ResidualProfiles } {
+export function residualStats(residual: Float32Array, measured: Float32Array, nViews: number, nCh: number, width: number, floor: number): { summary: ResidualSummary; profiles: ResidualProfiles } {
+  const averaged = averageChannels(residual, nViews, nCh, width);
   const finite = new Float32Array(residual.length);
   let rays = 0, sumR = 0, sumR2 = 0, sumP2 = 0;
   for (let i = 0; i < residual.length; i++) {
     const r = residual[i];
     if (!Number.isFinite(r)) continue;
-    finite[rays++] = r;
+    finite[rays++] = averaged[i];
     sumR += r;
     sumR2 += r * r;
     sumP2 += measured[i] * measured[i];
@@ -77,6 +111,7 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
 
   const viewRms = new Float32Array(nViews), viewRelative = new Float32Array(nViews), viewMaxAbs = new Float32Array(nViews);
   const viewFlagged = new Int32Array(nViews);
+  const flagged = new Uint8Array(residual.length);
   const chSum = new Float64Array(nCh), chCount = new Float64Array(nCh);
   let flaggedRays = 0;
   for (let v = 0; v < nViews; v++) {
@@ -90,7 +125,10 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
       mx = Math.max(mx, Math.abs(r));
       chSum[k] += r * r;
       chCount[k]++;
-      if (Math.abs(r) > threshold) viewFlagged[v]++;
+      if (Math.abs(averaged[v * nCh + k]) > threshold) {
+        flagged[v * nCh + k] = 1;
+        viewFlagged[v]++;
+      }
     }
     viewRms[v] = n ? Math.sqrt(s2 / n) : NaN;
     viewRelative[v] = p2 > 0 ? Math.sqrt(s2 / p2) : NaN;
@@ -106,11 +144,12 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
     rmsMeasured: rays ? Math.sqrt(sumP2 / rays) : NaN,
     rays,
     excludedRays: residual.length - rays,
+    averagedChannels: width,
     robustSigma,
     threshold,
     flaggedRays,
     flaggedFraction: rays ? flaggedRays / rays : 0,
     flaggedViews: viewFlagged.reduce((a, c) => a + (c > 0 ? 1 : 0), 0),
   };
-  return { summary, profiles: { viewRms, viewRelative, viewMaxAbs, viewFlagged, channelRms } };
+  return { summary, profiles: { flagged, viewRms, viewRelative, viewMaxAbs, viewFlagged, channelRms } };
 }
