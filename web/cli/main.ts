@@ -5,6 +5,7 @@ import { bench, benchHelp } from './commands/bench';
 import { compare, compareHelp } from './commands/compare';
 import { demo, demoHelp } from './commands/demo';
 import { inspect, inspectHelp } from './commands/inspect';
+import { priorCheck, priorCheckHelp } from './commands/prior-check';
 import { reconstruct, reconstructHelp } from './commands/reconstruct';
 import { simulate, simulateHelp } from './commands/simulate';
 import type { CommandResult } from './commands/types';
@@ -14,6 +15,7 @@ const COMMANDS: Record<string, { run: (argv: string[]) => Promise<CommandResult>
   inspect: { run: inspect, help: inspectHelp },
   reconstruct: { run: reconstruct, help: reconstructHelp },
   compare: { run: compare, help: compareHelp },
+  'prior-check': { run: priorCheck, help: priorCheckHelp },
   bench: { run: bench, help: benchHelp },
   demo: { run: demo, help: demoHelp },
 };

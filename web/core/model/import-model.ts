@@ -20,7 +20,8 @@ export function parseModelInfoText(text: string): unknown {
   try {
     return JSON.parse(text);
   } catch (err) {
-    throw new InputError(`model description: not valid JSON (${(err as Error).message})`);
+    const why = (err as Error).message.replace(/\s+/g, ' ').slice(0, 160);
+    throw new InputError(`model description: not valid JSON (${why})`);
   }
 }
 
