@@ -1,9 +1,9 @@
 // rimfill prior-check end to end: a network or an image as the prior, JSON and files out; bad
 // models refused with exit code 2, one line on stderr and nothing written.
-import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readImageNrrd, writeImageNrrd } from '../../web/core/formats/image-nrrd';
 import { parseNrrd } from '../../web/core/formats/nrrd';
 import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
@@ -33,6 +33,8 @@ beforeAll(async () => {
   writeFileSync(join(dir, 'net150.json'), JSON.stringify(description(150)));
   writeFileSync(join(dir, 'notes.txt'), 'not a model');
 });
+
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 describe('rimfill prior-check', () => {
   it('runs a network on the scan, writes its prior and the residual sinogram, and reports consistency', async () => {

@@ -10,12 +10,46 @@ import { rasterize } from '../../core/phantoms/ellipse';
 import { fbp2d } from '../../core/recon/fbp';
 import { Projector2d } from '../../core/recon/projector';
 import { parseArgs } from '../args';
+import { benchNetwork, networkBenchText } from '../bench/network';
 import { backprojectFanFlatTs } from '../bench/ts-backproject';
+import { InputError } from '../../core/errors';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
-export const benchHelp = `rimfill bench [--repeat K] [--json]
-  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam).`;
+export const benchHelp = `rimfill bench [--repeat K] [--only kernels,network] [--json]
+  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam) and
+  a U-Net-sized network (about 2 million weights) on a 256x256 image. --only picks sections.`;
+
+/** Benchmark sections in the order they run. */
+const SECTIONS = ['kernels', 'network'] as const;
+
+function chosenSections(only: unknown): string[] {
+  if (only === undefined) return [...SECTIONS];
+  const names = String(only).split(',').map((s) => s.trim());
+  for (const n of names) {
+    if (!(SECTIONS as readonly string[]).includes(n)) throw new InputError(`option --only: got "${n}", expected a comma-separated list of ${SECTIONS.join(', ')}`);
+  }
+  return names;
+}
+
+export async function bench(argv: string[]): Promise<CommandResult> {
+  const a = parseArgs(argv, { repeat: 'int', only: 'string', json: 'flag' }, 0);
+  const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
+  const sections = chosenSections(a.options.only);
+  const parts: CommandResult[] = [];
+  const json: Record<string, unknown> = {};
+  if (sections.includes('kernels')) {
+    const k = await benchKernels(repeat);
+    parts.push(k);
+    Object.assign(json, k.json);
+  }
+  if (sections.includes('network')) {
+    const n = await benchNetwork(repeat);
+    json.network = n;
+    parts.push({ json: n, text: networkBenchText(n) });
+  }
+  return { json, text: parts.map((p) => p.text).join('\n') };
+}
 
 const now = () => performance.now() / 1000;
 
@@ -24,9 +58,7 @@ function median(xs: number[]): number {
   return s[Math.floor(s.length / 2)];
 }
 
-export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', json: 'flag' }, 0);
-  const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
+async function benchKernels(repeat: number): Promise<CommandResult> {
   const geometry = validateGeometry({
     kind: 'fan', detector: { shape: 'flat', channels: 1024, rows: 1, pitch: [1.0, 1.0], offset: [0, 0] },
     sourceIsocenter: 600, sourceDetector: 1000, anglesDeg: { start: 0, step: 0.5, count: 720 },
