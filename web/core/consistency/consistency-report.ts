@@ -40,7 +40,8 @@ export interface ConsistencyOptions {
 
 /** Odd number of channels that spans `mm` at the isocentre (at least 1). */
 export function channelsSpanning(g: Scan['geometry'], mm: number): number {
-  const mag = g.kind === 'parallel' ? 1 : g.sourceDetector! / g.sourceIsocenter!;
+  // Fan-beam magnification D / R (calibrated geometries without R and D: 1).
+  const mag = g.kind !== 'parallel' && g.sourceIsocenter && g.sourceDetector ? g.sourceDetector / g.sourceIsocenter : 1;
   const n = Math.max(1, Math.round((mm * mag) / g.detector.pitch[0]));
   return n % 2 ? n : n + 1;
 }
