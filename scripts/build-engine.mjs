@@ -41,6 +41,8 @@ if (!process.argv.includes('--debug')) {
     format: 'esm',
     target: 'node20',
     sourcemap: true,
+    // CommonJS dependencies (dicom-parser) require Node built-ins such as zlib at load time.
+    banner: { js: "import { createRequire as __rimfillCreateRequire } from 'node:module'; const require = __rimfillCreateRequire(import.meta.url);" },
     logLevel: 'warning',
   });
 }

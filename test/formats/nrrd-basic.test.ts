@@ -33,6 +33,6 @@ describe('scan and image NRRD files (design.md "Scan file")', () => {
   it('refuses a file whose data is shorter than its header says', async () => {
     const g = presetGeometry('demo-parallel')!;
     const bytes = await writeScanNrrd({ geometry: g, data: new Float32Array(g.detector.channels * 360) });
-    await expect(readScanNrrd(bytes.subarray(0, bytes.length - 4))).rejects.toThrow(/promises \d+ bytes of data, the file holds \d+/);
+    await expect(readScanNrrd(bytes.subarray(0, bytes.length - 4))).rejects.toThrow(/promises \d+ bytes of data from byte \d+, the file holds \d+/);
   });
 });

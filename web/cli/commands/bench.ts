@@ -2,6 +2,7 @@
 // image, 720 views over 360 degrees, 1024 channels, fan beam with a flat detector), with one
 // and with two workers, against a plain TypeScript baseline.
 import { availableParallelism } from 'node:os';
+import { InputError } from '../../core/errors';
 import { validateGeometry } from '../../core/geometry/validate';
 import { firstChannelU, viewVectors } from '../../core/geometry/view-vectors';
 import { gridOrigin, squareGrid } from '../../core/image';
@@ -10,46 +11,17 @@ import { rasterize } from '../../core/phantoms/ellipse';
 import { fbp2d } from '../../core/recon/fbp';
 import { Projector2d } from '../../core/recon/projector';
 import { parseArgs } from '../args';
-import { benchNetwork, networkBenchText } from '../bench/network';
 import { backprojectFanFlatTs } from '../bench/ts-backproject';
-import { InputError } from '../../core/errors';
+import { benchFormats, formatFiguresText, measureRead } from '../bench/formats';
+import { benchNetwork, networkBenchText } from '../bench/network';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
-export const benchHelp = `rimfill bench [--repeat K] [--only kernels,network] [--json]
+export const benchHelp = `rimfill bench [--repeat K] [--only formats|network] [--json]
   Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam) and
-  a U-Net-sized network (about 2 million weights) on a 256x256 image. --only picks sections.`;
-
-/** Benchmark sections in the order they run. */
-const SECTIONS = ['kernels', 'network'] as const;
-
-function chosenSections(only: unknown): string[] {
-  if (only === undefined) return [...SECTIONS];
-  const names = String(only).split(',').map((s) => s.trim());
-  for (const n of names) {
-    if (!(SECTIONS as readonly string[]).includes(n)) throw new InputError(`option --only: got "${n}", expected a comma-separated list of ${SECTIONS.join(', ')}`);
-  }
-  return names;
-}
-
-export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', only: 'string', json: 'flag' }, 0);
-  const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
-  const sections = chosenSections(a.options.only);
-  const parts: CommandResult[] = [];
-  const json: Record<string, unknown> = {};
-  if (sections.includes('kernels')) {
-    const k = await benchKernels(repeat);
-    parts.push(k);
-    Object.assign(json, k.json);
-  }
-  if (sections.includes('network')) {
-    const n = await benchNetwork(repeat);
-    json.network = n;
-    parts.push({ json: n, text: networkBenchText(n) });
-  }
-  return { json, text: parts.map((p) => p.text).join('\n') };
-}
+  a U-Net-sized network (about 2 million weights) on a 256x256 image.
+  --only formats: read speed and peak memory for a 200 MB NRRD scan and a 200 MB TIFF stack.
+  --only network: the network alone.`;
 
 const now = () => performance.now() / 1000;
 
@@ -58,7 +30,23 @@ function median(xs: number[]): number {
   return s[Math.floor(s.length / 2)];
 }
 
-async function benchKernels(repeat: number): Promise<CommandResult> {
+export async function bench(argv: string[]): Promise<CommandResult> {
+  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string', read: 'string' }, 0);
+  if (typeof a.options.read === 'string') {
+    // One measured read, run in a child process by --only formats; prints JSON either way.
+    const figures = await measureRead(a.options.read);
+    return { json: figures, text: JSON.stringify(figures) };
+  }
+  if (a.options.only !== undefined && a.options.only !== 'formats' && a.options.only !== 'network') throw new InputError(`option --only: got "${a.options.only}", expected formats or network`);
+  if (a.options.only === 'formats') {
+    const rows = await benchFormats(process.argv[1]);
+    return { json: { formats: rows }, text: formatFiguresText(rows).join('\n') };
+  }
+  const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
+  if (a.options.only === 'network') {
+    const network = await benchNetwork(repeat);
+    return { json: { network }, text: networkBenchText(network) };
+  }
   const geometry = validateGeometry({
     kind: 'fan', detector: { shape: 'flat', channels: 1024, rows: 1, pitch: [1.0, 1.0], offset: [0, 0] },
     sourceIsocenter: 600, sourceDetector: 1000, anglesDeg: { start: 0, step: 0.5, count: 720 },
@@ -125,5 +113,6 @@ async function benchKernels(repeat: number): Promise<CommandResult> {
     `speed-up 1 -> 2 workers (backprojection): ${ratios.twoWorkerSpeedup.toFixed(2)}x`,
     `peak resident memory: ${peakRssMb.toFixed(0)} MB`,
   ].join('\n');
-  return { json: { rows, ratios, peakRssMb }, text };
+  const network = await benchNetwork(repeat);
+  return { json: { rows, ratios, peakRssMb, network }, text: `${text}\n${networkBenchText(network)}` };
 }

@@ -5,9 +5,10 @@ import { parseArgs, requireString } from '../args';
 import { loadImage } from '../load';
 import type { CommandResult } from './types';
 
-export const compareHelp = `rimfill compare image.nrrd --reference truth.nrrd [--fov] [--fov-radius mm] [--json]
+export const compareHelp = `rimfill compare image.nrrd --reference truth.nrrd [--fov] [--fov-radius mm] [--mu-water X] [--json]
   RMSE (HU when mu_water is known), PSNR and SSIM over the image, the object, and with --fov
-  inside and outside the measured field of view (radius from the image file, or --fov-radius).`;
+  inside and outside the measured field of view (radius from the image file, or --fov-radius).
+  Either image may be NRRD, MetaImage, raw + JSON, DICOM or TIFF; HU images need mu_water.`;
 
 function table(c: ReturnType<typeof compareImages>): string {
   const rows = [['region', 'pixels', `RMSE (${c.unit})`, 'PSNR (dB)', 'SSIM']];
@@ -19,10 +20,10 @@ function table(c: ReturnType<typeof compareImages>): string {
 }
 
 export async function compare(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { reference: 'string', fov: 'flag', 'fov-radius': 'number', json: 'flag' }, 1);
+  const a = parseArgs(argv, { reference: 'string', fov: 'flag', 'fov-radius': 'number', 'mu-water': 'number', json: 'flag' }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('compare: give the image file, e.g. rimfill compare image.nrrd --reference truth.nrrd');
-  const image = await loadImage(path);
+  const image = await loadImage(path, 'image', a.options['mu-water'] as number | undefined);
   const reference = await loadImage(requireString(a, 'reference'), 'reference', image.muWater);
   let fov: number | undefined;
   if (a.options['fov-radius'] !== undefined) fov = a.options['fov-radius'] as number;

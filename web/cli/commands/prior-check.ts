@@ -8,14 +8,15 @@ import { chooseGrid } from '../../core/recipe/grid';
 import { parseArgs, positiveNumber, type ParsedArgs } from '../args';
 import { openWorkspace } from '../engine-node';
 import { PendingWrites } from '../io';
-import { loadScan } from '../load';
+import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { PRIOR_OPTIONS, resolvePrior } from '../prior-source';
 import { progressLine } from '../progress';
 import type { CommandResult } from './types';
 
 export const priorCheckHelp = `rimfill prior-check scan.nrrd (--model net.onnx --model-info net.json | --prior image.nrrd)
     [--size N --pixel mm] [--out prior.nrrd] [--residual residual.nrrd] [--flag-width mm]
-    [--flag-floor p] [--geometry geom.json] [--workers N] [--json]
+    [--flag-floor p] [--workers N] [--json]
+${SCAN_INPUT_HELP}
   Checks a prior against the measured data: reprojects it onto the scan's channels and reports,
   per view and channel, where it disagrees (relative RMS residual ||A f - p|| / ||p||; rays whose
   residual, averaged over --flag-width mm (default ${DEFAULT_FLAG_WIDTH_MM}), exceeds max(5 robust sigma,
@@ -46,12 +47,12 @@ function gridOption(a: ParsedArgs): { size: number; pixel: number } | undefined 
 export async function priorCheck(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     ...PRIOR_OPTIONS, out: 'string', residual: 'string', size: 'int', pixel: 'number', 'flag-width': 'number', 'flag-floor': 'number',
-    geometry: 'string', workers: 'int', json: 'flag',
+    workers: 'int', json: 'flag', ...SCAN_INPUT_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('prior-check: give the scan file, e.g. rimfill prior-check scan.nrrd --model net.onnx --model-info net.json');
   if (a.options.out !== undefined && a.options.model === undefined) throw new InputError('option --out: writes the network prior, so it needs --model (an image given with --prior is already a file)');
-  const scan = await loadScan(path, a.options.geometry as string | undefined);
+  const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   const grid = chooseGrid(scan, gridOption(a));
   const ws = await openWorkspace(a.options.workers as number | undefined);
   try {
@@ -76,7 +77,7 @@ export async function priorCheck(argv: string[]): Promise<CommandResult> {
     }
     writes.commit();
     const seconds = (performance.now() - t0) / 1000;
-    const warnings = [...src.warnings, ...report.warnings];
+    const warnings = [...readWarnings, ...src.warnings, ...report.warnings];
     const source = src.network ? `network ${a.options.model}${src.model?.name ? ` (${src.model.name})` : ''}` : `image ${a.options.prior}`;
     return {
       json: {

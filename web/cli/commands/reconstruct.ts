@@ -6,14 +6,15 @@ import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { runRecipe } from '../../core/recipe/run';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { PendingWrites } from '../io';
-import { loadScan } from '../load';
+import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { openWorkspace } from '../engine-node';
 import { progressLine } from '../progress';
 import type { CommandResult } from './types';
 
-export const reconstructHelp = `rimfill reconstruct scan.nrrd --method ${METHODS.join('|')} --out image.nrrd
+export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
     [--filter ram-lak|shepp-logan|cosine|hamming|hann] [--cutoff 0..1] [--size N] [--pixel mm]
-    [--hu] [--geometry geom.json] [--workers N] [--json]
+    [--hu] [--workers N] [--json]
+${SCAN_INPUT_HELP}
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
   512 pixels covering the measured field of view). --hu writes HU (needs mu_water in the scan).`;
 
@@ -47,14 +48,14 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     method: 'string', out: 'string', filter: 'string', cutoff: 'number', size: 'int', pixel: 'number',
-    hu: 'flag', geometry: 'string', workers: 'int', json: 'flag',
+    hu: 'flag', workers: 'int', json: 'flag', ...SCAN_INPUT_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
   const recipe = recipeFromArgs(a);
   const out = requireString(a, 'out');
-  const scan = await loadScan(path, a.options.geometry as string | undefined);
-  if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); write mu instead');
+  const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
+  if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
   const ws = await openWorkspace(a.options.workers as number | undefined);
   try {
     const t0 = performance.now();
@@ -69,7 +70,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, warnings: r.warnings },
       text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method} in ${seconds.toFixed(2)} s`,
-      warnings: r.warnings,
+      warnings: [...readWarnings, ...r.warnings],
     };
   } finally {
     ws.dispose();

@@ -1,12 +1,13 @@
 // rimfill simulate: projections of a phantom (built-in or an image file) in a geometry,
 // optionally truncated (--channels, --offset) and with photon noise.
+import { existsSync } from 'node:fs';
 import { InputError } from '../../core/errors';
 import { cropDetector } from '../../core/geometry/presets';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
 import { squareGrid, type Image2D } from '../../core/image';
-import { namedPhantom } from '../../core/phantoms';
+import { namedPhantom, PHANTOM_NAMES } from '../../core/phantoms';
 import { rasterize } from '../../core/phantoms/ellipse';
 import { Projector2d } from '../../core/recon/projector';
 import type { Scan } from '../../core/scan';
@@ -18,17 +19,20 @@ import { loadGeometry, loadImage } from '../load';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
-export const simulateHelp = `rimfill simulate --phantom <name|image.nrrd> --geometry <geom.json|preset> --out scan.nrrd
+export const simulateHelp = `rimfill simulate --phantom <name|image file> --geometry <geom.json|preset> --out scan.nrrd
     [--channels N] [--offset mm] [--photons I0] [--seed S] [--truth truth.nrrd]
-    [--complete full.nrrd] [--size N] [--pixel mm] [--subsamples K] [--json]
+    [--complete full.nrrd] [--size N] [--pixel mm] [--subsamples K] [--slice k] [--mu-water X] [--json]
   Simulates a scan. --channels keeps the N central channels (a truncated scan), shifted by
   --offset mm along the detector; --complete also writes the untruncated scan; --truth writes
-  the object on a grid (--size x --size pixels of --pixel mm, default: covering the object).`;
+  the object on a grid (--size x --size pixels of --pixel mm, default: covering the object).
+  An image phantom may be NRRD, MetaImage, raw + JSON, DICOM (file or series folder; HU need
+  --mu-water) or TIFF; --slice picks one slice of a volume.`;
 
 export async function simulate(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     phantom: 'string', geometry: 'string', channels: 'int', offset: 'number', photons: 'number', seed: 'int',
     out: 'string', truth: 'string', complete: 'string', size: 'int', pixel: 'number', subsamples: 'int', json: 'flag', workers: 'int',
+    slice: 'int', 'mu-water': 'number',
   }, 0);
   const out = requireString(a, 'out');
   const full = loadGeometry(requireString(a, 'geometry'));
@@ -45,8 +49,9 @@ export async function simulate(argv: string[]): Promise<CommandResult> {
   let data: Float32Array;
   let truth: Image2D;
   let muWater: number | undefined;
-  if (/\.nrrd$/i.test(phantomArg)) {
-    truth = await loadImage(phantomArg, 'phantom');
+  const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
+  if (isFile) {
+    truth = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
     muWater = truth.muWater;
     const ws = await openWorkspace((a.options.workers as number | undefined) ?? undefined);
     try {
