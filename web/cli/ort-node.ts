@@ -2,6 +2,7 @@
 // directory (scripts/build-ort.mjs copies it there), run in the calling thread.
 import { existsSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
+import { setFlagsFromString } from 'node:v8';
 import type { NetworkRunner } from '../core/model/runner';
 
 const WASM = 'ort-wasm-simd-threaded.wasm';
@@ -15,10 +16,23 @@ function wasmPath(): string {
   return built;
 }
 
+let compiled = false;
+
 /** Opens an ONNX model in this thread (InputError when it is not a model the runtime can load). */
 export async function openNetworkNode(modelBytes: Uint8Array): Promise<NetworkRunner> {
   // Loaded on first use, so that commands without a network do not pay for the runtime.
   const { configureOrt, openOrtNetwork } = await import('../core/model/ort-runtime');
+  if (compiled) return openOrtNetwork(modelBytes);
   configureOrt(new Uint8Array(readFileSync(wasmPath())));
-  return openOrtNetwork(modelBytes);
+  // The CLI compiles WebAssembly with V8's optimizing tier only (engine-node.ts: --no-liftoff),
+  // right for the engine's few long kernel calls; the runtime's 14 MB module would then take
+  // 4-9 s to compile (measured). Its first open compiles it: with the baseline tier (hot code
+  // is tiered up while it runs, 1-2 s), then the CLI's setting is restored.
+  setFlagsFromString('--liftoff');
+  try {
+    return await openOrtNetwork(modelBytes);
+  } finally {
+    setFlagsFromString('--no-liftoff');
+    compiled = true;
+  }
 }
