@@ -42,10 +42,11 @@ describe('consistency report', () => {
     expect(rep.summary.rays).toBe(scan.data.length);
   });
 
-  it('the exact phantom on 1.5 mm pixels: relative RMS residual under 1%, under 0.5% of rays flagged', async () => {
+  it('the exact phantom on 1.5 mm pixels: relative RMS residual under 1%, under 0.2% of rays flagged', async () => {
+    // Measured: 0.42% and 0.09% (what the 1.5 mm pixel grid alone leaves; 0.24% and none on 1 mm).
     const rep = await consistencyReport(ws, scan, truth);
     expect(rep.summary.relativeRms).toBeLessThan(0.01);
-    expect(rep.summary.flaggedFraction).toBeLessThan(0.005);
+    expect(rep.summary.flaggedFraction).toBeLessThan(0.002);
     expect(rep.residual.length).toBe(scan.data.length);
     expect(rep.profiles.viewRms.length).toBe(180);
     expect(rep.profiles.channelRms.length).toBe(345);
