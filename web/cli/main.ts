@@ -7,6 +7,7 @@ import { compare, compareHelp } from './commands/compare';
 import { demo, demoHelp } from './commands/demo';
 import { exportCommand, exportHelp } from './commands/export';
 import { inspect, inspectHelp } from './commands/inspect';
+import { priorCheck, priorCheckHelp } from './commands/prior-check';
 import { reconstruct, reconstructHelp } from './commands/reconstruct';
 import { simulate, simulateHelp } from './commands/simulate';
 import type { CommandResult } from './commands/types';
@@ -18,6 +19,7 @@ const COMMANDS: Record<string, { run: (argv: string[]) => Promise<CommandResult>
   compare: { run: compare, help: compareHelp },
   export: { run: exportCommand, help: exportHelp },
   calibrate: { run: calibrate, help: calibrateHelp },
+  'prior-check': { run: priorCheck, help: priorCheckHelp },
   bench: { run: bench, help: benchHelp },
   demo: { run: demo, help: demoHelp },
 };
