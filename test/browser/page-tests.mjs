@@ -16,6 +16,9 @@ async function metricsRow(page, label) {
   const regions = ['image', 'insideFov', 'outsideFov'];
   const out = {};
   regions.forEach((r, i) => (out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }));
+  // Cupping and data residual are shown as percentages.
+  out.cupping = Number(cells[9].replace('%', ''));
+  out.residual = Number(cells[10].replace('%', ''));
   return out;
 }
 
@@ -202,9 +205,13 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
       near(got[region].psnr, want[region].psnr, 0.051, `${region} PSNR (dB)`);
       near(got[region].ssim, want[region].ssim, 0.00051, `${region} SSIM`);
     }
+    // Cupping excess (shown in % to 0.1) as the command line computes it.
+    near(got.cupping, 100 * reference.comparison.cupping.excess, 0.051, 'cupping excess (%)');
+    // The re-projection residual (needs no reference), as the command line computes it.
+    near(got.residual, 100 * reference.comparison.residual.relative, 0.051, 'data residual (%)');
     const rows = await page.locator('rf-metrics-table tbody tr').count();
     check(rows === n, `${rows} metric rows for ${n} ticked results`);
-    for (const cell of await page.locator('rf-metrics-table td[data-metric]').allTextContents()) check(Number.isFinite(Number(cell)), `metric cell "${cell}"`);
+    for (const cell of await page.locator('rf-metrics-table td[data-metric]').allTextContents()) check(Number.isFinite(Number(cell.replace('%', ''))), `metric cell "${cell}"`);
     await shot(page, '4-images-compare');
   });
 
