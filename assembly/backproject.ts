@@ -14,7 +14,7 @@
 // floats, cell 0 and the cells after the nCh channels are zero, so indices are clamped
 // instead of tested.
 import { KIND_PARALLEL, KIND_FAN_FLAT, VIEW_STRIDE } from './abi';
-import { clampIndex, ldf, MAGIC, MAGIC_BITS } from './memory';
+import { clampIndex, floorOffsets, ldf, MAGIC, MAGIC_BITS } from './memory';
 
 /**
  * Adds the backprojection of views [view0, view1) into image rows [row0, row1).
@@ -110,7 +110,7 @@ export function backproject2d(
 @inline function sample(row: usize, f: v128, zero: v128, top: v128, magic: v128, magicBits: v128): v128 {
   const t = clampIndex(f, zero, top);
   const fl = f32x4.floor(t);
-  const off = i32x4.shl(i32x4.sub(f32x4.add(fl, magic), magicBits), 2);
+  const off = floorOffsets(fl, magic, magicBits);
   const frac = f32x4.sub(t, fl);
   let ab = v128.load64_lane(row + <usize>i32x4.extract_lane(off, 0), zero, 0);
   ab = v128.load64_lane(row + <usize>i32x4.extract_lane(off, 1), ab, 1);
