@@ -7,6 +7,10 @@ export { fftPrepare, fft, realEvenResponse, filterViews } from './fft';
 export { rayTableFloats } from './rays';
 export { josephForward2d, josephAdjoint2d } from './joseph';
 export { backproject2d, atanApprox } from './backproject';
+export { coneFilterViews } from './cone-filter';
+export { backprojectCone } from './cone-backproject';
+export { paddedVolumeFloats, padVolume, unpadVolume } from './cone-volume';
+export { josephForwardCone, josephAdjointCone } from './cone-joseph';
 
 /** First byte the host may use for its buffers. */
 export function heapBase(): usize {

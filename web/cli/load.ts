@@ -5,8 +5,10 @@ import type { Geometry } from '../core/geometry/types';
 import { validateGeometry } from '../core/geometry/validate';
 import { readImageNrrd } from '../core/formats/image-nrrd';
 import { readScanNrrd } from '../core/formats/scan-nrrd';
+import { readVolumeNrrd } from '../core/formats/volume-nrrd';
 import type { Image2D } from '../core/image';
 import type { Scan } from '../core/scan';
+import type { Volume } from '../core/volume';
 import { readBytes, readJson } from './io';
 
 /** A geometry from a preset name or a JSON file. */
@@ -34,4 +36,10 @@ export async function loadScan(path: string, geometryPath?: string): Promise<Sca
 export async function loadImage(path: string, what = 'image', muWater?: number): Promise<Image2D> {
   checkExtension(path, what);
   return readImageNrrd(readBytes(path, what), muWater);
+}
+
+/** Reads a volume file (values as mu). */
+export async function loadVolume(path: string, what = 'volume', muWater?: number): Promise<Volume> {
+  checkExtension(path, what);
+  return readVolumeNrrd(readBytes(path, what), muWater);
 }

@@ -16,7 +16,9 @@ export type KernelName =
   | 'padImage2d' | 'unpadAdd2d'
   | 'fftPrepare' | 'fft' | 'realEvenResponse' | 'filterViews'
   | 'rayTableFloats' | 'josephForward2d' | 'josephAdjoint2d'
-  | 'backproject2d' | 'atanApprox';
+  | 'backproject2d' | 'atanApprox'
+  | 'coneFilterViews' | 'backprojectCone' | 'paddedVolumeFloats' | 'padVolume' | 'unpadVolume'
+  | 'josephForwardCone' | 'josephAdjointCone';
 
 /** The exports of an engine instance, as the host sees them. */
 export type EngineExports = Record<KernelName, (...args: number[]) => number> & {

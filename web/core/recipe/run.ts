@@ -5,8 +5,10 @@ import type { Image2D } from '../image';
 import { fbp2d } from '../recon/fbp';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
+import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
+import { runConeRecipe } from './run-cone';
 
 export interface RecipeResult {
   /** The reconstruction, mu in 1/mm, with the scan's mu_water and FOV radius. */
@@ -14,10 +16,13 @@ export interface RecipeResult {
   warnings: string[];
   /** Method-specific figures (timings, convergence history, ...), JSON-ready. */
   report: Record<string, unknown>;
+  /** Cone-beam scans: the whole volume (`image` is then its central slice). */
+  volume?: Volume;
 }
 
 /** Reconstructs `scan` as the recipe says. */
 export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
+  if (scan.geometry.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks);
   const grid = chooseGrid(scan, recipe.grid);
   const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff }, hooks);
   return {
