@@ -67,8 +67,9 @@ export function backprojectCone(
   const strideV = i32x4.splat(stride);
   const rowBytes = <usize>stride << 2;
   const blockBytes = <usize>(nRows + 3) * rowBytes;
-  const shiftU = f32x4.splat(2.5 - u0 / pitchU);
-  const shiftV = f32x4.splat(2.5 - v0 / pitchV);
+  const shiftUs: f32 = 2.5 - u0 / pitchU, shiftVs: f32 = 2.5 - v0 / pitchV;
+  const shiftU = f32x4.splat(shiftUs);
+  const shiftV = f32x4.splat(shiftVs);
   for (let k = k0; k < k1; k++) {
     const z = z0 + <f32>k * dz;
     for (let j = 0; j < ny; j++) {
@@ -84,14 +85,31 @@ export function backprojectCone(
         const nx = ldf(c, 3) * sn, nyv = ldf(c, 4) * sn, nz = ldf(c, 5) * sn;
         const ux = ldf(c, 6) * su, uy = ldf(c, 7) * su, uz = ldf(c, 8) * su;
         const vx = ldf(c, 9) * sv, vy = ldf(c, 10) * sv, vz = ldf(c, 11) * sv;
-        let ln = f32x4.add(f32x4.splat(px * nx + py * nyv + pz * nz), f32x4.mul(lane, f32x4.splat(dx * nx)));
-        let lu = f32x4.add(f32x4.splat(px * ux + py * uy + pz * uz), f32x4.mul(lane, f32x4.splat(dx * ux)));
-        let lv = f32x4.add(f32x4.splat(px * vx + py * vy + pz * vz), f32x4.mul(lane, f32x4.splat(dx * vx)));
-        const lnStep = f32x4.splat(4 * dx * nx);
-        const luStep = f32x4.splat(4 * dx * ux);
-        const lvStep = f32x4.splat(4 * dx * vx);
+        const ln0 = px * nx + py * nyv + pz * nz, dln = dx * nx;
+        const lu0 = px * ux + py * uy + pz * uz, dlu = dx * ux;
+        const lv0 = px * vx + py * vy + pz * vz, dlv = dx * vx;
+        // Voxels whose ray misses the detector read only zero padding: keep the columns where
+        // the padded coordinate lies in (0, n + 1), i.e. (since ln > 0) where the linear forms
+        // lu + (shift - 1.5) ln > 0 and lu + (shift - 1.5 - nCh - 1) ln < 0 (likewise for v).
+        const cu = shiftUs - 1.5, cv = shiftVs - 1.5;
+        const au = lu0 + cu * ln0, bu = dlu + cu * dln;
+        const bou = lu0 + (cu - <f32>(nCh + 1)) * ln0, bbu = dlu + (cu - <f32>(nCh + 1)) * dln;
+        const av = lv0 + cv * ln0, bv = dlv + cv * dln;
+        const bov = lv0 + (cv - <f32>(nRows + 1)) * ln0, bbv = dlv + (cv - <f32>(nRows + 1)) * dln;
+        const first = Mathf.max(Mathf.max(Mathf.max(0, lowerOf(au, bu)), lowerOf(-bou, -bbu)), Mathf.max(lowerOf(av, bv), lowerOf(-bov, -bbv)));
+        const last = Mathf.min(Mathf.min(Mathf.min(<f32>(nxs - 1), upperOf(au, bu)), upperOf(-bou, -bbu)), Mathf.min(upperOf(av, bv), upperOf(-bov, -bbv)));
+        if (first > last) continue;
+        const i0 = <i32>Mathf.max(0, Mathf.floor(first) - 1) & ~3;
+        const i1 = min(nxs, (<i32>Mathf.min(<f32>nxs, Mathf.ceil(last) + 2) + 3) & ~3);
+        const f0 = <f32>i0;
+        let ln = f32x4.add(f32x4.splat(ln0 + f0 * dln), f32x4.mul(lane, f32x4.splat(dln)));
+        let lu = f32x4.add(f32x4.splat(lu0 + f0 * dlu), f32x4.mul(lane, f32x4.splat(dlu)));
+        let lv = f32x4.add(f32x4.splat(lv0 + f0 * dlv), f32x4.mul(lane, f32x4.splat(dlv)));
+        const lnStep = f32x4.splat(4 * dln);
+        const luStep = f32x4.splat(4 * dlu);
+        const lvStep = f32x4.splat(4 * dlv);
         const block = filt + <usize>(v - view0) * blockBytes;
-        for (let i = 0; i < nxs; i += 4) {
+        for (let i = i0; i < i1; i += 4) {
           const w = f32x4.div(f32x4.splat(1), ln);
           const fu = f32x4.min(f32x4.max(f32x4.add(f32x4.mul(lu, w), shiftU), lowC), topU);
           const fv = f32x4.min(f32x4.max(f32x4.add(f32x4.mul(lv, w), shiftV), lowC), topV);
@@ -110,6 +128,20 @@ export function backprojectCone(
       }
     }
   }
+}
+
+/** Lower end of the columns i where a + b i > 0 (a linear form in i); +inf when none. */
+@inline function lowerOf(a: f32, b: f32): f32 {
+  if (b > 0) return -a / b;
+  if (b < 0 || a > 0) return -Infinity;
+  return Infinity;
+}
+
+/** Upper end of the columns i where a + b i > 0; -inf when none. */
+@inline function upperOf(a: f32, b: f32): f32 {
+  if (b < 0) return -a / b;
+  if (b > 0 || a > 0) return Infinity;
+  return -Infinity;
 }
 
 /**

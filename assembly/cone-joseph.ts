@@ -145,6 +145,8 @@ export function josephAdjointCone(
     return f32x4.mul(acc, W);
   }
   const val = f32x4.mul(y, W);
+  const ownLo = i32x4.splat(own0), ownHi = i32x4.splat(own1);
+  const oneI = i32x4.splat(1);
   for (let i = lo; i <= hi; i++) {
     const t1 = clampCoord(f32x4.add(A1, f32x4.mul(B1, f32x4.splat(fi))), t1Top);
     const t2 = clampCoord(f32x4.add(A2, f32x4.mul(B2, f32x4.splat(fi))), t2Top);
@@ -152,35 +154,34 @@ export function josephAdjointCone(
     const kz = cellLo(r2);
     const off = i32x4.shl(i32x4.add(i32x4.mul(kz, plane), cellLo(r1)), 2);
     const f1 = cellFrac(t1, r1), f2 = cellFrac(t2, r2);
-    // Transpose of bilinear(): weights (1-f1)(1-f2), f1(1-f2), (1-f1)f2, f1 f2.
-    const g2 = f32x4.mul(val, f2), g1 = f32x4.sub(val, f32x4.mul(val, f2));
+    // Transpose of bilinear(): weights (1-f1)(1-f2), f1(1-f2), (1-f1)f2, f1 f2, as the pairs
+    // (low cell, high cell) of each lane in plane kz (l1, h1) and plane kz + 1 (l2, h2).
+    const g2 = f32x4.mul(val, f2), g1 = f32x4.sub(val, g2);
     const h1 = f32x4.mul(g1, f1), l1 = f32x4.sub(g1, h1);
     const h2 = f32x4.mul(g2, f1), l2 = f32x4.sub(g2, h2);
-    scatterLane(line + <usize>i32x4.extract_lane(off, 0), i32x4.extract_lane(kz, 0), own0, own1, planeBytes,
-      f32x4.extract_lane(l1, 0), f32x4.extract_lane(h1, 0), f32x4.extract_lane(l2, 0), f32x4.extract_lane(h2, 0));
-    scatterLane(line + <usize>i32x4.extract_lane(off, 1), i32x4.extract_lane(kz, 1), own0, own1, planeBytes,
-      f32x4.extract_lane(l1, 1), f32x4.extract_lane(h1, 1), f32x4.extract_lane(l2, 1), f32x4.extract_lane(h2, 1));
-    scatterLane(line + <usize>i32x4.extract_lane(off, 2), i32x4.extract_lane(kz, 2), own0, own1, planeBytes,
-      f32x4.extract_lane(l1, 2), f32x4.extract_lane(h1, 2), f32x4.extract_lane(l2, 2), f32x4.extract_lane(h2, 2));
-    scatterLane(line + <usize>i32x4.extract_lane(off, 3), i32x4.extract_lane(kz, 3), own0, own1, planeBytes,
-      f32x4.extract_lane(l1, 3), f32x4.extract_lane(h1, 3), f32x4.extract_lane(l2, 3), f32x4.extract_lane(h2, 3));
+    const a01 = v128.shuffle<f32>(l1, h1, 0, 4, 1, 5), a23 = v128.shuffle<f32>(l1, h1, 2, 6, 3, 7);
+    const b01 = v128.shuffle<f32>(l2, h2, 0, 4, 1, 5), b23 = v128.shuffle<f32>(l2, h2, 2, 6, 3, 7);
+    // Planes this part may write (other parts own the rest).
+    const kz1 = i32x4.add(kz, oneI);
+    const mine = i32x4.bitmask(v128.and(i32x4.ge_s(kz, ownLo), i32x4.lt_s(kz, ownHi)));
+    const mine1 = i32x4.bitmask(v128.and(i32x4.ge_s(kz1, ownLo), i32x4.lt_s(kz1, ownHi)));
+    // One lane at a time: neighbouring rays may share cells.
+    const p0 = line + <usize>i32x4.extract_lane(off, 0);
+    if (mine & 1) v128.store64_lane(p0, f32x4.add(v128.load64_lane(p0, a01, 0), a01), 0);
+    if (mine1 & 1) v128.store64_lane(p0 + planeBytes, f32x4.add(v128.load64_lane(p0 + planeBytes, b01, 0), b01), 0);
+    const p1 = line + <usize>i32x4.extract_lane(off, 1);
+    if (mine & 2) v128.store64_lane(p1, f32x4.add(v128.load64_lane(p1, a01, 1), a01), 1);
+    if (mine1 & 2) v128.store64_lane(p1 + planeBytes, f32x4.add(v128.load64_lane(p1 + planeBytes, b01, 1), b01), 1);
+    const p2 = line + <usize>i32x4.extract_lane(off, 2);
+    if (mine & 4) v128.store64_lane(p2, f32x4.add(v128.load64_lane(p2, a23, 0), a23), 0);
+    if (mine1 & 4) v128.store64_lane(p2 + planeBytes, f32x4.add(v128.load64_lane(p2 + planeBytes, b23, 0), b23), 0);
+    const p3 = line + <usize>i32x4.extract_lane(off, 3);
+    if (mine & 8) v128.store64_lane(p3, f32x4.add(v128.load64_lane(p3, a23, 1), a23), 1);
+    if (mine1 & 8) v128.store64_lane(p3 + planeBytes, f32x4.add(v128.load64_lane(p3 + planeBytes, b23, 1), b23), 1);
     fi += 1;
     line += lineBytes;
   }
   return zero;
-}
-
-/** Adds the four bilinear shares of one lane into the planes kz and kz + 1 it owns. */
-@inline function scatterLane(p: usize, kz: i32, own0: i32, own1: i32, planeBytes: usize, l1: f32, h1: f32, l2: f32, h2: f32): void {
-  if (kz >= own0 && kz < own1) {
-    store<f32>(p, load<f32>(p) + l1);
-    store<f32>(p + 4, load<f32>(p + 4) + h1);
-  }
-  if (kz + 1 >= own0 && kz + 1 < own1) {
-    const q = p + planeBytes;
-    store<f32>(q, load<f32>(q) + l2);
-    store<f32>(q + 4, load<f32>(q + 4) + h2);
-  }
 }
 
 /** Steps [lo, hi] of one lane whose two coordinates lie in [0, top1] and [lo2, hi2], one step wider. */

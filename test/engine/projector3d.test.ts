@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest';
+import { coneFrame, projectPoint } from '../../web/core/geometry/cone';
+import { firstChannelU, firstRowV, viewVectors } from '../../web/core/geometry/view-vectors';
 import { Projector3d } from '../../web/core/recon/projector3d';
 import { voxelize, type SolidPhantom } from '../../web/core/phantoms/solid';
 import { analyticConeProjections } from '../../web/core/simulate/analytic-cone';
@@ -101,5 +103,35 @@ describe('3D adjoint', () => {
     for (let i = 0; i < vall.length; i++) worst = Math.max(worst, Math.abs(va[i] + vb[i] - vall[i]));
     expect(Math.max(...vall)).toBeGreaterThan(1);
     expect(worst).toBeLessThan(1e-4);
+  });
+});
+
+describe('cone-beam geometry conventions', () => {
+  // design.md: source at (R cos b, R sin b, 0), u along (-sin b, cos b, 0), v along +z, detector
+  // offsets shift channel and row coordinates. A single voxel off the axis and off the central
+  // plane must project onto the cell the geometry predicts (projectPoint), within one cell.
+  it('a voxel lands on the detector cell its ray predicts, with offsets in u and v', async () => {
+    const ws = await localWorkspace();
+    const g = cone({ channels: 90, rows: 70, pitch: 1, views: 12, startDeg: 23, R: 300, D: 540, offset: [7.5, -11] });
+    const grid: VolumeGrid = { nx: 40, ny: 40, nz: 30, dx: 1, dy: 1, dz: 1, cx: 0, cy: 0, cz: 0 };
+    const vol = new Float32Array(40 * 40 * 30);
+    const [i, j, k] = [30, 12, 24]; // centre (10.5, -7.5, 9.5) mm
+    vol[(k * 40 + j) * 40 + i] = 1;
+    const got = await project(ws, grid, g, vol);
+    const views = viewVectors(g);
+    const u0 = firstChannelU(g), v0 = firstRowV(g);
+    for (let v = 0; v < 12; v++) {
+      const at = projectPoint(coneFrame(views, v), [10.5, -7.5, 9.5])!;
+      const [kc, rc] = [(at.u - u0) / 1, (at.v - v0) / 1];
+      let best = 0;
+      for (let n = 1; n < 90 * 70; n++) if (got[v * 6300 + n] > got[v * 6300 + best]) best = n;
+      expect(Math.abs((best % 90) - kc), `view ${v} channel`).toBeLessThanOrEqual(1);
+      expect(Math.abs(Math.floor(best / 90) - rc), `view ${v} row`).toBeLessThanOrEqual(1);
+      expect(got[v * 6300 + best]).toBeGreaterThan(0.1);
+    }
+    // The view vectors themselves, from design.md's formulas at b = 23 degrees.
+    const [c, s] = [Math.cos((23 * Math.PI) / 180), Math.sin((23 * Math.PI) / 180)];
+    const design = [300 * c, 300 * s, 0, -240 * c, -240 * s, 0, -s, c, 0, 0, 0, 1];
+    design.forEach((x, n) => expect(views[n]).toBeCloseTo(x, 4));
   });
 });

@@ -11,11 +11,17 @@ import { fbp2d } from '../../core/recon/fbp';
 import { Projector2d } from '../../core/recon/projector';
 import { parseArgs } from '../args';
 import { backprojectFanFlatTs } from '../bench/ts-backproject';
+import { benchFdk } from '../bench/fdk-bench';
+import { InputError } from '../../core/errors';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
-export const benchHelp = `rimfill bench [--repeat K] [--json]
-  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam).`;
+export const benchHelp = `rimfill bench [--only kernels|fdk] [--repeat K] [--json]
+  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam), and
+  FDK on a 256^3 volume from 360 cone-beam projections of 512 x 384 cells. --only runs one section.`;
+
+/** Sections of the benchmark, in the order they run. */
+export const BENCH_SECTIONS = ['kernels', 'fdk'] as const;
 
 const now = () => performance.now() / 1000;
 
@@ -25,7 +31,17 @@ function median(xs: number[]): number {
 }
 
 export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', json: 'flag' }, 0);
+  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string' }, 0);
+  const only = a.options.only as string | undefined;
+  if (only !== undefined && !(BENCH_SECTIONS as readonly string[]).includes(only)) {
+    throw new InputError(`option --only: got "${only}", expected one of ${BENCH_SECTIONS.join(', ')}`);
+  }
+  const log = a.options.json ? undefined : (line: string) => process.stderr.write(line + '\n');
+  if (only === 'fdk') {
+    const f = await benchFdk(log);
+    const { text: fdkText, ...fdkJson } = f;
+    return { json: { fdk: fdkJson }, text: fdkText };
+  }
   const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
   const geometry = validateGeometry({
     kind: 'fan', detector: { shape: 'flat', channels: 1024, rows: 1, pitch: [1.0, 1.0], offset: [0, 0] },
@@ -93,5 +109,8 @@ export async function bench(argv: string[]): Promise<CommandResult> {
     `speed-up 1 -> 2 workers (backprojection): ${ratios.twoWorkerSpeedup.toFixed(2)}x`,
     `peak resident memory: ${peakRssMb.toFixed(0)} MB`,
   ].join('\n');
-  return { json: { rows, ratios, peakRssMb }, text };
+  if (only === 'kernels') return { json: { rows, ratios, peakRssMb }, text };
+  const f = await benchFdk(log);
+  const { text: fdkText, ...fdkJson } = f;
+  return { json: { rows, ratios, peakRssMb, fdk: fdkJson }, text: `${text}\n\n${fdkText}` };
 }

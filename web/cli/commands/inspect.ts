@@ -1,5 +1,6 @@
 // rimfill inspect: where is a scan truncated?
 import { InputError } from '../../core/errors';
+import { coneFovHalfHeight } from '../../core/geometry/cone';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { detectTruncation } from '../../core/truncation/detect';
 import { parseArgs } from '../args';
@@ -17,10 +18,12 @@ export async function inspect(argv: string[]): Promise<CommandResult> {
   const r = detectTruncation(scan);
   const g = scan.geometry;
   const pct = (x: number) => `${(100 * x).toFixed(1)}%`;
+  // Cone beams: the report covers every detector row of every view.
+  const cone = g.kind === 'cone';
   const text = [
-    `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels, ${r.views.length} views`,
-    `measured field of view: radius ${fovRadius(g).toFixed(1)} mm`,
-    `truncated views: ${pct(r.truncatedFraction)} (left edge ${pct(r.leftFraction)}, right edge ${pct(r.rightFraction)})`,
+    `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels${cone ? ` x ${g.detector.rows} rows` : ''}, ${r.views.length / g.detector.rows} views`,
+    `measured field of view: radius ${fovRadius(g).toFixed(1)} mm${cone ? `, half height ${coneFovHalfHeight(g).toFixed(1)} mm on the axis` : ''}`,
+    `truncated ${cone ? 'detector rows' : 'views'}: ${pct(r.truncatedFraction)} (left edge ${pct(r.leftFraction)}, right edge ${pct(r.rightFraction)})`,
     `edge threshold ${r.threshold.toPrecision(3)} (noise sigma ${r.noiseSigma.toPrecision(3)})`,
   ].join('\n');
   return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...r }, text };

@@ -8,7 +8,7 @@
 // and orientations of Shepp & Logan's verified 2D ellipses d, c, e, f (references.md 1a, written
 // in Kak & Slaney's (A, B, angle) form); the skull ellipsoids a, b have the 2D semi-axes in x
 // and y. Known differences from the 2D table: b is centred at y = 0 (2D: -0.0184), the small
-// tumours g, h sit at y = -0.65 (2D: -0.605) and the small features have twice the 2D contrast.
+// tumours g, h sit at y = -0.65 (2D: -0.605) and e, f have twice the 2D contrast (0.02).
 // The central slice z = 0 is therefore NOT the 2D phantom: it cuts only a, b and e.
 // Units as in shepp-logan.ts: one table unit is `scaleMm` mm, densities are multiples of `unit`.
 import { MU_WATER_60KEV } from './materials';
