@@ -24,7 +24,16 @@ import { MAGIC, MAGIC_BITS } from './memory';
   return f32x4.sub(t, f32x4.sub(f32x4.sub(r, f32x4.splat(MAGIC)), f32x4.splat(2)));
 }
 
-/** t clamped to [0, top]. */
+/**
+ * t clamped to [low, top]. Uses the pseudo-min/max (one machine instruction each; Wasm's
+ * f32x4.min/max cost about six because of NaN and signed-zero rules), ordered so that a NaN
+ * lane becomes `low` instead of reaching an address computation.
+ */
+@inline export function clampTo(t: v128, low: v128, top: v128): v128 {
+  return f32x4.pmin(top, f32x4.pmax(low, t));
+}
+
+/** t clamped to [0, top] (see clampTo). */
 @inline export function clampCoord(t: v128, top: v128): v128 {
-  return f32x4.min(f32x4.max(t, f32x4.splat(0)), top);
+  return clampTo(t, f32x4.splat(0), top);
 }

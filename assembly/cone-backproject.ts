@@ -13,6 +13,7 @@
 // and cells after nCh are zero. Coordinates are clamped onto that padding, so rays that miss the
 // detector add nothing.
 import { VIEW_STRIDE } from './abi';
+import { clampTo } from './cell';
 import { ldf, stf, MAGIC, MAGIC_BITS } from './memory';
 
 /** Floats of per-view constants kept in the scratch buffer (see prepareConeViews). */
@@ -63,7 +64,6 @@ export function backprojectCone(
   const topV = f32x4.splat(<f32>nRows + 2.5);
   const half = f32x4.splat(0.5);
   const magic = f32x4.splat(MAGIC);
-  const loBias = i32x4.splat(MAGIC_BITS + 2);
   const strideV = i32x4.splat(stride);
   const rowBytes = <usize>stride << 2;
   const blockBytes = <usize>(nRows + 3) * rowBytes;
@@ -109,16 +109,19 @@ export function backprojectCone(
         const luStep = f32x4.splat(4 * dlu);
         const lvStep = f32x4.splat(4 * dlv);
         const block = filt + <usize>(v - view0) * blockBytes;
+        const base = block - ((<usize>(MAGIC_BITS + 2) * <usize>(stride + 1)) << 2);
         for (let i = i0; i < i1; i += 4) {
           const w = f32x4.div(f32x4.splat(1), ln);
-          const fu = f32x4.min(f32x4.max(f32x4.add(f32x4.mul(lu, w), shiftU), lowC), topU);
-          const fv = f32x4.min(f32x4.max(f32x4.add(f32x4.mul(lv, w), shiftV), lowC), topV);
+          const fu = clampTo(f32x4.add(f32x4.mul(lu, w), shiftU), lowC, topU);
+          const fv = clampTo(f32x4.add(f32x4.mul(lv, w), shiftV), lowC, topV);
           // round(fu) = lower cell + 2 (cell.ts, with the 1.5 already added).
           const ru = f32x4.add(fu, magic), rvv = f32x4.add(fv, magic);
-          const off = i32x4.shl(i32x4.add(i32x4.mul(i32x4.sub(rvv, loBias), strideV), i32x4.sub(ru, loBias)), 2);
+          // Byte offset of cell (kv - 2, ku - 2) from `block`, with the MAGIC bits and the -2
+          // folded into `base` (32-bit address arithmetic wraps).
+          const off = i32x4.shl(i32x4.add(i32x4.mul(rvv, strideV), ru), 2);
           const fracU = f32x4.sub(f32x4.add(fu, half), f32x4.sub(ru, magic));
           const fracV = f32x4.sub(f32x4.add(fv, half), f32x4.sub(rvv, magic));
-          const val = bilinear(block, off, rowBytes, fracU, fracV);
+          const val = bilinear(base, off, rowBytes, fracU, fracV);
           const p = dst + (<usize>i << 2);
           v128.store(p, f32x4.add(v128.load(p), f32x4.mul(val, f32x4.mul(w, w))));
           ln = f32x4.add(ln, lnStep);

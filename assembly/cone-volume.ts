@@ -8,11 +8,6 @@
 // Padded planes are independent, so workers can fill (or own, in the adjoint) ranges of planes.
 import { ldf, stf } from './memory';
 
-/** Floats in one padded copy: (nx + 3) (ny + 3) (nz + 3). */
-export function paddedVolumeFloats(nx: i32, ny: i32, nz: i32): i32 {
-  return (nx + 3) * (ny + 3) * (nz + 3);
-}
-
 /**
  * Fills padded planes [plane0, plane1) of pad and padT from the volume (nx x ny x nz, x
  * fastest, rows packed): padding planes become zero, inner planes get a zero border.

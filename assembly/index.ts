@@ -9,7 +9,7 @@ export { josephForward2d, josephAdjoint2d } from './joseph';
 export { backproject2d, atanApprox } from './backproject';
 export { coneFilterViews } from './cone-filter';
 export { backprojectCone } from './cone-backproject';
-export { paddedVolumeFloats, padVolume, unpadVolume } from './cone-volume';
+export { padVolume, unpadVolume } from './cone-volume';
 export { josephForwardCone, josephAdjointCone } from './cone-joseph';
 
 /** First byte the host may use for its buffers. */

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { Buf, Workspace } from '../../web/core/engine/workspace';
 import { CancelledError, InputError } from '../../web/core/errors';
 import type { Geometry } from '../../web/core/geometry/types';
+import { validateGeometry } from '../../web/core/geometry/validate';
 import { sheppLogan3d } from '../../web/core/phantoms/shepp-logan-3d';
 import { waterCylinder3d } from '../../web/core/phantoms/thorax-3d';
 import { fdk3d, type RowExtension } from '../../web/core/recon/fdk';
@@ -196,6 +197,12 @@ describe('FDK pipeline', () => {
     await expect(fdk3d(ws, scan, { grid: smallGrid, filter: 'box' as never })).rejects.toThrow(/filter: got "box"/);
     const fan = { ...scan.geometry, kind: 'fan' as const, detector: { ...scan.geometry.detector, rows: 1 } };
     await expect(fdk3d(ws, { geometry: fan, data: scan.data }, { grid: smallGrid })).rejects.toThrow(/expected "cone"/);
+    // A calibrated view whose detector faces away from the isocentre.
+    const away = validateGeometry({
+      kind: 'cone', detector: { channels: 40, rows: 18, pitch: [2, 2] }, sourceIsocenter: 300, sourceDetector: 540,
+      views: Array.from({ length: 30 }, (_, v) => ({ source: [300, 0, 0], detector: [v === 4 ? 500 : -240, 0, 0], u: [0, 1, 0], v: [0, 0, 1] })),
+    });
+    await expect(fdk3d(ws, { geometry: away, data: scan.data }, { grid: smallGrid })).rejects.toThrow(/geometry view 4: the isocentre lies -300.0 mm from the source/);
   });
 
   it('can be cancelled between chunks', async () => {

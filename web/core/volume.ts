@@ -90,3 +90,16 @@ export function sliceAt(g: VolumeGrid, z: number): number {
   const k = Math.round((z - volumeOrigin(g).z0) / g.dz);
   return Math.min(g.nz - 1, Math.max(0, k));
 }
+
+/**
+ * Runs `layout` (engine allocations for a volume job); a memory limit it hits (RangeError from
+ * the engine memory) becomes an InputError that names the grid.
+ */
+export function withVolumeMemory<T>(g: VolumeGrid, layout: () => T): T {
+  try {
+    return layout();
+  } catch (err) {
+    if (err instanceof RangeError) throw new InputError(`volume grid ${g.nx} x ${g.ny} x ${g.nz}: ${err.message}; choose fewer voxels or slices`);
+    throw err;
+  }
+}

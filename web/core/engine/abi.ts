@@ -17,7 +17,7 @@ export type KernelName =
   | 'fftPrepare' | 'fft' | 'realEvenResponse' | 'filterViews'
   | 'rayTableFloats' | 'josephForward2d' | 'josephAdjoint2d'
   | 'backproject2d' | 'atanApprox'
-  | 'coneFilterViews' | 'backprojectCone' | 'paddedVolumeFloats' | 'padVolume' | 'unpadVolume'
+  | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
   | 'josephForwardCone' | 'josephAdjointCone';
 
 /** The exports of an engine instance, as the host sees them. */

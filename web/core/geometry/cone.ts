@@ -5,9 +5,19 @@ import { InputError } from '../errors';
 import type { Geometry } from './types';
 import { firstChannelU, firstRowV, viewVectors, VIEW_STRIDE } from './view-vectors';
 
-/** Throws InputError unless the geometry is a cone beam. */
+/**
+ * Throws InputError unless the geometry is a cone beam whose every view has the isocentre in
+ * front of the source (calibrated views could place it behind).
+ */
 export function requireCone(g: Geometry): void {
   if (g.kind !== 'cone') throw new InputError(`geometry.kind: got "${g.kind}", expected "cone" (a multi-row cone-beam scan)`);
+  const views = viewVectors(g);
+  for (let v = 0; v < views.length / VIEW_STRIDE; v++) {
+    const f = coneFrame(views, v);
+    if (!(f.r > 0) || !(f.dist > f.r)) {
+      throw new InputError(`geometry view ${v}: the isocentre lies ${f.r.toFixed(1)} mm from the source along the central ray and the detector ${f.dist.toFixed(1)} mm, expected 0 < isocentre < detector`);
+    }
+  }
 }
 
 /** The frame of one view: source S, unit central ray n, unit detector axes U and V, |C - S|, R = -S.n. */

@@ -17,7 +17,7 @@ import { extendDetector } from '../geometry/presets';
 import { firstChannelU, firstRowV, fovRadius, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
-import { checkVolumeGrid, volumeOrigin, type Volume, type VolumeGrid } from '../volume';
+import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type Volume, type VolumeGrid } from '../volume';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
 import { prepareFilter } from './filter-response';
@@ -97,13 +97,18 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   const blockFloats = (nRows + 3) * stride;
   const chunk = Math.max(ws.parallelism, Math.min(nViews, Math.floor((params.chunkBytes ?? 32 * 2 ** 20) / (blockFloats * 4))));
   const nxs = (grid.nx + 3) & ~3;
-  const views = ws.alloc('views', table.length);
-  const viewWeights = ws.alloc('viewWeights', weights.length);
-  const raw = ws.alloc('projChunk', chunk * nRows * nCh);
-  const rows = ext ? ws.alloc('extendedChunk', chunk * nRows * nChF) : raw;
-  const filtered = ws.alloc('filteredChunk', chunk * blockFloats);
-  const vol = ws.alloc('volume', nxs * grid.ny * grid.nz);
-  const scratch = ws.allocPerWorker('coneViews', 16 * chunk);
+  const { views, viewWeights, raw, rows, filtered, vol, scratch } = withVolumeMemory(grid, () => {
+    const raw = ws.alloc('projChunk', chunk * nRows * nCh);
+    return {
+      views: ws.alloc('views', table.length),
+      viewWeights: ws.alloc('viewWeights', weights.length),
+      raw,
+      rows: ext ? ws.alloc('extendedChunk', chunk * nRows * nChF) : raw,
+      filtered: ws.alloc('filteredChunk', chunk * blockFloats),
+      vol: ws.alloc('volume', nxs * grid.ny * grid.nz),
+      scratch: ws.allocPerWorker('coneViews', 16 * chunk),
+    };
+  });
   const filter = await prepareFilter(ws, gf, nChF, window, params.cutoff ?? 1);
   const res = ws.allocPerWorker('fftRe', filter.nPad);
   const ims = ws.allocPerWorker('fftIm', filter.nPad);

@@ -12,7 +12,7 @@ import { InputError } from '../errors';
 import { maxConeAngle, requireCone } from '../geometry/cone';
 import type { Geometry } from '../geometry/types';
 import { firstChannelU, firstRowV, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
-import { checkVolumeGrid, volumeOrigin, type VolumeGrid } from '../volume';
+import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type VolumeGrid } from '../volume';
 import { requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 
@@ -59,7 +59,7 @@ export class Projector3d {
       throw new InputError(`geometry: rays lean up to ${((angle * 180) / Math.PI).toFixed(1)} degrees out of the rotation plane, expected at most 45 for the 3D projector`);
     }
     const table = viewVectors(geometry);
-    const p = new Projector3d(ws, grid, geometry, table);
+    const p = withVolumeMemory(grid, () => new Projector3d(ws, grid, geometry, table));
     await ws.write(p.views, table);
     return p;
   }
