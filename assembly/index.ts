@@ -8,6 +8,10 @@ export { rayTableFloats } from './rays';
 export { josephForward2d, josephAdjoint2d } from './joseph';
 export { backproject2d, atanApprox } from './backproject';
 export { extendViews, EXTEND_ZERO, EXTEND_EDGE, EXTEND_MIRROR, EXTEND_WATER, EXTEND_COSINE, EXTEND_PARAMS } from './extend';
+export { coneFilterViews } from './cone-filter';
+export { backprojectCone } from './cone-backproject';
+export { padVolume, unpadVolume } from './cone-volume';
+export { josephForwardCone, josephAdjointCone } from './cone-joseph';
 
 /** First byte the host may use for its buffers. */
 export function heapBase(): usize {

@@ -8,12 +8,13 @@ import { validateGeometry } from '../core/geometry/validate';
 import { readImage2D } from '../core/formats/read-image';
 import { readScanFile } from '../core/formats/read-scan';
 import type { ScanReadResult } from '../core/formats/scan-assembly';
+import { readVolumeNrrd } from '../core/formats/volume-nrrd';
 import type { Image2D } from '../core/image';
 import { checkMuWater } from '../core/preprocess/hu-calibration';
 import type { Scan } from '../core/scan';
 import type { OptionType, ParsedArgs } from './args';
 import { gatherFiles } from './gather';
-import { readJson } from './io';
+import { readBytes, readJson } from './io';
 
 /** Options every command that reads a scan accepts (design.md, "Command line"). */
 export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
@@ -25,6 +26,7 @@ export const SCAN_INPUT_HELP = `    [--geometry geom.json] [--flat F] [--dark F]
     [--line-integrals] [--saturation N] [--bad-pixels mask] [--water-polynomial c1,c2,...]
     (TIFF frames are intensities unless --line-integrals; the mask is one frame, non-zero = bad;
     the polynomial maps each line integral p to c1 p + c2 p^2 + ...)`;
+import type { Volume } from '../core/volume';
 
 /** A geometry from a preset name or a JSON file. */
 export function loadGeometry(nameOrPath: string): Geometry {
@@ -86,4 +88,10 @@ export async function loadScan(path: string, geometryOrArgs?: string | ParsedArg
 export async function loadImage(path: string, what = 'image', muWater?: number, slice?: number): Promise<Image2D> {
   const { image } = await readImage2D(gatherFiles(path, what), { muWater, slice });
   return image;
+}
+
+/** Reads a volume file (NRRD, values as mu). */
+export async function loadVolume(path: string, what = 'volume', muWater?: number): Promise<Volume> {
+  if (!/\.nrrd$/i.test(path)) throw new InputError(`${what} ${path}: expected a .nrrd volume`);
+  return readVolumeNrrd(readBytes(path, what), muWater);
 }

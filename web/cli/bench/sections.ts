@@ -2,6 +2,7 @@
 // its own. A new section: a module returning a SectionResult, and one entry here.
 import { availableParallelism } from 'node:os';
 import { benchExtension, extensionBenchLines } from './extension-overhead';
+import { benchFdk } from './fdk-bench';
 import { benchFormats, formatFiguresText } from './formats';
 import { benchKernels } from './kernels';
 import { benchNetwork, networkBenchText } from './network';
@@ -28,6 +29,13 @@ export const SECTIONS: BenchSection[] = [
     run: async (r) => {
       const b = await benchNetwork(r);
       return { json: b, lines: networkBenchText(b).split('\n') };
+    },
+  },
+  {
+    name: 'fdk', about: 'FDK of a 256^3 volume from 360 projections of 512x384 (1 and 2 workers)',
+    run: async () => {
+      const { text, ...json } = await benchFdk((line) => process.stderr.write(`${line}\n`));
+      return { json, lines: text.split('\n') };
     },
   },
   {

@@ -1,6 +1,8 @@
 // rimfill inspect: where and how badly is a scan truncated?
 import { InputError } from '../../core/errors';
+import { coneFovHalfHeight } from '../../core/geometry/cone';
 import { fovRadius } from '../../core/geometry/view-vectors';
+import { centralRowScan } from '../../core/truncation/central-row';
 import { detectTruncation, type TruncationReport } from '../../core/truncation/detect';
 import { parseArgs } from '../args';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
@@ -52,11 +54,13 @@ export async function inspect(argv: string[]): Promise<CommandResult> {
   if (!path) throw new InputError('inspect: give the scan file, e.g. rimfill inspect scan.nrrd');
   const { scan, warnings } = await loadScanWithReport(path, a);
   const g = scan.geometry;
-  if (g.kind === 'cone' || g.detector.rows !== 1) throw new InputError(`inspect: got a ${g.kind} scan with ${g.detector.rows} rows, expected a 2D (one-row) scan`);
-  const r = detectTruncation(scan);
+  const cone = g.kind === 'cone';
+  // Cone beams: the central detector row, analysed as a fan-beam scan (left/right truncation is
+  // the same in every row of a circular scan to within the cone's divergence).
+  const r = detectTruncation(cone ? centralRowScan(scan) : scan);
   const text = [
-    `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels, ${r.views.length} views`,
-    `measured field of view: radius ${fovRadius(g).toFixed(1)} mm`,
+    `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels${cone ? ` x ${g.detector.rows} rows (central row analysed)` : ''}, ${r.views.length} views`,
+    `measured field of view: radius ${fovRadius(g).toFixed(1)} mm${cone ? `, half height ${coneFovHalfHeight(g).toFixed(1)} mm on the axis` : ''}`,
     ...summaryLines(r),
     ...(a.options.views ? viewLines(r) : []),
   ].join('\n');

@@ -1,6 +1,7 @@
 // rimfill reconstruct: a scan file in, an image file out.
 import { InputError } from '../../core/errors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
+import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
 import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
@@ -14,16 +15,22 @@ import type { CommandResult } from './types';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
     [--extend ${EXTEND_METHODS.join('|')}] [--filter ram-lak|shepp-logan|cosine|hamming|hann]
-    [--cutoff 0..1] [--size N] [--pixel mm] [--hu] [--workers N] [--json]
+    [--cutoff 0..1] [--size N] [--pixel mm] [--slices N --slice-spacing mm] [--hu] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
   512 pixels covering the measured field of view or, when larger, the object as estimated from
   the truncated edges). --extend extends the detector before filtering to correct truncation:
   edge (constant + roll-off), mirror (Ohnesorge 2000), water (Hsieh 2004), cosine (taper), each
-  as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).`;
+  as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).
+  A cone-beam scan gives a volume (FDK for --method fbp): N x N voxels (default 256 across the
+  field of view) and --slices slices of --slice-spacing mm (default: cubic voxels covering the
+  measured height).`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
-const FIELD_OPTIONS: Record<string, string> = { method: 'method', filter: 'filter', cutoff: 'cutoff', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel' };
+const FIELD_OPTIONS: Record<string, string> = {
+  method: 'method', filter: 'filter', cutoff: 'cutoff', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel',
+  'volume.slices': 'slices', 'volume.spacing': 'slice-spacing',
+};
 
 function asOptionError(err: unknown): unknown {
   if (!(err instanceof InputError)) return err;
@@ -43,6 +50,10 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
     if (o.size === undefined || o.pixel === undefined) throw new InputError('options --size and --pixel go together (pixels and mm per pixel)');
     raw.grid = { size: o.size, pixel: o.pixel };
   }
+  if (o.slices !== undefined || o['slice-spacing'] !== undefined) {
+    if (o.slices === undefined || o['slice-spacing'] === undefined) throw new InputError('options --slices and --slice-spacing go together (slices and mm between them)');
+    raw.volume = { slices: o.slices, spacing: o['slice-spacing'] };
+  }
   try {
     return validateRecipe(raw);
   } catch (err) {
@@ -53,7 +64,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     method: 'string', out: 'string', filter: 'string', cutoff: 'number', extend: 'string', size: 'int', pixel: 'number',
-    hu: 'flag', workers: 'int', json: 'flag', ...SCAN_INPUT_OPTIONS,
+    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
@@ -61,14 +72,26 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const out = requireString(a, 'out');
   const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
+  if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
   const ws = await openWorkspace(a.options.workers as number | undefined);
   try {
     const t0 = performance.now();
     const r = await runRecipe(ws, scan, recipe, { onProgress: a.options.json ? undefined : progressLine(recipe.method) });
     const seconds = (performance.now() - t0) / 1000;
     const image = r.image;
-    const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     const writes = new PendingWrites();
+    if (r.volume) {
+      const v = r.volume;
+      writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu' } : v));
+      writes.commit();
+      const vg = v.grid;
+      return {
+        json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
+        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, FDK in ${seconds.toFixed(2)} s`,
+        warnings: [...readWarnings, ...r.warnings],
+      };
+    }
+    const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
     writes.commit();
     const g = image.grid;

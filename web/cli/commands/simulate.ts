@@ -18,6 +18,7 @@ import { parseArgs, positiveNumber, requireString } from '../args';
 import { PendingWrites } from '../io';
 import { loadGeometry, loadImage } from '../load';
 import { openWorkspace } from '../engine-node';
+import { simulateCone } from './simulate-cone';
 import type { CommandResult } from './types';
 
 export const simulateHelp = `rimfill simulate --phantom <name|image file> --geometry <geom.json|preset> --out scan.nrrd
@@ -29,16 +30,20 @@ export const simulateHelp = `rimfill simulate --phantom <name|image file> --geom
   truncated more than the other). --complete also writes the untruncated scan of the same
   object; --truth writes the object on a grid (--size x --size pixels of --pixel mm, default:
   covering the object). An image phantom may be NRRD, MetaImage, raw + JSON, DICOM (file or
-  series folder; HU need --mu-water) or TIFF; --slice picks one slice of a volume.`;
+  series folder; HU need --mu-water) or TIFF; --slice picks one slice of a volume.
+  Cone-beam geometries (e.g. --geometry demo-cone) simulate 3D phantoms or volume files; the
+  truth is then a volume of --slices slices (default: the measured height).`;
 
 export async function simulate(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     phantom: 'string', geometry: 'string', channels: 'int', offset: 'number', photons: 'number', seed: 'int',
     out: 'string', truth: 'string', complete: 'string', size: 'int', pixel: 'number', subsamples: 'int', json: 'flag', workers: 'int',
-    slice: 'int', 'mu-water': 'number', collimate: 'number',
+    slice: 'int', 'mu-water': 'number', collimate: 'number', slices: 'int',
   }, 0);
   const out = requireString(a, 'out');
   const full = loadGeometry(requireString(a, 'geometry'));
+  if (full.kind === 'cone') return simulateCone(a, full);
+  if (a.options.slices !== undefined) throw new InputError('option --slices: only for cone-beam geometries (the truth of a 2D scan is one slice)');
   const phantomArg = requireString(a, 'phantom');
   const photons = positiveNumber(a, 'photons');
   const seed = (a.options.seed as number | undefined) ?? 1;

@@ -17,7 +17,9 @@ export type KernelName =
   | 'fftPrepare' | 'fft' | 'realEvenResponse' | 'filterViews'
   | 'rayTableFloats' | 'josephForward2d' | 'josephAdjoint2d'
   | 'backproject2d' | 'atanApprox'
-  | 'extendViews';
+  | 'extendViews'
+  | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
+  | 'josephForwardCone' | 'josephAdjointCone';
 
 /** The exports of an engine instance, as the host sees them. */
 export type EngineExports = Record<KernelName, (...args: number[]) => number> & {

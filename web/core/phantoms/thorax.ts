@@ -87,3 +87,7 @@ export function waterCylinder(radiusMm = 150): EllipsePhantom {
     radius: radiusMm,
   };
 }
+
+/** The named parts of the demo thorax, for its 3D extension (thorax-3d.ts). */
+export type ThoraxPart = Readonly<Part>;
+export const THORAX_PARTS: readonly ThoraxPart[] = PARTS;

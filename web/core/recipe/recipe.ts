@@ -25,6 +25,15 @@ export interface Recipe {
   cutoff: number;
   /** Detector extension before filtering (truncation correction); absent means 'none'. */
   extend?: ExtendMethod;
+  /** Slices of a cone-beam volume; absent: chosen from the scan (volume-grid.ts). */
+  volume?: SliceChoice;
+}
+
+export interface SliceChoice {
+  /** Slices along z. */
+  slices: number;
+  /** Slice spacing, mm. */
+  spacing: number;
 }
 
 export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ram-lak', cutoff: 1, extend: 'none' };
@@ -58,5 +67,14 @@ export function validateRecipe(input: unknown): Recipe {
     if (typeof g.pixel !== 'number' || !(g.pixel > 0) || g.pixel > 100) throw new InputError(`recipe grid.pixel: got ${g.pixel}, expected a pixel size in mm (0 to 100)`);
     out.grid = { size: g.size as number, pixel: g.pixel };
   }
+  if (r.volume !== undefined) out.volume = validateSliceChoice(r.volume);
   return out;
+}
+
+/** Checks the slice choice of a cone-beam recipe. */
+function validateSliceChoice(v: unknown): SliceChoice {
+  if (!isObject(v)) throw new InputError('recipe volume: expected {slices, spacing}');
+  if (!Number.isInteger(v.slices) || (v.slices as number) < 1 || (v.slices as number) > 4096) throw new InputError(`recipe volume.slices: got ${v.slices}, expected a whole number from 1 to 4096`);
+  if (typeof v.spacing !== 'number' || !(v.spacing > 0) || v.spacing > 100) throw new InputError(`recipe volume.spacing: got ${v.spacing}, expected a slice spacing in mm (0 to 100)`);
+  return { slices: v.slices as number, spacing: v.spacing };
 }

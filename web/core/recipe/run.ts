@@ -8,8 +8,10 @@ import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { analyseEdges, objectRadius } from '../truncation/edges';
 import { planExtension } from '../truncation/extension-plan';
+import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
+import { runConeRecipe } from './run-cone';
 
 export interface RecipeResult {
   /** The reconstruction, mu in 1/mm, with the scan's mu_water and FOV radius. */
@@ -17,6 +19,8 @@ export interface RecipeResult {
   warnings: string[];
   /** Method-specific figures (timings, convergence history, ...), JSON-ready. */
   report: Record<string, unknown>;
+  /** Cone-beam scans: the whole volume (`image` is then its central slice). */
+  volume?: Volume;
 }
 
 /** Reconstructs `scan` as the recipe says. */
@@ -26,6 +30,7 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   const g = scan.geometry;
   const is2d = g.kind !== 'cone' && g.detector.rows === 1;
   if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on 2D scans)`);
+  if (g.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks);
   const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
   const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
