@@ -23,8 +23,8 @@ ${SCAN_INPUT_HELP}
   edge (constant + roll-off), mirror (Ohnesorge 2000), water (Hsieh 2004), cosine (taper), each
   as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).
   A cone-beam scan gives a volume (FDK for --method fbp): N x N voxels (default 256 across the
-  field of view) and --slices slices of --slice-spacing mm (default: cubic voxels covering the
-  measured height).`;
+  field of view or the estimated object) and --slices slices of --slice-spacing mm (default:
+  cubic voxels covering the measured height); --extend works row by row on cone-beam scans.`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
 const FIELD_OPTIONS: Record<string, string> = {
