@@ -8,7 +8,7 @@ import { validateGeometry } from '../core/geometry/validate';
 import { readImage2D, readImageFile } from '../core/formats/read-image';
 import { readScanFile } from '../core/formats/read-scan';
 import type { ScanReadResult } from '../core/formats/scan-assembly';
-import { asMuVolume } from '../core/formats/volume';
+import { asMuVolume, imageAsMu, volumeSlice } from '../core/formats/volume';
 import type { Image2D } from '../core/image';
 import { checkMuWater } from '../core/preprocess/hu-calibration';
 import type { Scan } from '../core/scan';
@@ -97,4 +97,14 @@ export async function loadImage(path: string, what = 'image', muWater?: number, 
 export async function loadVolume(path: string, what = 'volume', muWater?: number, a?: ParsedArgs): Promise<{ volume: Volume; warnings: string[] }> {
   const { volume, warnings } = await readImageFile(gatherFiles(path, what), { maxBytes: memoryLimit(a) });
   return { volume: asMuVolume(volume, muWater), warnings };
+}
+
+/**
+ * Reads an image or a volume (file or folder) as mu: a volume when the data hold more than one
+ * slice, else an image. HU data need mu_water (the file's or given).
+ */
+export async function loadImageOrVolume(path: string, what: string, muWater?: number): Promise<{ image?: Image2D; volume?: Volume; warnings: string[] }> {
+  const { volume, warnings } = await readImageFile(gatherFiles(path, what));
+  if (volume.nz > 1) return { volume: asMuVolume(volume, muWater), warnings };
+  return { image: imageAsMu(volumeSlice(volume, 0), muWater), warnings };
 }
