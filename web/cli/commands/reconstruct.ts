@@ -87,7 +87,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
       const vg = v.grid;
       return {
         json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, FDK in ${seconds.toFixed(2)} s`,
+        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, FDK${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s`,
         warnings: [...readWarnings, ...r.warnings],
       };
     }
