@@ -19,7 +19,7 @@ import { axialSlice, sliceAt, type Volume, type VolumeGrid } from '../core/volum
 import type { StoredImage } from '../store/records';
 
 /** Settings of the cone-beam demo (see the file comment). */
-export const CONE_DEMO = { preset: 'demo-cone', bin: 2, viewStep: 2, photons: 200_000, seed: 7, truthVoxel: 3, truthSubsamples: 2 };
+export const CONE_DEMO = { preset: 'demo-cone', bin: 2, viewStep: 2, photons: 200_000, seed: 7, truthVoxel: 3, truthSubsamples: 3 };
 
 export type ConeDemoSettings = typeof CONE_DEMO;
 
