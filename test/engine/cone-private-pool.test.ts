@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { fdk3d } from '../../web/core/recon/fdk';
 import { Projector3d } from '../../web/core/recon/projector3d';
 import { seededRandom } from '../../web/core/simulate/noise';
-import { planConeExtension } from '../../web/core/truncation/cone-extension';
+import { planConeExtension, type ConeExtensionPlan } from '../../web/core/truncation/cone-extension';
 import { coneRowExtension } from '../../web/core/truncation/row-extension';
 import type { Workspace } from '../../web/core/engine/workspace';
 import type { VolumeGrid } from '../../web/core/volume';
@@ -18,11 +18,8 @@ const rand = seededRandom(21);
 const proj = Float32Array.from({ length: 16 * 14 * 36 }, () => rand());
 const vol = Float32Array.from({ length: 26 * 22 * 11 }, () => rand());
 
-// Every row cut off at both edges (values well above the air threshold): mirror tails everywhere.
-const plan = planConeExtension({ geometry: g, data: proj.map((x) => 1 + x) }, 'mirror');
-
 /** `views` views per FDK chunk (the row extension reads each chunk's parameters at an offset). */
-async function run(ws: Workspace, views: number) {
+async function run(ws: Workspace, views: number, plan: ConeExtensionPlan) {
   const f = await fdk3d(ws, { geometry: g, data: proj }, { grid, chunkBytes: 4 * 17 * 39 * views });
   const wide = 36 + plan.left + plan.right + 3;
   const e = await fdk3d(ws, { geometry: g, data: proj.map((x) => 1 + x) }, { grid, chunkBytes: 4 * 17 * wide * views, extension: coneRowExtension(plan, 36) });
@@ -38,12 +35,14 @@ async function run(ws: Workspace, views: number) {
 
 describe('cone-beam kernels on workers with private memories', () => {
   it('FDK (also with row extension, in chunks of views), forward and adjoint match the in-thread results', async () => {
+    // Every row cut off at both edges (values well above the air threshold): mirror tails everywhere.
+    const plan = await planConeExtension({ geometry: g, data: proj.map((x) => 1 + x) }, 'mirror');
     expect(plan.left).toBeGreaterThan(3);
     expect(plan.right).toBeGreaterThan(3);
-    const ref = await run(await localWorkspace(1), 16);
+    const ref = await run(await localWorkspace(1), 16, plan);
     const pool = await privatePool(3);
     try {
-      const got = await run(pool, 5);
+      const got = await run(pool, 5, plan);
       for (const k of ['fdk', 'extended', 'forward', 'adjoint'] as const) {
         let worst = 0, scale = 0;
         for (let i = 0; i < ref[k].length; i++) {

@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { CancelledError } from '../../web/core/errors';
 import { coneFovHalfHeight } from '../../web/core/geometry/cone';
 import { cropDetector, presetGeometry } from '../../web/core/geometry/presets';
 import { validateGeometry } from '../../web/core/geometry/validate';
@@ -31,7 +32,9 @@ describe('row-wise detector extension of cone-beam scans', () => {
     const full = await analyticConeProjections(p, wide);
     const data = new Float32Array(nV * nR * nC);
     for (let r = 0; r < nV * nR; r++) data.set(full.subarray(r * nW + first, r * nW + first + nC), r * nC);
-    const plan = planConeExtension({ geometry: cut, data, muWater: p.muWater }, 'water');
+    const stages = new Set<string>();
+    const plan = await planConeExtension({ geometry: cut, data, muWater: p.muWater }, 'water', { onProgress: (_f, st) => stages.add(st) });
+    expect([...stages]).toEqual(['analysing the detector edges']);
     expect(plan.summary).toMatchObject({ rows: nR, truncatedRows: nR, massBasis: 'unavailable', muAssumed: false });
     // Hsieh et al. 2004 (references.md 4a): a centred water cylinder is fitted exactly from the
     // edge value and slope; the least-squares slope over the last 6 mm leaves about 2 mm of
@@ -73,6 +76,12 @@ describe('row-wise detector extension of cone-beam scans', () => {
     expect(n).toBeGreaterThan(nV * nR * 150);
     expect(Math.sqrt(sum / n) / peak).toBeLessThan(0.015);
     expect(worst / peak).toBeLessThan(0.03);
+  });
+
+  it('can be cancelled while it analyses the rows', async () => {
+    const ctl = new AbortController();
+    const run = planConeExtension({ geometry: cut, data: new Float32Array(nV * nR * nC).fill(1) }, 'edge', { signal: ctl.signal, onProgress: () => ctl.abort() });
+    await expect(run).rejects.toThrow(CancelledError);
   });
 });
 

@@ -19,12 +19,17 @@ export async function runConeRecipe(ws: Workspace, scan: Scan, recipe: Recipe, h
   }
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
-  hooks.onProgress?.(0, 'analysing the detector edges');
-  const plan = extend !== 'none' ? planConeExtension(scan, extend) : undefined;
+  // The edge analysis takes the first 5% of the progress bar, FDK the rest.
+  const plan = extend !== 'none'
+    ? await planConeExtension(scan, extend, { signal: hooks.signal, onProgress: (f, stage) => hooks.onProgress?.(0.05 * f, stage) })
+    : undefined;
   const grid = chooseVolumeGrid(scan, recipe.grid, recipe.volume, plan?.objectRadius);
   const planSeconds = (performance.now() - t0) / 1000;
   const extension = plan ? coneRowExtension(plan, scan.geometry.detector.channels) : undefined;
-  const r = await fdk3d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension }, hooks);
+  const r = await fdk3d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension }, {
+    signal: hooks.signal,
+    onProgress: (f, stage) => hooks.onProgress?.(plan ? 0.05 + 0.95 * f : f, stage),
+  });
   const warnings = [...r.warnings];
   if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {

@@ -7,6 +7,8 @@ import { extendDetector } from '../geometry/presets';
 import type { Geometry } from '../geometry/types';
 import { viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import { coneFrame } from '../geometry/cone';
+import { throwIfCancelled } from '../errors';
+import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { centralRowScan, rowGeometry, rowScan, rowSecant } from './central-row';
 import type { PerSide } from './edge-stats';
@@ -66,11 +68,26 @@ function smoothingRows(g: Geometry): number {
   return Math.max(1, Math.round((ROW_SMOOTHING_MM * D) / R / g.detector.pitch[1]));
 }
 
-/** Edge analysis of every detector row, fits with mu times the row's secant (rowSecant). */
-function analyseRows(scan: Scan, mu: number): EdgeAnalysis[] {
+/** Rows analysed between checks for a cancel (and progress reports). */
+const ROWS_PER_TURN = 16;
+
+/**
+ * Edge analysis of every detector row, fits with mu times the row's secant (rowSecant). Yields
+ * to the event loop every ROWS_PER_TURN rows so that a cancel is heard.
+ */
+async function analyseRows(scan: Scan, mu: number, hooks: RunHooks): Promise<EdgeAnalysis[]> {
   const g = scan.geometry;
   const { D } = distances(g);
-  return Array.from({ length: g.detector.rows }, (_, r) => analyseEdges(rowScan(scan, r), { mu: mu * rowSecant(g, r, D) }));
+  const rows: EdgeAnalysis[] = [];
+  for (let r = 0; r < g.detector.rows; r++) {
+    if (r % ROWS_PER_TURN === 0) {
+      await new Promise((resolve) => setTimeout(resolve, 0));
+      throwIfCancelled(hooks.signal);
+      hooks.onProgress?.(r / g.detector.rows, 'analysing the detector edges');
+    }
+    rows.push(analyseEdges(rowScan(scan, r), { mu: mu * rowSecant(g, r, D) }));
+  }
+  return rows;
 }
 
 /** Each row's tail lengths smoothed across neighbouring rows (per view and side, cut-off rows only). */
@@ -99,13 +116,16 @@ export function coneObjectRadius(scan: Scan): number {
   return objectRadius(analyseEdges(centralRowScan(scan)));
 }
 
-/** Plans the extension of every detector row of a cone-beam scan by `method`. */
-export function planConeExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>): ConeExtensionPlan {
+/**
+ * Plans the extension of every detector row of a cone-beam scan by `method`. Reports progress
+ * and honours a cancel between rows.
+ */
+export async function planConeExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>, hooks: RunHooks = {}): Promise<ConeExtensionPlan> {
   const g = scan.geometry;
   const nRows = g.detector.rows;
   const mu = scan.muWater ?? ASSUMED_MU_WATER;
   const half = smoothingRows(g);
-  const rows = smoothAcrossRows(analyseRows(scan, mu), half);
+  const rows = smoothAcrossRows(await analyseRows(scan, mu, hooks), half);
   const nViews = rows[0].nViews;
   const params = new Float32Array(nViews * nRows * EXTEND_PARAMS);
   const reach = [0, 0] as PerSide<number>;
