@@ -12,6 +12,7 @@ export { coneFilterViews } from './cone-filter';
 export { backprojectCone } from './cone-backproject';
 export { padVolume, unpadVolume } from './cone-volume';
 export { josephForwardCone, josephAdjointCone } from './cone-joseph';
+export { tv3Scale, tv3Gradient, tv3Weights } from './tv3d';
 
 /** First byte the host may use for its buffers. */
 export function heapBase(): usize {

@@ -391,6 +391,11 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const readout = await planes.nth(2).locator('.readout').innerText();
     check(/y -?\d+\.\d mm, z -?\d+\.\d mm: -?\d+ HU/.test(readout), `sagittal read-out: ${readout}`);
     await shot(page, '10-volume-tools');
+    // The shown volume saved as NRRD: its grid, mu values and FOV cylinder in the header.
+    const saved = parseFloatNrrd((await download(page, () => view.locator('#export-volume').click())).bytes);
+    check(saved.sizes.join(' ') === '196 196 66', `saved volume sizes ${saved.sizes}`);
+    check(saved.keys['rimfill.quantity'] === 'mu' && Number(saved.keys['rimfill.fovHalfHeight']) > 89, `saved volume keys ${JSON.stringify(saved.keys)}`);
+    check(/^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space directions ${saved.fields['space directions']}`);
   });
 
   await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {

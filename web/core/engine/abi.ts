@@ -19,7 +19,8 @@ export type KernelName =
   | 'backproject2d' | 'atanApprox'
   | 'extendViews'
   | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
-  | 'josephForwardCone' | 'josephAdjointCone';
+  | 'josephForwardCone' | 'josephAdjointCone'
+  | 'tv3Scale' | 'tv3Gradient' | 'tv3Weights';
 
 /** The exports of an engine instance, as the host sees them. */
 export type EngineExports = Record<KernelName, (...args: number[]) => number> & {
