@@ -72,6 +72,10 @@ export class PoolWorkspace implements Workspace {
     return this.memory !== undefined;
   }
 
+  get sharedMemory(): boolean {
+    return this.shared;
+  }
+
   alloc(name: string, length: number): Buf {
     const b = this.layout.alloc(name, length);
     if (this.memory) ensureMemory(this.memory, this.layout.bytes);

@@ -10,12 +10,20 @@ import { rasterize } from '../../core/phantoms/ellipse';
 import { fbp2d } from '../../core/recon/fbp';
 import { Projector2d } from '../../core/recon/projector';
 import { parseArgs } from '../args';
+import { benchIterative, iterativeLines } from '../bench/iterative';
 import { backprojectFanFlatTs } from '../bench/ts-backproject';
+import { InputError } from '../../core/errors';
 import { openWorkspace } from '../engine-node';
 import type { CommandResult } from './types';
 
-export const benchHelp = `rimfill bench [--repeat K] [--json]
-  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam).`;
+/** Sections of the benchmark, run in this order. */
+export const BENCH_SECTIONS = ['kernels', 'iterative'] as const;
+type Section = (typeof BENCH_SECTIONS)[number];
+
+export const benchHelp = `rimfill bench [--only ${BENCH_SECTIONS.join('|')}] [--repeat K] [--json]
+  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam) and
+  20 iterations of OS-SART + reweighted TV (512x512 extended grid, 360 views), with one and two
+  workers. --only runs one section (sections: ${BENCH_SECTIONS.join(', ')}).`;
 
 const now = () => performance.now() / 1000;
 
@@ -25,8 +33,30 @@ function median(xs: number[]): number {
 }
 
 export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', json: 'flag' }, 0);
+  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string' }, 0);
   const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
+  const only = a.options.only as string | undefined;
+  if (only !== undefined && !(BENCH_SECTIONS as readonly string[]).includes(only)) {
+    throw new InputError(`option --only: got "${only}", expected one of ${BENCH_SECTIONS.join(', ')}`);
+  }
+  const sections: Section[] = only ? [only as Section] : [...BENCH_SECTIONS];
+  const json: Record<string, unknown> = {};
+  const text: string[] = [];
+  if (sections.includes('kernels')) {
+    const k = await benchKernels(repeat);
+    Object.assign(json, k.json);
+    text.push(k.text);
+  }
+  if (sections.includes('iterative')) {
+    const it = await benchIterative(1);
+    json.iterative = it;
+    text.push(iterativeLines(it).join('\n'));
+  }
+  json.peakRssMb = process.resourceUsage().maxRSS / 1024;
+  return { json, text: text.join('\n\n') };
+}
+
+async function benchKernels(repeat: number): Promise<{ json: Record<string, unknown>; text: string }> {
   const geometry = validateGeometry({
     kind: 'fan', detector: { shape: 'flat', channels: 1024, rows: 1, pitch: [1.0, 1.0], offset: [0, 0] },
     sourceIsocenter: 600, sourceDetector: 1000, anglesDeg: { start: 0, step: 0.5, count: 720 },

@@ -16,7 +16,10 @@ export type KernelName =
   | 'padImage2d' | 'unpadAdd2d'
   | 'fftPrepare' | 'fft' | 'realEvenResponse' | 'filterViews'
   | 'rayTableFloats' | 'josephForward2d' | 'josephAdjoint2d'
-  | 'backproject2d' | 'atanApprox';
+  | 'backproject2d' | 'atanApprox'
+  | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistance' | 'copyRange'
+  | 'tvScale' | 'tvGradient' | 'tvWeights'
+  | 'padImageRows' | 'unpadSumRows';
 
 /** The exports of an engine instance, as the host sees them. */
 export type EngineExports = Record<KernelName, (...args: number[]) => number> & {

@@ -3,9 +3,10 @@
 // be stored with the result and shown in reports.
 import { InputError } from '../errors';
 import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
+import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 
 /** Reconstruction methods available in this build. */
-export const METHODS = ['fbp'] as const;
+export const METHODS = ['fbp', ...ITERATIVE_METHODS] as const;
 export type Method = (typeof METHODS)[number];
 
 export interface GridChoice {
@@ -15,7 +16,8 @@ export interface GridChoice {
   pixel: number;
 }
 
-export interface Recipe {
+/** The iterative methods' fields (iterations, subsets, prior, ...) are in iterative/options.ts. */
+export interface Recipe extends IterativeFields {
   method: Method;
   /** Reconstruction grid; absent: chosen from the scan (grid.ts). */
   grid?: GridChoice;
@@ -49,5 +51,6 @@ export function validateRecipe(input: unknown): Recipe {
     if (typeof g.pixel !== 'number' || !(g.pixel > 0) || g.pixel > 100) throw new InputError(`recipe grid.pixel: got ${g.pixel}, expected a pixel size in mm (0 to 100)`);
     out.grid = { size: g.size as number, pixel: g.pixel };
   }
+  Object.assign(out, validateIterativeFields(r, validateRecipe));
   return out;
 }

@@ -7,6 +7,10 @@ import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
+import { isIterativeMethod } from '../iterative/options';
+import { runIterative, type RecipeInputs } from '../iterative/run';
+
+export type { RecipeInputs } from '../iterative/run';
 
 export interface RecipeResult {
   /** The reconstruction, mu in 1/mm, with the scan's mu_water and FOV radius. */
@@ -16,8 +20,11 @@ export interface RecipeResult {
   report: Record<string, unknown>;
 }
 
-/** Reconstructs `scan` as the recipe says. */
-export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
+/** Reconstructs `scan` as the recipe says. `inputs` carries images some methods need (a prior). */
+export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}): Promise<RecipeResult> {
+  if (isIterativeMethod(recipe.method)) {
+    return runIterative(ws, scan, recipe, hooks, inputs, (nested, h) => runRecipe(ws, scan, nested, h, inputs));
+  }
   const grid = chooseGrid(scan, recipe.grid);
   const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff }, hooks);
   return {

@@ -1,7 +1,7 @@
 // Forward projection (Joseph's method) and its exact adjoint over a workspace, for one image
 // grid and one 2D geometry. Buffers stay laid out between calls so iterative methods pay for
 // the layout once.
-import type { Buf, Workspace } from '../engine/workspace';
+import type { Buf, Part, Workspace } from '../engine/workspace';
 import type { Geometry } from '../geometry/types';
 import { firstChannelU, kernelKind, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import { gridOrigin, type ImageGrid } from '../image';
@@ -36,6 +36,8 @@ export class Projector2d {
   private readonly accs: Buf[];
   private readonly accTs: Buf[];
   private readonly partials: Buf[];
+  /** Addresses of the per-worker accumulators, for the band-parallel sum (shared memory). */
+  private readonly accTable: Buf;
   private readonly kind: number;
   private readonly u0: number;
   private readonly pitch: number;
@@ -64,7 +66,8 @@ export class Projector2d {
     this.tables = ws.allocPerWorker('rayTable', tableLen);
     this.accs = ws.allocPerWorker('acc', padLen);
     this.accTs = ws.allocPerWorker('accT', padLen);
-    this.partials = ws.allocPerWorker('partial', grid.nx * grid.ny);
+    this.partials = ws.sharedMemory ? [] : ws.allocPerWorker('partial', grid.nx * grid.ny);
+    this.accTable = ws.alloc('accTable', 2 * ws.parallelism);
   }
 
   /** Lays out a projector in `ws` (after whatever the workspace already holds). */
@@ -72,6 +75,12 @@ export class Projector2d {
     const table = viewVectors(geometry);
     const p = new Projector2d(ws, grid, geometry, table);
     await ws.write(p.views, table);
+    await ws.write(p.accTable, Int32Array.from(p.accs.flatMap((a, i) => [a.ptr, p.accTs[i].ptr])));
+    if (ws.sharedMemory) {
+      // Borders of the padded copies stay zero (padImageRows writes interiors only).
+      await ws.run([{ kernel: 'zeroArray', args: [p.pad, p.pad.length] }]);
+      await ws.run([{ kernel: 'zeroArray', args: [p.padT, p.padT.length] }]);
+    }
     return p;
   }
 
@@ -83,7 +92,11 @@ export class Projector2d {
   /** sino[v, k] = (A image)[v, k] for views [view0, view1) (default all). */
   async forward(image: Buf, sino: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
     const { nx, ny } = this.grid;
-    await this.ws.run([{ kernel: 'padImage2d', args: [image, nx, ny, this.pad, this.padT], writes: [this.pad, this.padT] }]);
+    if (this.ws.sharedMemory) {
+      await this.ws.run(splitRange(ny, this.ws.parallelism).map(([a, b]) => ({ kernel: 'padImageRows' as const, args: [image, nx, ny, a, b, this.pad, this.padT] })));
+    } else {
+      await this.ws.run([{ kernel: 'padImage2d', args: [image, nx, ny, this.pad, this.padT], writes: [this.pad, this.padT] }]);
+    }
     const parts = splitRange(view1 - view0, this.ws.parallelism).map(([a, b], i) => ({
       kernel: 'josephForward2d' as const,
       args: [this.pad, this.padT, ...this.gridArgs(), this.views, this.kind, view0 + a, view0 + b, this.nCh, this.u0, this.pitch, sino, this.tables[i]],
@@ -94,7 +107,8 @@ export class Projector2d {
 
   /**
    * image = A^T sino over views [view0, view1) (default all). Each worker accumulates its share
-   * of the views privately; the shares are summed into `image`.
+   * of the views privately; the shares are summed into `image` (by image rows on all workers
+   * when they share memory, else on the host).
    */
   async adjoint(sino: Buf, image: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
     const { nx, ny } = this.grid;
@@ -105,15 +119,21 @@ export class Projector2d {
     await this.ws.run(
       ranges.map((_, i) => ({ kernel: 'zeroArray' as const, args: [this.accTs[i], this.accTs[i].length] })),
     );
+    if (this.ws.sharedMemory) {
+      await this.ws.run(ranges.map(([a, b], i) => this.adjointPart(sino, view0 + a, view0 + b, i)));
+      await this.ws.run(
+        splitRange(ny, this.ws.parallelism).map(([a, b]) => ({
+          kernel: 'unpadSumRows' as const,
+          args: [this.accTable, ranges.length, nx, ny, a, b, image],
+          writes: [{ buf: image, start: a * nx, length: (b - a) * nx }],
+        })),
+      );
+      return;
+    }
     await this.ws.run(
       ranges.map((_, i) => ({ kernel: 'zeroArray' as const, args: [this.partials[i], nx * ny] })),
     );
-    await this.ws.run(
-      ranges.map(([a, b], i) => ({
-        kernel: 'josephAdjoint2d' as const,
-        args: [this.accs[i], this.accTs[i], ...this.gridArgs(), this.views, this.kind, view0 + a, view0 + b, this.nCh, this.u0, this.pitch, sino, this.tables[i]],
-      })),
-    );
+    await this.ws.run(ranges.map(([a, b], i) => this.adjointPart(sino, view0 + a, view0 + b, i)));
     await this.ws.run(
       ranges.map((_, i) => ({ kernel: 'unpadAdd2d' as const, args: [this.accs[i], this.accTs[i], nx, ny, this.partials[i]] })),
     );
@@ -124,5 +144,13 @@ export class Projector2d {
       for (let k = 0; k < sum.length; k++) sum[k] += part[k];
     }
     await this.ws.write(image, sum);
+  }
+
+  /** Worker i accumulates A^T sino over views [v0, v1) into its own accumulators. */
+  private adjointPart(sino: Buf, v0: number, v1: number, i: number): Part {
+    return {
+      kernel: 'josephAdjoint2d',
+      args: [this.accs[i], this.accTs[i], ...this.gridArgs(), this.views, this.kind, v0, v1, this.nCh, this.u0, this.pitch, sino, this.tables[i]],
+    };
   }
 }
