@@ -5,7 +5,8 @@ import { createMemory } from '../core/engine/instance';
 import { PoolWorkspace } from './pool-workspace';
 import type { KernelResponse, WorkerPort } from './protocol';
 
-function nodePort(worker: Worker): WorkerPort {
+/** A pool port over a worker_threads Worker. */
+export function nodePort(worker: Worker): WorkerPort {
   return {
     post: (msg, transfer) => worker.postMessage(msg, transfer ?? []),
     onMessage: (h) => worker.on('message', (m: KernelResponse) => h(m)),

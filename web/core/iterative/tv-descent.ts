@@ -8,11 +8,12 @@ import type { ImageGrid } from '../image';
 import { BandOps } from './image-ops';
 
 /**
- * Smoothing delta^2 in |grad f| = sqrt(dx^2 + dy^2 + delta^2), (1/mm)^2: delta = 1e-6 /mm is
- * about 0.05 HU, far below edges and noise (Sidky & Pan use ~1e-8 for unit-scale images,
- * i.e. delta = 1e-4 of the image scale; from memory).
+ * Smoothing delta^2 in |grad f| = sqrt(dx^2 + dy^2 + delta^2), (1/mm)^2: delta = 1e-5 /mm is
+ * about 0.5 HU per pixel, far below edges and noise, yet keeps the gradient smooth enough that
+ * float rounding (e.g. a different split between workers) is not amplified much. Sidky & Pan
+ * use a small epsilon of the same kind (from memory).
  */
-export const TV_SMOOTHING = 1e-12;
+export const TV_SMOOTHING = 1e-10;
 
 export class TvDescent {
   private readonly g: Buf;
