@@ -17,15 +17,16 @@ export const reconstructHelp = `rimfill reconstruct scan.nrrd --method ${METHODS
     [--hu] [--geometry geom.json] [--workers N] [--json]
     iterative methods (sart, tv, wtv, prior):
     [--iterations K] [--subsets N] [--relaxation 0..2] [--tolerance fraction]
-    [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support circle|grid] [--allow-negative]
-    [--prior image.nrrd|fbp] [--prior-weight 0..1]
+    [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support circle|grid|mask.nrrd] [--allow-negative]
+    [--prior image.nrrd|METHOD] [--prior-weight 0..1]
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
   512 pixels covering the measured field of view). --hu writes HU (needs mu_water in the scan).
   sart: ordered-subsets SART on the measured channels; tv, wtv: plus (reweighted) total
   variation (ASD-POCS); prior: measured channels fitted to the data, the channels beyond the
-  detector to the projections of --prior (an image of the same object, any grid, or "fbp" for
-  this scan's FBP), starting from the prior (default grid: the prior's extent). --json reports
-  the residual and TV per iteration and the residual per view.`;
+  detector to the projections of --prior (an image of the same object, any grid; or a method,
+  e.g. fbp, whose result on this scan with the same options is the prior), starting from the
+  prior (default grid: the prior's extent). --json reports the residual and TV per iteration,
+  the residual per view and how far the result departs from the prior.`;
 
 /** Iterative options: CLI name -> recipe field. */
 const ITERATIVE_OPTIONS: Record<string, string> = {
@@ -49,6 +50,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
     if (!iterative) throw new InputError(`option --${name}: only for the iterative methods (${ITERATIVE_METHODS.join(', ')}), not --method ${raw.method}`);
     raw[field] = o[name];
   }
+  if (typeof raw.support === 'string' && /\.nrrd$/i.test(raw.support)) raw.support = 'image';
   if (o['allow-negative']) {
     if (!iterative) throw new InputError(`option --allow-negative: only for the iterative methods (${ITERATIVE_METHODS.join(', ')})`);
     raw.nonNegative = false;
@@ -60,7 +62,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
     const { method: _m, ...rest } = raw;
     raw.prior = /\.nrrd$/i.test(o.prior) ? { source: 'image' } : { source: 'recipe', recipe: { ...withoutIterative(rest), method: o.prior } };
   } else if (raw.method === 'prior') {
-    throw new InputError('option --prior is required for --method prior: an image file (.nrrd) of the same object, or fbp');
+    throw new InputError('option --prior is required for --method prior: an image file (.nrrd) of the same object, or a method such as fbp');
   }
   return validateRecipe(raw);
 }
@@ -87,6 +89,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); write mu instead');
   const inputs: RecipeInputs = {};
   if (recipe.prior?.source === 'image') inputs.prior = await loadImage(a.options.prior as string, 'prior', scan.muWater);
+  if (recipe.support === 'image') inputs.supportMask = await loadImage(a.options.support as string, 'support mask', scan.muWater);
   const ws = await openWorkspace(a.options.workers as number | undefined);
   try {
     const t0 = performance.now();

@@ -6,8 +6,8 @@ import type { Recipe } from '../recipe/recipe';
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
 export type IterativeMethod = (typeof ITERATIVE_METHODS)[number];
 
-export const SUPPORTS = ['circle', 'grid'] as const;
-/** circle: the disk inscribed in the grid; grid: every pixel. */
+export const SUPPORTS = ['circle', 'grid', 'image'] as const;
+/** circle: the disk inscribed in the grid; grid: every pixel; image: a mask image given with the run. */
 export type SupportShape = (typeof SUPPORTS)[number];
 
 /**

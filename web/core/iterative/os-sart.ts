@@ -27,6 +27,8 @@ export interface SartInputs {
   support: Float32Array;
   /** Channels [k0, k1) hold measured data (for the residual). */
   measured: [number, number];
+  /** Floats the per-subset pixel weights may take (default PIXEL_WEIGHT_BUDGET). */
+  pixelWeightBudget?: number;
 }
 
 export class OsSart {
@@ -59,7 +61,7 @@ export class OsSart {
     this.rayWeight = ws.alloc('rayWeight', nSino);
     this.corr = ws.alloc('corrections', nSino);
     const subsets = plan.starts.length - 1;
-    const keepAll = subsets * nPix <= PIXEL_WEIGHT_BUDGET;
+    const keepAll = subsets * nPix <= (inputs.pixelWeightBudget ?? PIXEL_WEIGHT_BUDGET);
     this.pixelWeights = Array.from({ length: keepAll ? subsets : 1 }, (_, q) => ws.alloc(`pixelWeight${q}`, nPix));
     this.image = new BandOps(ws, grid.nx, grid.ny);
   }

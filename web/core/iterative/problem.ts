@@ -4,7 +4,8 @@ import { InputError } from '../errors';
 import type { Geometry } from '../geometry/types';
 import { viewCount } from '../geometry/types';
 import { circleMask } from '../metrics';
-import type { ImageGrid } from '../image';
+import type { Image2D, ImageGrid } from '../image';
+import { resampleBilinear, sameGrid } from '../resample';
 import type { Scan } from '../scan';
 import { extendToCover, maskRadius, type Extension } from './extension';
 import type { SupportShape } from './options';
@@ -28,8 +29,19 @@ export interface Problem {
   dataWeight: Float32Array;
 }
 
-/** Pixels of the support: the disk inscribed in the grid, or the whole grid. */
-export function supportMask(grid: ImageGrid, shape: SupportShape): Uint8Array {
+/**
+ * Pixels of the support: the disk inscribed in the grid, the whole grid, or where a mask image
+ * (any grid, resampled bilinearly) exceeds 0.5.
+ */
+export function supportMask(grid: ImageGrid, shape: SupportShape, mask?: Image2D): Uint8Array {
+  if (shape === 'image') {
+    if (!mask) throw new InputError('recipe support: "image" needs a mask image, but none was given');
+    const onGrid = sameGrid(mask.grid, grid) ? mask.data : resampleBilinear(mask.data, mask.grid, grid);
+    const out = onGrid.map((v) => (v > 0.5 ? 1 : 0));
+    const inside = out.reduce((s, v) => s + v, 0);
+    if (inside === 0) throw new InputError('support mask: no pixel of the reconstruction grid lies inside it (values > 0.5)');
+    return Uint8Array.from(out);
+  }
   if (shape === 'grid') return new Uint8Array(grid.nx * grid.ny).fill(1);
   const r = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
   const shifted = { ...grid, cx: 0, cy: 0 };

@@ -11,8 +11,7 @@ import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { resolveOptions, type IterativeMethod } from './options';
 import { OsSart } from './os-sart';
-import { departureFromPrior } from './prior';
-import { priorOnGrid } from './prior';
+import { departureFromPrior, priorOnGrid } from './prior';
 import { checkScanData, perViewSquares, setUpProblem, supportMask } from './problem';
 import { solve } from './solve';
 import { unpermute } from './subsets';
@@ -21,6 +20,8 @@ import { unpermute } from './subsets';
 export interface RecipeInputs {
   /** The prior of method "prior" when its source is "image" (any grid; resampled). */
   prior?: Image2D;
+  /** The support mask when the recipe's support is "image": > 0.5 inside (any grid; resampled). */
+  supportMask?: Image2D;
 }
 
 /** What runRecipe returns (the same shape as recipe/run.ts RecipeResult). */
@@ -46,14 +47,15 @@ function scaled(hooks: RunHooks, from: number, to: number): RunHooks {
   return { signal: hooks.signal, onProgress: p ? (f, stage) => p(from + (to - from) * f, stage) : undefined };
 }
 
-async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks): Promise<Image2D> {
+async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks): Promise<{ image: Image2D; warnings: string[] }> {
   const src = recipe.prior;
   if (!src) throw new InputError('recipe prior: method "prior" needs a prior');
   if (src.source === 'image') {
     if (!inputs.prior) throw new InputError('prior: the recipe takes its prior from an image, but none was given');
-    return inputs.prior;
+    return { image: inputs.prior, warnings: [] };
   }
-  return (await nested(src.recipe, hooks)).image;
+  const r = await nested(src.recipe, hooks);
+  return { image: r.image, warnings: r.warnings.map((w) => `prior (${src.recipe.method}): ${w}`) };
 }
 
 /** Reconstructs `scan` with an iterative method. Nothing is returned or kept when cancelled. */
@@ -65,10 +67,11 @@ export async function runIterative(
   const o = resolveOptions(method, recipe);
   require2d(scan.geometry);
   checkScanData(scan);
-  const warnings: string[] = [];
-  const priorImage = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05)) : undefined;
+  const obtained = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05)) : undefined;
+  const warnings: string[] = obtained?.warnings ?? [];
+  const priorImage = obtained?.image;
   const grid = recipe.grid ? squareGrid(recipe.grid.size, recipe.grid.pixel) : priorImage ? gridCovering(priorImage.grid) : chooseGrid(scan);
-  const support = supportMask(grid, o.support);
+  const support = supportMask(grid, o.support, inputs.supportMask);
   const nViews = scan.data.length / scan.geometry.detector.channels;
   const subsets = Math.min(o.subsets, nViews);
   if (subsets < o.subsets) warnings.push(`subsets: ${o.subsets} asked, the scan has ${nViews} views; using ${subsets}`);
