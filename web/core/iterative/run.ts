@@ -79,6 +79,10 @@ export async function runIterative(
   const prior = priorImage ? priorOnGrid(priorImage, grid, support) : undefined;
   if (prior) warnings.push(...prior.warnings);
   const fov = fovRadius(scan.geometry);
+  const reach = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
+  if (method === 'prior' && reach < 1.2 * fov) {
+    warnings.push(`the grid reaches only ${reach.toFixed(0)} mm from its centre, little beyond the measured FOV (radius ${fov.toFixed(0)} mm): the object outside the FOV is not reconstructed; give a grid (size, pixel) that covers the whole object`);
+  }
 
   ws.reset();
   hooks.onProgress?.(0.05, 'setup');
