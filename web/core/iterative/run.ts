@@ -1,7 +1,7 @@
 // Running an iterative recipe (sart, tv, wtv, prior): prior, grid, problem set-up, iterations,
 // and the report (convergence history, per-view residuals, departure from the prior).
-import type { Workspace } from '../engine/workspace';
-import { InputError } from '../errors';
+import type { Buf, Workspace } from '../engine/workspace';
+import { InputError, throwIfCancelled } from '../errors';
 import { fovRadius } from '../geometry/view-vectors';
 import { squareGrid, type Image2D, type ImageGrid } from '../image';
 import { chooseGrid, DEFAULT_GRID_SIZE } from '../recipe/grid';
@@ -11,10 +11,10 @@ import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { resolveOptions, type IterativeMethod } from './options';
 import { OsSart } from './os-sart';
-import { departureFromPrior, priorOnGrid } from './prior';
-import { checkScanData, perViewSquares, setUpProblem, supportMask } from './problem';
+import { priorOnGrid } from './prior';
+import { checkScanData, perViewSquares, setUpProblem, supportMask, type Problem } from './problem';
+import { iterativeReport } from './report';
 import { solve } from './solve';
-import { unpermute } from './subsets';
 
 /** Images a recipe run may need besides the scan. */
 export interface RecipeInputs {
@@ -58,6 +58,26 @@ async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedR
   return { image: r.image, warnings: r.warnings.map((w) => `prior (${src.recipe.method}): ${w}`) };
 }
 
+/**
+ * Writes the start image (the prior, or zeros) into x; for a prior, fits the unmeasured channels
+ * of the target to its projections. Returns the squared measured residual of the start image.
+ */
+async function prepareStart(ws: Workspace, sart: OsSart, x: Buf, problem: Problem, prior?: Float32Array): Promise<number> {
+  const { nViews, nCh, target } = problem;
+  const [k0, k1] = problem.measured;
+  await ws.write(x, prior ?? new Float32Array(problem.grid.nx * problem.grid.ny));
+  await sart.projector.forward(x, sart.corr);
+  const start = await ws.read(sart.corr);
+  if (prior) {
+    for (let q = 0; q < nViews; q++) {
+      target.set(start.subarray(q * nCh, q * nCh + k0), q * nCh);
+      target.set(start.subarray(q * nCh + k1, (q + 1) * nCh), q * nCh + k1);
+    }
+    await ws.write(sart.target, target);
+  }
+  return perViewSquares(start, target, nCh, k0, k1).reduce((s, v) => s + v, 0);
+}
+
 /** Reconstructs `scan` with an iterative method. Nothing is returned or kept when cancelled. */
 export async function runIterative(
   ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks, inputs: RecipeInputs, nested: NestedRun,
@@ -65,6 +85,7 @@ export async function runIterative(
   const t0 = now();
   const method = recipe.method as IterativeMethod;
   const o = resolveOptions(method, recipe);
+  throwIfCancelled(hooks.signal);
   require2d(scan.geometry);
   checkScanData(scan);
   const obtained = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05)) : undefined;
@@ -85,64 +106,26 @@ export async function runIterative(
   }
 
   ws.reset();
+  throwIfCancelled(hooks.signal);
   hooks.onProgress?.(0.05, 'setup');
-  const supportF = Float32Array.from(support);
-  const sart = await OsSart.create(ws, { ...problem, support: supportF }, hooks);
+  const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support) }, hooks);
   const x = ws.alloc('image', grid.nx * grid.ny);
-  const target = problem.target;
-  const [k0, k1] = problem.measured;
-  if (prior) {
-    // Unmeasured channels are fitted to the forward projection of the prior.
-    const start = prior.data.map((v, i) => v * support[i]);
-    await ws.write(x, start);
-    await sart.projector.forward(x, sart.corr);
-    const priorSino = await ws.read(sart.corr);
-    for (let q = 0; q < problem.nViews; q++) {
-      target.set(priorSino.subarray(q * problem.nCh, q * problem.nCh + k0), q * problem.nCh);
-      target.set(priorSino.subarray(q * problem.nCh + k1, (q + 1) * problem.nCh), q * problem.nCh + k1);
-    }
-    await ws.write(sart.target, target);
-  } else {
-    await ws.write(x, new Float32Array(grid.nx * grid.ny));
-  }
-  await sart.projector.forward(x, sart.corr);
-  const startResidual = perViewSquares(await ws.read(sart.corr), target, problem.nCh, k0, k1).reduce((s, v) => s + v, 0);
-  const measuredRays = problem.nViews * (k1 - k0);
+  const startResidual = await prepareStart(ws, sart, x, problem, prior?.data.map((v, i) => v * support[i]));
   const t1 = now();
 
+  const measuredRays = problem.nViews * (problem.measured[1] - problem.measured[0]);
   const outcome = await solve({ ws, grid, sart, x, startResidual, measuredRays }, method, o, scaled(hooks, 0.06, 0.99));
   const t2 = now();
 
   await sart.projector.forward(x, sart.corr);
-  const finalSino = await ws.read(sart.corr);
   const image = await ws.read(x);
-  const perView = perViewSquares(finalSino, target, problem.nCh, k0, k1);
-  const finalResidual = perView.reduce((s, v) => s + v, 0);
-  const nMeasured = k1 - k0;
-  const report: Record<string, unknown> = {
-    method,
-    options: { ...o, subsets },
-    iterations: outcome.iterations,
-    stoppedBy: outcome.stoppedBy,
-    grid,
-    extension: { left: problem.extension.left, right: problem.extension.right, channels: problem.nCh },
-    history: outcome.history,
-    residual: {
-      startRms: Math.sqrt(startResidual / measuredRays),
-      finalRms: Math.sqrt(finalResidual / measuredRays),
-      finalRelative: startResidual > 0 ? Math.sqrt(finalResidual / startResidual) : 0,
-      perViewRms: unpermute(perView.map((s) => Math.sqrt(s / nMeasured)), problem.plan.permutation),
-    },
-    timings: { setup: t1 - t0, iterations: t2 - t1, total: now() - t0 },
-  };
-  if (prior) {
-    const unmeasured = problem.nCh - nMeasured;
-    const away = perViewSquares(finalSino, target, problem.nCh, k0, k1, true);
-    report.prior = {
-      departure: departureFromPrior(image, prior.data, grid, support, fov, scan.muWater),
-      unmeasuredPerViewRms: unpermute(away.map((s) => (unmeasured ? Math.sqrt(s / unmeasured) : 0)), problem.plan.permutation),
-    };
-  }
+  const report = iterativeReport({
+    method, options: { ...o, subsets }, problem, outcome, startResidual, finalSino: await ws.read(sart.corr), image,
+    prior: prior?.data, fov, muWater: scan.muWater,
+  });
+  report.timings = { setup: t1 - t0, iterations: t2 - t1, total: now() - t0 };
+  const bad = image.reduce((n, v) => n + (Number.isFinite(v) ? 0 : 1), 0);
+  if (bad > 0) warnings.push(`the result has ${bad} pixels that are not finite numbers: do not trust it`);
   hooks.onProgress?.(1, 'done');
   return { image: { grid, data: image, quantity: 'mu', muWater: scan.muWater, fovRadius: fov }, warnings, report };
 }
