@@ -15,9 +15,10 @@ export function padImageRows(img: usize, nx: i32, ny: i32, j0: i32, j1: i32, pad
 }
 
 /**
- * out[j, i] = sum over w < count of acc_w[j+1, i+1] + accT_w[i+1, j+1], for rows [j0, j1).
- * `table` holds count pairs of byte addresses (i32): acc_0, accT_0, acc_1, accT_1, ...
- * (the per-worker accumulators of joseph.ts josephAdjoint2d).
+ * out[j, i] = sum over c < count, in order, of (acc_c[j+1, i+1] + accT_c[i+1, j+1]), for rows
+ * [j0, j1): each chunk's value is rounded once, then added to the running sum (the host adds
+ * unpadded chunks the same way when memories are private). `table` holds count pairs of byte
+ * addresses (i32): acc_0, accT_0, acc_1, accT_1, ... (accumulators of josephAdjoint2d).
  */
 export function unpadSumRows(table: usize, count: i32, nx: i32, ny: i32, j0: i32, j1: i32, out: usize): void {
   const px = nx + 2;
@@ -25,17 +26,23 @@ export function unpadSumRows(table: usize, count: i32, nx: i32, ny: i32, j0: i32
   for (let j = j0; j < j1; j++) {
     const row = out + (<usize>(j * nx) << 2);
     memory.fill(row, 0, <usize>nx << 2);
-    for (let w = 0; w < count; w++) {
-      const acc = <usize>ldi(table, 2 * w);
-      const accT = <usize>ldi(table, 2 * w + 1);
-      const src = acc + (<usize>((j + 1) * px + 1) << 2);
+    for (let c = 0; c < count; c++) {
+      const src = <usize>ldi(table, 2 * c) + (<usize>((j + 1) * px + 1) << 2);
+      // accT is y-fastest: element (i+1, j+1) sits at (i+1) py + j+1, one column per i.
+      const col = <usize>ldi(table, 2 * c + 1) + (<usize>(py + j + 1) << 2);
+      const colStep = <usize>py << 2;
       let i = 0;
       for (; i + 4 <= nx; i += 4) {
         const o = <usize>i << 2;
-        v128.store(row + o, f32x4.add(v128.load(row + o), v128.load(src + o)));
+        const base = col + <usize>i * colStep;
+        let t = f32x4.splat(load<f32>(base));
+        t = f32x4.replace_lane(t, 1, load<f32>(base + colStep));
+        t = f32x4.replace_lane(t, 2, load<f32>(base + 2 * colStep));
+        t = f32x4.replace_lane(t, 3, load<f32>(base + 3 * colStep));
+        t = f32x4.add(v128.load(src + o), t);
+        v128.store(row + o, f32x4.add(v128.load(row + o), t));
       }
-      for (; i < nx; i++) stf(row, i, ldf(row, i) + ldf(src, i));
-      for (i = 0; i < nx; i++) stf(row, i, ldf(row, i) + ldf(accT, (i + 1) * py + j + 1));
+      for (; i < nx; i++) stf(row, i, ldf(row, i) + (ldf(src, i) + load<f32>(col + <usize>i * colStep)));
     }
   }
 }

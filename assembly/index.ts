@@ -7,7 +7,7 @@ export { fftPrepare, fft, realEvenResponse, filterViews } from './fft';
 export { rayTableFloats } from './rays';
 export { josephForward2d, josephAdjoint2d } from './joseph';
 export { backproject2d, atanApprox } from './backproject';
-export { sartWeights, sartCorrection, sartUpdate, squaredDistance, copyRange } from './sart';
+export { sartWeights, sartCorrection, sartUpdate, squaredDistances, copyRange } from './sart';
 export { tvScale, tvGradient, tvWeights } from './tv';
 export { padImageRows, unpadSumRows } from './image-bands';
 

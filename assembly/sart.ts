@@ -32,14 +32,13 @@ export function sartWeights(sum: usize, num: usize, out: usize, from: i32, to: i
 
 /**
  * Turns projections into weighted corrections for views [view0, view1) of an nCh-channel
- * sinogram: c[i] = (target[i] - c[i]) * rayWeight[i], where c holds A x on entry.
- * Returns the sum over channels [k0, k1) of each view of (target - A x)^2 (the residual on the
- * measured channels), in f64.
+ * sinogram: c[i] = (target[i] - c[i]) * rayWeight[i], where c holds A x on entry. Writes, per
+ * view v, the sum over channels [k0, k1) of (target - A x)^2 (the residual on the measured
+ * channels) to viewSums[v] (f64), so totals do not depend on how views are split.
  */
 export function sartCorrection(
-  c: usize, target: usize, rayWeight: usize, nCh: i32, view0: i32, view1: i32, k0: i32, k1: i32,
-): f64 {
-  let total: f64 = 0;
+  c: usize, target: usize, rayWeight: usize, nCh: i32, view0: i32, view1: i32, k0: i32, k1: i32, viewSums: usize,
+): void {
   for (let v = view0; v < view1; v++) {
     const row = v * nCh;
     let acc = f32x4.splat(0);
@@ -55,7 +54,7 @@ export function sartCorrection(
       const d = ldf(target, row + k) - ldf(c, row + k);
       s += <f64>(d * d);
     }
-    total += s;
+    store<f64>(viewSums + (<usize>v << 3), s);
   }
   const from = view0 * nCh;
   const to = view1 * nCh;
@@ -65,7 +64,6 @@ export function sartCorrection(
     v128.store(c + o, f32x4.mul(f32x4.sub(v128.load(target + o), v128.load(c + o)), v128.load(rayWeight + o)));
   }
   for (; i < to; i++) stf(c, i, (ldf(target, i) - ldf(c, i)) * ldf(rayWeight, i));
-  return total;
 }
 
 /**
@@ -85,27 +83,29 @@ export function sartUpdate(x: usize, back: usize, pixelWeight: usize, from: i32,
   for (; i < to; i++) stf(x, i, max(floor, ldf(x, i) + lambda * ldf(pixelWeight, i) * ldf(back, i)));
 }
 
-/** Sum over [from, to) of (a[i] - b[i])^2 in f64 (image change norms). */
-export function squaredDistance(a: usize, b: usize, from: i32, to: i32): f64 {
-  let total: f64 = 0;
-  let i = from;
-  while (to - i >= 4) {
-    // Blocks of up to 1024 elements summed in f32 lanes, then added in f64: keeps rounding small.
-    const end = i + min(1024, (to - i) & ~3);
+/**
+ * Per line l in [line0, line1) of `lineLength` elements: lineSums[l] = sum of (a - b)^2 over the
+ * line, in f64 (image change norms; per line so totals do not depend on the split).
+ */
+export function squaredDistances(a: usize, b: usize, lineLength: i32, line0: i32, line1: i32, lineSums: usize): void {
+  for (let l = line0; l < line1; l++) {
+    const from = l * lineLength;
+    const to = from + lineLength;
     let acc = f32x4.splat(0);
-    for (; i < end; i += 4) {
+    let i = from;
+    for (; i + 4 <= to; i += 4) {
       const o = <usize>i << 2;
       const d = f32x4.sub(v128.load(a + o), v128.load(b + o));
       acc = f32x4.add(acc, f32x4.mul(d, d));
     }
-    total += <f64>(f32x4.extract_lane(acc, 0) + f32x4.extract_lane(acc, 1)) +
+    let s: f64 = <f64>(f32x4.extract_lane(acc, 0) + f32x4.extract_lane(acc, 1)) +
       <f64>(f32x4.extract_lane(acc, 2) + f32x4.extract_lane(acc, 3));
+    for (; i < to; i++) {
+      const d = ldf(a, i) - ldf(b, i);
+      s += <f64>(d * d);
+    }
+    store<f64>(lineSums + (<usize>l << 3), s);
   }
-  for (; i < to; i++) {
-    const d = ldf(a, i) - ldf(b, i);
-    total += <f64>(d * d);
-  }
-  return total;
 }
 
 /** dst[i] = src[i] for i in [from, to). */

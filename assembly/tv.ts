@@ -13,10 +13,9 @@ import { ldf, stf } from './memory';
 
 /**
  * Pass 1 of the TV gradient: g[p] = w[p] / sqrt(dx^2 + dy^2 + delta2) for rows [j0, j1).
- * Returns the (unweighted, unsmoothed) TV of those rows, sum sqrt(dx^2 + dy^2), in f64.
+ * Writes each row's (unweighted, unsmoothed) TV, sum sqrt(dx^2 + dy^2), to rowSums[j] (f64).
  */
-export function tvScale(f: usize, w: usize, g: usize, nx: i32, ny: i32, j0: i32, j1: i32, delta2: f32): f64 {
-  let total: f64 = 0;
+export function tvScale(f: usize, w: usize, g: usize, nx: i32, ny: i32, j0: i32, j1: i32, delta2: f32, rowSums: usize): void {
   const d2 = f32x4.splat(delta2);
   for (let j = j0; j < j1; j++) {
     const row = j * nx;
@@ -48,9 +47,8 @@ export function tvScale(f: usize, w: usize, g: usize, nx: i32, ny: i32, j0: i32,
       stf(g, row + i, ldf(w, row + i) / Mathf.sqrt(s + delta2));
       rowTv += Mathf.sqrt(s);
     }
-    total += <f64>rowTv;
+    store<f64>(rowSums + (<usize>j << 3), <f64>rowTv);
   }
-  return total;
 }
 
 /** The gradient at one pixel (scalar path for the first and last columns and the tails). */
@@ -66,10 +64,9 @@ export function tvScale(f: usize, w: usize, g: usize, nx: i32, ny: i32, j0: i32,
 
 /**
  * Pass 2: grad[p] = support[p] * dTV/df_p for rows [j0, j1), from g (tvScale, which must cover
- * rows [j0, j1 + 1)). Returns the sum of grad^2 over those rows, in f64.
+ * rows [j0, j1 + 1)). Writes each row's sum of grad^2 to rowSums[j] (f64).
  */
-export function tvGradient(f: usize, g: usize, support: usize, grad: usize, nx: i32, ny: i32, j0: i32, j1: i32): f64 {
-  let total: f64 = 0;
+export function tvGradient(f: usize, g: usize, support: usize, grad: usize, nx: i32, ny: i32, j0: i32, j1: i32, rowSums: usize): void {
   for (let j = j0; j < j1; j++) {
     const row = j * nx;
     const up = j > 0 ? row - nx : row;
@@ -104,9 +101,8 @@ export function tvGradient(f: usize, g: usize, support: usize, grad: usize, nx: 
       stf(grad, row + i, r);
       s += r * r;
     }
-    total += <f64>s;
+    store<f64>(rowSums + (<usize>j << 3), <f64>s);
   }
-  return total;
 }
 
 /**

@@ -22,11 +22,18 @@ function tvRef(f: Float64Array, w: Float64Array, nx: number, ny: number, delta2:
 
 async function setup(ws: LocalWorkspace, f: Float32Array, w: Float32Array, support?: Float32Array) {
   const n = f.length;
-  const bufs = { f: ws.alloc('f', n), w: ws.alloc('w', n), g: ws.alloc('g', n), grad: ws.alloc('grad', n), s: ws.alloc('s', n) };
+  const bufs = { f: ws.alloc('f', n), w: ws.alloc('w', n), g: ws.alloc('g', n), grad: ws.alloc('grad', n), s: ws.alloc('s', n), rows: ws.alloc('rows', 2 * 4096) };
   await ws.write(bufs.f, f);
   await ws.write(bufs.w, w);
   await ws.write(bufs.s, support ?? new Float32Array(n).fill(1));
   return bufs;
+}
+
+/** Runs the parts (in sequence) and adds the f64 row sums they wrote, in row order. */
+async function total(ws: LocalWorkspace, rows: { ptr: number; name: string; length: number }, ny: number, parts: Parameters<LocalWorkspace['run']>[0]): Promise<number> {
+  for (const p of parts) await ws.run([p]);
+  const v = new Float64Array((await ws.read(rows, 0, 2 * ny)).buffer);
+  return v.reduce((s, x) => s + x, 0);
 }
 
 describe('TV kernels', () => {
@@ -37,7 +44,7 @@ describe('TV kernels', () => {
     const nx = 37, ny = 21, a = 0.003, b = -0.004;
     const f = Float32Array.from({ length: nx * ny }, (_, k) => a * (k % nx) + b * Math.floor(k / nx));
     const bufs = await setup(ws, f, new Float32Array(nx * ny).fill(1));
-    const [tv] = await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, 0] }]);
+    const tv = await total(ws, bufs.rows, ny, [{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, 0, bufs.rows] }]);
     const expected = (nx - 1) * (ny - 1) * Math.hypot(a, b) + (nx - 1) * Math.abs(a) + (ny - 1) * Math.abs(b);
     expect(Math.abs(tv - expected) / expected).toBeLessThan(1e-4);
   });
@@ -47,7 +54,7 @@ describe('TV kernels', () => {
     const nx = 19, ny = 11, h = 0.02;
     const f = Float32Array.from({ length: nx * ny }, (_, k) => (k % nx >= 7 ? h : 0));
     const bufs = await setup(ws, f, new Float32Array(nx * ny).fill(1));
-    const [tv] = await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, 0] }]);
+    const tv = await total(ws, bufs.rows, ny, [{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, 0, bufs.rows] }]);
     expect(tv).toBeCloseTo(ny * h, 6);
   });
 
@@ -59,8 +66,8 @@ describe('TV kernels', () => {
     const w = Float32Array.from({ length: nx * ny }, () => 0.5 + rand());
     const support = Float32Array.from({ length: nx * ny }, (_, k) => (k % 17 === 3 ? 0 : 1));
     const bufs = await setup(ws, f, w, support);
-    await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, delta2] }]);
-    const [sq] = await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 0, ny] }]);
+    await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, delta2, bufs.rows] }]);
+    const sq = await total(ws, bufs.rows, ny, [{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 0, ny, bufs.rows] }]);
     const grad = await ws.read(bufs.grad);
     const f64 = Float64Array.from(f), w64 = Float64Array.from(w);
     const h = 1e-6;
@@ -100,16 +107,20 @@ describe('TV kernels', () => {
     const rand = seededRandom(13);
     const f = Float32Array.from({ length: nx * ny }, () => rand());
     const bufs = await setup(ws, f, new Float32Array(nx * ny).fill(1));
-    await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, delta2] }]);
-    await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 0, ny] }]);
+    const tAll = await total(ws, bufs.rows, ny, [{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, delta2, bufs.rows] }]);
+    await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 0, ny, bufs.rows] }]);
     const whole = await ws.read(bufs.grad);
-    const [t1] = await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, 6, delta2] }]);
-    const [t2] = await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 6, ny, delta2] }]);
-    const [tAll] = await ws.run([{ kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, ny, delta2] }]);
+    const wholeRows = await ws.read(bufs.rows, 0, 2 * ny);
+    await ws.write(bufs.rows, new Float32Array(2 * ny));
+    const tSplit = await total(ws, bufs.rows, ny, [
+      { kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 6, ny, delta2, bufs.rows] },
+      { kernel: 'tvScale', args: [bufs.f, bufs.w, bufs.g, nx, ny, 0, 6, delta2, bufs.rows] },
+    ]);
     await ws.write(bufs.grad, new Float32Array(nx * ny));
-    await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 6, ny] }]);
-    await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 0, 6] }]);
+    await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 6, ny, bufs.rows] }]);
+    await ws.run([{ kernel: 'tvGradient', args: [bufs.f, bufs.g, bufs.s, bufs.grad, nx, ny, 0, 6, bufs.rows] }]);
     expect(Array.from(await ws.read(bufs.grad))).toEqual(Array.from(whole));
-    expect(t1 + t2).toBeCloseTo(tAll, 10);
+    expect(Array.from(await ws.read(bufs.rows, 0, 2 * ny))).toEqual(Array.from(wholeRows));
+    expect(tSplit).toBe(tAll);
   });
 });

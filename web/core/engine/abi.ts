@@ -17,7 +17,7 @@ export type KernelName =
   | 'fftPrepare' | 'fft' | 'realEvenResponse' | 'filterViews'
   | 'rayTableFloats' | 'josephForward2d' | 'josephAdjoint2d'
   | 'backproject2d' | 'atanApprox'
-  | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistance' | 'copyRange'
+  | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
   | 'tvScale' | 'tvGradient' | 'tvWeights'
   | 'padImageRows' | 'unpadSumRows';
 

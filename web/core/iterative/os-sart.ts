@@ -8,7 +8,8 @@ import type { Geometry } from '../geometry/types';
 import type { ImageGrid } from '../image';
 import { Projector2d } from '../recon/projector';
 import type { RunHooks } from '../run-hooks';
-import { BandOps } from './image-ops';
+import { splitRange } from '../recon/split';
+import { addLineSums, BandOps, lineSumRange } from './image-ops';
 import type { SubsetPlan } from './subsets';
 
 /** Pixel weights of all subsets are kept when they fit in this many floats; else recomputed per step. */
@@ -43,6 +44,8 @@ export class OsSart {
   private readonly dataWeight: Buf;
   private readonly rayWeight: Buf;
   private readonly pixelWeights: Buf[];
+  /** Measured residual of each view (f64) from the last step that visited it. */
+  private readonly viewSums: Buf;
   private readonly image: BandOps;
   private readonly ws: Workspace;
 
@@ -60,6 +63,7 @@ export class OsSart {
     this.dataWeight = ws.alloc('dataWeight', nSino);
     this.rayWeight = ws.alloc('rayWeight', nSino);
     this.corr = ws.alloc('corrections', nSino);
+    this.viewSums = ws.alloc('viewResiduals', 2 * this.nViews);
     const subsets = plan.starts.length - 1;
     const keepAll = subsets * nPix <= (inputs.pixelWeightBudget ?? PIXEL_WEIGHT_BUDGET);
     this.pixelWeights = Array.from({ length: keepAll ? subsets : 1 }, (_, q) => ws.alloc(`pixelWeight${q}`, nPix));
@@ -116,12 +120,12 @@ export class OsSart {
     const [v0, v1] = [this.inputs.plan.starts[q], this.inputs.plan.starts[q + 1]];
     const [k0, k1] = this.inputs.measured;
     await this.projector.forward(x, this.corr, v0, v1);
-    const views = new BandOps(this.ws, this.nCh, v1 - v0);
-    const residual = await views.sum((_f, _t, a, b) => ({
-      kernel: 'sartCorrection',
-      args: [this.corr, this.target, this.rayWeight, this.nCh, v0 + a, v0 + b, k0, k1],
-      writes: [{ buf: this.corr, start: (v0 + a) * this.nCh, length: (b - a) * this.nCh }],
-    }));
+    await this.ws.run(splitRange(v1 - v0, this.ws.parallelism).map(([a, b]) => ({
+      kernel: 'sartCorrection' as const,
+      args: [this.corr, this.target, this.rayWeight, this.nCh, v0 + a, v0 + b, k0, k1, this.viewSums],
+      writes: [{ buf: this.corr, start: (v0 + a) * this.nCh, length: (b - a) * this.nCh }, lineSumRange(this.viewSums, v0 + a, v0 + b)],
+    })));
+    const residual = await addLineSums(this.ws, this.viewSums, v0, v1);
     let weights = this.pixelWeights[0];
     if (this.pixelWeights.length > 1) weights = this.pixelWeights[q];
     else if (this.subsets > 1) await this.computePixelWeights(q, weights);

@@ -9,9 +9,8 @@ import { BandOps } from './image-ops';
 
 /**
  * Smoothing delta^2 in |grad f| = sqrt(dx^2 + dy^2 + delta^2), (1/mm)^2: delta = 1e-5 /mm is
- * about 0.5 HU per pixel, far below edges and noise, yet keeps the gradient smooth enough that
- * float rounding (e.g. a different split between workers) is not amplified much. Sidky & Pan
- * use a small epsilon of the same kind (from memory).
+ * about 0.5 HU per pixel, far below edges and noise (Sidky & Pan smooth the TV gradient with a
+ * small epsilon of the same kind; from memory).
  */
 export const TV_SMOOTHING = 1e-10;
 
@@ -51,9 +50,9 @@ export class TvDescent {
   /** The plain (unweighted) TV of x, sum over pixels of |grad x|, 1/mm. */
   value(x: Buf): Promise<number> {
     const { nx, ny } = this.grid;
-    return this.rows.sum((from, to, a, b) => ({
+    return this.rows.total((from, to, a, b) => ({
       kernel: 'tvScale',
-      args: [x, this.weights, this.g, nx, ny, a, b, TV_SMOOTHING],
+      args: [x, this.weights, this.g, nx, ny, a, b, TV_SMOOTHING, this.rows.sums],
       writes: [{ buf: this.g, start: from, length: to - from }],
     }));
   }
@@ -62,9 +61,9 @@ export class TvDescent {
   private async gradient(x: Buf): Promise<number> {
     const { nx, ny } = this.grid;
     await this.value(x);
-    const sq = await this.rows.sum((from, to, a, b) => ({
+    const sq = await this.rows.total((from, to, a, b) => ({
       kernel: 'tvGradient',
-      args: [x, this.g, this.support, this.grad, nx, ny, a, b],
+      args: [x, this.g, this.support, this.grad, nx, ny, a, b, this.rows.sums],
       writes: [{ buf: this.grad, start: from, length: to - from }],
     }));
     return Math.sqrt(sq);
