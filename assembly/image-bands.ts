@@ -23,24 +23,27 @@ export function padImageRows(img: usize, nx: i32, ny: i32, j0: i32, j1: i32, pad
 export function unpadSumRows(table: usize, count: i32, nx: i32, ny: i32, j0: i32, j1: i32, out: usize): void {
   const px = nx + 2;
   const py = ny + 2;
-  for (let j = j0; j < j1; j++) {
-    const row = out + (<usize>(j * nx) << 2);
-    memory.fill(row, 0, <usize>nx << 2);
-    for (let c = 0; c < count; c++) {
-      const src = <usize>ldi(table, 2 * c) + (<usize>((j + 1) * px + 1) << 2);
-      // accT is y-fastest: element (i+1, j+1) sits at (i+1) py + j+1, one column per i.
-      const col = <usize>ldi(table, 2 * c + 1) + (<usize>(py + j + 1) << 2);
-      const colStep = <usize>py << 2;
+  const colStep = <usize>py << 2;
+  memory.fill(out + (<usize>(j0 * nx) << 2), 0, <usize>((j1 - j0) * nx) << 2);
+  // Chunk by chunk, row by row: consecutive rows read neighbouring floats of the same accT
+  // columns, which stay in cache.
+  for (let c = 0; c < count; c++) {
+    const acc = <usize>ldi(table, 2 * c);
+    const accT = <usize>ldi(table, 2 * c + 1);
+    for (let j = j0; j < j1; j++) {
+      const row = out + (<usize>(j * nx) << 2);
+      const src = acc + (<usize>((j + 1) * px + 1) << 2);
+      // accT element (i+1, j+1) sits at (i+1) py + j+1: one column per i.
+      const col = accT + (<usize>(py + j + 1) << 2);
       let i = 0;
       for (; i + 4 <= nx; i += 4) {
+        const q = col + <usize>i * colStep;
+        let t = f32x4.splat(load<f32>(q));
+        t = f32x4.replace_lane(t, 1, load<f32>(q + colStep));
+        t = f32x4.replace_lane(t, 2, load<f32>(q + 2 * colStep));
+        t = f32x4.replace_lane(t, 3, load<f32>(q + 3 * colStep));
         const o = <usize>i << 2;
-        const base = col + <usize>i * colStep;
-        let t = f32x4.splat(load<f32>(base));
-        t = f32x4.replace_lane(t, 1, load<f32>(base + colStep));
-        t = f32x4.replace_lane(t, 2, load<f32>(base + 2 * colStep));
-        t = f32x4.replace_lane(t, 3, load<f32>(base + 3 * colStep));
-        t = f32x4.add(v128.load(src + o), t);
-        v128.store(row + o, f32x4.add(v128.load(row + o), t));
+        v128.store(row + o, f32x4.add(v128.load(row + o), f32x4.add(v128.load(src + o), t)));
       }
       for (; i < nx; i++) stf(row, i, ldf(row, i) + (ldf(src, i) + load<f32>(col + <usize>i * colStep)));
     }
