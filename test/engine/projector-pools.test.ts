@@ -29,7 +29,11 @@ async function project(ws: Workspace): Promise<{ fwd: Float32Array; adj: Float32
   await p.adjoint(s, img);
   const adj = await ws.read(img);
   await p.adjoint(s, img, 5, 8); // a sub-range of views
-  return { fwd, adj, part: await ws.read(img) };
+  const part = await ws.read(img);
+  // The accumulators are cleared after each use: repeating a call repeats its result.
+  await p.adjoint(s, img);
+  expect(Array.from(await ws.read(img))).toEqual(Array.from(adj));
+  return { fwd, adj, part };
 }
 
 const pools: Workspace[] = [];

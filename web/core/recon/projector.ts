@@ -86,6 +86,8 @@ export class Projector2d {
       await ws.run([{ kernel: 'zeroArray', args: [p.pad, p.pad.length] }]);
       await ws.run([{ kernel: 'zeroArray', args: [p.padT, p.padT.length] }]);
     }
+    // Accumulators start at zero; each adjoint's unpadSumRows clears what it read.
+    await ws.run(Array.from({ length: ws.parallelism }, () => ({ kernel: 'zeroArray' as const, args: [p.accumulators, p.accumulators.length] })));
     return p;
   }
 
@@ -124,8 +126,6 @@ export class Projector2d {
   async adjoint(sino: Buf, image: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
     const { nx, ny } = this.grid;
     const plan = planAdjointChunks(view1 - view0, adjointChunkCount(this.ws.parallelism), this.ws.parallelism);
-    const pairLength = 2 * this.accLength;
-    await this.ws.run(plan.owned.map(([c0, c1]) => ({ kernel: 'zeroArray' as const, args: [this.accPtr(c0), (c1 - c0) * pairLength] })));
     for (const batch of plan.batches) {
       await this.ws.run(batch.map((c, w) => (c < 0 ? NO_OP : this.adjointPart(sino, view0 + plan.views[c][0], view0 + plan.views[c][1], c, w))));
     }
