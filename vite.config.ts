@@ -1,8 +1,23 @@
 import { defineConfig } from 'vitest/config';
+import { viteSingleFile } from 'vite-plugin-singlefile';
+import { contentSecurityPolicy } from './scripts/vite-csp.mjs';
 
-// The page is built later (web/ui); the test section configures vitest for Node-only tests.
+// The page: web/index.html built into ONE self-contained dist/index.html (scripts, workers and
+// the engine inlined), so it works from a static server and opened from disk; a strict
+// Content-Security-Policy with hashes of the inline code forbids any network use.
+// The test section configures vitest for the Node tests (browser tests: test/browser/run.mjs).
 export default defineConfig({
   root: 'web',
+  base: './',
+  build: {
+    outDir: '../dist',
+    emptyOutDir: true,
+    target: 'es2022',
+    reportCompressedSize: false,
+    chunkSizeWarningLimit: 20_000,
+  },
+  worker: { format: 'iife' },
+  plugins: [viteSingleFile({ removeViteModuleLoader: true }), contentSecurityPolicy()],
   test: {
     root: '.',
     include: ['test/**/*.test.ts'],

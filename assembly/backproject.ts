@@ -14,7 +14,7 @@
 // floats, cell 0 and the cells after the nCh channels are zero, so indices are clamped
 // instead of tested.
 import { KIND_PARALLEL, KIND_FAN_FLAT, VIEW_STRIDE } from './abi';
-import { ldf, MAGIC, MAGIC_BITS } from './memory';
+import { clampIndex, floorOffsets, ldf, MAGIC, MAGIC_BITS } from './memory';
 
 /**
  * Adds the backprojection of views [view0, view1) into image rows [row0, row1).
@@ -28,7 +28,6 @@ export function backproject2d(
 ): void {
   const zero = f32x4.splat(0);
   const top = f32x4.splat(<f32>(nCh + 1));
-  const half = f32x4.splat(0.5);
   const magic = f32x4.splat(MAGIC);
   const magicBits = i32x4.splat(MAGIC_BITS);
   const lane = f32x4(0, 1, 2, 3);
@@ -55,7 +54,7 @@ export function backproject2d(
         const fStep = f32x4.splat(4 * fx);
         let f = f32x4.add(f32x4.splat(f0), f32x4.mul(lane, f32x4.splat(fx)));
         for (let i = 0; i < nx; i += 4) {
-          const val = sample(row, f, zero, top, half, magic, magicBits);
+          const val = sample(row, f, zero, top, magic, magicBits);
           const p = dst + (<usize>i << 2);
           v128.store(p, f32x4.add(v128.load(p), val));
           f = f32x4.add(f, fStep);
@@ -68,27 +67,31 @@ export function backproject2d(
         let lu = f32x4.add(f32x4.splat(m0), f32x4.mul(lane, f32x4.splat(dx * ux)));
         const lnStep = f32x4.splat(4 * dx * nxv);
         const luStep = f32x4.splat(4 * dx * ux);
-        const scale = f32x4.splat(dist * invPitch);
         const sh = f32x4.splat(shift);
         if (kind == KIND_FAN_FLAT) {
+          // With q = R / Ln: u/pitch = (dist / (pitch R)) Lu q and the weight is q^2, so Lu is
+          // carried pre-scaled and one division per four pixels does both.
           const r = -(ax * nxv + ay * nyv);
           const rv = f32x4.splat(r);
+          const luScale: f32 = (dist * invPitch) / r;
+          let lus = f32x4.mul(lu, f32x4.splat(luScale));
+          const lusStep = f32x4.mul(luStep, f32x4.splat(luScale));
           for (let i = 0; i < nx; i += 4) {
-            const inv = f32x4.div(f32x4.splat(1), ln);
-            const f = f32x4.add(f32x4.mul(f32x4.mul(lu, inv), scale), sh);
-            const w = f32x4.mul(rv, inv);
-            const val = sample(row, f, zero, top, half, magic, magicBits);
+            const q = f32x4.div(rv, ln);
+            const f = f32x4.add(f32x4.mul(lus, q), sh);
+            const val = sample(row, f, zero, top, magic, magicBits);
             const p = dst + (<usize>i << 2);
-            v128.store(p, f32x4.add(v128.load(p), f32x4.mul(val, f32x4.mul(w, w))));
+            v128.store(p, f32x4.add(v128.load(p), f32x4.mul(val, f32x4.mul(q, q))));
             ln = f32x4.add(ln, lnStep);
-            lu = f32x4.add(lu, luStep);
+            lus = f32x4.add(lus, lusStep);
           }
         } else {
+          const scale = f32x4.splat(dist * invPitch);
           for (let i = 0; i < nx; i += 4) {
             const g = atan4(f32x4.div(lu, ln));
             const f = f32x4.add(f32x4.mul(g, scale), sh);
             const w = f32x4.div(f32x4.splat(1), f32x4.add(f32x4.mul(ln, ln), f32x4.mul(lu, lu)));
-            const val = sample(row, f, zero, top, half, magic, magicBits);
+            const val = sample(row, f, zero, top, magic, magicBits);
             const p = dst + (<usize>i << 2);
             v128.store(p, f32x4.add(v128.load(p), f32x4.mul(val, w)));
             ln = f32x4.add(ln, lnStep);
@@ -100,14 +103,15 @@ export function backproject2d(
   }
 }
 
-/** Linear interpolation of a padded filtered row at padded coordinates f (four lanes). */
-@inline function sample(
-  row: usize, f: v128, zero: v128, top: v128, half: v128, magic: v128, magicBits: v128,
-): v128 {
-  const t = f32x4.min(f32x4.max(f, zero), top);
-  const r = f32x4.add(f32x4.sub(t, half), magic);
-  const off = i32x4.shl(i32x4.sub(r, magicBits), 2);
-  const frac = f32x4.sub(t, f32x4.sub(r, magic));
+/**
+ * Linear interpolation of a padded filtered row at padded coordinates f (four lanes). The
+ * integer part comes from floor + MAGIC (exact for integers below 2^22), not a conversion.
+ */
+@inline function sample(row: usize, f: v128, zero: v128, top: v128, magic: v128, magicBits: v128): v128 {
+  const t = clampIndex(f, zero, top);
+  const fl = f32x4.floor(t);
+  const off = floorOffsets(fl, magic, magicBits);
+  const frac = f32x4.sub(t, fl);
   let ab = v128.load64_lane(row + <usize>i32x4.extract_lane(off, 0), zero, 0);
   ab = v128.load64_lane(row + <usize>i32x4.extract_lane(off, 1), ab, 1);
   let cd = v128.load64_lane(row + <usize>i32x4.extract_lane(off, 2), zero, 0);
@@ -124,7 +128,7 @@ export function backproject2d(
  */
 @inline export function atan4(z: v128): v128 {
   const one = f32x4.splat(1);
-  const x = f32x4.min(f32x4.max(z, f32x4.neg(one)), one);
+  const x = f32x4.pmin(one, f32x4.pmax(f32x4.neg(one), z));
   const x2 = f32x4.mul(x, x);
   let p = f32x4.splat(0.0028662257);
   p = f32x4.add(f32x4.mul(p, x2), f32x4.splat(-0.0161657367));

@@ -5,7 +5,7 @@
 // Images are given padded (arith.ts padImage2d): `pad` is x-fastest ((nx+2) x (ny+2)) and is
 // read by y-major sweeps; `padT` is y-fastest and read by x-major sweeps, so that both sweeps
 // interpolate between neighbours adjacent in memory (one 64-bit load per lane).
-import { ldf, ldi, stf, MAGIC, MAGIC_BITS } from './memory';
+import { clampIndex, floorOffsets, ldf, ldi, stf, MAGIC, MAGIC_BITS } from './memory';
 import { buildRayTable } from './rays';
 
 /**
@@ -91,17 +91,16 @@ export function josephAdjoint2d(
   const B = v128.load(table + (<usize>((first + 1) * nPad + k) << 2));
   const zero = f32x4.splat(0);
   const top = f32x4.splat(<f32>(n + 1));
-  const half = f32x4.splat(0.5);
   const magic = f32x4.splat(MAGIC);
   const magicBits = i32x4.splat(MAGIC_BITS);
   const lineBytes = <usize>lineLen << 2;
   let line = pad + <usize>(lo + 1) * lineBytes;
   let fi = <f32>lo;
   for (let i = lo; i <= hi; i++) {
-    const t = f32x4.min(f32x4.max(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero), top);
-    const r = f32x4.add(f32x4.sub(t, half), magic);
-    const off = i32x4.shl(i32x4.sub(r, magicBits), 2);
-    const frac = f32x4.sub(t, f32x4.sub(r, magic));
+    const t = clampIndex(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero, top);
+    const fl = f32x4.floor(t);
+    const off = floorOffsets(fl, magic, magicBits);
+    const frac = f32x4.sub(t, fl);
     let ab = v128.load64_lane(line + <usize>i32x4.extract_lane(off, 0), zero, 0);
     ab = v128.load64_lane(line + <usize>i32x4.extract_lane(off, 1), ab, 1);
     let cd = v128.load64_lane(line + <usize>i32x4.extract_lane(off, 2), zero, 0);
@@ -126,17 +125,16 @@ export function josephAdjoint2d(
   const B = v128.load(table + (<usize>((first + 1) * nPad + k) << 2));
   const zero = f32x4.splat(0);
   const top = f32x4.splat(<f32>(n + 1));
-  const half = f32x4.splat(0.5);
   const magic = f32x4.splat(MAGIC);
   const magicBits = i32x4.splat(MAGIC_BITS);
   const lineBytes = <usize>lineLen << 2;
   let line = pad + <usize>(lo + 1) * lineBytes;
   let fi = <f32>lo;
   for (let i = lo; i <= hi; i++) {
-    const t = f32x4.min(f32x4.max(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero), top);
-    const r = f32x4.add(f32x4.sub(t, half), magic);
-    const off = i32x4.shl(i32x4.sub(r, magicBits), 2);
-    const frac = f32x4.sub(t, f32x4.sub(r, magic));
+    const t = clampIndex(f32x4.add(A, f32x4.mul(B, f32x4.splat(fi))), zero, top);
+    const fl = f32x4.floor(t);
+    const off = floorOffsets(fl, magic, magicBits);
+    const frac = f32x4.sub(t, fl);
     const hiPart = f32x4.mul(val, frac);
     const loPart = f32x4.sub(val, hiPart);
     addPair(line + <usize>i32x4.extract_lane(off, 0), f32x4.extract_lane(loPart, 0), f32x4.extract_lane(hiPart, 0));

@@ -5,6 +5,7 @@
 import { main } from 'assemblyscript/asc';
 import { build } from 'esbuild';
 import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
+import { writeOrtRuntime } from './build-ort.mjs';
 
 const targets = process.argv.includes('--debug') ? ['debug'] : ['release', 'shared'];
 mkdirSync('build', { recursive: true });
@@ -30,6 +31,7 @@ if (!process.argv.includes('--debug')) {
   );
 }
 if (!process.argv.includes('--debug')) {
+  writeOrtRuntime('build');
   await build({
     entryPoints: { cli: 'web/cli/main.ts', 'kernel-worker': 'web/worker/node-kernel-worker.ts' },
     outdir: 'build',
@@ -39,6 +41,8 @@ if (!process.argv.includes('--debug')) {
     format: 'esm',
     target: 'node20',
     sourcemap: true,
+    // CommonJS dependencies (dicom-parser) require Node built-ins such as zlib at load time.
+    banner: { js: "import { createRequire as __rimfillCreateRequire } from 'node:module'; const require = __rimfillCreateRequire(import.meta.url);" },
     logLevel: 'warning',
   });
 }

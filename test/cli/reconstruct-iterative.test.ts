@@ -57,19 +57,27 @@ describe('rimfill reconstruct, iterative methods', () => {
     const b = await reconstruct([f('scan.nrrd'), '--method', 'prior', '--prior', 'fbp', '--filter', 'hann', '--size', '48', '--pixel', '4',
       '--iterations', '2', '--workers', '1', '--out', f('prior-fbp.nrrd'), '--json']);
     const jb = b.json as { recipe: { prior: unknown } };
-    expect(jb.recipe.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', cutoff: 1, grid: { size: 48, pixel: 4 } } });
+    expect(jb.recipe.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', cutoff: 1, extend: 'none', grid: { size: 48, pixel: 4 } } });
     expect(existsSync(f('prior-fbp.nrrd'))).toBe(true);
+    // --extend goes to the prior's recipe (water-extrapolated FBP as the prior).
+    const c = await reconstruct([f('scan.nrrd'), '--method', 'prior', '--prior', 'fbp', '--extend', 'water', '--size', '48', '--pixel', '4',
+      '--iterations', '1', '--workers', '1', '--out', f('prior-water.nrrd'), '--json']);
+    const jc = c.json as { recipe: { extend?: string; prior: { recipe: { extend: string } } } };
+    expect(jc.recipe.prior.recipe.extend).toBe('water');
+    expect(jc.recipe.extend ?? 'none').toBe('none');
   });
 
   it.each([
     [['--method', 'fbp', '--iterations', '3'], /option --iterations: only for the iterative methods/],
-    [['--method', 'prior'], /option --prior is required for --method prior/],
-    [['--method', 'sart', '--prior', 'x.nrrd'], /option --prior: only for --method prior/],
+    [['--method', 'prior'], /--method prior needs a prior: --prior image.nrrd/],
+    [['--method', 'sart', '--prior', 'x.nrrd'], /options --prior, --model, --model-info: only for --method prior, not --method sart/],
+    [['--method', 'sart', '--extend', 'water'], /option --extend: got "water" for method "sart", expected "none"/],
     [['--method', 'prior', '--prior', 'missing.nrrd'], /prior .*missing.nrrd: cannot open/],
-    [['--method', 'prior', '--prior', 'prior'], /recipe prior.recipe.method: got "prior"/],
-    [['--method', 'prior', '--prior', 'banana'], /recipe method: got "banana"/],
-    [['--method', 'tv', '--support', 'oval'], /recipe support: got "oval"/],
-    [['--method', 'wtv', '--tv-eps', '0'], /recipe tvEps: got 0/],
+    [['--method', 'prior', '--prior', 'prior'], /option --prior: got "prior", expected an image file \(.nrrd\) or a method \(fbp, sart, tv, wtv\)/],
+    [['--method', 'prior', '--prior', 'banana'], /option --prior: got "banana"/],
+    [['--method', 'prior', '--model', 'net.onnx'], /needs --prior image.nrrd, or --model net.onnx with --model-info net.json \(both\)/],
+    [['--method', 'tv', '--support', 'oval'], /option --support: got "oval", expected circle, grid or a mask image/],
+    [['--method', 'wtv', '--tv-eps', '0'], /option --tv-eps: got 0/],
   ])('%j: a clear error and nothing written', async (args, message) => {
     const out = f(`bad-${args.join('-')}.nrrd`);
     await expect(reconstruct([f('scan.nrrd'), ...args, '--size', '48', '--pixel', '4', '--workers', '1', '--out', out])).rejects.toThrow(message);

@@ -10,7 +10,8 @@ import { Projector2d } from '../../web/core/recon/projector';
 import { seededRandom } from '../../web/core/simulate/noise';
 import { localWorkspace } from '../helpers/engine';
 import { fanFlat } from '../helpers/geometries';
-import { privatePool, sharedPool } from '../helpers/pools';
+import { openWorkspace } from '../../web/cli/engine-node';
+import { privatePool } from '../helpers/private-pool';
 
 const grid = { ...squareGrid(61, 2.1), cx: 3, cy: -2 };
 const geometry = fanFlat(97, 1.5, 24);
@@ -41,7 +42,7 @@ afterAll(() => pools.forEach((p) => p.dispose()));
 
 describe('projector on worker pools', () => {
   it.each([
-    ['shared memory, 2 workers', () => sharedPool(2)],
+    ['shared memory, 2 workers', () => openWorkspace(2)],
     ['private memories, 2 workers', () => privatePool(2)],
     ['local, 3 parts', () => localWorkspace(3)],
   ])('%s: same bits as one thread', async (_, open) => {

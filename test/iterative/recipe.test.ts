@@ -22,7 +22,9 @@ describe('iterative recipe fields', () => {
 
   it('validates the prior source, including the recipe of a prior', () => {
     const r = validateRecipe({ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', filter: 'hann' } } });
-    expect(r.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', cutoff: 1 } });
+    expect(r.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', cutoff: 1, extend: 'none' } });
+    const water = validateRecipe({ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', extend: 'water' } } });
+    expect(water.prior).toMatchObject({ recipe: { extend: 'water' } });
     expect(validateRecipe({ method: 'prior', prior: { source: 'image' } }).prior).toEqual({ source: 'image' });
   });
 
@@ -45,6 +47,7 @@ describe('iterative recipe fields', () => {
     [{ method: 'prior', prior: { source: 'recipe', recipe: { method: 'prior' } } }, /recipe prior.recipe.method: got "prior"/],
     [{ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', filter: 'box' } } }, /recipe filter: got "box"/],
     [{ method: 'art' }, /recipe method: got "art", expected one of fbp, sart, tv, wtv, prior/],
+    [{ method: 'tv', extend: 'mirror' }, /recipe extend: got "mirror" for method "tv", expected "none"/],
   ])('%j is refused', (raw, message) => {
     expect(() => validateRecipe(raw)).toThrow(InputError);
     expect(() => validateRecipe(raw)).toThrow(message);

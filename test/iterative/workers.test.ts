@@ -18,7 +18,8 @@ import { addPhotonNoise } from '../../web/core/simulate/noise';
 import type { Scan } from '../../web/core/scan';
 import { localWorkspace } from '../helpers/engine';
 import { fanFlat } from '../helpers/geometries';
-import { privatePool, sharedPool } from '../helpers/pools';
+import { openWorkspace } from '../../web/cli/engine-node';
+import { privatePool } from '../helpers/private-pool';
 
 const p = sheppLogan('modified', 60);
 let scan: Scan;
@@ -46,7 +47,7 @@ describe('iterative methods on workers', () => {
     const inputs = { prior };
     const one = await runRecipe(await localWorkspace(1), scan, recipe, {}, inputs);
     const two = await runRecipe(await localWorkspace(2), scan, recipe, {}, inputs);
-    const shared = await sharedPool(2);
+    const shared = await openWorkspace(2);
     const priv = await privatePool(2);
     pools.push(shared, priv);
     const onShared = await runRecipe(shared, scan, recipe, {}, inputs);

@@ -1,5 +1,6 @@
 // Loading the engine in Node: the built wasm files and the bundled kernel worker sit in build/.
 import { readFileSync, existsSync } from 'node:fs';
+import { setFlagsFromString } from 'node:v8';
 import { fileURLToPath } from 'node:url';
 import { LocalWorkspace } from '../core/engine/local-workspace';
 import type { Workspace } from '../core/engine/workspace';
@@ -11,6 +12,11 @@ function buildDir(): URL {
   if (existsSync(fileURLToPath(new URL('engine.wasm', here)))) return here;
   return new URL('../../build/', import.meta.url);
 }
+
+// A CLI run calls each kernel a few times on large data: compile with the optimizing tier from
+// the start instead of V8's baseline tier (about 2x slower code, toolchain.md), which a long
+// kernel call would otherwise run in until it returns. Must precede the first compile.
+setFlagsFromString('--no-liftoff');
 
 function load(name: string): WebAssembly.Module {
   const url = new URL(name, buildDir());

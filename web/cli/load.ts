@@ -1,13 +1,32 @@
-// Reading the CLI's inputs: scans (with an optional geometry side file or preset) and images.
+// Reading the CLI's inputs through the one entry point per kind (web/core/formats/read-scan.ts,
+// read-image.ts): scans in any supported format with an optional geometry side file or preset,
+// dark/flat frames or i0, and mu_water; images (NRRD, MetaImage, raw + JSON, DICOM, TIFF).
 import { InputError } from '../core/errors';
 import { presetGeometry, PRESET_NAMES } from '../core/geometry/presets';
 import type { Geometry } from '../core/geometry/types';
 import { validateGeometry } from '../core/geometry/validate';
-import { readImageNrrd } from '../core/formats/image-nrrd';
-import { readScanNrrd } from '../core/formats/scan-nrrd';
+import { readImage2D } from '../core/formats/read-image';
+import { readScanFile } from '../core/formats/read-scan';
+import type { ScanReadResult } from '../core/formats/scan-assembly';
+import { readVolumeNrrd } from '../core/formats/volume-nrrd';
 import type { Image2D } from '../core/image';
+import { checkMuWater } from '../core/preprocess/hu-calibration';
 import type { Scan } from '../core/scan';
+import type { OptionType, ParsedArgs } from './args';
+import { gatherFiles } from './gather';
 import { readBytes, readJson } from './io';
+
+/** Options every command that reads a scan accepts (design.md, "Command line"). */
+export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
+  geometry: 'string', flat: 'string', dark: 'string', i0: 'number', 'mu-water': 'number', 'memory-limit': 'number', 'line-integrals': 'flag',
+  saturation: 'number', 'bad-pixels': 'string', 'water-polynomial': 'string',
+};
+
+export const SCAN_INPUT_HELP = `    [--geometry geom.json] [--flat F] [--dark F] [--i0 N] [--mu-water X] [--memory-limit MB]
+    [--line-integrals] [--saturation N] [--bad-pixels mask] [--water-polynomial c1,c2,...]
+    (TIFF frames are intensities unless --line-integrals; the mask is one frame, non-zero = bad;
+    the polynomial maps each line integral p to c1 p + c2 p^2 + ...)`;
+import type { Volume } from '../core/volume';
 
 /** A geometry from a preset name or a JSON file. */
 export function loadGeometry(nameOrPath: string): Geometry {
@@ -19,19 +38,60 @@ export function loadGeometry(nameOrPath: string): Geometry {
   return validateGeometry(readJson(nameOrPath, 'geometry'));
 }
 
-function checkExtension(path: string, what: string): void {
-  if (!/\.nrrd$/i.test(path)) throw new InputError(`${what} ${path}: expected a .nrrd file`);
+/** The --memory-limit option in bytes, when given. */
+export function memoryLimit(a?: ParsedArgs): number | undefined {
+  const mb = a?.options['memory-limit'];
+  if (mb === undefined) return undefined;
+  if (typeof mb !== 'number' || !(mb > 0)) throw new InputError(`option --memory-limit: got ${mb}, expected megabytes (> 0)`);
+  return mb * 2 ** 20;
 }
 
-/** Reads a scan file; `geometryPath` supplies or replaces its geometry. */
-export async function loadScan(path: string, geometryPath?: string): Promise<Scan> {
-  checkExtension(path, 'scan');
-  const g = geometryPath ? loadGeometry(geometryPath) : undefined;
-  return readScanNrrd(readBytes(path, 'scan'), g);
+function polynomial(text: string | undefined): number[] | undefined {
+  if (text === undefined) return undefined;
+  const c = text.split(',').map(Number);
+  if (text.trim() === '' || c.some((x) => !Number.isFinite(x))) throw new InputError(`option --water-polynomial: got "${text}", expected coefficients c1,c2,... separated by commas`);
+  return c;
 }
 
-/** Reads an image file (values as mu). */
-export async function loadImage(path: string, what = 'image', muWater?: number): Promise<Image2D> {
-  checkExtension(path, what);
-  return readImageNrrd(readBytes(path, what), muWater);
+/** Reads a scan (file or folder) with the scan-input options of `a`, reporting what preprocessing did. */
+export async function loadScanWithReport(path: string, a?: ParsedArgs): Promise<ScanReadResult> {
+  const o = a?.options ?? {};
+  const str = (k: string) => (typeof o[k] === 'string' ? (o[k] as string) : undefined);
+  const num = (k: string) => (typeof o[k] === 'number' ? (o[k] as number) : undefined);
+  const level = (k: 'flat' | 'dark') => {
+    const v = str(k);
+    if (v === undefined) return undefined;
+    const n = Number(v);
+    return v.trim() !== '' && Number.isFinite(n) ? n : gatherFiles(v, `${k} frame`);
+  };
+  const i0 = num('i0');
+  if (i0 !== undefined && !(i0 > 0)) throw new InputError(`option --i0: got ${i0}, expected the positive reading of the unattenuated beam`);
+  const mw = num('mu-water');
+  return readScanFile(gatherFiles(path, 'scan'), {
+    geometry: str('geometry') ? loadGeometry(str('geometry')!) : undefined,
+    flat: level('flat'), dark: level('dark'), i0,
+    quantity: o['line-integrals'] ? 'line-integral' : undefined,
+    badPixels: str('bad-pixels') ? gatherFiles(str('bad-pixels')!, 'bad-pixel mask') : undefined,
+    correction: { saturation: num('saturation'), waterPolynomial: polynomial(str('water-polynomial')) },
+    muWater: mw === undefined ? undefined : checkMuWater(mw, 'option --mu-water'),
+    maxBytes: memoryLimit(a),
+  });
+}
+
+/** Reads a scan; `geometryPath` supplies or replaces its geometry (kept for callers that pass only that). */
+export async function loadScan(path: string, geometryOrArgs?: string | ParsedArgs): Promise<Scan> {
+  const a: ParsedArgs | undefined = typeof geometryOrArgs === 'string' ? { positional: [], options: { geometry: geometryOrArgs } } : geometryOrArgs;
+  return (await loadScanWithReport(path, a)).scan;
+}
+
+/** Reads an image (file or folder) as mu; HU data need mu_water (the file's or given). */
+export async function loadImage(path: string, what = 'image', muWater?: number, slice?: number): Promise<Image2D> {
+  const { image } = await readImage2D(gatherFiles(path, what), { muWater, slice });
+  return image;
+}
+
+/** Reads a volume file (NRRD, values as mu). */
+export async function loadVolume(path: string, what = 'volume', muWater?: number): Promise<Volume> {
+  if (!/\.nrrd$/i.test(path)) throw new InputError(`${what} ${path}: expected a .nrrd volume`);
+  return readVolumeNrrd(readBytes(path, what), muWater);
 }

@@ -2,9 +2,12 @@
 // stderr, nothing written), 1 internal error.
 import { InputError } from '../core/errors';
 import { bench, benchHelp } from './commands/bench';
+import { calibrate, calibrateHelp } from './commands/calibrate';
 import { compare, compareHelp } from './commands/compare';
 import { demo, demoHelp } from './commands/demo';
+import { exportCommand, exportHelp } from './commands/export';
 import { inspect, inspectHelp } from './commands/inspect';
+import { priorCheck, priorCheckHelp } from './commands/prior-check';
 import { reconstruct, reconstructHelp } from './commands/reconstruct';
 import { simulate, simulateHelp } from './commands/simulate';
 import type { CommandResult } from './commands/types';
@@ -14,6 +17,9 @@ const COMMANDS: Record<string, { run: (argv: string[]) => Promise<CommandResult>
   inspect: { run: inspect, help: inspectHelp },
   reconstruct: { run: reconstruct, help: reconstructHelp },
   compare: { run: compare, help: compareHelp },
+  export: { run: exportCommand, help: exportHelp },
+  calibrate: { run: calibrate, help: calibrateHelp },
+  'prior-check': { run: priorCheck, help: priorCheckHelp },
   bench: { run: bench, help: benchHelp },
   demo: { run: demo, help: demoHelp },
 };

@@ -3,6 +3,7 @@
 // and the page.
 import { InputError } from './errors';
 import type { Image2D } from './image';
+import { cupping, type CuppingFigures } from './cupping';
 import { circleMask, psnr, rmse, ssim } from './metrics';
 import { resampleBilinear, sameGrid } from './resample';
 
@@ -20,6 +21,8 @@ export interface Comparison {
   /** True when the reference was resampled onto the image grid. */
   resampled: boolean;
   fovRadiusMm: number | null;
+  /** Centre-to-rim shape inside the FOV (object pixels, mu), when the FOV radius is known. */
+  cupping: CuppingFigures | null;
   notes: string[];
 }
 
@@ -68,7 +71,6 @@ export function compareImages(image: Image2D, reference: Image2D, fovRadius?: nu
       inside[i] = c[i] & object[i];
       outside[i] = (1 - c[i]) & object[i];
     }
-  } else {
   }
   return {
     unit: muWater ? 'HU' : '1/mm',
@@ -80,6 +82,7 @@ export function compareImages(image: Image2D, reference: Image2D, fovRadius?: nu
     },
     resampled,
     fovRadiusMm: fov ?? null,
+    cupping: fov !== undefined ? cupping(image, fov, ref, object) : null,
     notes,
   };
 }

@@ -5,8 +5,7 @@ import { createMemory } from '../core/engine/instance';
 import { PoolWorkspace } from './pool-workspace';
 import type { KernelResponse, WorkerPort } from './protocol';
 
-/** A pool port over a worker_threads Worker. */
-export function nodePort(worker: Worker): WorkerPort {
+function nodePort(worker: Worker): WorkerPort {
   return {
     post: (msg, transfer) => worker.postMessage(msg, transfer ?? []),
     onMessage: (h) => worker.on('message', (m: KernelResponse) => h(m)),
@@ -19,19 +18,22 @@ export function nodePort(worker: Worker): WorkerPort {
 }
 
 /**
- * A pool of `workers` kernel workers (default: one per core) over one shared memory.
- * `workerUrl` is the bundled worker script (build/kernel-worker.mjs); `sharedModule` the shared
- * build of the engine (build/engine-shared.wasm).
+ * A pool of `workers` kernel workers (default: one per core). With `shared` (the default) they
+ * share one memory and `module` must be the shared build (build/engine-shared.wasm); without,
+ * each has a private memory (the module is build/engine.wasm) and the pool copies data between
+ * them, as the page does when it is not cross-origin isolated.
+ * `workerUrl` is the bundled worker script (build/kernel-worker.mjs).
  */
 export async function createNodePool(
-  sharedModule: WebAssembly.Module,
+  module: WebAssembly.Module,
   workerUrl: URL,
   workers = availableParallelism(),
+  shared = true,
 ): Promise<PoolWorkspace> {
   const ports = Array.from({ length: Math.max(1, workers) }, () => {
     const w = new Worker(workerUrl);
     w.unref();
     return nodePort(w);
   });
-  return PoolWorkspace.create(ports, sharedModule, createMemory(true));
+  return PoolWorkspace.create(ports, module, shared ? createMemory(true) : undefined);
 }

@@ -1,129 +1,60 @@
-// rimfill bench: kernel throughput on the benchmark problem of the engine issue (512 x 512
-// image, 720 views over 360 degrees, 1024 channels, fan beam with a flat detector), with one
-// and with two workers, against a plain TypeScript baseline.
-import { availableParallelism } from 'node:os';
-import { validateGeometry } from '../../core/geometry/validate';
-import { firstChannelU, viewVectors } from '../../core/geometry/view-vectors';
-import { gridOrigin, squareGrid } from '../../core/image';
-import { thorax } from '../../core/phantoms/thorax';
-import { rasterize } from '../../core/phantoms/ellipse';
-import { fbp2d } from '../../core/recon/fbp';
-import { Projector2d } from '../../core/recon/projector';
-import { parseArgs } from '../args';
-import { benchIterative, iterativeLines } from '../bench/iterative';
-import { backprojectFanFlatTs } from '../bench/ts-backproject';
+// rimfill bench: speed and memory of the engine's parts. Each section runs in a fresh process
+// (so its peak resident memory is its own) and prints its figures; targets live here, never in
+// tests.
+import { spawnSync } from 'node:child_process';
 import { InputError } from '../../core/errors';
-import { openWorkspace } from '../engine-node';
+import { parseArgs } from '../args';
+import { measureRead } from '../bench/formats';
+import { SECTIONS } from '../bench/sections';
 import type { CommandResult } from './types';
 
-/** Sections of the benchmark, run in this order. */
-export const BENCH_SECTIONS = ['kernels', 'iterative'] as const;
-type Section = (typeof BENCH_SECTIONS)[number];
+export const benchHelp = `rimfill bench [--only ${SECTIONS.map((s) => s.name).join(',')}] [--repeat K] [--json]
+  Times the engine's parts; each section runs in its own process and reports its peak memory.
+${SECTIONS.map((s) => `    ${s.name.padEnd(10)} ${s.about}`).join('\n')}`;
 
-export const benchHelp = `rimfill bench [--only ${BENCH_SECTIONS.join('|')}] [--repeat K] [--json]
-  Times the kernels on the standard problem (512x512, 720 views, 1024 channels, fan beam) and
-  20 iterations of OS-SART + reweighted TV (512x512 extended grid, 360 views), with one and two
-  workers. --only runs one section (sections: ${BENCH_SECTIONS.join(', ')}). --repeat K times
-  each kernel K times (default 3) and each iterative run K times (default 1); best or median.`;
+interface SectionOutput {
+  name: string;
+  json: unknown;
+  lines: string[];
+  peakRssMb: number;
+}
 
-const now = () => performance.now() / 1000;
-
-function median(xs: number[]): number {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
+function selected(only: unknown): typeof SECTIONS {
+  if (only === undefined) return SECTIONS;
+  const names = String(only).split(',').map((s) => s.trim());
+  const unknown = names.filter((n) => !SECTIONS.some((s) => s.name === n));
+  if (unknown.length) throw new InputError(`option --only: got "${unknown[0]}", expected one or more of ${SECTIONS.map((s) => s.name).join(', ')}`);
+  return SECTIONS.filter((s) => names.includes(s.name));
 }
 
 export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string' }, 0);
+  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string', section: 'string', read: 'string' }, 0);
   const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
-  const only = a.options.only as string | undefined;
-  if (only !== undefined && !(BENCH_SECTIONS as readonly string[]).includes(only)) {
-    throw new InputError(`option --only: got "${only}", expected one of ${BENCH_SECTIONS.join(', ')}`);
+  const cliPath = process.argv[1];
+  if (typeof a.options.read === 'string') {
+    // One measured read, run in a child process by the formats section.
+    const figures = await measureRead(a.options.read);
+    return { json: figures, text: JSON.stringify(figures) };
   }
-  const sections: Section[] = only ? [only as Section] : [...BENCH_SECTIONS];
-  const json: Record<string, unknown> = {};
+  if (typeof a.options.section === 'string') {
+    // One section in this (fresh) process: the parent collects its JSON.
+    const s = SECTIONS.find((x) => x.name === a.options.section);
+    if (!s) throw new InputError(`option --section: got "${a.options.section}"`);
+    const r = await s.run(repeat, cliPath);
+    const out: SectionOutput = { name: s.name, json: r.json, lines: r.lines, peakRssMb: process.resourceUsage().maxRSS / 1024 };
+    return { json: out, text: JSON.stringify(out) };
+  }
+  const outputs: SectionOutput[] = [];
   const text: string[] = [];
-  if (sections.includes('kernels')) {
-    const k = await benchKernels(repeat);
-    Object.assign(json, k.json);
-    text.push(k.text);
+  for (const s of selected(a.options.only)) {
+    if (!a.options.json) process.stderr.write(`bench: ${s.name}...\n`);
+    const child = spawnSync(process.execPath, [cliPath, 'bench', '--section', s.name, '--repeat', String(repeat), '--json'], {
+      encoding: 'utf8', maxBuffer: 64 * 2 ** 20,
+    });
+    if (child.status !== 0) throw new Error(`bench section ${s.name} failed: ${child.stderr.trim().split('\n').slice(-3).join(' ')}`);
+    const o = JSON.parse(child.stdout.trim().split('\n').at(-1)!) as SectionOutput;
+    outputs.push(o);
+    text.push(`== ${o.name}`, ...o.lines, `peak resident memory of this section: ${o.peakRssMb.toFixed(0)} MB`, '');
   }
-  if (sections.includes('iterative')) {
-    // One timed run per row unless --repeat asks for more (best of K): each run takes seconds.
-    const it = await benchIterative(Math.max(1, (a.options.repeat as number | undefined) ?? 1));
-    json.iterative = it;
-    text.push(iterativeLines(it).join('\n'));
-  }
-  json.peakRssMb = process.resourceUsage().maxRSS / 1024;
-  return { json, text: text.join('\n\n') };
-}
-
-async function benchKernels(repeat: number): Promise<{ json: Record<string, unknown>; text: string }> {
-  const geometry = validateGeometry({
-    kind: 'fan', detector: { shape: 'flat', channels: 1024, rows: 1, pitch: [1.0, 1.0], offset: [0, 0] },
-    sourceIsocenter: 600, sourceDetector: 1000, anglesDeg: { start: 0, step: 0.5, count: 720 },
-  });
-  const grid = squareGrid(512, 0.7);
-  const phantom = rasterize(thorax(), grid, 1);
-  const updates = 512 * 512 * 720;
-  const rows: Array<{ name: string; workers: number; seconds: number; mupdPerS?: number }> = [];
-  let sino: Float32Array = new Float32Array(0);
-
-  for (const workers of [1, Math.min(2, availableParallelism())]) {
-    if (rows.some((r) => r.workers === workers)) break;
-    const ws = await openWorkspace(workers);
-    try {
-      // Forward projection (also makes the sinogram for FBP).
-      const fp: number[] = [];
-      for (let r = 0; r <= repeat; r++) {
-        ws.reset();
-        const proj = await Projector2d.create(ws, grid, geometry);
-        const img = ws.alloc('img', phantom.length);
-        const s = ws.alloc('sino', proj.nViews * proj.nCh);
-        await ws.write(img, phantom);
-        const t = now();
-        await proj.forward(img, s);
-        if (r > 0) fp.push(now() - t); // the first run warms up the compiler
-        sino = await ws.read(s);
-      }
-      rows.push({ name: 'forward projection (Joseph)', workers, seconds: median(fp), mupdPerS: updates / median(fp) / 1e6 });
-      const fbpT: number[] = [], bpT: number[] = [];
-      for (let r = 0; r <= repeat; r++) {
-        const t = now();
-        const res = await fbp2d(ws, { geometry, data: sino }, { grid });
-        if (r > 0) {
-          fbpT.push(now() - t);
-          bpT.push(res.timings.backproject);
-        }
-      }
-      rows.push({ name: 'backprojection (pixel-driven)', workers, seconds: median(bpT), mupdPerS: updates / median(bpT) / 1e6 });
-      rows.push({ name: 'FBP (weights + filter + backprojection)', workers, seconds: median(fbpT) });
-    } finally {
-      ws.dispose();
-    }
-  }
-
-  // Baseline: the same backprojection in plain TypeScript, one thread.
-  const views = viewVectors(geometry);
-  const stride = 1024 + 3;
-  const filt = new Float32Array(720 * stride).map((_, i) => Math.sin(i * 0.001));
-  const { x0, y0 } = gridOrigin(grid);
-  const img = new Float32Array(512 * 512);
-  const t = now();
-  backprojectFanFlatTs(img, 512, 512, grid.dx, grid.dy, x0, y0, views, 720, filt, stride, 1024, firstChannelU(geometry), 1.0);
-  const tsSeconds = now() - t;
-  rows.push({ name: 'backprojection, plain TypeScript baseline', workers: 1, seconds: tsSeconds, mupdPerS: updates / tsSeconds / 1e6 });
-
-  const bp1 = rows.find((r) => r.name.startsWith('backprojection (') && r.workers === 1)!.seconds;
-  const bpN = rows.filter((r) => r.name.startsWith('backprojection (')).at(-1)!.seconds;
-  const ratios = { simdVsTypeScript: tsSeconds / bp1, twoWorkerSpeedup: bp1 / bpN };
-  const peakRssMb = process.resourceUsage().maxRSS / 1024;
-  const text = [
-    'problem: 512x512 image, 720 views over 360 degrees, 1024 channels, fan beam, flat detector',
-    ...rows.map((r) => `${r.name.padEnd(44)} ${String(r.workers).padStart(2)} worker(s)  ${(r.seconds * 1000).toFixed(0).padStart(6)} ms${r.mupdPerS ? `  ${r.mupdPerS.toFixed(0).padStart(5)} M pixel-view updates/s` : ''}`),
-    `ratio SIMD Wasm / plain TypeScript backprojection: ${ratios.simdVsTypeScript.toFixed(1)}x`,
-    `speed-up 1 -> 2 workers (backprojection): ${ratios.twoWorkerSpeedup.toFixed(2)}x`,
-    `peak resident memory: ${peakRssMb.toFixed(0)} MB`,
-  ].join('\n');
-  return { json: { rows, ratios, peakRssMb }, text };
+  return { json: { sections: outputs }, text: text.join('\n').trimEnd() };
 }

@@ -1,35 +1,68 @@
-// rimfill compare: figures of merit of an image against a reference.
-import { compareImages } from '../../core/compare';
+// rimfill compare: figures of merit of an image against a reference and/or the measured data.
+import { compareImages, type Comparison } from '../../core/compare';
+import { dataResidual, type DataResidual } from '../../core/data-residual';
 import { InputError } from '../../core/errors';
-import { parseArgs, requireString } from '../args';
-import { loadImage } from '../load';
+import { parseArgs } from '../args';
+import { openWorkspace } from '../engine-node';
+import { loadImage, loadScan, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import type { CommandResult } from './types';
 
-export const compareHelp = `rimfill compare image.nrrd --reference truth.nrrd [--fov] [--fov-radius mm] [--json]
-  RMSE (HU when mu_water is known), PSNR and SSIM over the image, the object, and with --fov
-  inside and outside the measured field of view (radius from the image file, or --fov-radius).`;
+export const compareHelp = `rimfill compare image.nrrd [--reference truth.nrrd] [--scan scan.nrrd] [--fov]
+    [--fov-radius mm] [--workers N] [--json]
+${SCAN_INPUT_HELP}
+  With --reference: RMSE (HU when mu_water is known), PSNR and SSIM (Wang et al. 2004) over the
+  image, the object, and with --fov inside and outside the measured field of view (radius from
+  the image file, or --fov-radius), plus cupping (rim / centre inside the FOV against the
+  reference's). With --scan: the data residual of the image re-projected onto the scan's
+  measured channels. At least one of the two. Images may be NRRD, MetaImage, raw + JSON, DICOM
+  or TIFF; HU images need mu_water (--mu-water).`;
 
-function table(c: ReturnType<typeof compareImages>): string {
+function table(c: Comparison): string {
   const rows = [['region', 'pixels', `RMSE (${c.unit})`, 'PSNR (dB)', 'SSIM']];
   for (const [name, f] of Object.entries(c.regions)) {
     if (f) rows.push([name, String(f.pixels), f.rmse.toFixed(c.unit === 'HU' ? 1 : 6), f.psnr.toFixed(2), f.ssim.toFixed(4)]);
   }
   const w = rows[0].map((_, i) => Math.max(...rows.map((r) => r[i].length)));
-  return rows.map((r) => r.map((s, i) => (i ? s.padStart(w[i]) : s.padEnd(w[i]))).join('  ')).join('\n');
+  const lines = rows.map((r) => r.map((s, i) => (i ? s.padStart(w[i]) : s.padEnd(w[i]))).join('  '));
+  if (c.cupping) {
+    const k = c.cupping;
+    lines.push(`cupping inside the FOV: rim / centre ${k.ratio.toFixed(3)}${k.referenceRatio === null ? '' : ` (reference ${k.referenceRatio.toFixed(3)})`}, excess ${(100 * k.excess).toFixed(1)}%`);
+  }
+  return lines.join('\n');
+}
+
+function residualLine(r: DataResidual): string {
+  return `data residual on the measured channels: RMS ${r.rms.toPrecision(3)} (relative ${(100 * r.relative).toFixed(2)}%), bias ${r.bias.toPrecision(3)}, worst view ${r.worstView} (RMS ${r.worstViewRms.toPrecision(3)})`;
 }
 
 export async function compare(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { reference: 'string', fov: 'flag', 'fov-radius': 'number', json: 'flag' }, 1);
+  const a = parseArgs(argv, { ...SCAN_INPUT_OPTIONS, reference: 'string', scan: 'string', fov: 'flag', 'fov-radius': 'number', workers: 'int', json: 'flag' }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('compare: give the image file, e.g. rimfill compare image.nrrd --reference truth.nrrd');
-  const image = await loadImage(path);
-  const reference = await loadImage(requireString(a, 'reference'), 'reference', image.muWater);
-  let fov: number | undefined;
-  if (a.options['fov-radius'] !== undefined) fov = a.options['fov-radius'] as number;
-  else if (a.options.fov) {
-    fov = image.fovRadius ?? reference.fovRadius;
-    if (fov === undefined) throw new InputError('option --fov: neither file records the field of view; give --fov-radius mm');
+  const refPath = a.options.reference as string | undefined, scanPath = a.options.scan as string | undefined;
+  if (!refPath && !scanPath) throw new InputError('compare: give --reference truth.nrrd, --scan scan.nrrd, or both');
+  const image = await loadImage(path, 'image', a.options['mu-water'] as number | undefined);
+  const scan = scanPath ? await loadScan(scanPath, a) : undefined;
+  let comparison: Comparison | undefined;
+  if (refPath) {
+    const reference = await loadImage(refPath, 'reference', image.muWater);
+    let fov: number | undefined;
+    if (a.options['fov-radius'] !== undefined) fov = a.options['fov-radius'] as number;
+    else if (a.options.fov) {
+      fov = image.fovRadius ?? reference.fovRadius;
+      if (fov === undefined) throw new InputError('option --fov: neither file records the field of view; give --fov-radius mm');
+    }
+    comparison = compareImages(image, reference, fov);
   }
-  const c = compareImages(image, reference, fov);
-  return { json: c, text: table(c), warnings: c.notes };
+  let residual: DataResidual | undefined;
+  if (scan) {
+    const ws = await openWorkspace(a.options.workers as number | undefined);
+    try {
+      residual = await dataResidual(ws, image, scan);
+    } finally {
+      ws.dispose();
+    }
+  }
+  const text = [comparison ? table(comparison) : '', residual ? residualLine(residual) : ''].filter(Boolean).join('\n');
+  return { json: { ...(comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: comparison?.notes };
 }

@@ -1,7 +1,11 @@
 // rimfill demo: the whole job on the built-in demo scan: simulate a truncated scan of the
-// thorax phantom, reconstruct it, and compare with the ground truth.
+// thorax phantom, inspect it, reconstruct it without and with each detector extension, and
+// compare every result with the ground truth and with the measured data.
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
+import type { Comparison } from '../../core/compare';
+import type { DataResidual } from '../../core/data-residual';
+import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { parseArgs } from '../args';
 import { simulate } from './simulate';
 import { reconstruct } from './reconstruct';
@@ -9,10 +13,32 @@ import { compare } from './compare';
 import { inspect } from './inspect';
 import type { CommandResult } from './types';
 
-export const demoHelp = `rimfill demo [--dir folder]
+export const demoHelp = `rimfill demo [--dir folder] [--json]
   Simulates a truncated scan of the thorax phantom (detector covering about 60% of the body
-  width), reconstructs it and compares the result with the truth. Files go to --dir
+  width), reconstructs it by FBP without and with each detector extension (${EXTEND_METHODS.join(', ')})
+  and from the complete scan, and compares each with the truth (inside and outside the
+  measured field of view, cupping) and with the measured data. Files go to --dir
   (default rimfill-demo).`;
+
+type Row = { name: string; comparison: Comparison; residual: DataResidual };
+
+function table(rows: Row[]): string {
+  const head = ['reconstruction', 'RMSE in FOV (HU)', 'SSIM in FOV', 'RMSE outside (HU)', 'cupping excess', 'data residual'];
+  const cells = rows.map((r) => {
+    const c = r.comparison;
+    return [
+      r.name,
+      c.regions.insideFov ? c.regions.insideFov.rmse.toFixed(1) : 'n/a',
+      c.regions.insideFov ? c.regions.insideFov.ssim.toFixed(4) : 'n/a',
+      c.regions.outsideFov ? c.regions.outsideFov.rmse.toFixed(1) : 'n/a',
+      c.cupping ? `${(100 * c.cupping.excess).toFixed(1)}%` : 'n/a',
+      `${(100 * r.residual.relative).toFixed(2)}%`,
+    ];
+  });
+  const all = [head, ...cells];
+  const w = head.map((_, i) => Math.max(...all.map((r) => r[i].length)));
+  return all.map((r) => r.map((s, i) => (i ? s.padStart(w[i]) : s.padEnd(w[i]))).join('  ')).join('\n');
+}
 
 export async function demo(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, { dir: 'string', json: 'flag' }, 0);
@@ -20,19 +46,25 @@ export async function demo(argv: string[]): Promise<CommandResult> {
   mkdirSync(dir, { recursive: true });
   const f = (name: string) => join(dir, name);
   const log: string[] = [];
-  const step = (r: CommandResult) => {
-    log.push(r.text);
-    return r;
-  };
-  step(await simulate(['--phantom', 'thorax', '--geometry', 'demo', '--channels', '345', '--photons', '200000', '--seed', '7',
-    '--out', f('scan.nrrd'), '--complete', f('scan-complete.nrrd'), '--truth', f('truth.nrrd'), '--size', '576', '--pixel', '1']));
-  step(await inspect([f('scan.nrrd')]));
-  const results: Record<string, unknown> = {};
-  for (const [name, scan] of [['truncated', 'scan.nrrd'], ['complete', 'scan-complete.nrrd']] as const) {
-    step(await reconstruct([f(scan), '--method', 'fbp', '--filter', 'shepp-logan', '--size', '576', '--pixel', '1', '--out', f(`fbp-${name}.nrrd`)]));
-    log.push(`-- FBP of the ${name} scan against the truth:`);
-    const c = step(await compare([f(`fbp-${name}.nrrd`), '--reference', f('truth.nrrd'), '--fov-radius', '102']));
-    results[name] = c.json;
+  const grid = ['--size', '576', '--pixel', '1'];
+  const sim = await simulate(['--phantom', 'thorax', '--geometry', 'demo', '--channels', '345', '--photons', '200000', '--seed', '7',
+    '--out', f('scan.nrrd'), '--complete', f('scan-complete.nrrd'), '--truth', f('truth.nrrd'), ...grid]);
+  log.push(sim.text);
+  const fov = String((sim.json as { fovRadiusMm: number }).fovRadiusMm);
+  log.push((await inspect([f('scan.nrrd')])).text);
+  const rows: Row[] = [];
+  const jobs: Array<[string, string, string[]]> = [
+    ...EXTEND_METHODS.map((m) => [`truncated, extend ${m}`, 'scan.nrrd', ['--extend', m]] as [string, string, string[]]),
+    ['complete scan', 'scan-complete.nrrd', []],
+  ];
+  for (const [name, scan, extra] of jobs) {
+    const out = f(`fbp-${name.replace(/[^a-z]+/g, '-')}.nrrd`);
+    log.push((await reconstruct([f(scan), '--method', 'fbp', '--filter', 'shepp-logan', ...extra, ...grid, '--out', out, '--json'])).text);
+    // Every image is judged inside the truncated scan's FOV, and against the data it came from.
+    const c = await compare([out, '--reference', f('truth.nrrd'), '--scan', f(scan), '--fov-radius', fov, '--json']);
+    const json = c.json as Comparison & { residual: DataResidual };
+    rows.push({ name, comparison: json, residual: json.residual });
   }
-  return { json: { dir, results }, text: log.join('\n') };
+  log.push('', 'FBP of the truncated scan without and with detector extension, and of the complete scan, against the truth:', table(rows));
+  return { json: { dir, results: Object.fromEntries(rows.map((r) => [r.name, { ...r.comparison, residual: { ...r.residual, perViewRms: undefined } }])) }, text: log.join('\n') };
 }

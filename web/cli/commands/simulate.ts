@@ -1,43 +1,57 @@
 // rimfill simulate: projections of a phantom (built-in or an image file) in a geometry,
 // optionally truncated (--channels, --offset) and with photon noise.
+import { existsSync } from 'node:fs';
 import { InputError } from '../../core/errors';
 import { cropDetector } from '../../core/geometry/presets';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
 import { squareGrid, type Image2D } from '../../core/image';
-import { namedPhantom } from '../../core/phantoms';
+import { namedPhantom, PHANTOM_NAMES } from '../../core/phantoms';
 import { rasterize } from '../../core/phantoms/ellipse';
 import { Projector2d } from '../../core/recon/projector';
 import type { Scan } from '../../core/scan';
 import { analyticSinogram } from '../../core/simulate/analytic';
+import { collimatedChannels } from '../../core/simulate/collimate';
 import { addPhotonNoise } from '../../core/simulate/noise';
 import { parseArgs, positiveNumber, requireString } from '../args';
 import { PendingWrites } from '../io';
 import { loadGeometry, loadImage } from '../load';
 import { openWorkspace } from '../engine-node';
+import { simulateCone } from './simulate-cone';
 import type { CommandResult } from './types';
 
-export const simulateHelp = `rimfill simulate --phantom <name|image.nrrd> --geometry <geom.json|preset> --out scan.nrrd
-    [--channels N] [--offset mm] [--photons I0] [--seed S] [--truth truth.nrrd]
-    [--complete full.nrrd] [--size N] [--pixel mm] [--subsamples K] [--json]
-  Simulates a scan. --channels keeps the N central channels (a truncated scan), shifted by
-  --offset mm along the detector; --complete also writes the untruncated scan; --truth writes
-  the object on a grid (--size x --size pixels of --pixel mm, default: covering the object).`;
+export const simulateHelp = `rimfill simulate --phantom <name|image file> --geometry <geom.json|preset> --out scan.nrrd
+    [--channels N | --collimate mm] [--offset mm] [--photons I0] [--seed S] [--truth truth.nrrd]
+    [--complete full.nrrd] [--size N] [--pixel mm] [--subsamples K] [--slice k] [--mu-water X] [--json]
+  Simulates a scan. --channels keeps the N central channels (a truncated scan); --collimate
+  keeps the channels whose rays pass within a centred region of that diameter (mm at the
+  isocentre); --offset shifts the kept channels by that many mm along the detector (one side
+  truncated more than the other). --complete also writes the untruncated scan of the same
+  object; --truth writes the object on a grid (--size x --size pixels of --pixel mm, default:
+  covering the object). An image phantom may be NRRD, MetaImage, raw + JSON, DICOM (file or
+  series folder; HU need --mu-water) or TIFF; --slice picks one slice of a volume.
+  Cone-beam geometries (e.g. --geometry demo-cone) simulate 3D phantoms or volume files; the
+  truth is then a volume of --slices slices (default: the measured height).`;
 
 export async function simulate(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     phantom: 'string', geometry: 'string', channels: 'int', offset: 'number', photons: 'number', seed: 'int',
     out: 'string', truth: 'string', complete: 'string', size: 'int', pixel: 'number', subsamples: 'int', json: 'flag', workers: 'int',
+    slice: 'int', 'mu-water': 'number', collimate: 'number', slices: 'int',
   }, 0);
   const out = requireString(a, 'out');
   const full = loadGeometry(requireString(a, 'geometry'));
+  if (full.kind === 'cone') return simulateCone(a, full);
+  if (a.options.slices !== undefined) throw new InputError('option --slices: only for cone-beam geometries (the truth of a 2D scan is one slice)');
   const phantomArg = requireString(a, 'phantom');
   const photons = positiveNumber(a, 'photons');
   const seed = (a.options.seed as number | undefined) ?? 1;
   const subsamples = (a.options.subsamples as number | undefined) ?? 1;
   if (!Number.isInteger(subsamples) || subsamples < 1 || subsamples > 16) throw new InputError(`option --subsamples: got ${subsamples}, expected 1 to 16`);
-  const channels = a.options.channels as number | undefined;
+  if (a.options.channels !== undefined && a.options.collimate !== undefined) throw new InputError('options --channels and --collimate both choose the kept channels: give one');
+  const collimate = positiveNumber(a, 'collimate');
+  const channels = collimate !== undefined ? collimatedChannels(full, collimate) : (a.options.channels as number | undefined);
   const crop = channels !== undefined || a.options.offset !== undefined
     ? cropDetector(full, channels ?? full.detector.channels, (a.options.offset as number | undefined) ?? 0)
     : undefined;
@@ -45,8 +59,9 @@ export async function simulate(argv: string[]): Promise<CommandResult> {
   let data: Float32Array;
   let truth: Image2D;
   let muWater: number | undefined;
-  if (/\.nrrd$/i.test(phantomArg)) {
-    truth = await loadImage(phantomArg, 'phantom');
+  const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
+  if (isFile) {
+    truth = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
     muWater = truth.muWater;
     const ws = await openWorkspace((a.options.workers as number | undefined) ?? undefined);
     try {

@@ -17,6 +17,9 @@ export type KernelName =
   | 'fftPrepare' | 'fft' | 'realEvenResponse' | 'filterViews'
   | 'rayTableFloats' | 'josephForward2d' | 'josephAdjoint2d'
   | 'backproject2d' | 'atanApprox'
+  | 'extendViews'
+  | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
+  | 'josephForwardCone' | 'josephAdjointCone'
   | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
   | 'tvScale' | 'tvGradient' | 'tvWeights'
   | 'padImageRows' | 'unpadSumRows';

@@ -1,52 +1,63 @@
-// Images as NRRD float32 with "space directions" and "space origin" (mm, origin = centre of the
-// first pixel) and rimfill.quantity mu | hu (design.md).
+// Images as NRRD with "space directions" and "space origin" (mm, origin = centre of the first
+// pixel) and rimfill.quantity mu | hu (design.md); 2D images or 3D volumes. Axis-aligned
+// directions only; a negative direction along x or y is turned positive by flipping the data.
 import { InputError } from '../errors';
-import { checkGrid, huToMu, type Image2D } from '../image';
-import { DEFAULT_MAX_SAMPLES, parseNrrd, writeNrrd } from './nrrd';
+import type { Image2D } from '../image';
+import type { ReadLimits } from './limits';
+import type { NamedBytes } from './named-file';
+import { parseNrrd, writeNrrd, type WrittenType } from './nrrd';
+import { positiveKey } from './projections';
+import { flipAxes, imageAsMu, volumeSlice, type ImageVolume, type VolumeQuantity } from './volume';
 
 function vectors(text: string | undefined): number[][] {
   if (!text) return [];
   return [...text.matchAll(/\(([^)]*)\)|none/g)].map((m) => (m[1] === undefined ? [] : m[1].split(',').map(Number)));
 }
 
-/** Reads a 2D image. Values come back as mu (1/mm); HU files need mu_water (in the file or given). */
-export async function readImageNrrd(bytes: Uint8Array, muWater?: number, maxSamples = DEFAULT_MAX_SAMPLES): Promise<Image2D> {
-  const n = await parseNrrd(bytes, maxSamples);
-  const sizes = n.sizes.filter((s, i) => !(i === 2 && s === 1));
-  if (sizes.length !== 2) throw new InputError(`image: got sizes ${n.sizes.join(' ')}, expected a 2D image (one slice)`);
-  const [nx, ny] = sizes;
-  const dirs = vectors(n.fields['space directions']);
-  const origin = vectors(n.fields['space origin'])[0];
-  let dx = 1, dy = 1, x0 = -(nx - 1) / 2, y0 = -(ny - 1) / 2;
-  if (dirs.length >= 2 && dirs[0].length >= 2) {
-    dx = Math.hypot(...dirs[0]);
-    dy = Math.hypot(...dirs[1]);
-    if (Math.abs(dirs[0][1] ?? 0) > 1e-6 * dx || Math.abs(dirs[1][0] ?? 0) > 1e-6 * dy) {
-      throw new InputError('image: rotated space directions are not supported; resample to an axis-aligned grid');
-    }
-    x0 = origin?.[0] ?? -((nx - 1) / 2) * dx;
-    y0 = origin?.[1] ?? -((ny - 1) / 2) * dy;
+/** Reads a 2D image or 3D volume from NRRD (files[0]; a detached data file among the rest). */
+export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: ReadLimits): Promise<ImageVolume> {
+  const n = await parseNrrd(files[0].bytes, { ...limits, files });
+  if (n.sizes.length < 2 || n.sizes.length > 3) throw new InputError(`image: got sizes ${n.sizes.join(' ')}, expected a 2D image or a 3D volume`);
+  const [nx, ny, nz = 1] = n.sizes;
+  const dirs = vectors(n.fields['space directions']).filter((v) => v.length > 0);
+  const spacing: [number, number, number] = [1, 1, 1];
+  const signs = [1, 1, 1];
+  if (dirs.length >= 2) {
+    dirs.slice(0, n.sizes.length).forEach((d, axis) => {
+      const len = Math.hypot(...d);
+      if (!(len > 0) || d.some((x, k) => k !== axis && Math.abs(x) > 1e-6 * len)) {
+        throw new InputError(`image space directions: got "${n.fields['space directions']}", expected axis-aligned directions (resample rotated images first)`);
+      }
+      spacing[axis] = len;
+      signs[axis] = Math.sign(d[axis]);
+    });
   } else if (n.fields.spacings) {
-    [dx, dy] = n.fields.spacings.split(/\s+/).map(Number);
-    x0 = -((nx - 1) / 2) * dx;
-    y0 = -((ny - 1) / 2) * dy;
+    n.fields.spacings.split(/\s+/).map(Number).slice(0, 3).forEach((s, axis) => (spacing[axis] = s));
   }
-  const grid = checkGrid({ nx, ny, dx, dy, cx: x0 + ((nx - 1) / 2) * dx, cy: y0 + ((ny - 1) / 2) * dy });
-  const fileMuWater = n.keys['rimfill.muWater'] !== undefined ? Number(n.keys['rimfill.muWater']) : undefined;
-  const mw = muWater ?? fileMuWater;
+  if (spacing.some((s) => !(s > 0) || !Number.isFinite(s))) throw new InputError(`image spacing: got ${spacing.join(' ')}, expected positive pixel sizes in mm`);
+  const origin = vectors(n.fields['space origin'])[0];
+  const o: [number, number, number] = [0, 1, 2].map((k) => origin?.[k] ?? -(([nx, ny, nz][k] - 1) / 2) * spacing[k] * signs[k]) as [number, number, number];
+  if (o.some((x) => !Number.isFinite(x))) throw new InputError(`image space origin: got "${n.fields['space origin']}", expected finite coordinates in mm`);
+  const quantity = n.keys['rimfill.quantity'] ?? 'unknown';
+  if (quantity !== 'mu' && quantity !== 'hu' && quantity !== 'unknown') throw new InputError(`image rimfill.quantity: got "${quantity}", expected mu or hu`);
   const fov = n.keys['rimfill.fovRadius'] !== undefined ? Number(n.keys['rimfill.fovRadius']) : undefined;
   if (fov !== undefined && !(fov >= 0)) throw new InputError(`image rimfill.fovRadius: got "${n.keys['rimfill.fovRadius']}", expected a radius in mm`);
-  const quantity = n.keys['rimfill.quantity'] ?? 'mu';
-  if (quantity === 'hu') {
-    if (!(mw && mw > 0)) throw new InputError('image: values are HU but mu_water is unknown; give it with --mu-water');
-    return { grid, data: huToMu(n.data, mw), quantity: 'mu', muWater: mw, fovRadius: fov };
-  }
-  if (quantity !== 'mu') throw new InputError(`image rimfill.quantity: got "${quantity}", expected mu or hu`);
-  return { grid, data: n.data, quantity: 'mu', muWater: mw, fovRadius: fov };
+  const volume: ImageVolume = {
+    nx, ny, nz, spacing, origin: o, data: n.data, quantity: quantity as VolumeQuantity,
+    muWater: positiveKey(n.keys['rimfill.muWater'], 'image rimfill.muWater', 'mu of water in 1/mm'), fovRadius: fov, format: 'NRRD',
+  };
+  return flipAxes(volume, signs[0] < 0, signs[1] < 0);
 }
 
-/** Writes a 2D image (values as stored in `image`). */
-export function writeImageNrrd(image: Image2D, compress = false): Promise<Uint8Array> {
+/** Reads a 2D image as mu (1/mm); HU files need mu_water (in the file or given). */
+export async function readImageNrrd(bytes: Uint8Array, muWater?: number, limits?: ReadLimits): Promise<Image2D> {
+  const v = await volumeFromNrrd([{ name: 'image.nrrd', bytes }], limits);
+  if (v.nz !== 1) throw new InputError(`image: got ${v.nz} slices, expected a 2D image (one slice)`);
+  return imageAsMu(volumeSlice(v, 0), muWater);
+}
+
+/** Writes a 2D image (values as stored in `image`), float32 or int16 (rounded, clamped). */
+export function writeImageNrrd(image: Image2D, compress = false, type: WrittenType = 'float32'): Promise<Uint8Array> {
   const g = image.grid;
   const x0 = g.cx - ((g.nx - 1) / 2) * g.dx, y0 = g.cy - ((g.ny - 1) / 2) * g.dy;
   const keys: Record<string, string> = { 'rimfill.quantity': image.quantity };
@@ -57,5 +68,5 @@ export function writeImageNrrd(image: Image2D, compress = false): Promise<Uint8A
     'space directions': `(${g.dx},0) (0,${g.dy})`,
     'space origin': `(${x0},${y0})`,
     'space units': '"mm" "mm"',
-  }, keys, compress);
+  }, keys, compress, type);
 }

@@ -1,43 +1,41 @@
 // Rimfill's scan file (design.md "Scan file"): NRRD float32, sizes <channels> <rows> <views>,
-// with rimfill.geometry (JSON), rimfill.quantity and optional rimfill.muWater.
+// with rimfill.geometry (JSON), rimfill.quantity (line-integral | intensity), rimfill.i0 and
+// optional rimfill.muWater.
 import { InputError } from '../errors';
-import { checkGeometryMatchesData, validateGeometry } from '../geometry/validate';
 import type { Geometry } from '../geometry/types';
 import type { Scan } from '../scan';
-import { parseNrrd, writeNrrd, DEFAULT_MAX_SAMPLES } from './nrrd';
+import type { ReadLimits } from './limits';
+import type { NamedBytes } from './named-file';
+import { parseNrrd, writeNrrd } from './nrrd';
+import { parseGeometryText, positiveKey, projectionAxes, type ProjectionData } from './projections';
+import { assembleScan } from './scan-assembly';
 
-/** Reads a scan file; `geometry` (from a side file) replaces or supplies the geometry. */
-export async function readScanNrrd(bytes: Uint8Array, geometry?: Geometry, maxSamples = DEFAULT_MAX_SAMPLES): Promise<Scan> {
-  const n = await parseNrrd(bytes, maxSamples);
-  if (n.sizes.length < 2 || n.sizes.length > 3) throw new InputError(`scan: got ${n.sizes.length} axes, expected <channels> [rows] <views>`);
-  const [channels, rows, views] = n.sizes.length === 3 ? n.sizes : [n.sizes[0], 1, n.sizes[1]];
-  let g = geometry;
-  if (!g) {
-    const text = n.keys['rimfill.geometry'];
-    if (!text) throw new InputError('scan: no rimfill.geometry in the file; give one with --geometry geom.json');
-    let parsed: unknown;
-    try {
-      parsed = JSON.parse(text);
-    } catch {
-      throw new InputError('scan: rimfill.geometry is not valid JSON');
-    }
-    g = validateGeometry(parsed);
+/** Reads projection data from NRRD (files[0]; a detached data file among the rest). */
+export async function projectionsFromNrrd(files: readonly NamedBytes[], limits?: ReadLimits): Promise<ProjectionData> {
+  const n = await parseNrrd(files[0].bytes, { ...limits, files });
+  const axes = projectionAxes(n.sizes, 'scan');
+  if (typeof axes === 'string') throw new InputError(axes);
+  const quantity = n.keys['rimfill.quantity'];
+  if (quantity !== undefined && quantity !== 'line-integral' && quantity !== 'intensity') {
+    throw new InputError(`scan rimfill.quantity: got "${quantity}", expected line-integral or intensity`);
   }
-  checkGeometryMatchesData(g, channels, rows, views);
-  const quantity = n.keys['rimfill.quantity'] ?? 'line-integral';
-  if (quantity !== 'line-integral') {
-    throw new InputError(`scan rimfill.quantity: got "${quantity}", expected line-integral (convert intensities with --flat/--dark/--i0)`);
-  }
-  const scan: Scan = { geometry: g, data: n.data };
-  if (n.keys['rimfill.muWater'] !== undefined) {
-    const mw = Number(n.keys['rimfill.muWater']);
-    if (!(mw > 0 && mw < 1)) throw new InputError(`scan rimfill.muWater: got "${n.keys['rimfill.muWater']}", expected mu of water in 1/mm (about 0.02)`);
-    scan.muWater = mw;
-  }
-  return scan;
+  const notes: Record<string, string> = {};
+  for (const [k, v] of Object.entries(n.keys)) if (k.startsWith('rimfill.note.')) notes[k.slice(13)] = v;
+  return {
+    channels: axes[0], rows: axes[1], views: axes[2], data: n.data, quantity,
+    geometry: parseGeometryText(n.keys['rimfill.geometry'], 'scan rimfill.geometry'),
+    muWater: positiveKey(n.keys['rimfill.muWater'], 'scan rimfill.muWater', 'mu of water in 1/mm (about 0.02)'),
+    i0: positiveKey(n.keys['rimfill.i0'], 'scan rimfill.i0', 'the unattenuated intensity'),
+    notes, format: 'NRRD',
+  };
 }
 
-/** Writes a scan file. */
+/** Reads a scan file; `geometry` (from a side file) replaces or supplies the geometry. */
+export async function readScanNrrd(bytes: Uint8Array, geometry?: Geometry, limits?: ReadLimits): Promise<Scan> {
+  return assembleScan(await projectionsFromNrrd([{ name: 'scan.nrrd', bytes }], limits), { geometry }).scan;
+}
+
+/** Writes a scan file (line integrals, float32). */
 export function writeScanNrrd(scan: Scan, compress = false): Promise<Uint8Array> {
   const d = scan.geometry.detector;
   const views = scan.data.length / (d.channels * d.rows);

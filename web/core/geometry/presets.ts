@@ -24,6 +24,16 @@ const PRESETS: Record<string, unknown> = {
     detector: { shape: 'flat', channels: 1160, rows: 1, pitch: [0.5, 0.5], offset: [0, 0] },
     anglesDeg: { start: 0, step: 0.5, count: 360 },
   },
+  // Cone beam, C-arm-like flat panel (384 x 288 mm, binned to 1 mm cells) on a 200 degree short
+  // scan (180 degrees + the 18.2 degree fan): FOV radius 118 mm, half height 90 mm on the axis,
+  // so the demo thorax (340 mm wide) is truncated, as in interventional CBCT.
+  'demo-cone': {
+    kind: 'cone',
+    detector: { shape: 'flat', channels: 384, rows: 288, pitch: [1.0, 1.0], offset: [0, 0] },
+    sourceIsocenter: 750,
+    sourceDetector: 1200,
+    anglesDeg: { start: 0, step: 0.5, count: 400 },
+  },
 };
 
 export const PRESET_NAMES = Object.keys(PRESETS);

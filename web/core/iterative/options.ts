@@ -112,6 +112,9 @@ export function validateIterativeFields(
     if (!(SUPPORTS as readonly unknown[]).includes(r.support)) throw new InputError(`recipe support: got ${JSON.stringify(r.support)}, expected one of ${SUPPORTS.join(', ')}`);
     out.support = r.support as SupportShape;
   }
+  if (isIterativeMethod(r.method as string) && r.extend !== undefined && r.extend !== 'none') {
+    throw new InputError(`recipe extend: got "${r.extend}" for method "${r.method}", expected "none" (detector extension belongs to fbp; for method "prior", to the prior's recipe)`);
+  }
   if (r.prior !== undefined) out.prior = validatePrior(r.prior, validateNested);
   if (r.method === 'prior' && !out.prior) throw new InputError('recipe prior: method "prior" needs a prior ({"source": "image"} or {"source": "recipe", "recipe": {...}})');
   if (r.method !== 'prior' && out.prior) throw new InputError(`recipe prior: given for method "${r.method}", only method "prior" uses one`);

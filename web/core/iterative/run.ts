@@ -86,6 +86,7 @@ export async function runIterative(
   const method = recipe.method as IterativeMethod;
   const o = resolveOptions(method, recipe);
   throwIfCancelled(hooks.signal);
+  if (scan.geometry.kind === 'cone') throw new InputError(`recipe method: got "${method}" for a cone-beam scan, expected fbp (the iterative methods work on 2D scans)`);
   require2d(scan.geometry);
   checkScanData(scan);
   const obtained = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05)) : undefined;

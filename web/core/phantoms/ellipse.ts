@@ -85,3 +85,17 @@ export function rasterize(p: EllipsePhantom, grid: ImageGrid, sub = 4): Float32A
   }
   return out;
 }
+
+/** Radius of the smallest circle about the origin that holds every ellipse (boundary sampled). */
+export function boundingRadius(ellipses: Ellipse[]): number {
+  let r = 0;
+  for (const e of ellipses) {
+    const phi = (e.phiDeg * Math.PI) / 180;
+    for (let k = 0; k < 720; k++) {
+      const t = (k * Math.PI) / 360;
+      const x = e.a * Math.cos(t), y = e.b * Math.sin(t);
+      r = Math.max(r, Math.hypot(e.cx + x * Math.cos(phi) - y * Math.sin(phi), e.cy + x * Math.sin(phi) + y * Math.cos(phi)));
+    }
+  }
+  return r * 1.001;
+}

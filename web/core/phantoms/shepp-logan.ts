@@ -4,7 +4,7 @@
 // Table units: the phantom spans [-1, 1]^2; here one unit is `scaleMm` mm and table values are
 // multiples of mu_water, so the original phantom's brain (1.02) reads about 20 HU.
 import { MU_WATER_60KEV } from './materials';
-import type { EllipsePhantom } from './ellipse';
+import { boundingRadius, type EllipsePhantom } from './ellipse';
 
 /** [x0, y0, A, B, phi(deg), rho original, rho modified] (references.md section 1a). */
 export const SHEPP_LOGAN_TABLE: ReadonlyArray<readonly [number, number, number, number, number, number, number]> = [
@@ -25,17 +25,13 @@ export const SHEPP_LOGAN_TABLE: ReadonlyArray<readonly [number, number, number, 
  * higher-contrast (Toft) intensities; `unit` is the table value that maps to 1/mm.
  */
 export function sheppLogan(variant: 'original' | 'modified' = 'original', scaleMm = 100, unit = MU_WATER_60KEV): EllipsePhantom {
-  return {
-    name: variant === 'original' ? 'shepp-logan' : 'shepp-logan-modified',
-    muWater: MU_WATER_60KEV,
-    radius: 0.92 * scaleMm,
-    ellipses: SHEPP_LOGAN_TABLE.map(([x, y, a, b, phi, r0, r1]) => ({
+  const ellipses = SHEPP_LOGAN_TABLE.map(([x, y, a, b, phi, r0, r1]) => ({
       cx: x * scaleMm,
       cy: y * scaleMm,
       a: a * scaleMm,
       b: b * scaleMm,
       phiDeg: phi,
       value: (variant === 'original' ? r0 : r1) * unit,
-    })),
-  };
+  }));
+  return { name: variant === 'original' ? 'shepp-logan' : 'shepp-logan-modified', muWater: MU_WATER_60KEV, radius: boundingRadius(ellipses), ellipses };
 }

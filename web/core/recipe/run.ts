@@ -1,12 +1,17 @@
 // Running a recipe on a scan: the one entry point the CLI, the page's workers and the tests use.
 import type { Workspace } from '../engine/workspace';
+import { InputError } from '../errors';
 import { fovRadius } from '../geometry/view-vectors';
 import type { Image2D } from '../image';
 import { fbp2d } from '../recon/fbp';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
+import { analyseEdges, objectRadius } from '../truncation/edges';
+import { planExtension } from '../truncation/extension-plan';
+import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
+import { runConeRecipe } from './run-cone';
 import { isIterativeMethod } from '../iterative/options';
 import { runIterative, type RecipeInputs } from '../iterative/run';
 
@@ -18,6 +23,8 @@ export interface RecipeResult {
   warnings: string[];
   /** Method-specific figures (timings, convergence history, ...), JSON-ready. */
   report: Record<string, unknown>;
+  /** Cone-beam scans: the whole volume (`image` is then its central slice). */
+  volume?: Volume;
 }
 
 /** Reconstructs `scan` as the recipe says. `inputs` carries images some methods need (a prior). */
@@ -25,11 +32,22 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   if (isIterativeMethod(recipe.method)) {
     return runIterative(ws, scan, recipe, hooks, inputs, (nested, h) => runRecipe(ws, scan, nested, h, inputs));
   }
-  const grid = chooseGrid(scan, recipe.grid);
-  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff }, hooks);
+  const t0 = performance.now();
+  const extend = recipe.extend ?? 'none';
+  const g = scan.geometry;
+  const is2d = g.kind !== 'cone' && g.detector.rows === 1;
+  if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on 2D scans)`);
+  if (g.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks);
+  const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
+  const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
+  const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
+  const planSeconds = (performance.now() - t0) / 1000;
+  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension: plan }, hooks);
+  const warnings = [...r.warnings];
+  if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {
     image: { ...r.image, fovRadius: fovRadius(scan.geometry) },
-    warnings: r.warnings,
-    report: { timings: r.timings },
+    warnings,
+    report: { timings: { ...r.timings, plan: planSeconds }, ...(plan ? { extension: plan.summary } : {}) },
   };
 }

@@ -3,6 +3,7 @@
 // vectors, so calibrated trajectories get the same treatment.
 import { VIEW_STRIDE, firstChannelU, kernelKind, KernelKind, viewVectors } from '../geometry/view-vectors';
 import type { Geometry } from '../geometry/types';
+import { displacedDetectorWeight, displacement } from './displaced-detector';
 
 /** Per-view source (or ray) angle, radians, unwrapped so that it changes continuously. */
 export function viewAngles(views: Float32Array, kind: number): Float64Array {
@@ -64,7 +65,9 @@ export function fanAngle(u: number, D: number, curved: boolean): number {
 
 /**
  * FBP pre-weights for a geometry with `channels` channels starting at `u0` (mm); pass the
- * detector's own values, or those of an extended detector. For fan beams: cos(gamma) (flat,
+ * detector's own values, or those of an extended detector (the geometry's own detector is then
+ * the measured one: it sets the short-scan check and the displaced-detector weights of a full
+ * turn, displaced-detector.ts). For fan beams: cos(gamma) (flat,
  * Kak & Slaney eq. for R'(s) = R(s) D / sqrt(D^2 + s^2)) or R cos(gamma) (curved, R'(gamma) =
  * R(gamma) D cos gamma in their notation).
  */
@@ -91,11 +94,13 @@ export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = 
     const D = Math.hypot(nx, ny);
     return { R: -(sx * nx + sy * ny) / D, D };
   };
-  if (fan) {
-    const { D } = distances(0);
-    const curved = kind === KernelKind.fanCurved;
-    delta = Math.max(Math.abs(fanAngle(u0, D, curved)), Math.abs(fanAngle(u0 + (channels - 1) * pitch, D, curved)));
-  }
+  // Outer edges of the measured detector, as fan angles (fan) or u (parallel).
+  const measured0 = firstChannelU(g) - pitch / 2, measured1 = measured0 + g.detector.channels * pitch;
+  const { D: D0 } = distances(0);
+  const coord = (u: number) => (fan ? fanAngle(u, D0, kind === KernelKind.fanCurved) : u);
+  if (fan) delta = Math.max(Math.abs(coord(measured0 + pitch / 2)), Math.abs(coord(measured1 - pitch / 2)));
+  // Up to a channel of asymmetry (a quarter-channel offset, a crop off by half a channel) is a centred detector.
+  const displaced = displacement(coord(measured0), coord(measured1), Math.abs(coord(pitch) - coord(0)));
 
   const coverage = span + step;
   let scanType: Preweights['scanType'];
@@ -113,18 +118,35 @@ export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = 
     warnings.push(`limited-angle scan (${(coverage * 180 / Math.PI).toFixed(1)} degrees): FBP cannot recover the missing directions`);
   }
 
+  // Fan angle and cosine pre-weight per channel, recomputed only when a view's distances differ
+  // from the previous view's by more than float32 rounding of the view table (circular scans: once).
+  const gammas = new Float64Array(channels), cosines = new Float64Array(channels).fill(1);
+  let lastR = NaN, lastD = NaN;
+  const same = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.abs(b);
   for (let v = 0; v < n; v++) {
     const { R, D } = fan ? distances(v) : { R: 1, D: 1 };
+    if (fan && !(same(R, lastR) && same(D, lastD))) {
+      for (let k = 0; k < channels; k++) {
+        gammas[k] = fanAngle(u0 + k * pitch, D, kind === KernelKind.fanCurved);
+        cosines[k] = kind === KernelKind.fanCurved ? R * Math.cos(gammas[k]) : Math.cos(gammas[k]);
+      }
+      [lastR, lastD] = [R, D];
+    }
     const betaRel = sign * (beta[v] - beta[0]);
+    const row = v * channels;
+    if (scanType === 'full' && !displaced) {
+      for (let k = 0; k < channels; k++) weights[row + k] = dBeta[v] * 0.5 * cosines[k];
+      continue;
+    }
+    if (scanType === 'full') {
+      for (let k = 0; k < channels; k++) weights[row + k] = dBeta[v] * displacedDetectorWeight(fan ? gammas[k] : u0 + k * pitch, displaced!) * cosines[k];
+      continue;
+    }
     for (let k = 0; k < channels; k++) {
-      const u = u0 + k * pitch;
-      const gamma = fan ? fanAngle(u, D, kind === KernelKind.fanCurved) : 0;
       let red = 1;
-      if (scanType === 'full') red = 0.5;
-      else if (scanType === 'short') red = parkerWeight(betaRel, -sign * gamma, fan ? Math.max(deltaScan, 1e-9) : deltaScan);
+      if (scanType === 'short') red = parkerWeight(betaRel, -sign * gammas[k], fan ? Math.max(deltaScan, 1e-9) : deltaScan);
       if (scanType === 'short' && !fan && deltaScan < 1e-9) red = 1;
-      const cosine = !fan ? 1 : kind === KernelKind.fanCurved ? R * Math.cos(gamma) : Math.cos(gamma);
-      weights[v * channels + k] = dBeta[v] * red * cosine;
+      weights[row + k] = dBeta[v] * red * cosines[k];
     }
   }
   return { weights, warnings, scanType };

@@ -3,6 +3,7 @@
 // pixel-driven backprojection with distance weights (Kak & Slaney 1988, ch. 3).
 import type { Workspace } from '../engine/workspace';
 import { throwIfCancelled } from '../errors';
+import { extendDetector } from '../geometry/presets';
 import { firstChannelU, kernelKind, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import { checkGrid, gridOrigin, type Image2D, type ImageGrid } from '../image';
 import type { Scan } from '../scan';
@@ -12,19 +13,26 @@ import { prepareFilter } from './filter-response';
 import { require2d, requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 import type { RunHooks } from '../run-hooks';
+import { zeroExtension, type DetectorExtension } from '../truncation/extension-plan';
+import { runExtension } from '../truncation/extend-scan';
 
 export interface FbpParams {
   grid: ImageGrid;
   filter?: FilterWindow;
   /** Frequency scaling of the window, (0, 1]. */
   cutoff?: number;
+  /**
+   * Detector extension applied before filtering (truncation/extension-plan.ts planExtension).
+   * Absent: zero channels where a displaced detector needs them (zeroExtension), else none.
+   */
+  extension?: DetectorExtension;
 }
 
 export interface FbpResult {
   image: Image2D;
   warnings: string[];
   /** Seconds spent per stage. */
-  timings: { weights: number; filter: number; backproject: number };
+  timings: { weights: number; filter: number; backproject: number; extend?: number };
 }
 
 const now = () => performance.now() / 1000;
@@ -36,11 +44,15 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const grid = checkGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
   const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
-  const nCh = g.detector.channels;
+  const ext = params.extension ?? zeroExtension(scan);
+  // With an extension, filtering and backprojection see the extended detector.
+  const ge = ext ? extendDetector(g, ext.left, ext.right) : g;
+  const nCh = ge.detector.channels;
   const table = viewVectors(g);
   const nViews = table.length / VIEW_STRIDE;
   const t0 = now();
-  const { weights, warnings } = fbpPreweights(g);
+  // Weights for the extended channels; the measured detector (g) sets the redundancy.
+  const { weights, warnings } = fbpPreweights(g, nCh, firstChannelU(ge));
   const t1 = now();
   throwIfCancelled(hooks.signal);
 
@@ -52,12 +64,27 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const w = ws.alloc('weights', nViews * nCh);
   const filtered = ws.alloc('filtered', nViews * stride);
   const img = ws.alloc('image', nxs * grid.ny);
-  const filter = await prepareFilter(ws, g, nCh, window, params.cutoff ?? 1);
+  // Zero padding: the measured channels must be filtered exactly (linear convolution), which
+  // needs nPad >= 2 (max(left, right) + channels - 1) + 1; the tails' outer ends then pick up
+  // only wrap-around terms from the far end of the opposite tail, at distances of at least
+  // nPad - extended channels, where both the ramp kernel and the tapered data are small
+  // (cf. Ohnesorge et al. 2000: extrapolate without lengthening the convolution).
+  const padFor = ext ? Math.max(ext.left, ext.right) + g.detector.channels : nCh;
+  const filter = await prepareFilter(ws, ge, padFor, window, params.cutoff ?? 1);
   const res = ws.allocPerWorker('fftRe', filter.nPad);
   const ims = ws.allocPerWorker('fftIm', filter.nPad);
   await ws.write(views, table);
-  await ws.write(sino, scan.data);
   await ws.write(w, weights);
+  let tExtend = 0;
+  if (ext) {
+    const te = now();
+    const measured = ws.alloc('measured', scan.data.length);
+    await ws.write(measured, scan.data);
+    await runExtension(ws, ext, measured, sino, nViews, g.detector.channels);
+    tExtend = now() - te;
+  } else {
+    await ws.write(sino, scan.data);
+  }
 
   await ws.run(
     splitRange(nViews, ws.parallelism, 2).map(([a, b], i) => ({
@@ -74,7 +101,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   await ws.run(bands.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [{ ...img, ptr: img.ptr + a * nxs * 4 }, (b - a) * nxs] })));
   const chunks = splitRange(nViews, Math.max(1, Math.ceil(nViews / 90)));
   const kind = kernelKind(g);
-  const u0 = firstChannelU(g);
+  const u0 = firstChannelU(ge);
   for (let c = 0; c < chunks.length; c++) {
     throwIfCancelled(hooks.signal);
     const [v0, v1] = chunks[c];
@@ -82,7 +109,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
     await ws.run(
       bands.map(([a, b]) => ({
         kernel: 'backproject2d' as const,
-        args: [img, grid.nx, nxs, a, b, grid.dx, grid.dy, x0, y0, views, kind, v0, v1, filtered, stride, nCh, u0, g.detector.pitch[0]],
+        args: [img, grid.nx, nxs, a, b, grid.dx, grid.dy, x0, y0, views, kind, v0, v1, filtered, stride, nCh, u0, ge.detector.pitch[0]],
         writes: last ? [{ buf: img, start: a * nxs, length: (b - a) * nxs }] : [],
       })),
     );
@@ -95,6 +122,6 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   return {
     image: { grid, data, quantity: 'mu', muWater: scan.muWater },
     warnings,
-    timings: { weights: t1 - t0, filter: t2 - t1, backproject: t3 - t2 },
+    timings: { weights: t1 - t0, filter: t2 - t1 - tExtend, backproject: t3 - t2, ...(ext ? { extend: tExtend } : {}) },
   };
 }

@@ -1,0 +1,305 @@
+// The steps run against the page in one mode (served or opened from disk). Each step names
+// what a user does and what must follow; screenshots go to test-artifacts/<mode>-*.png.
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { check, near } from './harness.mjs';
+import { parseFloatNrrd, pngHeader } from './files.mjs';
+
+/** The page's default FBP recipe on the ground-truth grid: the CLI reference runs the same. */
+const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
+const JOB_TIMEOUT = 10 * 60_000;
+
+/** Text of every cell of the metrics table row for `label`, by column metric and region. */
+async function metricsRow(page, label) {
+  const row = page.locator(`rf-metrics-table tr[data-label="${label}"]`);
+  const cells = await row.locator('td[data-metric]').allTextContents();
+  const regions = ['image', 'insideFov', 'outsideFov'];
+  const out = {};
+  regions.forEach((r, i) => (out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }));
+  // Cupping and data residual are shown as percentages.
+  out.cupping = Number(cells[9].replace('%', ''));
+  out.residual = Number(cells[10].replace('%', ''));
+  return out;
+}
+
+async function download(page, click) {
+  const [dl] = await Promise.all([page.waitForEvent('download'), click()]);
+  return { name: dl.suggestedFilename(), bytes: readFileSync(await dl.path()) };
+}
+
+async function resultCount(page) {
+  return page.locator('rf-result-list li').count();
+}
+
+async function queueAndWait(page, count) {
+  await page.locator('#queue-recipe').click();
+  await page.locator('rf-run-queue li').nth(count - 1).waitFor();
+}
+
+export async function pageTests(h, { context, mode, url, origin, artifacts, reference }) {
+  const shot = (page, name) => page.screenshot({ path: join(artifacts, `${mode}-${name}.png`), fullPage: true });
+  const requests = [];
+  const problems = [];
+  context.on('request', (r) => requests.push(r.url()));
+  const page = await context.newPage();
+  page.on('pageerror', (e) => problems.push(`script error: ${e.message}`));
+  page.on('console', (m) => {
+    if ((m.type() === 'error' && !/deliberate crash/.test(m.text())) || /Content.Security.Policy/i.test(m.text())) problems.push(`console ${m.type()}: ${m.text()}`);
+  });
+  page.on('worker', (w) => w.on('console', (m) => m.type() === 'error' && !/deliberate crash/.test(m.text()) && problems.push(`worker console: ${m.text()}`)));
+
+  const ok = await h.step(`${mode}: (a) the built page loads with its caution, policy and engine`, async () => {
+    await page.goto(url);
+    check((await page.title()).startsWith('Rimfill'), `title: ${await page.title()}`);
+    // First visit: the demo scan is being simulated in the engine, with a progress bar.
+    await page.locator('rf-app progress').waitFor({ timeout: 15_000 });
+    await shot(page, '0-first-visit');
+    const caution = await page.locator('#caution').innerText();
+    check(/not for diagnosis/i.test(caution) && /licensed clinical practice/i.test(caution), `caution text: ${caution}`);
+    const csp = await page.locator('meta[http-equiv="Content-Security-Policy"]').getAttribute('content');
+    check(/default-src 'none'/.test(csp) && /connect-src 'none'/.test(csp) && !/'unsafe-inline'|'unsafe-eval'/.test(csp), `policy: ${csp}`);
+    const isolated = await page.evaluate(() => crossOriginIsolated);
+    check(isolated === (mode === 'http'), `crossOriginIsolated is ${isolated} in ${mode} mode`);
+    const engine = page.locator('header .engine');
+    await engine.filter({ hasText: 'engine workers' }).waitFor({ timeout: 30_000 });
+    const text = await engine.innerText();
+    check(text.includes(mode === 'http' ? 'shared memory' : 'separate memories'), `engine: ${text}`);
+  });
+  if (!ok) return;
+
+  await h.step(`${mode}: (b) the demo scan is made on the first visit, with its truncation marked`, async () => {
+    await page.locator('rf-scan-library li').first().waitFor({ timeout: 120_000 });
+    check((await page.locator('rf-scan-library li').count()) === 1, 'exactly one scan in the library');
+    const summary = page.locator('#truncation-summary');
+    await summary.waitFor();
+    check(/100% of views/.test(await summary.innerText()), `truncation summary: ${await summary.innerText()}`);
+    await page.locator('rf-sinogram-image canvas').waitFor();
+    await shot(page, '1-projections');
+  });
+
+  await h.step(`${mode}: a wrong geometry value is refused with the reason and nothing changes`, async () => {
+    const sdd = page.locator('rf-geometry-form input[name="sourceDetector"]');
+    await sdd.fill('500');
+    await page.locator('rf-geometry-form button.primary').click();
+    const err = page.locator('#geometry-error');
+    await err.waitFor();
+    const text = await err.innerText();
+    check(/sourceDetector: got 500, expected a distance greater than sourceIsocenter \(600 mm\)/.test(text), `message: ${text}`);
+    await page.locator('rf-geometry-form button', { hasText: 'Undo edits' }).click();
+    check((await sdd.inputValue()) === '1000', `after undo: ${await sdd.inputValue()}`);
+    check(/source 600 mm \/ detector 1000 mm/.test(await page.locator('rf-scan-library li').first().innerText()), 'stored geometry unchanged');
+  });
+
+  await h.step(`${mode}: (f) a malformed file is refused with the reason and nothing is stored`, async () => {
+    const broken = Buffer.from('NRRD0004\ntype: float\ndimension: 3\nsizes: 10 1 5\nendian: little\nencoding: raw\nrimfill.geometry:={"kind":"parallel","detector":{"channels":10,"pitch":1},"anglesDeg":{"start":0,"step":36,"count":5}}\n\nonly a few bytes');
+    await page.locator('rf-file-drop input[type="file"]').setInputFiles({ name: 'broken.nrrd', mimeType: 'application/octet-stream', buffer: broken });
+    const err = page.locator('#import-error');
+    await err.waitFor({ timeout: 30_000 });
+    const text = await err.innerText();
+    check(/broken\.nrrd: NRRD: the header promises 200 bytes of data from byte 0, the file holds 16/.test(text), `message: ${text}`);
+    check((await page.locator('rf-scan-library li').count()) === 1, 'still one scan');
+    await shot(page, '2-import-error');
+  });
+
+  const methods = [];
+  await h.step(`${mode}: (b) runs FBP and every other method the recipe offers, as a queue with progress`, async () => {
+    await page.locator('#tab-reconstruct').click();
+    const methodSelect = page.locator('#field-method');
+    const offered = await methodSelect.locator('option').evaluateAll((os) => os.map((o) => o.value));
+    check(offered.includes('fbp'), `methods offered: ${offered}`);
+    let queued = 0;
+    await methodSelect.selectOption('fbp');
+    await queueAndWait(page, ++queued);
+    methods.push({ method: 'fbp', name: FBP_NAME });
+    const extend = page.locator('#field-extend');
+    const extensions = (await extend.count()) ? await extend.locator('option').evaluateAll((os) => os.map((o) => o.value)) : [];
+    if (extensions.includes('water')) {
+      await extend.selectOption('water');
+      await queueAndWait(page, ++queued);
+      methods.push({ method: 'fbp', extend: 'water' });
+    }
+    for (const m of offered.filter((x) => x !== 'fbp')) {
+      await methodSelect.selectOption(m);
+      if (extensions.includes('water') && (await extend.count())) await extend.selectOption('water');
+      await queueAndWait(page, ++queued);
+      methods.push({ method: m });
+    }
+    const running = page.locator('rf-run-queue li[data-state="running"]');
+    await running.first().waitFor({ timeout: 30_000 }).catch(() => undefined);
+    await shot(page, '3-reconstruct-queue');
+    await page.locator('rf-run-queue li[data-state="waiting"], rf-run-queue li[data-state="running"]').first()
+      .waitFor({ state: 'detached', timeout: JOB_TIMEOUT * queued });
+    const states = await page.locator('rf-run-queue li').evaluateAll((ls) => ls.map((l) => l.dataset.state));
+    const errors = await page.locator('rf-run-queue .error').allInnerTexts();
+    check(states.every((s) => s === 'done'), `job states ${states}; errors: ${errors.join(' | ')}`);
+    check(states.length === methods.length, `${states.length} jobs for ${methods.length} recipes`);
+  });
+
+  await h.step(`${mode}: the page stays responsive during a run; cancelling it stops it and stores nothing`, async () => {
+    await page.locator('#field-method').selectOption('fbp');
+    if (await page.locator('#field-extend').count()) await page.locator('#field-extend').selectOption({ index: 0 });
+    await page.locator('rf-recipe-form input[value="custom"]').check();
+    await page.locator('rf-recipe-form input[name="gridSize"]').fill('3072');
+    await page.locator('rf-recipe-form input[name="gridPixel"]').fill('0.1875');
+    const before = (await page.locator('rf-run-queue li').count());
+    await queueAndWait(page, before + 1);
+    const job = page.locator('rf-run-queue li').nth(before);
+    await job.and(page.locator('[data-state="running"]')).waitFor({ timeout: 30_000 });
+    // Timer ticks every 20 ms for 1 s while the engine works: the longest gap shows whether
+    // the main thread was blocked (kernels run in workers; 250 ms is a visible stall).
+    const gap = await page.evaluate(() => new Promise((done) => {
+      let last = performance.now(), worst = 0;
+      const t = setInterval(() => { const now = performance.now(); worst = Math.max(worst, now - last); last = now; }, 20);
+      setTimeout(() => { clearInterval(t); done(worst); }, 1000);
+    }));
+    console.log(`       longest main-thread gap during a run: ${gap.toFixed(0)} ms`);
+    check(gap < 250, `the main thread stalled for ${gap.toFixed(0)} ms during a run`);
+    check((await job.getAttribute('data-state')) === 'running', 'the job still runs after the probe (a larger grid is needed for this test)');
+    await page.locator('rf-run-queue li').nth(before).locator('button', { hasText: 'Cancel' }).click();
+    await page.locator(`rf-run-queue li[data-state="cancelled"]`).waitFor({ timeout: 10_000 });
+    await page.locator('#tab-images').click();
+    check((await resultCount(page)) === methods.length, `${await resultCount(page)} results stored, expected ${methods.length}`);
+  });
+
+  await h.step(`${mode}: a worker that crashes fails its run (not hung), and the engine restarts`, async () => {
+    const before = await page.locator('rf-run-queue li').count();
+    await page.locator('#tab-reconstruct').click();
+    await page.locator('rf-recipe-form input[value="custom"]').check();
+    await page.locator('rf-recipe-form input[name="gridSize"]').fill('3072');
+    await page.locator('rf-recipe-form input[name="gridPixel"]').fill('0.1875');
+    await queueAndWait(page, before + 1);
+    await page.locator('rf-run-queue li').nth(before).and(page.locator('[data-state="running"]')).waitFor({ timeout: 30_000 });
+    const workers = page.workers();
+    check(workers.length >= 2, `${workers.length} workers (coordinator and kernels expected)`);
+    // An uncaught error thrown inside a worker is what a crash looks like to the page.
+    await workers[workers.length - 1].evaluate(() => setTimeout(() => { throw new Error('deliberate crash (browser test)'); }, 0));
+    const failed = page.locator('rf-run-queue li').nth(before).and(page.locator('[data-state="failed"]'));
+    await failed.waitFor({ timeout: 15_000 });
+    const text = await failed.innerText();
+    check(/stopped unexpectedly.*deliberate crash.*nothing was stored/s.test(text), `failure message: ${text}`);
+    await page.locator('rf-recipe-form input[value="reference"]').check();
+    await queueAndWait(page, before + 2);
+    await page.locator('rf-run-queue li').nth(before + 1).and(page.locator('[data-state="done"]')).waitFor({ timeout: JOB_TIMEOUT });
+    await page.locator('rf-run-queue li').nth(before + 1).locator('button', { hasText: 'Remove' }).click();
+    await page.locator('#tab-images').click();
+    const boxes = page.locator('rf-result-list input[type="checkbox"]');
+    await boxes.last().uncheck();
+    await page.locator(`rf-result-list li:last-child button`, { hasText: 'Delete' }).click();
+    await page.locator(`rf-result-list li:last-child button.danger`, { hasText: /^Delete$/ }).click();
+    await page.waitForFunction((n) => document.querySelector('rf-app')?.shadowRoot?.querySelector('rf-results-view')?.shadowRoot
+      ?.querySelector('rf-result-list')?.shadowRoot?.querySelectorAll('li').length === n, methods.length);
+  });
+
+  await h.step(`${mode}: (c) the metrics table agrees with the command line on the same job`, async () => {
+    await page.locator('#tab-images').click();
+    // Tick every result (up to four) so each has a row.
+    const boxes = page.locator('rf-result-list input[type="checkbox"]');
+    const n = Math.min(4, await boxes.count());
+    for (let i = 0; i < n; i++) if (!(await boxes.nth(i).isChecked())) await boxes.nth(i).check();
+    await page.locator(`rf-metrics-table tr[data-label="${FBP_NAME}"]`).waitFor();
+    const got = await metricsRow(page, FBP_NAME);
+    const want = reference.comparison.regions;
+    for (const region of ['image', 'insideFov', 'outsideFov']) {
+      // The table shows RMSE and PSNR to 0.1 and SSIM to 0.001: half a unit of the last digit.
+      near(got[region].rmse, want[region].rmse, 0.051, `${region} RMSE (HU)`);
+      near(got[region].psnr, want[region].psnr, 0.051, `${region} PSNR (dB)`);
+      near(got[region].ssim, want[region].ssim, 0.00051, `${region} SSIM`);
+    }
+    // Cupping excess (shown in % to 0.1) as the command line computes it.
+    near(got.cupping, 100 * reference.comparison.cupping.excess, 0.051, 'cupping excess (%)');
+    // The re-projection residual (needs no reference), as the command line computes it.
+    near(got.residual, 100 * reference.comparison.residual.relative, 0.051, 'data residual (%)');
+    const rows = await page.locator('rf-metrics-table tbody tr').count();
+    check(rows === n, `${rows} metric rows for ${n} ticked results`);
+    for (const cell of await page.locator('rf-metrics-table td[data-metric]').allTextContents()) check(Number.isFinite(Number(cell.replace('%', ''))), `metric cell "${cell}"`);
+    await shot(page, '4-images-compare');
+  });
+
+  await h.step(`${mode}: window presets, HU under the cursor, line profile, region and difference`, async () => {
+    await page.locator('rf-viewer-toolbar button[data-preset="Lung"]').click();
+    check((await page.locator('rf-viewer-toolbar input[name="width"]').inputValue()) === '1500', 'lung width');
+    check((await page.locator('rf-viewer-toolbar input[name="level"]').inputValue()) === '-600', 'lung level');
+    const panel = page.locator('rf-image-viewer canvas').first();
+    const box = await panel.boundingBox();
+    await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+    const readout = await page.locator('rf-image-viewer .readout').first().innerText();
+    check(/x -?\d+\.\d mm, y -?\d+\.\d mm: -?\d+ HU/.test(readout), `cursor read-out: ${readout}`);
+    await page.locator('rf-viewer-toolbar button[data-preset="Soft tissue"]').click();
+    await page.locator('rf-viewer-toolbar button[data-tool="line"]').click();
+    await page.mouse.move(box.x + box.width * 0.15, box.y + box.height * 0.5);
+    await page.mouse.down();
+    await page.mouse.move(box.x + box.width * 0.85, box.y + box.height * 0.5, { steps: 5 });
+    await page.mouse.up();
+    const panels = await page.locator('rf-image-viewer').count();
+    await page.locator('rf-line-plot#profile path').first().waitFor();
+    check((await page.locator('rf-line-plot#profile path').count()) === panels, 'one profile per panel');
+    await page.locator('rf-viewer-toolbar button[data-tool="region"]').click();
+    await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.45);
+    await page.mouse.down();
+    await page.mouse.move(box.x + box.width * 0.55, box.y + box.height * 0.45, { steps: 3 });
+    await page.mouse.up();
+    const regionRows = await page.locator('rf-region-table tbody tr').count();
+    check(regionRows === panels, `${regionRows} region rows for ${panels} panels`);
+    await shot(page, '5-profile-region');
+    await page.locator('rf-viewer-toolbar input[name="difference"]').check();
+    await page.locator('rf-image-viewer .label', { hasText: '−' }).first().waitFor();
+    await shot(page, '6-difference');
+    await page.locator('rf-viewer-toolbar input[name="difference"]').uncheck();
+  });
+
+  await h.step(`${mode}: (e) exports NRRD (same pixels as the command line), PNG and the report`, async () => {
+    await page.locator(`rf-image-viewer[data-key] .label`, { hasText: FBP_NAME }).first().waitFor();
+    const fbpPanel = page.locator('rf-image-viewer', { has: page.locator('.label', { hasText: FBP_NAME }) }).first();
+    const b = await fbpPanel.locator('canvas').boundingBox();
+    await page.locator('rf-viewer-toolbar button[data-tool="window"]').click();
+    await page.mouse.click(b.x + 5, b.y + 5);
+    const nrrd = await download(page, () => page.locator('#export-nrrd-hu').click());
+    const img = parseFloatNrrd(nrrd.bytes);
+    check(img.sizes.join(' ') === '576 576', `sizes ${img.sizes}`);
+    check(img.keys['rimfill.quantity'] === 'hu', `quantity ${img.keys['rimfill.quantity']}`);
+    check(/^\(1,0\) \(0,1\)$/.test(img.fields['space directions']), `space directions ${img.fields['space directions']}`);
+    const mw = Number(reference.fbp.keys['rimfill.muWater']);
+    let maxDiff = 0;
+    for (let i = 0; i < img.data.length; i++) maxDiff = Math.max(maxDiff, Math.abs(img.data[i] - (reference.fbp.data[i] - mw) * (1000 / mw)));
+    // Same engine and split: the pixels agree to float32 rounding of values up to a few thousand HU.
+    check(maxDiff < 0.05, `largest difference from the command line's image: ${maxDiff} HU`);
+    const png = pngHeader((await download(page, () => page.locator('#export-png').click())).bytes);
+    check(png.width === 576 && png.height === 576, `PNG ${png.width} x ${png.height}`);
+    const report = (await download(page, () => page.locator('#export-report').click())).bytes.toString('utf8');
+    check(/not for diagnosis/.test(report), 'report caution');
+    check(/default-src 'none'/.test(report), 'report policy');
+    const images = report.match(/<img [^>]*src="data:image\/png;base64,/g) ?? [];
+    check(images.length === (await page.locator('rf-image-viewer').count()), `${images.length} images in the report`);
+    check(report.includes(FBP_NAME) && report.includes('Inside the measured field'), 'report recipe and metrics');
+    check(/<svg[^>]*viewBox/.test(report), 'report profile plot');
+  });
+
+  await h.step(`${mode}: (d) reloading, even mid-run, keeps the scan and every finished result`, async () => {
+    const results = await resultCount(page);
+    await page.locator('#tab-reconstruct').click();
+    await page.locator('#field-method').selectOption('fbp');
+    await page.locator('rf-recipe-form input[value="custom"]').check();
+    await page.locator('rf-recipe-form input[name="gridSize"]').fill('3072');
+    await page.locator('rf-recipe-form input[name="gridPixel"]').fill('0.1875');
+    await page.locator('#queue-recipe').click();
+    await page.locator('rf-run-queue li[data-state="running"]').waitFor({ timeout: 30_000 }).catch(async (err) => {
+      const jobs = await page.locator('rf-run-queue li').evaluateAll((ls) => ls.map((l) => `${l.dataset.state}: ${l.innerText.replace(/\s+/g, ' ')}`));
+      throw new Error(`no job started: ${jobs.join(' | ')} (${err.message.split('\n')[0]})`);
+    });
+    await page.reload();
+    await page.locator('rf-scan-library li').first().waitFor({ timeout: 60_000 });
+    check((await page.locator('rf-scan-library li').count()) === 1, 'one scan after reload (the demo is not made twice)');
+    await page.locator('#tab-images').click();
+    await page.locator('rf-result-list li').first().waitFor();
+    check((await resultCount(page)) === results, `${await resultCount(page)} results after reload, expected ${results}`);
+    await shot(page, '7-after-reload');
+  });
+
+  await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {
+    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
+    const outside = requests.filter((u) => !own(u));
+    check(requests.length > 0, 'requests were recorded');
+    check(outside.length === 0, `requests outside the page: ${outside.slice(0, 5).join(', ')}`);
+    check(problems.length === 0, problems.slice(0, 5).join(' | '));
+  });
+}

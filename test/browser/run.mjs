@@ -1,0 +1,78 @@
+// Browser tests of the built page (dist/index.html) in Debian's Chromium, driven by
+// playwright-core: once served from a loopback static server (cross-origin isolated: shared
+// engine memory) and once opened from disk (file://: separate memories). Builds the page first
+// when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
+// Usage: node test/browser/run.mjs [--rebuild] [--only http|file]
+import { execSync } from 'node:child_process';
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { chromium } from 'playwright-core';
+import { cliReference } from './cli-reference.mjs';
+import { Harness } from './harness.mjs';
+import { pageTests } from './page-tests.mjs';
+import { ensurePageBuilt } from '../../scripts/page-build.mjs';
+import { serveDirectory } from '../../scripts/serve-page.mjs';
+
+const root = resolve(import.meta.dirname, '../..');
+const dist = join(root, 'dist/index.html');
+const artifacts = join(root, 'test-artifacts');
+const argv = process.argv.slice(2);
+const only = argv.includes('--only') ? argv[argv.indexOf('--only') + 1] : undefined;
+
+function chromiumPath() {
+  try {
+    return execSync('command -v chromium', { encoding: 'utf8', shell: '/bin/bash' }).trim();
+  } catch {
+    throw new Error("Debian's chromium is not installed: run apt-get install -y chromium (tests never download a browser)");
+  }
+}
+
+const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+
+async function main() {
+  const h = new Harness();
+  let executablePath;
+  try {
+    ensurePageBuilt(root, argv.includes('--rebuild'));
+    executablePath = chromiumPath();
+  } catch (err) {
+    console.error(err.message);
+    console.log('0 passed, 1 failed');
+    return 1;
+  }
+  mkdirSync(artifacts, { recursive: true });
+  let reference;
+  await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
+    reference = cliReference(root);
+  });
+  const server = await serveDirectory(join(root, 'dist'));
+  const modes = [
+    { mode: 'http', url: server.url, origin: new URL(server.url).origin },
+    { mode: 'file', url: pathToFileURL(dist).href, origin: 'file://' },
+  ].filter((m) => !only || m.mode === only);
+  try {
+    for (const m of modes) {
+      console.log(`\n${m.mode === 'http' ? `served from ${m.url} (cross-origin isolated)` : `opened from disk, ${m.url}`}`);
+      const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
+      const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1440, height: 1000 }, acceptDownloads: true });
+      try {
+        await pageTests(h, { context, ...m, artifacts, reference });
+      } finally {
+        await context.close();
+        rmSync(profile, { recursive: true, force: true });
+      }
+    }
+  } finally {
+    await server.close();
+    if (reference) rmSync(reference.dir, { recursive: true, force: true });
+  }
+  return h.finish();
+}
+
+main().then((code) => process.exit(code), (err) => {
+  console.error(err);
+  console.log('0 passed, 1 failed');
+  process.exit(1);
+});

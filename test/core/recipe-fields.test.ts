@@ -1,0 +1,32 @@
+// The recipe form's field descriptions follow the recipe module: every method and filter it
+// offers is a choice, every default field is described, and the summary reads the recipe.
+import { describe, expect, it } from 'vitest';
+import { FILTER_WINDOWS } from '../../web/core/recon/filter-design';
+import { describeRecipeFields, recipeSummary, RECIPE_FIELDS, type ChoiceField } from '../../web/core/recipe/fields';
+import { DEFAULT_RECIPE, METHODS, validateRecipe } from '../../web/core/recipe/recipe';
+
+describe('recipe fields', () => {
+  it('offer every method and filter window of the recipe module', () => {
+    const byKey = Object.fromEntries(describeRecipeFields().map((f) => [f.key, f]));
+    expect((byKey.method as ChoiceField).choices.map((c) => c.value)).toEqual([...METHODS]);
+    expect((byKey.filter as ChoiceField).choices.map((c) => c.value)).toEqual([...FILTER_WINDOWS]);
+  });
+
+  it('describe every field of the default recipe (add a description in fields.ts for a new one)', () => {
+    const described = new Set(RECIPE_FIELDS.map((f) => f.key));
+    const missing = Object.keys(DEFAULT_RECIPE).filter((k) => !described.has(k));
+    expect(missing).toEqual([]);
+  });
+
+  it('number fields accept their own limits in validateRecipe', () => {
+    for (const f of RECIPE_FIELDS) {
+      if (f.kind !== 'number' && f.kind !== 'integer') continue;
+      for (const v of [f.min, f.max]) expect(() => validateRecipe({ ...DEFAULT_RECIPE, [f.key]: v })).not.toThrow();
+    }
+  });
+
+  it('summarize a recipe in one line', () => {
+    expect(recipeSummary({ method: 'fbp', filter: 'hann', cutoff: 0.8 })).toBe('FBP, hann, cutoff 0.8, automatic grid');
+    expect(recipeSummary({ method: 'fbp', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, ram-lak, cutoff 1, 576 px × 1 mm');
+  });
+});

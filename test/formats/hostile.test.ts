@@ -1,0 +1,117 @@
+// Named lies, each rejected with one clear InputError that names the field, before any
+// allocation the ceiling forbids.
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { InputError } from '../../web/core/errors';
+import { gzip } from '../../web/core/formats/gzip';
+import type { NamedBytes } from '../../web/core/formats/named-file';
+import { readImageFile } from '../../web/core/formats/read-image';
+import { readProjectionData, readScanFile } from '../../web/core/formats/read-scan';
+import { writeTiffStack } from '../../web/core/formats/tiff';
+
+const enc = (s: string) => new TextEncoder().encode(s);
+function cat(...parts: Uint8Array[]): Uint8Array {
+  const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
+  let o = 0;
+  for (const p of parts) {
+    out.set(p, o);
+    o += p.length;
+  }
+  return out;
+}
+const nrrd = (header: string, data: Uint8Array = new Uint8Array(16)) => [{ name: 'x.nrrd', bytes: cat(enc(`NRRD0004\n${header}\n\n`), data) }];
+
+async function rejects(files: NamedBytes[], pattern: RegExp, read: 'image' | 'projections' = 'image', maxBytes?: number): Promise<void> {
+  const run = read === 'image' ? readImageFile(files, { maxBytes }) : readProjectionData(files, { maxBytes });
+  await expect(run).rejects.toThrow(InputError);
+  await expect(run).rejects.toThrow(pattern);
+}
+
+describe('NRRD lies', () => {
+  it('sizes larger than the data present', () => rejects(nrrd('type: float\ndimension: 2\nsizes: 4 4\nencoding: raw'), /promises 64 bytes.*holds 16/));
+  it('data past the memory ceiling, refused before allocating', () => rejects(nrrd('type: float\ndimension: 2\nsizes: 100 100\nencoding: raw', new Uint8Array(40000)), /40000 bytes needed, more than the memory limit of 10000 bytes/, 'image', 10000));
+  it('gzip sizes past the memory ceiling, refused before inflating', () => rejects(nrrd('type: float\ndimension: 3\nsizes: 100000 100000 100000\nencoding: gzip'), /memory limit of 1.0 GiB/));
+  it('a negative size', () => rejects(nrrd('type: float\ndimension: 2\nsizes: 4 -4\nencoding: raw'), /NRRD sizes/));
+  it('an unknown type', () => rejects(nrrd('type: complex\ndimension: 2\nsizes: 2 2\nencoding: raw'), /NRRD type: got "complex"/));
+  it('an unknown encoding', () => rejects(nrrd('type: float\ndimension: 2\nsizes: 2 2\nencoding: bzip2'), /NRRD encoding: got "bzip2"/));
+  it('truncated gzip data', async () => {
+    const z = await gzip(new Uint8Array(4096).fill(3));
+    await rejects(nrrd('type: uchar\ndimension: 2\nsizes: 64 64\nencoding: gzip', z.subarray(0, z.length - 9)), /damaged or truncated|holds/);
+  });
+  it('gzip data that expand beyond what the header announces', async () => {
+    const z = await gzip(new Uint8Array(1 << 20));
+    await rejects(nrrd('type: uchar\ndimension: 2\nsizes: 4 4\nencoding: gzip', z), /expand beyond 16 bytes/);
+  });
+  it('a detached data file that was not given', () => rejects(nrrd('type: float\ndimension: 2\nsizes: 2 2\nencoding: raw\ndata file: elsewhere.raw'), /"elsewhere.raw" was not given/));
+});
+
+describe('MetaImage and raw lies', () => {
+  it('DimSize larger than the data file', () => rejects([
+    { name: 'a.mhd', bytes: enc('NDims = 2\nDimSize = 10 10\nElementType = MET_FLOAT\nElementDataFile = a.raw\n') },
+    { name: 'a.raw', bytes: new Uint8Array(100) },
+  ], /promises 400 bytes.*holds 100/));
+  it('an unknown element type', () => rejects([{ name: 'a.mha', bytes: enc('NDims = 2\nDimSize = 1 1\nElementType = MET_FLOAT_MATRIX\nElementDataFile = LOCAL\n') }], /ElementType: got "MET_FLOAT_MATRIX"/));
+  it('a sidecar whose sizes do not match the raw file', () => rejects([
+    { name: 's.json', bytes: enc('{"dtype":"uint16","sizes":[100,100]}') }, { name: 's.raw', bytes: new Uint8Array(50) },
+  ], /promises 20000 bytes.*holds 50/));
+  it('a sidecar with an unknown dtype', () => rejects([
+    { name: 's.json', bytes: enc('{"dtype":"float16","sizes":[2,2]}') }, { name: 's.raw', bytes: new Uint8Array(8) },
+  ], /dtype: got "float16"/));
+});
+
+describe('TIFF lies', () => {
+  const tiff = () => writeTiffStack({ width: 2, height: 2, frames: 2, data: new Float32Array(8) });
+  it('a directory chain that loops back', async () => {
+    const b = tiff();
+    const v = new DataView(b.buffer);
+    const n = v.getUint16(8, true);
+    const second = v.getUint32(8 + 2 + n * 12, true);
+    v.setUint32(second + 2 + n * 12, 8, true); // the second directory points back to the first
+    await rejects([{ name: 'loop.tif', bytes: b }], /loops back to byte 8/);
+  });
+  it('LZW compression (not accepted: its decoder cannot bound damaged data)', async () => {
+    const b = tiff();
+    const v = new DataView(b.buffer);
+    const n = v.getUint16(8, true);
+    for (let i = 0; i < n; i++) if (v.getUint16(10 + i * 12, true) === 259) v.setUint16(10 + i * 12 + 8, 5, true);
+    await rejects([{ name: 'lzw.tif', bytes: b }], /Compression: got 5/);
+  });
+  it('a strip offset past the end of the file', async () => {
+    const b = tiff();
+    const v = new DataView(b.buffer);
+    const n = v.getUint16(8, true);
+    for (let i = 0; i < n; i++) if (v.getUint16(10 + i * 12, true) === 273) v.setUint32(10 + i * 12 + 8, 1 << 30, true);
+    await rejects([{ name: 'far.tif', bytes: b }], /runs past the end of the file/);
+  });
+});
+
+describe('DICOM files we do not read', () => {
+  const dir = '/usr/lib/python3/dist-packages/pydicom/data/test_files/';
+  const file = (name: string) => [{ name, bytes: new Uint8Array(readFileSync(dir + name)) }];
+  it('a compressed transfer syntax (pydicom JPEG2000.dcm)', () => rejects(file('JPEG2000.dcm'), /transfer syntax 1\.2\.840\.10008\.1\.2\.4\.9\d is compressed/));
+  it('an MR image (pydicom MR_small.dcm)', () => rejects(file('MR_small.dcm'), /modality "MR", expected CT/));
+  it('a truncated file (pydicom MR_truncated.dcm)', () => rejects(file('MR_truncated.dcm'), /DICOM MR_truncated.dcm/));
+});
+
+describe('scan lies', () => {
+  it('a geometry that does not match the data', async () => {
+    const g = { kind: 'parallel', detector: { channels: 3, pitch: 1 }, anglesDeg: { start: 0, step: 1, count: 5 } };
+    const files = [{ name: 's.json', bytes: enc(JSON.stringify({ ...g, dtype: 'float32', sizes: [4, 5] })) }, { name: 's.raw', bytes: new Uint8Array(80) }];
+    await expect(readScanFile(files)).rejects.toThrow(/geometry.detector.channels: got 3, expected 4/);
+  });
+  it('intensity data without a flat frame or i0', async () => {
+    const g = { kind: 'parallel', detector: { channels: 4, pitch: 1 }, anglesDeg: { start: 0, step: 1, count: 5 } };
+    const files = [{ name: 's.json', bytes: enc(JSON.stringify({ ...g, dtype: 'float32', sizes: [4, 5], quantity: 'intensity' })) }, { name: 's.raw', bytes: new Uint8Array(80) }];
+    await expect(readScanFile(files)).rejects.toThrow(/need a flat frame \(--flat\) or the unattenuated level \(--i0\)/);
+  });
+  it('NaN line integrals are reported, not hidden', async () => {
+    const g = { kind: 'parallel', detector: { channels: 2, pitch: 1 }, anglesDeg: { start: 0, step: 1, count: 1 } };
+    const files = [{ name: 's.json', bytes: enc(JSON.stringify({ ...g, dtype: 'float32', sizes: [2, 1] })) }, { name: 's.raw', bytes: new Uint8Array(new Float32Array([1, Number.NaN]).buffer) }];
+    await expect(readScanFile(files)).rejects.toThrow(/1 of 2 line integrals are not finite/);
+  });
+  it('DICOM given as projections', async () => {
+    const b = new Uint8Array(200);
+    b.set(enc('DICM'), 128);
+    await rejects([{ name: 'x.dcm', bytes: b }], /DICOM files hold images, not projections/, 'projections');
+  });
+});

@@ -1,0 +1,38 @@
+import { describe, expect, it } from 'vitest';
+import { readImageNrrd, writeImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readScanNrrd, writeScanNrrd } from '../../web/core/formats/scan-nrrd';
+import { presetGeometry } from '../../web/core/geometry/presets';
+
+describe('scan and image NRRD files (design.md "Scan file")', () => {
+  it('a scan round-trips: data, geometry and mu_water', async () => {
+    const g = presetGeometry('demo-parallel')!;
+    const data = Float32Array.from({ length: g.detector.channels * 360 }, (_, i) => Math.sin(i));
+    for (const gz of [false, true]) {
+      const bytes = await writeScanNrrd({ geometry: g, data, muWater: 0.0206 }, gz);
+      const head = new TextDecoder().decode(bytes.subarray(0, 200));
+      expect(head).toMatch(/^NRRD0004\n/);
+      expect(head).toContain(`sizes: ${g.detector.channels} 1 360`);
+      const back = await readScanNrrd(bytes);
+      expect(back.data).toEqual(data);
+      expect(back.geometry).toEqual(g);
+      expect(back.muWater).toBe(0.0206);
+    }
+  });
+
+  it('an image round-trips with its grid (space origin = centre of the first pixel, NRRD spec)', async () => {
+    const grid = { nx: 5, ny: 3, dx: 0.5, dy: 0.75, cx: 10, cy: -2 };
+    const data = Float32Array.from({ length: 15 }, (_, i) => i / 7);
+    const bytes = await writeImageNrrd({ grid, data, quantity: 'mu', muWater: 0.02, fovRadius: 99 });
+    expect(new TextDecoder().decode(bytes)).toContain('space origin: (9,-2.75)');
+    const back = await readImageNrrd(bytes);
+    expect(back.grid).toEqual(grid);
+    expect(back.data).toEqual(data);
+    expect(back.fovRadius).toBe(99);
+  });
+
+  it('refuses a file whose data is shorter than its header says', async () => {
+    const g = presetGeometry('demo-parallel')!;
+    const bytes = await writeScanNrrd({ geometry: g, data: new Float32Array(g.detector.channels * 360) });
+    await expect(readScanNrrd(bytes.subarray(0, bytes.length - 4))).rejects.toThrow(/promises \d+ bytes of data from byte \d+, the file holds \d+/);
+  });
+});

@@ -1,0 +1,63 @@
+// The exported report: self-contained (no external resource), caution present, user text
+// escaped, figures and recipe shown.
+import { describe, expect, it } from 'vitest';
+import type { Comparison } from '../../web/core/compare';
+import { buildReport } from '../../web/ui/export/report';
+import { fileName } from '../../web/ui/export/download';
+
+const comparison: Comparison = {
+  unit: 'HU',
+  regions: {
+    image: { pixels: 100, rmse: 12.34, psnr: 30.04, ssim: 0.9876 },
+    object: null,
+    insideFov: { pixels: 50, rmse: 5.55, psnr: 35, ssim: 0.99 },
+    outsideFov: null,
+  },
+  resampled: false,
+  fovRadiusMm: 100,
+  notes: [],
+  cupping: null,
+};
+
+const report = () => buildReport({
+  title: 'Reconstructions of <b>scan</b>',
+  scanName: 'a & b',
+  scanSummary: 'Fan beam',
+  referenceLabel: 'the ground truth',
+  window: { width: 400, level: 40 },
+  unit: 'HU',
+  createdAt: new Date(Date.UTC(2026, 0, 2, 3, 4)),
+  images: [{
+    label: 'FBP "sharp"', colour: '#2f6fb0', png: 'data:image/png;base64,AAAA', recipe: { method: 'fbp' }, seconds: 1.25, warnings: ['w<1>'], metrics: comparison,
+    residual: { rays: 10, rms: 0.0123, relative: 0.0456, bias: -0.001, maxAbs: 0.1, worstView: 7, worstViewRms: 0.05, perViewRms: [] },
+  }],
+});
+
+describe('report', () => {
+  it('is one self-contained document with the caution at the top and the bottom', () => {
+    const html = report();
+    expect(html.startsWith('<!doctype html>')).toBe(true);
+    expect(html).toContain("default-src 'none'; img-src data:");
+    expect(html).not.toMatch(/(src|href)="(https?:|\/\/)/);
+    expect(html.match(/not for diagnosis/g)).toHaveLength(2);
+  });
+
+  it('escapes names and shows the figures, recipe and warnings', () => {
+    const html = report();
+    expect(html).toContain('Reconstructions of &lt;b&gt;scan&lt;/b&gt;');
+    expect(html).toContain('FBP &quot;sharp&quot;');
+    expect(html).toContain('a &amp; b');
+    expect(html).toContain('<td>12.3</td><td>30.0</td><td>0.988</td>');
+    expect(html).toContain('<td>5.5</td><td>35.0</td><td>0.990</td><td>–</td>');
+    expect(html).toContain('{&quot;method&quot;:&quot;fbp&quot;}');
+    expect(html).toContain('w&lt;1&gt;');
+    expect(html).toContain('2026-01-02 03:04');
+    expect(html).toContain('Agreement with the measured data');
+    expect(html).toContain('<td>4.6%</td><td>0.0123</td><td>-0.00100</td><td>7</td>');
+  });
+
+  it('file names keep only safe characters', () => {
+    expect(fileName('FBP, ram-lak, 576 px × 1 mm', 'nrrd')).toBe('FBP-ram-lak-576-px-1-mm.nrrd');
+    expect(fileName('///', 'png')).toBe('rimfill.png');
+  });
+});

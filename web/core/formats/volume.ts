@@ -1,0 +1,72 @@
+// Images and volumes as read from files: a 3D grid (one slice for 2D images) in mm, values in
+// 1/mm (mu), HU, or as stored when the file does not say.
+import { InputError } from '../errors';
+import { checkGrid, huToMu, type Image2D } from '../image';
+
+export type VolumeQuantity = 'mu' | 'hu' | 'unknown';
+
+/** A volume, x fastest then y then z (slice after slice). */
+export interface ImageVolume {
+  nx: number;
+  ny: number;
+  nz: number;
+  /** Voxel size along x, y, z, mm. */
+  spacing: [number, number, number];
+  /** Centre of voxel (0, 0, 0), mm. */
+  origin: [number, number, number];
+  data: Float32Array;
+  quantity: VolumeQuantity;
+  muWater?: number;
+  fovRadius?: number;
+  /** The format it came from, for messages ("DICOM", "NRRD", ...). */
+  format: string;
+}
+
+/** Slice k of a volume as a 2D image (values as stored). */
+export function volumeSlice(v: ImageVolume, k: number): Image2D {
+  if (!Number.isInteger(k) || k < 0 || k >= v.nz) throw new InputError(`slice: got ${k}, expected 0 to ${v.nz - 1} (the ${v.format} data hold ${v.nz} slices)`);
+  const [dx, dy] = v.spacing;
+  const grid = checkGrid({ nx: v.nx, ny: v.ny, dx, dy, cx: v.origin[0] + ((v.nx - 1) / 2) * dx, cy: v.origin[1] + ((v.ny - 1) / 2) * dy });
+  const n = v.nx * v.ny;
+  const data = v.nz === 1 ? v.data : v.data.slice(k * n, (k + 1) * n);
+  if (v.quantity === 'unknown') return { grid, data, quantity: 'mu', muWater: v.muWater, fovRadius: v.fovRadius };
+  return { grid, data, quantity: v.quantity, muWater: v.muWater, fovRadius: v.fovRadius };
+}
+
+/** An image in mu (1/mm): HU images are converted with mu_water (the file's or the one given). */
+export function imageAsMu(image: Image2D, muWater?: number): Image2D {
+  if (image.quantity === 'mu') return muWater !== undefined ? { ...image, muWater } : image;
+  const mw = muWater ?? image.muWater;
+  if (!(mw && mw > 0)) throw new InputError('image: values are HU but mu_water is unknown; give it with --mu-water');
+  return { ...image, data: huToMu(image.data, mw), quantity: 'mu', muWater: mw };
+}
+
+/** A 2D image as a one-slice volume. */
+export function imageAsVolume(image: Image2D, format: string): ImageVolume {
+  const g = image.grid;
+  return {
+    nx: g.nx, ny: g.ny, nz: 1, spacing: [g.dx, g.dy, 1],
+    origin: [g.cx - ((g.nx - 1) / 2) * g.dx, g.cy - ((g.ny - 1) / 2) * g.dy, 0],
+    data: image.data, quantity: image.quantity, muWater: image.muWater, fovRadius: image.fovRadius, format,
+  };
+}
+
+/** Reverses the x and/or y axis of a volume (for files whose axes point the other way). */
+export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean): ImageVolume {
+  if (!flipX && !flipY) return v;
+  const { nx, ny, nz } = v;
+  const out = new Float32Array(v.data.length);
+  for (let k = 0; k < nz; k++) {
+    for (let j = 0; j < ny; j++) {
+      const src = k * nx * ny + (flipY ? ny - 1 - j : j) * nx;
+      const dst = k * nx * ny + j * nx;
+      for (let i = 0; i < nx; i++) out[dst + i] = v.data[src + (flipX ? nx - 1 - i : i)];
+    }
+  }
+  const origin: [number, number, number] = [
+    flipX ? v.origin[0] - (nx - 1) * v.spacing[0] : v.origin[0],
+    flipY ? v.origin[1] - (ny - 1) * v.spacing[1] : v.origin[1],
+    v.origin[2],
+  ];
+  return { ...v, data: out, origin };
+}

@@ -1,0 +1,83 @@
+// The one entry point for writing images: NRRD or MetaImage (.mha, or .mhd + .raw) as float32
+// mu, float32 HU or int16 HU, and PNG at a display window.
+import { InputError } from '../errors';
+import { muToHu, type Image2D } from '../image';
+import { writeImageNrrd } from './image-nrrd';
+import { writeMetaImage } from './metaimage';
+import { baseName, type NamedBytes } from './named-file';
+import { checkWindow, writePng, type DisplayWindow } from './png';
+
+export type ImageFileFormat = 'nrrd' | 'mha' | 'mhd' | 'png';
+export const IMAGE_FILE_FORMATS: readonly ImageFileFormat[] = ['nrrd', 'mha', 'mhd', 'png'];
+
+export interface ImageWriteOptions {
+  format: ImageFileFormat;
+  /** Values written: mu (1/mm) or HU. Default: as the image holds them. */
+  quantity?: 'mu' | 'hu';
+  /** Sample type; int16 only for HU (rounded to whole HU, clamped to -32768..32767). */
+  sampleType?: 'float32' | 'int16';
+  /** Window for PNG, in the written quantity's units. */
+  window?: DisplayWindow;
+  compress?: boolean;
+}
+
+export interface ImageWriteResult {
+  files: NamedBytes[];
+  /** Pixels outside the int16 range (clamped) or non-finite (PNG: drawn black). */
+  clamped: number;
+  warnings: string[];
+}
+
+/** The format an output name asks for, from its extension. */
+export function formatFromName(name: string): ImageFileFormat {
+  const m = /\.(nrrd|mha|mhd|png)$/i.exec(baseName(name));
+  if (!m) throw new InputError(`output ${name}: expected a name ending in .nrrd, .mha, .mhd or .png`);
+  return m[1].toLowerCase() as ImageFileFormat;
+}
+
+function inQuantity(image: Image2D, q: 'mu' | 'hu'): Image2D {
+  if (image.quantity === q) return image;
+  const mw = image.muWater;
+  if (!(mw && mw > 0)) throw new InputError(`cannot write ${q === 'hu' ? 'HU' : 'mu'}: mu_water is unknown; give it with --mu-water`);
+  if (q === 'hu') return { ...image, data: muToHu(image.data, mw), quantity: 'hu' };
+  const s = mw / 1000;
+  return { ...image, data: image.data.map((h) => mw + h * s), quantity: 'mu' };
+}
+
+function countInt16Overflow(data: Float32Array): number {
+  let n = 0;
+  for (let i = 0; i < data.length; i++) {
+    const v = Math.round(data[i]);
+    if (!(v >= -32768 && v <= 32767)) n++;
+  }
+  return n;
+}
+
+/** Writes an image; `name` gives the base name of the files. */
+export async function writeImageFile(image: Image2D, name: string, o: ImageWriteOptions): Promise<ImageWriteResult> {
+  const out = inQuantity(image, o.quantity ?? image.quantity);
+  const type = o.sampleType ?? 'float32';
+  if (type === 'int16' && out.quantity !== 'hu') throw new InputError('int16 output holds whole HU: write HU (--hu) or float32');
+  const warnings: string[] = [];
+  const clamped = type === 'int16' ? countInt16Overflow(out.data) : 0;
+  if (clamped) warnings.push(`${clamped} pixels lie outside the int16 range (or are not finite) and were clamped`);
+  const base = baseName(name).replace(/\.(nrrd|mha|mhd|raw|png)$/i, '');
+  if (o.format === 'png') {
+    if (!o.window) throw new InputError('PNG output needs a window (--window W --level L)');
+    const png = await writePng(out, checkWindow(o.window));
+    if (png.nonFinite) warnings.push(`${png.nonFinite} pixels are not finite numbers and were drawn black`);
+    return { files: [{ name: `${base}.png`, bytes: png.bytes }], clamped: png.nonFinite, warnings };
+  }
+  if (o.format === 'nrrd') return { files: [{ name: `${base}.nrrd`, bytes: await writeImageNrrd(out, o.compress, type) }], clamped, warnings };
+  const g = out.grid;
+  const keys: Record<string, string> = { RimfillQuantity: out.quantity };
+  if (out.muWater !== undefined) keys.RimfillMuWater = String(out.muWater);
+  if (out.fovRadius !== undefined) keys.RimfillFovRadius = String(out.fovRadius);
+  const files = await writeMetaImage(out.data, {
+    sizes: [g.nx, g.ny], spacing: [g.dx, g.dy],
+    offset: [g.cx - ((g.nx - 1) / 2) * g.dx, g.cy - ((g.ny - 1) / 2) * g.dy],
+    keys, type, compress: o.compress, detachedName: o.format === 'mhd' ? base : undefined,
+  });
+  if (o.format === 'mha') files[0].name = `${base}.mha`;
+  return { files, clamped, warnings };
+}

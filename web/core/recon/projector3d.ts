@@ -1,0 +1,134 @@
+// Cone-beam forward projection (Joseph's method in 3D) and its exact adjoint over a workspace,
+// for one volume grid and one cone geometry: the same shape as Projector2d, so iterative
+// methods can run on volumes. Projections are [view][row][channel]; volumes x fastest.
+//
+// Memory: two zero-padded copies of the volume ((nx+3)(ny+3)(nz+3) floats each), shared by
+// all workers. The forward projector splits views across workers; the adjoint gives each
+// worker a range of padded z planes to write (cone-joseph.ts), so it needs no per-worker
+// accumulators. The padded copies double as the adjoint's accumulators: a forward call always
+// re-pads, an adjoint call always zeroes them first.
+import type { Buf, Workspace } from '../engine/workspace';
+import { InputError } from '../errors';
+import { maxConeAngle, requireCone } from '../geometry/cone';
+import type { Geometry } from '../geometry/types';
+import { firstChannelU, firstRowV, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
+import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type VolumeGrid } from '../volume';
+import { requireGridInsideSourceCircle } from './projector';
+import { splitRange } from './split';
+
+/** Largest angle a ray may lean out of the xy plane (Joseph steps along x or y only). */
+const MAX_CONE_ANGLE = Math.PI / 4;
+
+export class Projector3d {
+  readonly nViews: number;
+  readonly nCh: number;
+  readonly nRows: number;
+  readonly views: Buf;
+  /** Padded copies read by the forward projector, and the adjoint's accumulators. */
+  private readonly pad: Buf;
+  private readonly padT: Buf;
+  private readonly u0: number;
+  private readonly v0: number;
+  private readonly origin: { x0: number; y0: number; z0: number };
+
+  private constructor(
+    private readonly ws: Workspace,
+    readonly grid: VolumeGrid,
+    readonly geometry: Geometry,
+    viewTable: Float32Array,
+  ) {
+    this.nViews = viewTable.length / VIEW_STRIDE;
+    this.nCh = geometry.detector.channels;
+    this.nRows = geometry.detector.rows;
+    this.u0 = firstChannelU(geometry);
+    this.v0 = firstRowV(geometry);
+    this.origin = volumeOrigin(grid);
+    const padLen = (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3);
+    this.views = ws.alloc('views', viewTable.length);
+    this.pad = ws.alloc('pad3', padLen);
+    this.padT = ws.alloc('padT3', padLen);
+  }
+
+  /** Lays out a projector in `ws` (after whatever the workspace already holds). */
+  static async create(ws: Workspace, grid: VolumeGrid, geometry: Geometry): Promise<Projector3d> {
+    requireCone(geometry);
+    checkVolumeGrid(grid);
+    requireGridInsideSourceCircle(geometry, grid);
+    const angle = maxConeAngle(geometry);
+    if (angle > MAX_CONE_ANGLE) {
+      throw new InputError(`geometry: rays lean up to ${((angle * 180) / Math.PI).toFixed(1)} degrees out of the rotation plane, expected at most 45 for the 3D projector`);
+    }
+    const table = viewVectors(geometry);
+    const p = withVolumeMemory(grid, () => new Projector3d(ws, grid, geometry, table));
+    await ws.write(p.views, table);
+    return p;
+  }
+
+  /** Floats in a projection array ([view][row][channel]). */
+  get projectionLength(): number {
+    return this.nViews * this.nRows * this.nCh;
+  }
+
+  private args(): number[] {
+    const g = this.grid, o = this.origin;
+    return [g.nx, g.ny, g.nz, g.dx, g.dy, g.dz, o.x0, o.y0, o.z0];
+  }
+
+  private detectorArgs(): number[] {
+    const [pu, pv] = this.geometry.detector.pitch;
+    return [this.nCh, this.nRows, this.u0, pu, this.v0, pv];
+  }
+
+  /** Padded plane ranges, one per worker. */
+  private planes(): Array<[number, number]> {
+    return splitRange(this.grid.nz + 3, this.ws.parallelism);
+  }
+
+  /** proj[v, r, k] = (A volume)[v, r, k] for views [view0, view1) (default all). */
+  async forward(volume: Buf, proj: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
+    const { nx, ny, nz } = this.grid;
+    const plane = (nx + 3) * (ny + 3);
+    await this.ws.run(
+      this.planes().map(([a, b]) => ({
+        kernel: 'padVolume' as const,
+        args: [volume, nx, ny, nz, a, b, this.pad, this.padT],
+        writes: [{ buf: this.pad, start: a * plane, length: (b - a) * plane }, { buf: this.padT, start: a * plane, length: (b - a) * plane }],
+      })),
+    );
+    const per = this.nRows * this.nCh;
+    await this.ws.run(
+      splitRange(view1 - view0, this.ws.parallelism).map(([a, b]) => ({
+        kernel: 'josephForwardCone' as const,
+        args: [this.pad, this.padT, ...this.args(), this.views, view0 + a, view0 + b, ...this.detectorArgs(), proj],
+        writes: [{ buf: proj, start: (view0 + a) * per, length: (b - a) * per }],
+      })),
+    );
+  }
+
+  /** volume = A^T proj over views [view0, view1) (default all). */
+  async adjoint(proj: Buf, volume: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
+    const { nx, ny, nz } = this.grid;
+    const plane = (nx + 3) * (ny + 3);
+    const owned = this.planes();
+    const at = (b: Buf, p: number): Buf => ({ ...b, ptr: b.ptr + p * plane * 4 });
+    await this.ws.run(owned.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [at(this.pad, a), (b - a) * plane] })));
+    await this.ws.run(owned.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [at(this.padT, a), (b - a) * plane] })));
+    await this.ws.run(
+      owned.map(([a, b]) => ({
+        kernel: 'josephAdjointCone' as const,
+        args: [this.pad, this.padT, ...this.args(), this.views, view0, view1, ...this.detectorArgs(), proj, a, b],
+      })),
+    );
+    // Slice k is padded plane k + 1: the worker that owns the plane folds the slice.
+    await this.ws.run(
+      owned.map(([a, b]) => {
+        const k0 = Math.max(0, a - 1), k1 = Math.min(nz, b - 1);
+        return {
+          kernel: 'unpadVolume' as const,
+          args: [this.pad, this.padT, nx, ny, nz, k0, Math.max(k0, k1), volume],
+          writes: [{ buf: volume, start: k0 * nx * ny, length: Math.max(0, k1 - k0) * nx * ny }],
+        };
+      }),
+    );
+  }
+}

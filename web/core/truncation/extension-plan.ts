@@ -1,0 +1,207 @@
+// Planning a detector extension: tail length per view and side from the estimated reach of
+// the object (edges.ts, not a constant), scaled to the mass each view misses where the mass
+// consistency condition gives it (mass.ts), the number of channels to add on each side, and
+// the kernel's parameter table (assembly/extend.ts).
+import { extendDetector } from '../geometry/presets';
+import type { Geometry } from '../geometry/types';
+import { firstChannelU } from '../geometry/view-vectors';
+import type { Scan } from '../scan';
+import type { PerSide } from './edge-stats';
+import { displacedDetectorMargin } from './displaced-margin';
+import { analyseEdges, type EdgeAnalysis } from './edges';
+import { EDGE_PLATEAU, EXTEND_CODES, EXTEND_DESCRIPTIONS, EXTEND_PARAMS, type ExtendMethod } from './extend-methods';
+import { massConsistency, massUnavailable, type MassReport } from './mass';
+import { rayCoordinates } from './ray-coords';
+import { tailMassTargets } from './mass-targets';
+import { tailArea, type CylinderTail } from './water-fit';
+
+/** What the extension kernel needs (assembly/extend.ts extendViews). */
+export interface DetectorExtension {
+  /** Channels added before channel 0 and after the last channel. */
+  left: number;
+  right: number;
+  /** Kernel method code. */
+  code: number;
+  /** EXTEND_PARAMS floats per view. */
+  params: Float32Array;
+  /** s of every extended channel, mm. */
+  coord: Float32Array;
+}
+
+export interface ExtensionSummary {
+  method: ExtendMethod;
+  source: string;
+  channelsAdded: { left: number; right: number };
+  extendedChannels: number;
+  meanTailMm: { left: number; right: number };
+  maxTailMm: { left: number; right: number };
+  /** Tails scaled so that each view restores the object's mass (zeroth Helgason-Ludwig condition). */
+  massScaledTails: number;
+  massBasis: MassReport['basis'] | 'unavailable';
+  muWater: number;
+  muAssumed: boolean;
+}
+
+export interface ExtensionPlan extends DetectorExtension {
+  method: Exclude<ExtendMethod, 'none'>;
+  /** The extended detector's geometry (extendDetector). */
+  geometry: Geometry;
+  /** Tail length per view and side, mm in s. */
+  lengths: PerSide<Float64Array>;
+  summary: ExtensionSummary;
+}
+
+/** Bounds on the factor by which a tail is stretched to meet the missing mass (common practice: guard against noise). */
+const MASS_SCALE_MIN = 0.5;
+const MASS_SCALE_MAX = 2;
+
+/** Extended row of a view: the mirrored measured value and the cos^2 weight give MIRROR's tail area. */
+function mirrorArea(row: Float32Array, s: Float64Array, side: 0 | 1, length: number): number {
+  const n = s.length;
+  const edge = side === 0 ? 0 : n - 1;
+  const dir = side === 0 ? 1 : -1;
+  const width = Math.abs(s[1] - s[0]) || 1;
+  let area = 0;
+  for (let m = 1; m * width < length; m++) {
+    const k = Math.min(n - 1, Math.max(0, edge + dir * m));
+    area += row[k] * Math.cos((Math.PI * m * width) / (2 * length)) ** 2 * width;
+  }
+  return area;
+}
+
+/** Tail area of a method for edge value pe and length L (mm), in s. */
+function methodArea(method: ExtendMethod, pe: number, length: number, water: CylinderTail, mirror: () => number): number {
+  switch (method) {
+    case 'cosine':
+      return (pe * length) / 2;
+    case 'edge':
+      return pe * length * (EDGE_PLATEAU + (1 - EDGE_PLATEAU) / 2);
+    case 'water':
+      return tailArea(water);
+    case 'mirror':
+      return mirror();
+    default:
+      return 0;
+  }
+}
+
+/**
+ * Plans the extension of a 2D scan by `method`. `analysis` and `mass` may be passed when already
+ * computed. Tails start at each cut-off edge's least-squares edge value (continuity) and end at
+ * the estimated object boundary; a side that is not cut off gets no tail.
+ */
+export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>, analysis?: EdgeAnalysis, mass?: MassReport | null): ExtensionPlan {
+  const a = analysis ?? analyseEdges(scan);
+  const g = scan.geometry;
+  const nCh = g.detector.channels, nViews = a.nViews;
+  const m = mass === undefined ? (massUnavailable(scan) || !mayHaveCompleteViews(a) ? null : massConsistency(scan, a.threshold)) : mass;
+  const lengths = [Float64Array.from(a.extent[0]), Float64Array.from(a.extent[1])] as PerSide<Float64Array>;
+  const water = [a.tails[0].slice(), a.tails[1].slice()] as PerSide<CylinderTail[]>;
+  const pe = (side: 0 | 1, v: number) => Math.max(0, a.stats.value[side][v]);
+  const row = (v: number) => scan.data.subarray(v * nCh, (v + 1) * nCh);
+  // Tail area before mass scaling (water: the analysed cylinder, whose area scales with its stretch).
+  const area = (side: 0 | 1, v: number, length: number) =>
+    methodArea(method, pe(side, v), length, water[side][v], () => mirrorArea(row(v), a.s, side, length));
+
+  let scaled = 0;
+  if (m && m.basis === 'complete-views') {
+    const areas = [0, 1].map((side) => Float64Array.from({ length: nViews }, (_, v) => (a.truncated[side][v] ? area(side as 0 | 1, v, lengths[side][v]) : 0))) as PerSide<Float64Array>;
+    const targets = tailMassTargets(a, m, areas);
+    for (const side of [0, 1] as const) {
+      for (let v = 0; v < nViews; v++) {
+        const target = targets[side][v], have = areas[side][v], L = lengths[side][v];
+        if (!a.truncated[side][v] || !(target > 0) || !(have > 0)) continue;
+        let c = target / have;
+        if (method === 'mirror') c = solveScale((k) => area(side, v, k * L), target);
+        c = Math.min(MASS_SCALE_MAX, Math.max(MASS_SCALE_MIN, c));
+        lengths[side][v] = Math.min(a.maxExtent[side], c * L);
+        const t = water[side][v];
+        water[side][v] = { ...t, stretch: t.stretch * (lengths[side][v] / L) };
+        scaled++;
+      }
+    }
+  }
+
+  // Channels to add: enough for the longest tail on each side, and for a displaced detector's
+  // short side to mirror its long one.
+  const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
+  const uLast = u0 + (nCh - 1) * pitch;
+  const reach = (side: 0 | 1) => lengths[side].reduce((x, y) => Math.max(x, y), 0);
+  const margin = displacedDetectorMargin(g);
+  const left = Math.max(margin.left, reach(0) > 0 ? Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1 : 0);
+  const right = Math.max(margin.right, reach(1) > 0 ? Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1 : 0);
+  const { geometry, coord } = extendedLayout(g, left, right);
+  const nExt = left + nCh + right;
+
+  const params = new Float32Array(nViews * EXTEND_PARAMS);
+  for (let v = 0; v < nViews; v++) {
+    for (const side of [0, 1] as const) {
+      if (!a.truncated[side][v]) continue;
+      const o = v * EXTEND_PARAMS + 4 * side, L = lengths[side][v], p = pe(side, v);
+      if (method === 'water') {
+        const t = water[side][v];
+        params.set([2 * t.mu, t.radius, t.inset, t.stretch > 0 ? 1 / t.stretch : 0], o);
+      } else if (method === 'edge') params.set([p, L, EDGE_PLATEAU * L, 0], o);
+      else if (method === 'cosine') params.set([p, L, 0, 0], o);
+      else params.set([0, L, 0, 0], o);
+    }
+  }
+
+  const stat = (side: 0 | 1) => {
+    let sum = 0, n = 0;
+    for (let v = 0; v < nViews; v++) if (a.truncated[side][v]) { sum += lengths[side][v]; n++; }
+    return { mean: n ? sum / n : 0, max: reach(side) };
+  };
+  const [sl, sr] = [stat(0), stat(1)];
+  return {
+    method, left, right, code: EXTEND_CODES[method], params, coord, geometry, lengths,
+    summary: {
+      method, source: EXTEND_DESCRIPTIONS[method],
+      channelsAdded: { left, right }, extendedChannels: nExt,
+      meanTailMm: { left: sl.mean, right: sr.mean }, maxTailMm: { left: sl.max, right: sr.max },
+      massScaledTails: scaled, massBasis: m ? m.basis : 'unavailable',
+      muWater: a.mu, muAssumed: a.muAssumed,
+    },
+  };
+}
+
+/** The extended detector and the s coordinate of each of its channels. */
+function extendedLayout(g: Geometry, left: number, right: number): { geometry: Geometry; coord: Float32Array } {
+  const rays = rayCoordinates(g);
+  const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
+  const coord = new Float32Array(left + g.detector.channels + right);
+  for (let j = 0; j < coord.length; j++) coord[j] = rays.s(u0 + (j - left) * pitch);
+  return { geometry: extendDetector(g, left, right), coord };
+}
+
+/**
+ * The extension FBP needs without any extrapolation ('none'): zero channels on a displaced
+ * detector's short side (displaced-margin.ts), or undefined when none are needed.
+ */
+export function zeroExtension(scan: Scan): DetectorExtension | undefined {
+  const { left, right } = displacedDetectorMargin(scan.geometry);
+  if (!left && !right) return undefined;
+  const nViews = scan.data.length / scan.geometry.detector.channels;
+  return { left, right, code: EXTEND_CODES.none, params: new Float32Array(nViews * EXTEND_PARAMS), coord: extendedLayout(scan.geometry, left, right).coord };
+}
+
+/**
+ * A (rebinned) view is complete only if some view is uncut on the left and some on the right;
+ * when not, the mass is unknown (a lower bound) and the consistency step is skipped.
+ */
+function mayHaveCompleteViews(a: EdgeAnalysis): boolean {
+  return a.truncated[0].some((t) => !t) && a.truncated[1].some((t) => !t);
+}
+
+/** The factor c in [MASS_SCALE_MIN, MASS_SCALE_MAX] with areaOf(c) = target (bisection; areaOf increasing). */
+function solveScale(areaOf: (c: number) => number, target: number): number {
+  let lo = MASS_SCALE_MIN, hi = MASS_SCALE_MAX;
+  if (areaOf(hi) <= target) return hi;
+  if (areaOf(lo) >= target) return lo;
+  for (let i = 0; i < 30; i++) {
+    const mid = (lo + hi) / 2;
+    if (areaOf(mid) < target) lo = mid;
+    else hi = mid;
+  }
+  return (lo + hi) / 2;
+}

@@ -1,0 +1,129 @@
+// Records kept in IndexedDB. Every record carries `schema` and `kind`; a reader checks both, so
+// data written by another version is upgraded or refused with a reason, never misread.
+// Metadata and bulk arrays live under separate keys: listing reads only the small records.
+import type { DataResidual } from '../core/data-residual';
+import type { Comparison } from '../core/compare';
+import type { Geometry } from '../core/geometry/types';
+import type { ImageGrid } from '../core/image';
+
+/** Version of the record layout this build writes. */
+export const SCHEMA_VERSION = 1;
+
+/** Where a scan came from. */
+export type ScanSource = { type: 'file'; fileNames: string[] } | { type: 'demo'; description: string };
+
+/** A stored scan's description (small; listed without loading projections). */
+export interface ScanMeta {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'scan';
+  id: string;
+  name: string;
+  /** Milliseconds since 1970. */
+  createdAt: number;
+  geometry: Geometry;
+  /** mu of water, 1/mm, when known. */
+  muWater?: number;
+  notes?: Record<string, string>;
+  source: ScanSource;
+  /** Bytes of projections plus reference image. */
+  bytes: number;
+  /** True when a reference image (ground truth) is stored with the scan. */
+  hasReference: boolean;
+  /** Things the reader noticed about the data (e.g. negative line integrals). */
+  warnings: string[];
+}
+
+/** A reference image stored with a scan (mu, 1/mm). */
+export interface StoredImage {
+  grid: ImageGrid;
+  data: Float32Array;
+  muWater?: number;
+  fovRadius?: number;
+}
+
+/** A stored scan's projections and optional reference image. */
+export interface ScanData {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'scan-data';
+  id: string;
+  /** Line integrals, [view][row][channel]. */
+  projections: Float32Array;
+  reference?: StoredImage;
+}
+
+/** A finished reconstruction's description. */
+export interface ResultMeta {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'result';
+  id: string;
+  scanId: string;
+  name: string;
+  createdAt: number;
+  /** The validated recipe, as run. */
+  recipe: Record<string, unknown>;
+  grid: ImageGrid;
+  muWater?: number;
+  fovRadius?: number;
+  warnings: string[];
+  /** Method-specific figures (timings, convergence history). */
+  report: Record<string, unknown>;
+  /** Comparison with the scan's reference image, when it has one. */
+  metrics: Comparison | null;
+  /** The image re-projected onto the measured channels against the measured data (absent in records stored before it was computed). */
+  residual?: DataResidual | null;
+  /** Wall-clock seconds of the run. */
+  seconds: number;
+  bytes: number;
+}
+
+/** A finished reconstruction's pixels (mu, 1/mm, x fastest). */
+export interface ResultData {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'result-data';
+  id: string;
+  data: Float32Array;
+}
+
+/** Page settings. */
+export interface Settings {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'settings';
+  /** The demo scan was created once; it is not re-created after the user deletes it. */
+  demoCreated: boolean;
+}
+
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings;
+
+export const keys = {
+  scan: (id: string) => `scan/${id}`,
+  scanData: (id: string) => `scan-data/${id}`,
+  result: (id: string) => `result/${id}`,
+  resultData: (id: string) => `result-data/${id}`,
+  settings: 'settings',
+};
+
+/** Thrown when a stored record cannot be read by this build. */
+export class RecordError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'RecordError';
+  }
+}
+
+/**
+ * Checks a record read from storage: the kind expected and a schema this build reads.
+ * Upgrades of older schemas go here when the layout changes.
+ */
+export function checkRecord<T extends StoredRecord>(value: unknown, kind: T['kind'], key: string): T {
+  if (typeof value !== 'object' || value === null) throw new RecordError(`stored record ${key}: missing or not an object`);
+  const r = value as { schema?: unknown; kind?: unknown };
+  if (r.kind !== kind) throw new RecordError(`stored record ${key}: kind "${String(r.kind)}", expected "${kind}"`);
+  if (r.schema !== SCHEMA_VERSION) {
+    const newer = typeof r.schema === 'number' && r.schema > SCHEMA_VERSION;
+    throw new RecordError(
+      `stored record ${key}: schema ${String(r.schema)}, this page reads ${SCHEMA_VERSION}` +
+        (newer ? ' (written by a newer version of Rimfill: open it with that version)' : ''),
+    );
+  }
+  return value as T;
+}

@@ -1,0 +1,62 @@
+// Reconstructions in storage: description and pixels written in one transaction.
+import { get, getMany, update, type UseStore } from 'idb-keyval';
+import type { Image2D } from '../core/image';
+import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
+import { checkRecord, keys, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
+import { checkName, newId } from './scans';
+
+export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius'>;
+
+/** Stores a reconstruction; returns its description. */
+export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore()): Promise<ResultMeta> {
+  const id = newId();
+  const meta: ResultMeta = {
+    ...input,
+    schema: SCHEMA_VERSION,
+    kind: 'result',
+    id,
+    name: checkName(input.name),
+    createdAt: Date.now(),
+    grid: image.grid,
+    muWater: image.muWater,
+    fovRadius: image.fovRadius,
+    bytes: image.data.byteLength,
+  };
+  const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data };
+  await putAll([[keys.result(id), meta], [keys.resultData(id), data]], store);
+  return meta;
+}
+
+/** Stored results, oldest first; only those of `scanId` when given. */
+export async function listResults(scanId?: string, store: UseStore = pageStore()): Promise<ResultMeta[]> {
+  const ks = await keysWithPrefix('result/', store);
+  const values = await getMany(ks, store);
+  return values
+    .map((v, i) => checkRecord<ResultMeta>(v, 'result', ks[i]))
+    .filter((m) => scanId === undefined || m.scanId === scanId)
+    .sort((a, b) => a.createdAt - b.createdAt);
+}
+
+/** A stored result as an image (mu, 1/mm). */
+export async function loadResultImage(id: string, store: UseStore = pageStore()): Promise<{ meta: ResultMeta; image: Image2D }> {
+  const [m, d] = await getMany([keys.result(id), keys.resultData(id)], store);
+  const meta = checkRecord<ResultMeta>(m, 'result', keys.result(id));
+  const data = checkRecord<ResultData>(d, 'result-data', keys.resultData(id));
+  return { meta, image: { grid: meta.grid, data: data.data, quantity: 'mu', muWater: meta.muWater, fovRadius: meta.fovRadius } };
+}
+
+/** One result's description. */
+export async function getResultMeta(id: string, store: UseStore = pageStore()): Promise<ResultMeta> {
+  return checkRecord<ResultMeta>(await get(keys.result(id), store), 'result', keys.result(id));
+}
+
+/** Renames a result. */
+export async function renameResult(id: string, name: string, store: UseStore = pageStore()): Promise<void> {
+  const n = checkName(name);
+  await update(keys.result(id), (old) => ({ ...checkRecord<ResultMeta>(old, 'result', keys.result(id)), name: n }), store);
+}
+
+/** Deletes a result. */
+export async function deleteResult(id: string, store: UseStore = pageStore()): Promise<void> {
+  await deleteAll([keys.result(id), keys.resultData(id)], store);
+}

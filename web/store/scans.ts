@@ -1,0 +1,113 @@
+// Scans in storage: saved with their projections in one transaction, listed from their small
+// descriptions, renamed, re-described (geometry) and deleted together with their results.
+import { get, getMany, update, type UseStore } from 'idb-keyval';
+import { InputError } from '../core/errors';
+import { viewCount, type Geometry } from '../core/geometry/types';
+import { checkGeometryMatchesData, validateGeometry } from '../core/geometry/validate';
+import type { Image2D } from '../core/image';
+import type { Scan } from '../core/scan';
+import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
+import { checkRecord, keys, SCHEMA_VERSION, type ScanData, type ScanMeta, type ScanSource, type StoredImage } from './records';
+
+/** A new record id (random, sortable enough for display). */
+export function newId(): string {
+  const c = globalThis.crypto;
+  if (c?.randomUUID) return c.randomUUID();
+  return `${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 10)}`;
+}
+
+/** Checks a display name: 1 to 200 characters after trimming. */
+export function checkName(name: unknown): string {
+  const n = typeof name === 'string' ? name.trim() : '';
+  if (n.length < 1 || n.length > 200) throw new InputError(`name: got ${JSON.stringify(name)}, expected 1 to 200 characters`);
+  return n;
+}
+
+export interface NewScan {
+  name: string;
+  scan: Scan;
+  source: ScanSource;
+  reference?: StoredImage;
+  warnings?: string[];
+}
+
+/** Stores a scan (and its reference image) in one transaction; returns its description. */
+export async function saveScan(input: NewScan, store: UseStore = pageStore()): Promise<ScanMeta> {
+  const id = newId();
+  const { scan } = input;
+  const refBytes = input.reference ? input.reference.data.byteLength : 0;
+  const meta: ScanMeta = {
+    schema: SCHEMA_VERSION,
+    kind: 'scan',
+    id,
+    name: checkName(input.name),
+    createdAt: Date.now(),
+    geometry: scan.geometry,
+    muWater: scan.muWater,
+    notes: scan.notes,
+    source: input.source,
+    bytes: scan.data.byteLength + refBytes,
+    hasReference: !!input.reference,
+    warnings: input.warnings ?? [],
+  };
+  const data: ScanData = { schema: SCHEMA_VERSION, kind: 'scan-data', id, projections: scan.data, reference: input.reference };
+  await putAll([[keys.scan(id), meta], [keys.scanData(id), data]], store);
+  return meta;
+}
+
+/** Every stored scan's description, oldest first. */
+export async function listScans(store: UseStore = pageStore()): Promise<ScanMeta[]> {
+  const ks = await keysWithPrefix('scan/', store);
+  const values = await getMany(ks, store);
+  return values.map((v, i) => checkRecord<ScanMeta>(v, 'scan', ks[i])).sort((a, b) => a.createdAt - b.createdAt);
+}
+
+/** One scan's description. */
+export async function getScanMeta(id: string, store: UseStore = pageStore()): Promise<ScanMeta> {
+  return checkRecord<ScanMeta>(await get(keys.scan(id), store), 'scan', keys.scan(id));
+}
+
+/** A stored scan ready to reconstruct, and its reference image when it has one. */
+export async function loadScan(id: string, store: UseStore = pageStore()): Promise<{ meta: ScanMeta; scan: Scan; reference?: Image2D }> {
+  const [m, d] = await getMany([keys.scan(id), keys.scanData(id)], store);
+  const meta = checkRecord<ScanMeta>(m, 'scan', keys.scan(id));
+  const data = checkRecord<ScanData>(d, 'scan-data', keys.scanData(id));
+  const scan: Scan = { geometry: meta.geometry, data: data.projections, muWater: meta.muWater, notes: meta.notes };
+  const r = data.reference;
+  const reference: Image2D | undefined = r ? { grid: r.grid, data: r.data, quantity: 'mu', muWater: r.muWater ?? meta.muWater, fovRadius: r.fovRadius } : undefined;
+  return { meta, scan, reference };
+}
+
+/** Renames a scan. */
+export async function renameScan(id: string, name: string, store: UseStore = pageStore()): Promise<void> {
+  const n = checkName(name);
+  await update(keys.scan(id), (old) => ({ ...checkRecord<ScanMeta>(old, 'scan', keys.scan(id)), name: n }), store);
+}
+
+/**
+ * Replaces a scan's geometry after validating it against the stored data: a wrong value throws
+ * InputError naming the field, and nothing changes.
+ */
+export async function setScanGeometry(id: string, geometry: unknown, store: UseStore = pageStore()): Promise<ScanMeta> {
+  const g: Geometry = validateGeometry(geometry);
+  const meta = await getScanMeta(id, store);
+  const d = meta.geometry.detector;
+  checkGeometryMatchesData(g, d.channels, d.rows, viewCount(meta.geometry));
+  const next = { ...meta, geometry: g };
+  await putAll([[keys.scan(id), next]], store);
+  return next;
+}
+
+/** Deletes a scan, its projections and every result made from it, in one transaction. */
+export async function deleteScan(id: string, store: UseStore = pageStore()): Promise<void> {
+  const resultKeys = await keysWithPrefix('result/', store);
+  const metas = await getMany(resultKeys, store);
+  const doomed: string[] = [keys.scan(id), keys.scanData(id)];
+  metas.forEach((m, i) => {
+    if ((m as { scanId?: string } | undefined)?.scanId === id) {
+      const rid = resultKeys[i].slice('result/'.length);
+      doomed.push(keys.result(rid), keys.resultData(rid));
+    }
+  });
+  await deleteAll(doomed, store);
+}

@@ -1,0 +1,398 @@
+import { html, LitElement, css, nothing } from 'lit';
+import { CancelledError, InputError } from '../core/errors';
+import type { Comparison } from '../core/compare';
+import type { Image2D, ImageGrid } from '../core/image';
+import { detectTruncation, type TruncationReport } from '../core/truncation/detect';
+import { requestPersistence, StorageFullError, storageUse, type StorageUse } from '../store/quota';
+import type { ResultMeta, ScanMeta } from '../store/records';
+import { deleteResult, listResults, loadResultImage } from '../store/results';
+import { deleteScan, listScans, loadScan, renameScan, setScanGeometry } from '../store/scans';
+import { loadSettings } from '../store/settings';
+import type { EngineInfo } from '../worker/app-protocol';
+import type { EngineClient } from '../worker/client';
+import { geometrySummary } from './logic/describe';
+import { remainingMs } from './logic/time-left';
+import { MAX_COMPARED } from './result-list';
+import { TRUTH } from './results-view';
+import type { QueueJob } from './run-queue';
+import { theme } from './theme';
+import './caution-banner';
+import './recipe-form';
+import './results-view';
+import './run-queue';
+import './scan-library';
+import './scan-view';
+
+type Tab = 'scan' | 'reconstruct' | 'images';
+
+interface LoadedScan {
+  id: string;
+  /** One detector row (the middle one), [view][channel]. */
+  projections: Float32Array;
+  report: TruncationReport;
+  truth?: Image2D;
+  referenceGrid?: ImageGrid;
+}
+
+const message = (err: unknown) => (err instanceof Error ? err.message : String(err));
+
+/**
+ * The workbench: owns the page's state, reads the library from IndexedDB and sends heavy work
+ * to the engine through the client; the elements below it only show and report.
+ */
+export class AppShell extends LitElement {
+  static properties = {
+    client: { attribute: false },
+    scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
+    compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
+    importing: { state: true }, importError: { state: true }, demoBusy: { state: true }, demoFraction: { state: true },
+    storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
+  };
+  /** The engine facade (set by main.ts). */
+  declare client: EngineClient;
+  declare scans: ScanMeta[];
+  declare results: ResultMeta[];
+  declare selectedScanId: string;
+  declare loaded: LoadedScan | undefined;
+  declare tab: Tab;
+  declare compareIds: string[];
+  declare images: Map<string, Image2D>;
+  declare referenceId: string;
+  declare comparisons: Map<string, Comparison | string>;
+  declare jobs: QueueJob[];
+  declare importing: boolean;
+  declare importError: string;
+  declare demoBusy: boolean;
+  declare demoFraction: number;
+  declare storage: StorageUse;
+  declare engine: EngineInfo | undefined;
+  declare alert: string;
+  declare geometryError: string;
+  declare ready: boolean;
+  private nextJobKey = 1;
+  private controllers = new Map<number, AbortController>();
+
+  static styles = [theme, css`
+    :host { min-height: 100vh; background: var(--bg); display: flex; flex-direction: column; }
+    header { display: flex; align-items: center; gap: 14px; padding: 10px 18px; background: #17212c; color: #e9eef3; }
+    .brand { font-size: 18px; font-weight: 700; letter-spacing: 0.02em; }
+    .tagline { color: #a9b6c4; font-size: 13px; }
+    .engine { margin-left: auto; font-size: 12px; color: #a9b6c4; }
+    .body { display: grid; grid-template-columns: 300px minmax(0, 1fr); gap: 16px; padding: 16px 18px; align-items: start; flex: 1; }
+    @media (max-width: 900px) { .body { grid-template-columns: 1fr; } }
+    nav { display: flex; gap: 2px; border-bottom: 1px solid var(--border); margin-bottom: 14px; }
+    nav button { border: none; border-bottom: 2px solid transparent; border-radius: 0; background: none; padding: 8px 14px; font-size: 14px; color: var(--muted); }
+    nav button[aria-selected='true'] { color: var(--accent); border-bottom-color: var(--accent); font-weight: 600; }
+    nav button:hover:not(:disabled) { color: var(--accent); border-bottom-color: var(--accent-soft); }
+    .badge { display: inline-block; min-width: 18px; padding: 0 5px; border-radius: 9px; background: var(--accent); color: #fff; font-size: 11px; margin-left: 5px; }
+    .reconstruct { display: grid; grid-template-columns: minmax(0, 1.4fr) minmax(300px, 1fr); gap: 14px; align-items: start; }
+    @media (max-width: 1100px) { .reconstruct { grid-template-columns: 1fr; } }
+    .alert { margin: 12px 18px 0; display: flex; justify-content: space-between; gap: 10px; align-items: flex-start; }
+    .placeholder { color: var(--muted); }
+    section[hidden] { display: none; }
+  `];
+
+  constructor() {
+    super();
+    this.scans = [];
+    this.results = [];
+    this.selectedScanId = '';
+    this.loaded = undefined;
+    this.tab = 'scan';
+    this.compareIds = [];
+    this.images = new Map();
+    this.referenceId = '';
+    this.comparisons = new Map();
+    this.jobs = [];
+    this.importing = false;
+    this.importError = '';
+    this.demoBusy = false;
+    this.demoFraction = 0;
+    this.storage = {};
+    this.engine = undefined;
+    this.alert = '';
+    this.geometryError = '';
+    this.ready = false;
+  }
+
+  async firstUpdated() {
+    try {
+      await this.refreshLibrary();
+      const settings = await loadSettings();
+      if (!this.scans.length && !settings.demoCreated) await this.createDemo();
+      if (!this.selectedScanId && this.scans.length) await this.selectScan(this.scans[0].id);
+    } catch (err) {
+      this.alert = `The library could not be read: ${message(err)}`;
+    }
+    this.ready = true;
+    this.client.info().then((info) => (this.engine = info), (err) => (this.alert = `The engine did not start: ${message(err)}`));
+  }
+
+  private async refreshLibrary() {
+    [this.scans, this.results] = await Promise.all([listScans(), listResults()]);
+    this.storage = await storageUse();
+  }
+
+  private async createDemo() {
+    this.demoBusy = true;
+    this.demoFraction = 0;
+    try {
+      const meta = await this.client.createDemo({ onProgress: (p) => (this.demoFraction = p.fraction) });
+      await this.refreshLibrary();
+      await this.selectScan(meta.id);
+    } catch (err) {
+      this.alert = `The demo scan could not be made: ${message(err)}`;
+    } finally {
+      this.demoBusy = false;
+    }
+  }
+
+  private async selectScan(id: string) {
+    this.selectedScanId = id;
+    this.geometryError = '';
+    const mine = this.results.filter((r) => r.scanId === id);
+    this.compareIds = mine.length ? [mine[mine.length - 1].id] : [];
+    this.comparisons = new Map();
+    const { meta, scan, reference } = await loadScan(id);
+    if (this.selectedScanId !== id) return;
+    const d = meta.geometry.detector;
+    const views = scan.data.length / (d.channels * d.rows);
+    const mid = Math.floor(d.rows / 2);
+    const row = d.rows === 1 ? scan.data : Float32Array.from({ length: views * d.channels }, (_, k) => scan.data[(Math.floor(k / d.channels) * d.rows + mid) * d.channels + (k % d.channels)]);
+    const report = detectTruncation({ geometry: { ...meta.geometry, detector: { ...d, rows: 1 } }, data: row });
+    this.loaded = { id, projections: row, report, truth: reference, referenceGrid: reference?.grid };
+    this.referenceId = reference ? TRUTH : '';
+    await this.loadImages(this.compareIds);
+  }
+
+  private async loadImages(ids: string[]) {
+    const missing = ids.filter((id) => id && id !== TRUTH && !this.images.has(id));
+    if (!missing.length) return;
+    const loaded = await Promise.all(missing.map((id) => loadResultImage(id)));
+    const next = new Map(this.images);
+    loaded.forEach((l) => next.set(l.meta.id, l.image));
+    this.images = next;
+  }
+
+  private async importFiles(files: File[]) {
+    this.importing = true;
+    this.importError = '';
+    try {
+      const meta = await this.client.importScan(files);
+      await this.refreshLibrary();
+      await this.selectScan(meta.id);
+      this.tab = 'scan';
+    } catch (err) {
+      this.importError = err instanceof StorageFullError || err instanceof InputError ? err.message : `Import failed: ${message(err)}`;
+    } finally {
+      this.importing = false;
+    }
+  }
+
+  private async storeAction(action: () => Promise<unknown>) {
+    try {
+      await action();
+    } catch (err) {
+      this.alert = message(err);
+    }
+    await this.refreshLibrary();
+  }
+
+  private async deleteScan(id: string) {
+    for (const j of this.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.cancelJob(j.key);
+    await this.storeAction(() => deleteScan(id));
+    if (this.selectedScanId === id) {
+      this.loaded = undefined;
+      this.selectedScanId = '';
+      if (this.scans.length) await this.selectScan(this.scans[0].id);
+    }
+  }
+
+  private async applyGeometry(geometry: unknown) {
+    try {
+      await setScanGeometry(this.selectedScanId, geometry);
+      this.geometryError = '';
+      await this.refreshLibrary();
+      await this.selectScan(this.selectedScanId);
+    } catch (err) {
+      this.geometryError = message(err);
+    }
+  }
+
+  // The queue: one run at a time, in order.
+
+  private queueRecipe(recipe: Record<string, unknown>, name: string) {
+    const scan = this.scans.find((s) => s.id === this.selectedScanId);
+    if (!scan) return;
+    this.jobs = [...this.jobs, { key: this.nextJobKey++, scanId: scan.id, scanName: scan.name, name, recipe, state: 'waiting', fraction: 0, stage: '' }];
+    this.pump();
+  }
+
+  private patchJob(key: number, change: Partial<QueueJob>) {
+    this.jobs = this.jobs.map((j) => (j.key === key ? { ...j, ...change } : j));
+  }
+
+  private pump() {
+    if (this.jobs.some((j) => j.state === 'running')) return;
+    const next = this.jobs.find((j) => j.state === 'waiting');
+    if (!next) return;
+    const controller = new AbortController();
+    this.controllers.set(next.key, controller);
+    this.patchJob(next.key, { state: 'running' });
+    this.client.run(next.scanId, next.recipe, {
+      name: next.name,
+      signal: controller.signal,
+      onProgress: (p) => this.patchJob(next.key, { fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
+    }).then(
+      (result) => this.jobDone(next.key, result),
+      (err) => this.patchJob(next.key, err instanceof CancelledError ? { state: 'cancelled' } : { state: 'failed', error: message(err) }),
+    ).finally(() => {
+      this.controllers.delete(next.key);
+      this.storageUseRefresh();
+      this.pump();
+    });
+  }
+
+  private async storageUseRefresh() {
+    this.storage = await storageUse();
+  }
+
+  private async jobDone(key: number, result: ResultMeta) {
+    this.patchJob(key, { state: 'done', fraction: 1, seconds: result.seconds, resultId: result.id });
+    this.results = await listResults();
+    if (result.scanId === this.selectedScanId) {
+      const ids = [...this.compareIds, result.id];
+      this.compareIds = ids.slice(Math.max(0, ids.length - MAX_COMPARED));
+      await this.loadImages(this.compareIds);
+      await this.updateComparisons();
+    }
+  }
+
+  private cancelJob(key: number) {
+    const job = this.jobs.find((j) => j.key === key);
+    if (job?.state === 'waiting') this.patchJob(key, { state: 'cancelled' });
+    else this.controllers.get(key)?.abort();
+  }
+
+  // Comparison choices.
+
+  private async toggleResult(id: string) {
+    this.compareIds = this.compareIds.includes(id) ? this.compareIds.filter((x) => x !== id) : [...this.compareIds, id].slice(-MAX_COMPARED);
+    await this.loadImages(this.compareIds);
+    await this.updateComparisons();
+  }
+
+  private async setReference(id: string) {
+    this.referenceId = id;
+    this.comparisons = new Map();
+    await this.loadImages([id]);
+    await this.updateComparisons();
+  }
+
+  /** Comparisons with a result used as reference (ground-truth figures are stored with each result). */
+  private async updateComparisons() {
+    const ref = this.referenceId;
+    if (!ref || ref === TRUTH) return;
+    const todo = this.compareIds.filter((id) => id !== ref && !this.comparisons.has(id));
+    for (const id of todo) {
+      let value: Comparison | string;
+      try {
+        value = await this.client.compare(id, { kind: 'result', id: ref });
+      } catch (err) {
+        value = message(err);
+      }
+      if (this.referenceId !== ref) return;
+      this.comparisons = new Map(this.comparisons).set(id, value);
+    }
+  }
+
+  private renderTab() {
+    const scan = this.scans.find((s) => s.id === this.selectedScanId);
+    if (!scan) {
+      return html`<div class="card placeholder">${this.demoBusy
+        ? html`<p>Preparing the demo scan: simulating a truncated fan-beam scan of the thorax phantom and its ground truth…</p><progress max="1" .value=${this.demoFraction}></progress>`
+        : this.ready ? 'Import a scan, or add the demo scan, to begin.' : 'Opening the library…'}</div>`;
+    }
+    return html`
+      <section role="tabpanel" aria-labelledby="tab-scan" ?hidden=${this.tab !== 'scan'}>${this.scanTab(scan)}</section>
+      <section role="tabpanel" aria-labelledby="tab-reconstruct" ?hidden=${this.tab !== 'reconstruct'}>${this.reconstructTab(scan)}</section>
+      <section role="tabpanel" aria-labelledby="tab-images" ?hidden=${this.tab !== 'images'}>${this.imagesTab(scan)}</section>`;
+  }
+
+  private scanTab(scan: ScanMeta) {
+    return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
+        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .geometryError=${this.geometryError}
+        @geometry-apply=${(e: CustomEvent) => this.applyGeometry(e.detail.geometry)}></rf-scan-view>`;
+  }
+
+  private reconstructTab(scan: ScanMeta) {
+    return html`<div class="reconstruct">
+        <div class="card"><h2>Recipe for “${scan.name}”</h2>
+          <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined}
+            @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
+        <div class="card"><h2>Queue</h2>
+          <rf-run-queue .jobs=${this.jobs}
+            @job-cancel=${(e: CustomEvent) => this.cancelJob(e.detail.key)}
+            @job-remove=${(e: CustomEvent) => (this.jobs = this.jobs.filter((j) => j.key !== e.detail.key))}
+            @queue-clear=${() => (this.jobs = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting'))}
+            @job-show=${async (e: CustomEvent) => {
+              const job = this.jobs.find((j) => j.key === e.detail.key);
+              if (job?.resultId) {
+                if (job.scanId !== this.selectedScanId) await this.selectScan(job.scanId);
+                if (!this.compareIds.includes(job.resultId)) await this.toggleResult(job.resultId);
+                this.tab = 'images';
+              }
+            }}></rf-run-queue></div>
+      </div>`;
+  }
+
+  private imagesTab(scan: ScanMeta) {
+    return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images}
+      .truth=${this.loaded?.id === scan.id ? this.loaded.truth : undefined} .referenceId=${this.referenceId} .comparisons=${this.comparisons}
+      .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)}
+      @result-toggle=${(e: CustomEvent) => this.toggleResult(e.detail.id)}
+      @result-delete=${(e: CustomEvent) => this.storeAction(async () => {
+        await deleteResult(e.detail.id);
+        this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
+        if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
+      })}
+      @reference-change=${(e: CustomEvent) => this.setReference(e.detail.id)}></rf-results-view>`;
+  }
+
+  render() {
+    const running = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting').length;
+    const resultCount = this.results.filter((r) => r.scanId === this.selectedScanId).length;
+    const tabs: Array<[Tab, string, unknown]> = [
+      ['scan', 'Projections', nothing],
+      ['reconstruct', 'Reconstruct', running ? html`<span class="badge">${running}</span>` : nothing],
+      ['images', 'Images', resultCount ? html`<span class="badge">${resultCount}</span>` : nothing],
+    ];
+    return html`
+      <header>
+        <span class="brand">Rimfill</span>
+        <span class="tagline">CT reconstruction for truncated scans, on this computer</span>
+        <span class="engine">${this.engine ? `${this.engine.workers} engine workers · ${this.engine.sharedMemory ? 'shared memory' : 'separate memories'}` : 'starting the engine…'}</span>
+      </header>
+      <rf-caution></rf-caution>
+      ${this.alert ? html`<div class="alert error" role="alert" id="page-alert"><span>${this.alert}</span><button class="small" @click=${() => (this.alert = '')}>Dismiss</button></div>` : nothing}
+      <div class="body">
+        <aside>
+          <rf-scan-library .scans=${this.scans} .selectedId=${this.selectedScanId} ?importing=${this.importing} .importError=${this.importError}
+            ?demoBusy=${this.demoBusy} .storage=${this.storage}
+            .libraryBytes=${this.scans.reduce((a, s) => a + s.bytes, 0) + this.results.reduce((a, r) => a + r.bytes, 0)}
+            @scan-select=${(e: CustomEvent) => this.selectScan(e.detail.id)}
+            @scan-rename=${(e: CustomEvent) => this.storeAction(() => renameScan(e.detail.id, e.detail.name))}
+            @scan-delete=${(e: CustomEvent) => this.deleteScan(e.detail.id)}
+            @files-chosen=${(e: CustomEvent) => this.importFiles(e.detail.files)}
+            @import-error-dismiss=${() => (this.importError = '')}
+            @demo-request=${() => this.createDemo()}
+            @persist-request=${async () => { await requestPersistence(); await this.storageUseRefresh(); }}></rf-scan-library>
+        </aside>
+        <main>
+          <nav role="tablist">${tabs.map(([t, label, extra]) => html`<button role="tab" id=${`tab-${t}`} aria-selected=${this.tab === t} @click=${() => (this.tab = t)}>${label}${extra}</button>`)}</nav>
+          ${this.renderTab()}
+        </main>
+      </div>`;
+  }
+}
+customElements.define('rf-app', AppShell);

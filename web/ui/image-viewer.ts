@@ -1,0 +1,249 @@
+import { html, LitElement, css, nothing } from 'lit';
+import { greyPixels, type DisplayImage } from './logic/display';
+import { pixelAt, type Point } from './logic/measure';
+import { INITIAL_VIEW, pan, scaleFor, toImage, toScreen, zoomAbout, type ViewState } from './logic/view-transform';
+import { dragWindow, type DisplayWindow } from './logic/window-level';
+import { theme } from './theme';
+
+/** What a left-button drag does. */
+export type Tool = 'window' | 'move' | 'line' | 'region';
+
+export interface LineMark {
+  p0: Point;
+  p1: Point;
+}
+
+export interface RegionMark {
+  centre: Point;
+  radius: number;
+}
+
+const fire = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
+
+/**
+ * One image on a dark panel: window/level, zoom and pan, the value under the cursor, the
+ * measured field of view, and the shared line and region marks. Linked panels share window,
+ * view, cursor and marks through their parent (properties down, events up).
+ * @fires window-change - detail: { window } while dragging with the window tool (or Ctrl)
+ * @fires view-change - detail: { view } on wheel zoom, move drags (or Shift / middle button) and double-click (reset)
+ * @fires cursor-change - detail: { point } (mm) or { point: null } when the pointer leaves
+ * @fires line-change - detail: { line } while drawing with the line tool
+ * @fires region-change - detail: { region } while drawing with the region tool
+ * @fires panel-focus - the panel was clicked (it becomes the one exported)
+ */
+export class ImageViewer extends LitElement {
+  static properties = {
+    image: { attribute: false }, window: { attribute: false }, view: { attribute: false }, cursor: { attribute: false },
+    tool: { type: String }, line: { attribute: false }, region: { attribute: false }, colour: { type: String },
+    showFov: { type: Boolean }, active: { type: Boolean },
+  };
+  /** The image in display units. */
+  declare image: DisplayImage;
+  declare window: DisplayWindow;
+  declare view: ViewState;
+  /** The shared cursor, mm (null: none). */
+  declare cursor: Point | null;
+  declare tool: Tool;
+  declare line: LineMark | null;
+  declare region: RegionMark | null;
+  /** Colour identifying this panel in plots and tables. */
+  declare colour: string;
+  /** Draw the measured field of view. */
+  declare showFov: boolean;
+  /** This panel is the one exports use. */
+  declare active: boolean;
+
+  private cache?: { values: Float32Array; width: number; level: number; canvas: HTMLCanvasElement };
+  private size = { w: 0, h: 0 };
+  private drag?: { mode: Tool; x: number; y: number; window: DisplayWindow; view: ViewState; p0: Point };
+  private resize = new ResizeObserver(() => this.measure());
+  private observed?: Element;
+
+  static styles = [theme, css`
+    .panel { position: relative; background: var(--panel); border-radius: 8px; overflow: hidden; aspect-ratio: 1 / 1; border: 2px solid transparent; }
+    .panel.active { border-color: var(--swatch, #888); }
+    canvas { position: absolute; inset: 0; width: 100%; height: 100%; touch-action: none; }
+    .label { position: absolute; left: 6px; top: 6px; color: #e8ecf1; font-size: 12px; pointer-events: none; display: flex; gap: 6px; align-items: center; max-width: calc(100% - 12px); background: rgba(15, 19, 24, 0.72); padding: 2px 8px; border-radius: 4px; }
+    .label span { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
+    .dot { width: 9px; height: 9px; border-radius: 50%; flex: none; }
+    .corner { position: absolute; right: 6px; bottom: 6px; color: #c3ccd6; font-size: 11px; pointer-events: none; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
+    .readout { font-size: 12px; color: var(--muted); min-height: 18px; margin-top: 4px; }
+  `];
+
+  constructor() {
+    super();
+    this.view = INITIAL_VIEW;
+    this.cursor = null;
+    this.tool = 'window';
+    this.line = null;
+    this.region = null;
+    this.colour = '#888';
+    this.showFov = true;
+    this.active = false;
+  }
+
+  disconnectedCallback() {
+    super.disconnectedCallback();
+    this.resize.disconnect();
+    this.observed = undefined;
+  }
+
+  private measure() {
+    const canvas = this.renderRoot.querySelector('canvas');
+    if (!canvas) return;
+    const r = canvas.getBoundingClientRect();
+    const dpr = window.devicePixelRatio || 1;
+    this.size = { w: r.width, h: r.height };
+    canvas.width = Math.max(1, Math.round(r.width * dpr));
+    canvas.height = Math.max(1, Math.round(r.height * dpr));
+    this.draw();
+  }
+
+  updated() {
+    const panel = this.renderRoot.querySelector('.panel');
+    if (panel && panel !== this.observed) {
+      if (this.observed) this.resize.unobserve(this.observed);
+      this.resize.observe(panel);
+      this.observed = panel;
+    }
+    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = this.colour));
+    this.renderRoot.querySelector<HTMLElement>('.panel')?.style.setProperty('--swatch', this.colour);
+    this.draw();
+  }
+
+  /** The image drawn at its own resolution under the current window (cached). */
+  private windowed(): HTMLCanvasElement {
+    const g = this.image.grid, w = this.window, c = this.cache;
+    if (c && c.values === this.image.values && c.width === w.width && c.level === w.level) return c.canvas;
+    const canvas = c?.canvas ?? document.createElement('canvas');
+    canvas.width = g.nx;
+    canvas.height = g.ny;
+    const rgba = greyPixels(this.image.values, g.nx, g.ny, w) as Uint8ClampedArray<ArrayBuffer>;
+    canvas.getContext('2d')!.putImageData(new ImageData(rgba, g.nx, g.ny), 0, 0);
+    this.cache = { values: this.image.values, width: w.width, level: w.level, canvas };
+    return canvas;
+  }
+
+  private draw() {
+    const canvas = this.renderRoot.querySelector('canvas');
+    if (!canvas || !this.image || !this.size.w) return;
+    const { w, h } = this.size;
+    const dpr = canvas.width / w;
+    const ctx = canvas.getContext('2d')!;
+    ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+    ctx.fillStyle = '#0f1318';
+    ctx.fillRect(0, 0, w, h);
+    const g = this.image.grid;
+    const s = scaleFor(g, w, h, this.view);
+    // Top-left corner of the grid: smallest x, largest y (pixel edges, half a pixel beyond the centres).
+    const corner = toScreen({ x: g.cx - (g.nx * g.dx) / 2, y: g.cy + (g.ny * g.dy) / 2 }, g, w, h, this.view);
+    ctx.imageSmoothingEnabled = s * g.dx < 3;
+    ctx.drawImage(this.windowed(), corner.x, corner.y, g.nx * g.dx * s, g.ny * g.dy * s);
+    const at = (p: Point) => toScreen(p, g, w, h, this.view);
+    if (this.showFov && this.image.fovRadius) {
+      const c = at({ x: 0, y: 0 });
+      ctx.setLineDash([6, 5]);
+      ctx.strokeStyle = 'rgba(111, 179, 224, 0.85)';
+      ctx.lineWidth = 1.2;
+      ctx.beginPath();
+      ctx.arc(c.x, c.y, this.image.fovRadius * s, 0, 2 * Math.PI);
+      ctx.stroke();
+      ctx.setLineDash([]);
+    }
+    if (this.line) {
+      const a = at(this.line.p0), b = at(this.line.p1);
+      ctx.strokeStyle = '#ffd24a';
+      ctx.lineWidth = 1.5;
+      ctx.beginPath();
+      ctx.moveTo(a.x, a.y);
+      ctx.lineTo(b.x, b.y);
+      ctx.stroke();
+      ctx.fillStyle = '#ffd24a';
+      for (const q of [a, b]) ctx.fillRect(q.x - 2.5, q.y - 2.5, 5, 5);
+    }
+    if (this.region) {
+      const c = at(this.region.centre);
+      ctx.strokeStyle = '#4ee0d0';
+      ctx.lineWidth = 1.5;
+      ctx.beginPath();
+      ctx.arc(c.x, c.y, this.region.radius * s, 0, 2 * Math.PI);
+      ctx.stroke();
+    }
+    if (this.cursor) {
+      const c = at(this.cursor);
+      ctx.strokeStyle = 'rgba(255,255,255,0.8)';
+      ctx.lineWidth = 1;
+      ctx.beginPath();
+      ctx.moveTo(c.x - 7, c.y);
+      ctx.lineTo(c.x - 2, c.y);
+      ctx.moveTo(c.x + 2, c.y);
+      ctx.lineTo(c.x + 7, c.y);
+      ctx.moveTo(c.x, c.y - 7);
+      ctx.lineTo(c.x, c.y - 2);
+      ctx.moveTo(c.x, c.y + 2);
+      ctx.lineTo(c.x, c.y + 7);
+      ctx.stroke();
+    }
+  }
+
+  private point(e: PointerEvent | WheelEvent | MouseEvent): { q: Point; p: Point } {
+    const r = (e.currentTarget as HTMLElement).getBoundingClientRect();
+    const q = { x: e.clientX - r.left, y: e.clientY - r.top };
+    return { q, p: toImage(q, this.image.grid, this.size.w, this.size.h, this.view) };
+  }
+
+  private down(e: PointerEvent) {
+    if (!this.image) return;
+    fire(this, 'panel-focus', {});
+    const mode: Tool = e.button === 1 || e.shiftKey ? 'move' : e.ctrlKey ? 'window' : this.tool;
+    const { p } = this.point(e);
+    (e.currentTarget as HTMLElement).setPointerCapture(e.pointerId);
+    this.drag = { mode, x: e.clientX, y: e.clientY, window: this.window, view: this.view, p0: p };
+    e.preventDefault();
+  }
+
+  private move(e: PointerEvent) {
+    if (!this.image) return;
+    const { p } = this.point(e);
+    fire(this, 'cursor-change', { point: p });
+    const d = this.drag;
+    if (!d) return;
+    const dx = e.clientX - d.x, dy = e.clientY - d.y;
+    if (d.mode === 'window') fire(this, 'window-change', { window: dragWindow(d.window, dx, dy) });
+    else if (d.mode === 'move') fire(this, 'view-change', { view: pan(d.view, dx, dy, this.image.grid, this.size.w, this.size.h) });
+    else if (d.mode === 'line') fire(this, 'line-change', { line: { p0: d.p0, p1: p } });
+    else fire(this, 'region-change', { region: { centre: d.p0, radius: Math.hypot(p.x - d.p0.x, p.y - d.p0.y) } });
+  }
+
+  private up(e: PointerEvent) {
+    this.drag = undefined;
+    (e.currentTarget as HTMLElement).releasePointerCapture?.(e.pointerId);
+  }
+
+  private wheel(e: WheelEvent) {
+    if (!this.image) return;
+    e.preventDefault();
+    const { q } = this.point(e);
+    fire(this, 'view-change', { view: zoomAbout(this.view, Math.exp(-e.deltaY / 500), q, this.image.grid, this.size.w, this.size.h) });
+  }
+
+  render() {
+    if (!this.image) return nothing;
+    const v = this.cursor ? pixelAt(this.image.values, this.image.grid, this.cursor) : NaN;
+    const unit = this.image.unit;
+    const fmt = (x: number) => (unit === 'HU' ? x.toFixed(0) : x.toPrecision(4));
+    return html`<div class="panel ${this.active ? 'active' : ''}">
+        <canvas aria-label=${`Image: ${this.image.label}`}
+          @pointerdown=${this.down} @pointermove=${this.move} @pointerup=${this.up} @pointercancel=${this.up}
+          @pointerleave=${() => fire(this, 'cursor-change', { point: null })}
+          @wheel=${this.wheel} @dblclick=${() => fire(this, 'view-change', { view: { zoom: 1, centre: { x: this.image.grid.cx, y: this.image.grid.cy } } })}
+          @contextmenu=${(e: Event) => e.preventDefault()}></canvas>
+        <div class="label"><span class="dot"></span><span>${this.image.label}</span></div>
+        <div class="corner num">W ${fmt(this.window.width)} · L ${fmt(this.window.level)} ${unit}</div>
+      </div>
+      <div class="readout num">${this.cursor
+        ? html`x ${this.cursor.x.toFixed(1)} mm, y ${this.cursor.y.toFixed(1)} mm: <strong>${Number.isFinite(v) ? `${fmt(v)} ${unit}` : 'outside the image'}</strong>`
+        : html`&nbsp;`}</div>`;
+  }
+}
+customElements.define('rf-image-viewer', ImageViewer);

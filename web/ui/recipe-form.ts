@@ -1,0 +1,139 @@
+import { html, LitElement, css, nothing } from 'lit';
+import { live } from 'lit/directives/live.js';
+import { InputError } from '../core/errors';
+import type { ImageGrid } from '../core/image';
+import { describeRecipeFields, recipeSummary, type RecipeField } from '../core/recipe/fields';
+import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
+import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
+import { theme } from './theme';
+
+type GridMode = 'auto' | 'reference' | 'custom';
+
+/**
+ * A recipe form generated from the recipe module's field descriptions (core/recipe/fields.ts):
+ * new methods and options appear here as they are added there.
+ * @fires recipe-queue - detail: { recipe, name }, a validated recipe to run
+ */
+export class RecipeForm extends LitElement {
+  static properties = {
+    referenceGrid: { attribute: false }, disabled: { type: Boolean },
+    values: { state: true }, gridMode: { state: true }, error: { state: true },
+  };
+  /** Grid of the scan's reference image, offered as "match the ground truth" (undefined: none). */
+  declare referenceGrid: ImageGrid | undefined;
+  /** No scan chosen. */
+  declare disabled: boolean;
+  declare values: Record<string, unknown>;
+  declare gridMode: GridMode;
+  declare error: string;
+  private readonly fields: RecipeField[] = describeRecipeFields();
+  private customGrid = { size: 512, pixel: 1 };
+
+  static styles = [theme, css`
+    form { display: grid; grid-template-columns: repeat(auto-fill, minmax(220px, 1fr)); gap: 12px 16px; }
+    .field { display: flex; flex-direction: column; gap: 3px; }
+    .field.wide { grid-column: 1 / -1; }
+    .help { font-size: 12px; color: var(--muted); }
+    select, input { width: 100%; }
+    .grid-choices { display: flex; flex-direction: column; gap: 6px; font-size: 13px; }
+    .grid-choices label { color: var(--text); display: flex; gap: 7px; align-items: center; }
+    .grid-choices input[type='radio'] { width: auto; margin: 0; }
+    .grid-choices input[type='number'] { width: 90px; }
+    .custom { display: flex; gap: 10px; align-items: center; flex-wrap: wrap; }
+    .actions { display: flex; gap: 10px; align-items: center; margin-top: 14px; }
+    .summary { font-size: 13px; color: var(--muted); }
+  `];
+
+  constructor() {
+    super();
+    this.referenceGrid = undefined;
+    this.disabled = false;
+    this.values = { ...(DEFAULT_RECIPE as unknown as Record<string, unknown>) };
+    this.gridMode = 'auto';
+    this.error = '';
+  }
+
+  willUpdate(changed: Map<string, unknown>) {
+    if (changed.has('referenceGrid')) this.gridMode = this.referenceGrid ? 'reference' : this.gridMode === 'reference' ? 'auto' : this.gridMode;
+  }
+
+  /** The recipe as the form stands (not yet validated). */
+  recipe(): Record<string, unknown> {
+    const r: Record<string, unknown> = {};
+    for (const f of this.fields) {
+      if (f.kind === 'grid') continue;
+      if (f.appliesTo && !f.appliesTo(this.values)) continue;
+      if (this.values[f.key] !== undefined) r[f.key] = this.values[f.key];
+    }
+    const g = this.referenceGrid;
+    if (this.gridMode === 'reference' && g) r.grid = { size: g.nx, pixel: g.dx };
+    if (this.gridMode === 'custom') r.grid = { ...this.customGrid };
+    return r;
+  }
+
+  private set(key: string, value: unknown) {
+    this.values = { ...this.values, [key]: value };
+    this.error = '';
+  }
+
+  private input(f: RecipeField) {
+    const v = this.values[f.key];
+    const id = `field-${f.key}`;
+    switch (f.kind) {
+      case 'choice':
+        return html`<select id=${id} name=${f.key} .value=${live(String(v ?? f.choices[0]?.value ?? ''))} @change=${(e: Event) => this.set(f.key, (e.target as HTMLSelectElement).value)}>
+          ${f.choices.map((c) => html`<option value=${c.value} ?selected=${c.value === v}>${c.label}</option>`)}</select>`;
+      case 'number':
+      case 'integer':
+        return html`<input id=${id} name=${f.key} type="number" min=${f.min} max=${f.max} step=${f.step} .value=${live(v === undefined ? '' : String(v))}
+          @input=${(e: Event) => { const t = (e.target as HTMLInputElement).value; this.set(f.key, t === '' ? undefined : Number(t)); }}>`;
+      case 'text':
+        return html`<input id=${id} name=${f.key} .value=${live(String(v ?? ''))} @input=${(e: Event) => this.set(f.key, (e.target as HTMLInputElement).value)}>`;
+      case 'grid':
+        return this.gridInput();
+    }
+  }
+
+  private gridInput() {
+    const g = this.referenceGrid;
+    const mode = (m: GridMode) => () => { this.gridMode = m; this.error = ''; };
+    return html`<div class="grid-choices" role="radiogroup" aria-label="Image grid">
+      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view (${DEFAULT_GRID_SIZE} px)</label>
+      ${g ? html`<label><input type="radio" name="grid" value="reference" .checked=${live(this.gridMode === 'reference')} @change=${mode('reference')}>Match the ground truth: ${g.nx} px × ${g.dx} mm</label>` : nothing}
+      <div class="custom"><label><input type="radio" name="grid" value="custom" .checked=${live(this.gridMode === 'custom')} @change=${mode('custom')}>Choose:</label>
+      <label>size <input type="number" name="gridSize" min="8" max="4096" step="1" .value=${live(String(this.customGrid.size))} ?disabled=${this.gridMode !== 'custom'}
+        @input=${(e: Event) => { this.customGrid = { ...this.customGrid, size: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); }}> px</label>
+      <label>pixel <input type="number" name="gridPixel" min="0.01" max="100" step="0.05" .value=${live(String(this.customGrid.pixel))} ?disabled=${this.gridMode !== 'custom'}
+        @input=${(e: Event) => { this.customGrid = { ...this.customGrid, pixel: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); }}> mm</label></div>
+    </div>`;
+  }
+
+  private queue(e: Event) {
+    e.preventDefault();
+    try {
+      const recipe = validateRecipe(this.recipe());
+      this.error = '';
+      const name = recipeSummary(recipe as unknown as Record<string, unknown>);
+      this.dispatchEvent(new CustomEvent('recipe-queue', { detail: { recipe, name }, bubbles: true, composed: true }));
+    } catch (err) {
+      if (!(err instanceof InputError)) throw err;
+      this.error = err.message;
+    }
+  }
+
+  render() {
+    const shown = this.fields.filter((f) => !f.appliesTo || f.appliesTo(this.values));
+    return html`<form @submit=${this.queue} novalidate aria-label="Recipe">
+        ${shown.map((f) => html`<div class="field ${f.kind === 'grid' ? 'wide' : ''}">
+          <label for=${`field-${f.key}`}>${f.label}${'unit' in f && f.unit ? ` (${f.unit})` : ''}</label>
+          ${this.input(f)}
+          <span class="help">${f.help}</span></div>`)}
+      </form>
+      <div class="actions">
+        <button class="primary" id="queue-recipe" ?disabled=${this.disabled} @click=${this.queue}>Add to queue</button>
+        <span class="summary">${recipeSummary(this.recipe())}</span>
+      </div>
+      ${this.error ? html`<div class="error" role="alert">Not queued: ${this.error}</div>` : nothing}`;
+  }
+}
+customElements.define('rf-recipe-form', RecipeForm);

@@ -1,0 +1,83 @@
+import { html, LitElement, css, nothing } from 'lit';
+import type { ResultMeta } from '../store/records';
+import { SERIES_COLOURS, theme } from './theme';
+
+/** Most results compared at once. */
+export const MAX_COMPARED = 4;
+
+const send = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
+
+/**
+ * A scan's results: tick up to four to compare, choose the reference, delete.
+ * @fires result-toggle - detail: { id }
+ * @fires result-delete - detail: { id }
+ * @fires reference-change - detail: { id }
+ */
+export class ResultList extends LitElement {
+  static properties = { results: { attribute: false }, selected: { attribute: false }, referenceId: { type: String }, hasTruth: { type: Boolean }, confirming: { state: true } };
+  declare results: ResultMeta[];
+  /** Ticked ids, in order. */
+  declare selected: string[];
+  declare referenceId: string;
+  /** The scan has a ground truth to compare with. */
+  declare hasTruth: boolean;
+  declare confirming: string;
+
+  static styles = [theme, css`
+    :host { display: flex; flex-direction: column; gap: 10px; }
+    ul { list-style: none; margin: 0; padding: 0; display: flex; flex-direction: column; gap: 6px; }
+    li { border: 1px solid var(--border); border-radius: 8px; background: var(--surface); padding: 8px 10px; }
+    li.on { border-color: var(--swatch); box-shadow: inset 3px 0 0 var(--swatch); }
+    .top { display: flex; gap: 8px; align-items: flex-start; }
+    .top label { color: var(--text); font-size: 13px; font-weight: 600; overflow-wrap: anywhere; cursor: pointer; }
+    .sub { font-size: 12px; color: var(--muted); margin: 2px 0 0 24px; }
+    .row { display: flex; gap: 6px; margin: 6px 0 0 24px; }
+    select { width: 100%; }
+    .empty { font-size: 13px; color: var(--muted); }
+  `];
+
+  constructor() {
+    super();
+    this.results = [];
+    this.selected = [];
+    this.referenceId = '';
+    this.hasTruth = false;
+    this.confirming = '';
+  }
+
+  updated() {
+    this.renderRoot.querySelectorAll<HTMLElement>('li[data-colour]').forEach((li) => li.style.setProperty('--swatch', li.dataset.colour ?? ''));
+  }
+
+  render() {
+    const full = this.selected.length >= MAX_COMPARED;
+    return html`
+      <div class="card">
+        <h2>Results</h2>
+        ${this.results.length ? html`<ul>${this.results.map((r) => {
+          const k = this.selected.indexOf(r.id);
+          const inside = r.metrics?.regions.insideFov;
+          return html`<li class=${k >= 0 ? 'on' : ''} data-colour=${k >= 0 ? SERIES_COLOURS[k % 4] : ''} data-result-id=${r.id}>
+            <div class="top"><input type="checkbox" id=${`pick-${r.id}`} .checked=${k >= 0} ?disabled=${k < 0 && full}
+              @change=${() => send(this, 'result-toggle', { id: r.id })}><label for=${`pick-${r.id}`}>${r.name}</label></div>
+            <div class="sub num">${new Date(r.createdAt).toLocaleString()} · ${r.seconds.toFixed(1)} s${inside ? ` · RMSE in field ${inside.rmse.toFixed(0)} ${r.metrics!.unit}` : ''}</div>
+            <div class="row">${this.confirming === r.id
+              ? html`<button class="small danger" @click=${() => { this.confirming = ''; send(this, 'result-delete', { id: r.id }); }}>Delete</button>
+                  <button class="small" @click=${() => (this.confirming = '')}>Keep</button>`
+              : html`<button class="small danger" @click=${() => (this.confirming = r.id)}>Delete…</button>`}</div>
+          </li>`;
+        })}</ul>
+        ${full ? html`<p class="empty">Four are ticked: untick one to choose another.</p>` : nothing}` : html`<p class="empty">None yet.</p>`}
+      </div>
+      <div class="card">
+        <h2>Reference</h2>
+        <label>Compare with
+          <select id="reference" @change=${(e: Event) => send(this, 'reference-change', { id: (e.target as HTMLSelectElement).value })}>
+            ${this.hasTruth ? html`<option value="truth" ?selected=${this.referenceId === 'truth'}>Ground truth</option>` : nothing}
+            <option value="" ?selected=${this.referenceId === ''}>Nothing</option>
+            ${this.results.map((r) => html`<option value=${r.id} ?selected=${this.referenceId === r.id}>${r.name}</option>`)}
+          </select></label>
+      </div>`;
+  }
+}
+customElements.define('rf-result-list', ResultList);

@@ -1,0 +1,309 @@
+import { html, LitElement, css, nothing } from 'lit';
+import type { Comparison } from '../core/compare';
+import { writeImageNrrd } from '../core/formats/image-nrrd';
+import type { Image2D } from '../core/image';
+import type { ResultMeta } from '../store/records';
+import { fileName, saveFile } from './export/download';
+import { pngBlob, pngDataUrl } from './export/png';
+import { buildReport } from './export/report';
+import type { LineMark, RegionMark, Tool } from './image-viewer';
+import { convergenceHistories } from './logic/convergence';
+import { difference, toDisplay, type DisplayImage } from './logic/display';
+import { regionStats, sampleProfile, type Point } from './logic/measure';
+import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
+import { autoWindow, type DisplayWindow } from './logic/window-level';
+import type { MetricsRow } from './metrics-table';
+import type { PlotSeries } from './line-plot';
+import { SERIES_COLOURS, theme } from './theme';
+import './image-viewer';
+import './line-plot';
+import './metrics-table';
+import './region-table';
+import './result-list';
+import './viewer-toolbar';
+
+/** The id that stands for the scan's ground truth as reference. */
+export const TRUTH = 'truth';
+
+interface Panel {
+  key: string;
+  label: string;
+  colour: string;
+  display: DisplayImage;
+  source: Image2D;
+  meta?: ResultMeta;
+}
+
+/**
+ * Results of one scan: choose up to four to compare side by side with linked window, cursor,
+ * zoom, line profile and region; differences from a reference; the metrics table; convergence
+ * plots; and export of the highlighted image (NRRD, PNG) or of the whole comparison (HTML report).
+ * @fires result-toggle - detail: { id }, from the list
+ * @fires result-delete - detail: { id }, from the list
+ * @fires reference-change - detail: { id } ('truth' or a result id)
+ */
+export class ResultsView extends LitElement {
+  static properties = {
+    results: { attribute: false }, selected: { attribute: false }, images: { attribute: false }, truth: { attribute: false },
+    referenceId: { type: String }, comparisons: { attribute: false }, scanName: { type: String }, scanSummary: { type: String },
+    window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
+    line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
+    exportError: { state: true },
+  };
+  /** Results of the scan, oldest first. */
+  declare results: ResultMeta[];
+  /** Ids chosen for comparison, in order (at most four). */
+  declare selected: string[];
+  /** Loaded pixels by result id. */
+  declare images: Map<string, Image2D>;
+  /** The scan's ground truth, when it has one. */
+  declare truth: Image2D | undefined;
+  /** 'truth', a result id, or '' for no reference. */
+  declare referenceId: string;
+  /** Comparisons against a result reference, by result id (text: why there is none). */
+  declare comparisons: Map<string, Comparison | string>;
+  declare scanName: string;
+  declare scanSummary: string;
+  declare window: DisplayWindow | undefined;
+  declare diffWindow: DisplayWindow;
+  declare view: ViewState;
+  declare cursor: Point | null;
+  declare tool: Tool;
+  declare line: LineMark | null;
+  declare region: RegionMark | null;
+  declare showFov: boolean;
+  declare showDifference: boolean;
+  declare activeKey: string;
+  declare exportError: string;
+  private displays = new WeakMap<Image2D, DisplayImage>();
+  private differences = new Map<string, { a: DisplayImage; b: DisplayImage; d: DisplayImage }>();
+
+  static styles = [theme, css`
+    :host { display: grid; grid-template-columns: 280px minmax(0, 1fr); gap: 14px; align-items: start; }
+    @media (max-width: 1000px) { :host { grid-template-columns: 1fr; } }
+    .main { display: grid; gap: 14px; min-width: 0; }
+    .panels { display: grid; gap: 10px; }
+    .panels.n1 { grid-template-columns: minmax(0, 640px); }
+    .panels.n2 { grid-template-columns: repeat(2, minmax(0, 1fr)); }
+    .panels.n3, .panels.n5 { grid-template-columns: repeat(3, minmax(0, 1fr)); }
+    .panels.n4 { grid-template-columns: repeat(2, minmax(0, 1fr)); max-width: 1000px; }
+    .exports { display: flex; gap: 8px; flex-wrap: wrap; align-items: center; }
+    .empty { color: var(--muted); }
+    .hint { font-size: 12px; color: var(--muted); margin: 6px 0 0; }
+  `];
+
+  constructor() {
+    super();
+    this.results = [];
+    this.selected = [];
+    this.images = new Map();
+    this.referenceId = '';
+    this.comparisons = new Map();
+    this.scanName = '';
+    this.scanSummary = '';
+    this.diffWindow = { width: 500, level: 0 };
+    this.view = INITIAL_VIEW;
+    this.cursor = null;
+    this.tool = 'window';
+    this.line = null;
+    this.region = null;
+    this.showFov = true;
+    this.showDifference = false;
+    this.activeKey = '';
+    this.exportError = '';
+  }
+
+  private display(image: Image2D, label: string): DisplayImage {
+    let d = this.displays.get(image);
+    if (!d || d.label !== label) {
+      d = toDisplay(image, label);
+      this.displays.set(image, d);
+    }
+    return d;
+  }
+
+  private referenceLabel(): string {
+    if (this.referenceId === TRUTH) return 'the ground truth';
+    const m = this.results.find((r) => r.id === this.referenceId);
+    return m ? `"${m.name}"` : 'nothing';
+  }
+
+  /** Images shown: the chosen results, then the reference when it is not among them. */
+  private panels(): Panel[] {
+    const out: Panel[] = [];
+    this.selected.forEach((id, k) => {
+      const meta = this.results.find((r) => r.id === id);
+      const img = this.images.get(id);
+      if (meta && img) out.push({ key: id, label: meta.name, colour: SERIES_COLOURS[k % 4], display: this.display(img, meta.name), source: img, meta });
+    });
+    const refImg = this.referenceId === TRUTH ? this.truth : this.images.get(this.referenceId);
+    if (refImg && !this.selected.includes(this.referenceId)) {
+      const label = this.referenceId === TRUTH ? 'Ground truth' : this.results.find((r) => r.id === this.referenceId)?.name ?? 'reference';
+      out.push({ key: this.referenceId, label, colour: SERIES_COLOURS[4], display: this.display(refImg, label), source: refImg });
+    }
+    return out;
+  }
+
+  private reference(panels: Panel[]): Panel | undefined {
+    return panels.find((p) => p.key === this.referenceId);
+  }
+
+  /** What the panels show: images, or differences from the reference. */
+  private shown(panels: Panel[]): Panel[] {
+    const ref = this.reference(panels);
+    if (!this.showDifference || !ref) return panels;
+    return panels.filter((p) => p !== ref).map((p) => {
+      const key = `${p.key}|${ref.key}`;
+      let c = this.differences.get(key);
+      if (!c || c.a !== p.display || c.b !== ref.display) {
+        c = { a: p.display, b: ref.display, d: difference(p.display, ref.display, `${p.label} − ${ref.label}`) };
+        this.differences.set(key, c);
+      }
+      return { ...p, display: c.d };
+    });
+  }
+
+  willUpdate() {
+    const panels = this.panels();
+    if (!this.window && panels.length) {
+      const first = panels[0].display;
+      this.window = first.unit === 'HU' ? { width: 400, level: 40 } : autoWindow(first.values);
+    }
+    if (panels.length && !panels.some((p) => p.key === this.activeKey)) this.activeKey = panels[0].key;
+  }
+
+  private currentWindow(): DisplayWindow {
+    return this.showDifference && this.reference(this.panels()) ? this.diffWindow : this.window ?? { width: 400, level: 40 };
+  }
+
+  private setWindow(w: DisplayWindow) {
+    if (this.showDifference && this.reference(this.panels())) this.diffWindow = w;
+    else this.window = w;
+  }
+
+  private async exportImage(kind: 'nrrd-hu' | 'nrrd-mu' | 'png') {
+    this.exportError = '';
+    const panels = this.panels();
+    const shown = this.shown(panels);
+    const p = shown.find((x) => x.key === this.activeKey) ?? shown[0];
+    if (!p || (kind !== 'png' && shown !== panels)) return;
+    try {
+      if (kind === 'png') {
+        saveFile(await pngBlob(p.display, this.currentWindow()), fileName(p.display.label, 'png'), 'image/png');
+        return;
+      }
+      const src = p.source;
+      const image: Image2D = kind === 'nrrd-hu' ? { ...src, quantity: 'hu', data: toDisplay(src, p.label).values } : src;
+      saveFile((await writeImageNrrd(image)) as BlobPart, fileName(`${p.label}-${kind === 'nrrd-hu' ? 'HU' : 'mu'}`, 'nrrd'), 'application/octet-stream');
+    } catch (err) {
+      this.exportError = `Export failed: ${err instanceof Error ? err.message : String(err)}`;
+    }
+  }
+
+  private exportReport(panels: Panel[]) {
+    const w = this.currentWindow();
+    const shown = this.shown(panels);
+    const svg = this.renderRoot.querySelector('rf-line-plot#profile')?.shadowRoot?.querySelector('svg')?.outerHTML;
+    const html = buildReport({
+      title: `Reconstructions of ${this.scanName}`,
+      scanName: this.scanName,
+      scanSummary: this.scanSummary,
+      referenceLabel: this.referenceLabel(),
+      window: w,
+      unit: shown[0]?.display.unit ?? 'HU',
+      createdAt: new Date(),
+      profileSvg: svg,
+      profileCaption: this.line ? `From (${this.line.p0.x.toFixed(1)}, ${this.line.p0.y.toFixed(1)}) mm to (${this.line.p1.x.toFixed(1)}, ${this.line.p1.y.toFixed(1)}) mm.` : undefined,
+      images: shown.map((p) => ({
+        label: p.display.label,
+        colour: p.colour,
+        png: pngDataUrl(p.display, w),
+        recipe: p.meta?.recipe,
+        seconds: p.meta?.seconds,
+        warnings: p.meta?.warnings ?? [],
+        metrics: p.meta ? this.comparisonOf(p.meta) : undefined,
+        residual: p.meta?.residual,
+        region: this.region ? regionStats(p.display.values, p.display.grid, this.region.centre, this.region.radius) : undefined,
+      })).map((i) => ({ ...i, metrics: typeof i.metrics === 'object' ? i.metrics : undefined })),
+    });
+    saveFile(html, fileName(`report-${this.scanName}`, 'html'), 'text/html');
+  }
+
+  private comparisonOf(meta: ResultMeta): Comparison | string | undefined {
+    if (this.referenceId === TRUTH) return meta.metrics ?? 'no comparison was stored with this result';
+    if (!this.referenceId) return 'choose a reference';
+    if (meta.id === this.referenceId) return 'this is the reference';
+    return this.comparisons.get(meta.id);
+  }
+
+  private convergence(panels: Panel[]) {
+    return panels.filter((p) => p.meta).map((p) => {
+      const series: PlotSeries[] = convergenceHistories(p.meta!.report).map((hst, i) => ({
+        label: hst.label, colour: SERIES_COLOURS[i % SERIES_COLOURS.length], x: hst.values.map((_, n) => n + 1), y: hst.values,
+      }));
+      return series.length ? html`<div class="card"><h2>Convergence: ${p.label}</h2><rf-line-plot xLabel="iteration" yLabel="value" .series=${series}></rf-line-plot></div>` : nothing;
+    });
+  }
+
+  render() {
+    const panels = this.panels();
+    const shown = this.shown(panels);
+    const w = this.currentWindow();
+    const unit = shown[0]?.display.unit ?? 'HU';
+    const ref = this.reference(panels);
+    const compared = panels.filter((p) => p.meta && p.key !== this.referenceId);
+    const metricsRows: MetricsRow[] = compared.map((p) => ({ label: p.label, colour: p.colour, comparison: this.comparisonOf(p.meta!), residual: p.meta!.residual }));
+    const profile: PlotSeries[] = this.line
+      ? shown.map((p) => { const s = sampleProfile(p.display.values, p.display.grid, this.line!.p0, this.line!.p1); return { label: p.display.label, colour: p.colour, x: s.distance, y: s.values }; })
+      : [];
+    const active = shown.find((p) => p.key === this.activeKey);
+    const differenceShown = shown !== panels;
+    return html`
+      <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}></rf-result-list>
+      <div class="main">
+        ${!panels.length ? html`<div class="card empty">${this.results.length ? 'Tick one to four results on the left to view and compare them.' : 'No results for this scan yet: run a recipe from the Reconstruct tab.'}</div>` : html`
+        <div class="card">
+          <rf-viewer-toolbar .window=${w} .unit=${unit} .tool=${this.tool} .showFov=${this.showFov} .showDifference=${this.showDifference && !!ref} .canDifference=${!!ref && panels.length > 1}
+            @window-change=${(e: CustomEvent) => this.setWindow(e.detail.window)}
+            @window-auto=${() => this.setWindow(autoWindow(shown[0].display.values))}
+            @tool-change=${(e: CustomEvent) => (this.tool = e.detail.tool)}
+            @fov-toggle=${(e: CustomEvent) => (this.showFov = e.detail.show)}
+            @difference-toggle=${(e: CustomEvent) => (this.showDifference = e.detail.show)}></rf-viewer-toolbar>
+        </div>
+        <div class="panels n${shown.length}"
+          @window-change=${(e: CustomEvent) => this.setWindow(e.detail.window)}
+          @view-change=${(e: CustomEvent) => (this.view = e.detail.view)}
+          @cursor-change=${(e: CustomEvent) => (this.cursor = e.detail.point)}
+          @line-change=${(e: CustomEvent) => (this.line = e.detail.line)}
+          @region-change=${(e: CustomEvent) => (this.region = e.detail.region)}>
+          ${shown.map((p) => html`<rf-image-viewer data-key=${p.key} .image=${p.display} .window=${w} .view=${this.view} .cursor=${this.cursor} .tool=${this.tool}
+            .line=${this.line} .region=${this.region} .colour=${p.colour} .showFov=${this.showFov} .active=${p.key === this.activeKey}
+            @panel-focus=${() => (this.activeKey = p.key)}></rf-image-viewer>`)}
+        </div>
+        ${metricsRows.length ? html`<div class="card"><h2>Agreement with ${this.referenceLabel()}</h2>
+          <rf-metrics-table .rows=${metricsRows} .referenceLabel=${this.referenceLabel()}></rf-metrics-table></div>` : nothing}
+        ${this.line ? html`<div class="card"><h2>Line profile</h2>
+          <rf-line-plot id="profile" xLabel="distance along the line (mm)" yLabel=${unit} caption="Values along the drawn line" .series=${profile}></rf-line-plot></div>` : nothing}
+        ${this.region ? html`<div class="card"><h2>Region</h2>
+          <rf-region-table .unit=${unit} .radius=${this.region.radius}
+            .rows=${shown.map((p) => ({ label: p.display.label, colour: p.colour, stats: regionStats(p.display.values, p.display.grid, this.region!.centre, this.region!.radius) }))}></rf-region-table></div>` : nothing}
+        ${this.convergence(panels)}
+        ${compared.some((p) => p.meta!.warnings.length) ? html`<div class="card"><h2>Warnings</h2>${compared.flatMap((p) => p.meta!.warnings.map((x) => html`<p class="warning">${p.label}: ${x}</p>`))}</div>` : nothing}
+        <div class="card">
+          <h2>Export</h2>
+          <div class="exports">
+            <span class="muted">Highlighted image${active ? html` (<strong>${active.display.label}</strong>)` : nothing}:</span>
+            <button id="export-nrrd-hu" ?disabled=${!active || active.display.unit !== 'HU' || differenceShown} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
+            <button id="export-nrrd-mu" ?disabled=${!active || differenceShown} @click=${() => this.exportImage('nrrd-mu')}>NRRD in µ (1/mm)</button>
+            <button id="export-png" ?disabled=${!active} @click=${() => this.exportImage('png')}>PNG at this window</button>
+            <span class="muted">All shown:</span>
+            <button id="export-report" class="primary" @click=${() => this.exportReport(panels)}>Report (HTML, printable)</button>
+          </div>
+          <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header${differenceShown ? '; they hold images, not differences (turn the difference off to save one)' : ''}.</p>
+          ${this.exportError ? html`<div class="error" role="alert">${this.exportError}</div>` : nothing}
+        </div>
+      `}
+      </div>`;
+  }
+}
+customElements.define('rf-results-view', ResultsView);

@@ -1,0 +1,53 @@
+// Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
+// id; the coordinator answers with progress messages and then exactly one done or error.
+// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
+import type { Comparison } from '../core/compare';
+import type { ResultMeta, ScanMeta } from '../store/records';
+
+export const APP_PROTOCOL_VERSION = 1;
+
+/** What a comparison measures against: the scan's reference image or another result. */
+export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
+
+export type AppRequest =
+  | { op: 'import'; files: File[]; name?: string }
+  | { op: 'demo' }
+  | { op: 'run'; scanId: string; recipe: unknown; name?: string }
+  | { op: 'compare'; resultId: string; against: CompareTarget }
+  | { op: 'info' };
+
+/** What each request resolves to. */
+export interface AppReplies {
+  import: ScanMeta;
+  demo: ScanMeta;
+  run: ResultMeta;
+  compare: Comparison;
+  info: EngineInfo;
+}
+
+export interface EngineInfo {
+  /** Kernel workers in the pool. */
+  workers: number;
+  /** True when the workers share one memory (cross-origin isolated page). */
+  sharedMemory: boolean;
+}
+
+/** Messages to the coordinator. */
+export type ToCoordinator =
+  | { op: 'init'; version: number; kernelPorts: MessagePort[] }
+  | ({ id: number } & AppRequest)
+  | { op: 'cancel'; id: number };
+
+/** A failure, with the error's class name so the page can tell bad input from a fault. */
+export interface WireError {
+  name: string;
+  message: string;
+  /** Extra fields (StorageFullError.largest). */
+  details?: unknown;
+}
+
+/** Messages from the coordinator. */
+export type FromCoordinator =
+  | { id: number; type: 'progress'; fraction: number; stage: string }
+  | { id: number; type: 'done'; value: unknown }
+  | { id: number; type: 'error'; error: WireError };

@@ -1,0 +1,181 @@
+// The page's one door to the engine. Every call takes an AbortSignal and reports progress; calls
+// run in the coordinator worker, so the main thread never waits on a kernel. When a worker dies
+// the engine is torn down, the calls in flight fail with EngineStoppedError (never hang), and
+// the next call starts a fresh engine. A cancel the engine does not answer within
+// CANCEL_GRACE_MS also restarts it (a running Wasm call cannot be interrupted otherwise).
+import { CancelledError, InputError } from '../core/errors';
+import { StorageFullError } from '../store/quota';
+import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
+
+/** What the client needs of a Worker (a real Web Worker, or a stand-in in tests). */
+export interface WorkerLike {
+  postMessage(msg: unknown, transfer?: Transferable[]): void;
+  addEventListener(type: 'message' | 'error' | 'messageerror', handler: (e: Event) => void): void;
+  terminate(): void;
+}
+
+/** Starts the engine: the coordinator, and every worker whose death should restart the engine. */
+export type EngineStarter = () => { coordinator: WorkerLike; watched: WorkerLike[] };
+
+export interface Progress {
+  /** Fraction done, 0 to 1. */
+  fraction: number;
+  /** Short stage name ("filter", "backproject", ...). */
+  stage: string;
+  /** Milliseconds since the call started. */
+  elapsedMs: number;
+}
+
+export interface CallOptions {
+  signal?: AbortSignal;
+  onProgress?: (p: Progress) => void;
+}
+
+/** The engine stopped (a worker crashed, or was restarted to stop a run); the call did not finish. */
+export class EngineStoppedError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'EngineStoppedError';
+  }
+}
+
+/** Milliseconds a cancelled call may take to stop before the engine is restarted. */
+export const CANCEL_GRACE_MS = 3000;
+
+interface Pending {
+  resolve: (v: unknown) => void;
+  reject: (e: Error) => void;
+  onProgress?: (p: Progress) => void;
+  started: number;
+}
+
+interface Engine {
+  coordinator: WorkerLike;
+  watched: WorkerLike[];
+  pending: Map<number, Pending>;
+}
+
+/** Rebuilds an error sent by the coordinator as the class the page knows. */
+export function fromWire(e: WireError): Error {
+  if (e.name === 'InputError') return new InputError(e.message);
+  if (e.name === 'CancelledError') return new CancelledError(e.message);
+  if (e.name === 'StorageFullError') return new StorageFullError(e.message, (e.details as StorageFullError['largest']) ?? []);
+  const err = new Error(e.message);
+  err.name = e.name;
+  return err;
+}
+
+export class EngineClient {
+  private engine?: Engine;
+  private nextId = 1;
+
+  constructor(private readonly starter: EngineStarter) {}
+
+  /** Reads files into a stored scan. */
+  importScan(files: File[], options: CallOptions & { name?: string } = {}): Promise<AppReplies['import']> {
+    return this.call({ op: 'import', files, name: options.name }, options);
+  }
+
+  /** Simulates and stores the demo scan. */
+  createDemo(options: CallOptions = {}): Promise<AppReplies['demo']> {
+    return this.call({ op: 'demo' }, options);
+  }
+
+  /** Runs a recipe on a stored scan; resolves to the stored result. */
+  run(scanId: string, recipe: unknown, options: CallOptions & { name?: string } = {}): Promise<AppReplies['run']> {
+    return this.call({ op: 'run', scanId, recipe, name: options.name }, options);
+  }
+
+  /** Image-quality figures of a result against its scan's reference or another result. */
+  compare(resultId: string, against: CompareTarget, options: CallOptions = {}): Promise<AppReplies['compare']> {
+    return this.call({ op: 'compare', resultId, against }, options);
+  }
+
+  /** Pool size and memory mode. */
+  info(options: CallOptions = {}): Promise<EngineInfo> {
+    return this.call({ op: 'info' }, options);
+  }
+
+  /** Stops every worker; calls in flight fail. */
+  dispose(): void {
+    this.stop('the page closed the engine');
+  }
+
+  private call<K extends AppRequest['op']>(req: Extract<AppRequest, { op: K }>, options: CallOptions): Promise<AppReplies[K]> {
+    const { signal } = options;
+    if (signal?.aborted) return Promise.reject(new CancelledError());
+    const engine = this.ensureEngine();
+    const id = this.nextId++;
+    return new Promise<AppReplies[K]>((resolve, reject) => {
+      let grace: ReturnType<typeof setTimeout> | undefined;
+      const onAbort = () => {
+        engine.coordinator.postMessage({ op: 'cancel', id });
+        grace = setTimeout(() => {
+          if (!engine.pending.has(id)) return;
+          engine.pending.get(id)!.reject(new CancelledError());
+          engine.pending.delete(id);
+          this.stop('the engine was restarted to stop a cancelled run');
+        }, CANCEL_GRACE_MS);
+      };
+      const settle = () => {
+        signal?.removeEventListener('abort', onAbort);
+        if (grace) clearTimeout(grace);
+      };
+      engine.pending.set(id, {
+        resolve: (v) => {
+          settle();
+          resolve(v as AppReplies[K]);
+        },
+        reject: (e) => {
+          settle();
+          reject(e);
+        },
+        onProgress: options.onProgress,
+        started: performance.now(),
+      });
+      signal?.addEventListener('abort', onAbort, { once: true });
+      engine.coordinator.postMessage({ id, ...req });
+    });
+  }
+
+  private ensureEngine(): Engine {
+    if (this.engine) return this.engine;
+    const { coordinator, watched } = this.starter();
+    const engine: Engine = { coordinator, watched, pending: new Map() };
+    coordinator.addEventListener('message', (e) => this.receive(engine, (e as MessageEvent<FromCoordinator>).data));
+    for (const w of [coordinator, ...watched]) {
+      w.addEventListener('error', (e) => {
+        e.preventDefault?.();
+        const what = (e as ErrorEvent).message || 'a worker failed';
+        if (this.engine === engine) this.stop(`the reconstruction engine stopped unexpectedly (${what}); it has been restarted`);
+      });
+      w.addEventListener('messageerror', () => {
+        if (this.engine === engine) this.stop('a message from the engine could not be read; the engine has been restarted');
+      });
+    }
+    this.engine = engine;
+    return engine;
+  }
+
+  private receive(engine: Engine, msg: FromCoordinator): void {
+    const p = engine.pending.get(msg.id);
+    if (!p) return;
+    if (msg.type === 'progress') {
+      p.onProgress?.({ fraction: msg.fraction, stage: msg.stage, elapsedMs: performance.now() - p.started });
+      return;
+    }
+    engine.pending.delete(msg.id);
+    if (msg.type === 'done') p.resolve(msg.value);
+    else p.reject(fromWire(msg.error));
+  }
+
+  /** Terminates the workers and fails every call in flight. */
+  private stop(reason: string): void {
+    const engine = this.engine;
+    if (!engine) return;
+    this.engine = undefined;
+    for (const w of [engine.coordinator, ...engine.watched]) w.terminate();
+    for (const p of engine.pending.values()) p.reject(new EngineStoppedError(`${reason}. The run did not finish and nothing was stored.`));
+    engine.pending.clear();
+  }
+}

@@ -1,0 +1,155 @@
+// The coordinator: imports, the demo, recipe runs and comparisons, off the page's main thread.
+// It is the only writer of scans and results; runs take turns on one engine workspace.
+import { compareImages, type Comparison } from '../core/compare';
+import { dataResidual } from '../core/data-residual';
+import { InputError, throwIfCancelled } from '../core/errors';
+import type { Workspace } from '../core/engine/workspace';
+import type { Image2D } from '../core/image';
+import { recipeSummary } from '../core/recipe/fields';
+import { validateRecipe } from '../core/recipe/recipe';
+import { runRecipe } from '../core/recipe/run';
+import type { RunHooks } from '../core/run-hooks';
+import { pageStore, type UseStore } from '../store/db';
+import type { ResultMeta, ScanMeta } from '../store/records';
+import { loadResultImage, saveResult } from '../store/results';
+import { loadScan, saveScan } from '../store/scans';
+import { saveSettings } from '../store/settings';
+import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
+import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
+import { readScanFiles } from './import-scan';
+
+export interface CoordinatorOptions {
+  /** Opens the engine workspace (called on the first run, and again after a failure). */
+  openWorkspace: () => Promise<Workspace>;
+  /** Whether that workspace shares memory between workers (for `info`). */
+  sharedMemory: boolean;
+  store?: UseStore;
+}
+
+export class Coordinator {
+  private workspace?: Promise<Workspace>;
+  private turn: Promise<unknown> = Promise.resolve();
+  private readonly store: UseStore;
+
+  constructor(private readonly options: CoordinatorOptions) {
+    this.store = options.store ?? pageStore();
+  }
+
+  /** Answers one request. */
+  async handle<K extends AppRequest['op']>(req: Extract<AppRequest, { op: K }>, hooks: RunHooks = {}): Promise<AppReplies[K]> {
+    const r = req as AppRequest;
+    switch (r.op) {
+      case 'import':
+        return (await this.importScan(r.files, r.name, hooks)) as AppReplies[K];
+      case 'demo':
+        return (await this.createDemo(hooks)) as AppReplies[K];
+      case 'run':
+        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks))) as AppReplies[K];
+      case 'compare':
+        return (await this.compare(r.resultId, r.against)) as AppReplies[K];
+      case 'info':
+        return (await this.info()) as AppReplies[K];
+    }
+  }
+
+  /** Reads the files, checks them and stores the scan (nothing is stored when anything fails). */
+  async importScan(files: File[], name: string | undefined, hooks: RunHooks): Promise<ScanMeta> {
+    hooks.onProgress?.(0, 'reading');
+    const { scan, warnings } = await readScanFiles(files);
+    throwIfCancelled(hooks.signal);
+    hooks.onProgress?.(0.8, 'storing');
+    const fileNames = files.map((f) => f.name);
+    return saveScan({ name: name ?? fileNames.find((n) => /\.nrrd$/i.test(n)) ?? fileNames[0], scan, source: { type: 'file', fileNames }, warnings }, this.store);
+  }
+
+  /** Simulates and stores the demo scan with its ground truth. */
+  async createDemo(hooks: RunHooks, settings: DemoSettings = DEMO): Promise<ScanMeta> {
+    const { scan, reference } = await buildDemoScan(hooks, settings);
+    throwIfCancelled(hooks.signal);
+    const meta = await saveScan({
+      name: DEMO_NAME,
+      scan,
+      reference,
+      source: { type: 'demo', description: 'Simulated by the page: thorax phantom with arms, 60 keV, 200 000 photons per ray, detector cropped to 345 of 1100 channels.' },
+    }, this.store);
+    await saveSettings({ demoCreated: true }, this.store);
+    return meta;
+  }
+
+  /** Reconstructs a stored scan and stores the result with its comparison to the scan's reference. */
+  async run(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks): Promise<ResultMeta> {
+    const t0 = performance.now();
+    const recipe = validateRecipe(recipeInput);
+    const { scan, reference } = await loadScan(scanId, this.store);
+    throwIfCancelled(hooks.signal);
+    const ws = await this.openWorkspace();
+    const out = await runRecipe(ws, scan, recipe, hooks);
+    throwIfCancelled(hooks.signal);
+    const warnings = [...out.warnings];
+    const bad = countNonFinite(out.image.data);
+    if (bad) warnings.push(`${bad} pixels are not finite numbers (NaN or infinity): the image is not trustworthy`);
+    let metrics: Comparison | null = null;
+    if (reference) {
+      try {
+        metrics = compareImages(out.image, reference, out.image.fovRadius);
+      } catch (err) {
+        if (!(err instanceof InputError)) throw err;
+        warnings.push(`no comparison with the reference: ${err.message}`);
+      }
+    }
+    hooks.onProgress?.(0.99, 'checking against the measured data');
+    const residual = await dataResidual(ws, out.image, scan, hooks);
+    hooks.onProgress?.(1, 'storing');
+    return saveResult({
+      scanId,
+      name: name ?? recipeSummary(recipe as unknown as Record<string, unknown>),
+      recipe: recipe as unknown as Record<string, unknown>,
+      warnings,
+      report: out.report,
+      metrics,
+      residual,
+      seconds: (performance.now() - t0) / 1000,
+    }, out.image, this.store);
+  }
+
+  /** Compares a stored result with its scan's reference image or with another result. */
+  async compare(resultId: string, against: CompareTarget): Promise<Comparison> {
+    const { meta, image } = await loadResultImage(resultId, this.store);
+    let reference: Image2D;
+    if (against.kind === 'reference') {
+      const s = await loadScan(meta.scanId, this.store);
+      if (!s.reference) throw new InputError(`compare: scan of result "${meta.name}" has no reference image`);
+      reference = s.reference;
+    } else {
+      reference = (await loadResultImage(against.id, this.store)).image;
+    }
+    return compareImages(image, reference, image.fovRadius);
+  }
+
+  async info(): Promise<EngineInfo> {
+    const ws = await this.openWorkspace();
+    return { workers: ws.parallelism, sharedMemory: this.options.sharedMemory };
+  }
+
+  private openWorkspace(): Promise<Workspace> {
+    this.workspace ??= this.options.openWorkspace();
+    const ws = this.workspace;
+    ws.catch(() => {
+      if (this.workspace === ws) this.workspace = undefined;
+    });
+    return ws;
+  }
+
+  /** Runs `job` after every earlier exclusive job has finished (runs share one workspace). */
+  private exclusive<T>(job: () => Promise<T>): Promise<T> {
+    const next = this.turn.then(job, job);
+    this.turn = next.catch(() => undefined);
+    return next;
+  }
+}
+
+function countNonFinite(d: Float32Array): number {
+  let n = 0;
+  for (let i = 0; i < d.length; i++) if (!Number.isFinite(d[i])) n++;
+  return n;
+}
