@@ -69,7 +69,6 @@ describe('rimfill reconstruct, iterative methods', () => {
 
   it.each([
     [['--method', 'fbp', '--iterations', '3'], /option --iterations: only for the iterative methods/],
-    [['--method', 'prior'], /--method prior needs a prior: --prior image.nrrd/],
     [['--method', 'sart', '--prior', 'x.nrrd'], /options --prior, --model, --model-info: only for --method prior, not --method sart/],
     [['--method', 'sart', '--extend', 'water'], /option --extend: got "water" for method "sart", expected "none"/],
     [['--method', 'prior', '--prior', 'missing.nrrd'], /prior .*missing.nrrd: cannot open/],

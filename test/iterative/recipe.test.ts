@@ -4,6 +4,7 @@ import { describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import { ITERATIVE_DEFAULTS, resolveOptions } from '../../web/core/iterative/options';
 import { METHODS, validateRecipe } from '../../web/core/recipe/recipe';
+import { describeRecipeFields, recipeSummary, type ChoiceField } from '../../web/core/recipe/fields';
 import { runRecipe } from '../../web/core/recipe/run';
 import { squareGrid } from '../../web/core/image';
 import { localWorkspace } from '../helpers/engine';
@@ -40,7 +41,6 @@ describe('iterative recipe fields', () => {
     [{ method: 'prior', prior: { source: 'image' }, priorWeight: 1.5 }, /recipe priorWeight: got 1.5, expected a number in \(0, 1\]/],
     [{ method: 'sart', nonNegative: 'yes' }, /recipe nonNegative: got "yes", expected true or false/],
     [{ method: 'sart', support: 'square' }, /recipe support: got "square", expected one of circle, grid/],
-    [{ method: 'prior' }, /recipe prior: method "prior" needs a prior/],
     [{ method: 'sart', prior: { source: 'image' } }, /recipe prior: given for method "sart"/],
     [{ method: 'prior', prior: { source: 'web' } }, /recipe prior.source: got "web", expected "image" or "recipe"/],
     [{ method: 'prior', prior: { source: 'recipe' } }, /recipe prior.recipe: expected the recipe/],
@@ -82,5 +82,21 @@ describe('iterative runs refuse bad input before any work', () => {
     const r = await runRecipe(ws, scan, priorRecipe, {}, { prior: small });
     expect(r.warnings.join('\n')).toMatch(/prior resampled/);
     expect(r.warnings.join('\n')).toMatch(/the prior does not cover \d+ pixels of the reconstruction support/);
+  });
+});
+
+describe('prior sources a form can hold', () => {
+  it('short forms and the default prior (water-extrapolated FBP)', () => {
+    expect(validateRecipe({ method: 'prior', prior: 'fbp:mirror' }).prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'ram-lak', cutoff: 1, extend: 'mirror' } });
+    expect(validateRecipe({ method: 'prior', prior: 'tv' }).prior).toMatchObject({ source: 'recipe', recipe: { method: 'tv' } });
+    expect(validateRecipe({ method: 'prior' }).prior).toMatchObject({ source: 'recipe', recipe: { method: 'fbp', extend: 'water' } });
+    expect(() => validateRecipe({ method: 'prior', prior: 'fbp:sideways' })).toThrow(/recipe extend: got "sideways"/);
+    expect(() => validateRecipe({ method: 'prior', prior: 'FBP water' })).toThrow(/recipe prior: got "FBP water", expected a method, optionally with a detector extension/);
+  });
+
+  it('the form offers them and the summary names the prior', () => {
+    const field = describeRecipeFields().find((f) => f.key === 'prior') as ChoiceField;
+    for (const c of field.choices) expect(() => validateRecipe({ method: 'prior', prior: c.value })).not.toThrow();
+    expect(recipeSummary({ method: 'prior', prior: 'fbp:water', iterations: 20 })).toBe('PRIOR, automatic grid, iterations 20, prior: FBP with water cylinder extension');
   });
 });

@@ -13,6 +13,7 @@ import { Projector2d } from '../../web/core/recon/projector';
 import { OsSart } from '../../web/core/iterative/os-sart';
 import { setUpProblem, supportMask } from '../../web/core/iterative/problem';
 import { analyticSinogram } from '../../web/core/simulate/analytic';
+import { convergenceHistories } from '../../web/ui/logic/convergence';
 import { localWorkspace } from '../helpers/engine';
 import { fanCurved, fanFlat, parallel } from '../helpers/geometries';
 
@@ -48,6 +49,10 @@ describe('SART', () => {
     const dataRms = Math.sqrt(data.reduce((s, v) => s + v * v, 0) / data.length);
     expect(rep.residual.startRms).toBeCloseTo(dataRms, 6);
     expect(rep.residual.perViewRms).toHaveLength(180);
+    // The page plots report.convergence.
+    const plotted = convergenceHistories(r.report);
+    expect(plotted.map((p) => p.label)).toEqual(['residual (fraction of start)', 'TV (fraction of first iteration)']);
+    expect(plotted[0].values).toEqual(h);
     expect(Math.max(...rep.residual.perViewRms)).toBeLessThan(0.02 * dataRms);
     // And the image approaches the phantom (contrast of the smallest ellipses: 0.1 mu_water).
     const object = circleMask(grid, 50);

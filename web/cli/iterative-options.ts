@@ -31,8 +31,8 @@ export const ITERATIVE_HELP = `    iterative methods (${ITERATIVE_METHODS.join('
   variation (ASD-POCS). prior: the measured channels are fitted to the data, the channels beyond
   the detector to the projections of the prior, starting from it, with reweighted TV. The prior
   is an image of the same object (any grid), a method whose result on this scan is the prior
-  (e.g. fbp with --extend water), or a user's network (--model). Default grid: the prior's
-  extent (image), else as for fbp. --json reports residual and TV per iteration, the residual
+  (e.g. fbp with --extend mirror), or a user's network (--model); without one, FBP of the scan
+  with water-cylinder extension. Default grid: the prior's extent (image), else as for fbp. --json reports residual and TV per iteration, the residual
   per view, and how far the result departs from the prior inside and outside the FOV.`;
 
 /**
@@ -71,8 +71,6 @@ export function addIterativeFields(raw: Record<string, unknown>, a: ParsedArgs):
     delete raw.extend;
   } else if (hasPriorOptions(a)) {
     raw.prior = { source: 'image' };
-  } else {
-    throw new InputError('--method prior needs a prior: --prior image.nrrd (the same object, any grid), --prior METHOD (e.g. fbp), or --model net.onnx --model-info net.json');
   }
 }
 

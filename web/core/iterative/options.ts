@@ -116,13 +116,26 @@ export function validateIterativeFields(
     throw new InputError(`recipe extend: got "${r.extend}" for method "${r.method}", expected "none" (detector extension belongs to fbp; for method "prior", to the prior's recipe)`);
   }
   if (r.prior !== undefined) out.prior = validatePrior(r.prior, validateNested);
-  if (r.method === 'prior' && !out.prior) throw new InputError('recipe prior: method "prior" needs a prior ({"source": "image"} or {"source": "recipe", "recipe": {...}})');
+  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(DEFAULT_PRIOR_RECIPE) };
   if (r.method !== 'prior' && out.prior) throw new InputError(`recipe prior: given for method "${r.method}", only method "prior" uses one`);
   for (const k of Object.keys(out) as Array<keyof IterativeFields>) if (out[k] === undefined) delete out[k];
   return out;
 }
 
+/** The prior when a recipe names none: FBP of the scan with water-cylinder extrapolation. */
+export const DEFAULT_PRIOR_RECIPE = { method: 'fbp', extend: 'water' } as const;
+
+/**
+ * A prior source from JSON: {"source": "image"}, {"source": "recipe", "recipe": {...}}, or the
+ * short form "METHOD" / "METHOD:EXTEND" (e.g. "fbp:water") for a recipe of that method and
+ * detector extension (what a form's choice can hold).
+ */
 function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): PriorSource {
+  if (typeof p === 'string') {
+    const m = /^([a-z]+)(?::([a-z]+))?$/.exec(p);
+    if (!m) throw new InputError(`recipe prior: got ${JSON.stringify(p)}, expected a method, optionally with a detector extension (e.g. "fbp:water")`);
+    return validatePrior({ source: 'recipe', recipe: m[2] ? { method: m[1], extend: m[2] } : { method: m[1] } }, validateNested);
+  }
   if (!isObject(p)) throw new InputError(`recipe prior: got ${JSON.stringify(p)}, expected {"source": "image"} or {"source": "recipe", "recipe": {...}}`);
   if (p.source === 'image') return { source: 'image' };
   if (p.source !== 'recipe') throw new InputError(`recipe prior.source: got ${JSON.stringify(p.source)}, expected "image" or "recipe"`);

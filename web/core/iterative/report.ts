@@ -40,6 +40,11 @@ export function iterativeReport(r: ReportInputs): Record<string, unknown> {
     grid,
     extension: { left: problem.extension.left, right: problem.extension.right, channels: nCh },
     history: r.outcome.history,
+    // Dimensionless series for a convergence plot (the page plots report.convergence).
+    convergence: {
+      'residual (fraction of start)': r.outcome.history.residual,
+      'TV (fraction of first iteration)': r.outcome.history.tv.map((v) => v / (r.outcome.history.tv[0] || 1)),
+    },
     residual: {
       /** RMS over measured rays, line-integral units. */
       startRms: Math.sqrt(r.startResidual / measuredRays),

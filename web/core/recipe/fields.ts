@@ -51,6 +51,10 @@ export type RecipeField = ChoiceField | NumberField | GridField | TextField;
 /** Readable names for known choice values; unknown values show as they are. */
 const CHOICE_LABELS: Record<string, string> = {
   fbp: 'Filtered backprojection (FBP)',
+  'fbp:water': 'FBP with water cylinder extension',
+  'fbp:mirror': 'FBP with mirror extension',
+  'fbp:edge': 'FBP with edge extension',
+  'fbp:cosine': 'FBP with cosine taper extension',
   sart: 'SART (algebraic, iterative)',
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
@@ -131,6 +135,11 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'Weight of the prior\'s projections beyond the detector, relative to the measured data.',
   },
   {
+    key: 'prior', label: 'Prior', kind: 'choice', appliesTo: isPrior,
+    choices: choicesOf(EXTEND_METHODS.filter((e) => e !== 'none').map((e) => `fbp:${e}`).concat('fbp')),
+    help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view.',
+  },
+  {
     key: 'support', label: 'Support', kind: 'choice', choices: choicesOf(['circle', 'grid'], { circle: 'Disk inscribed in the grid', grid: 'Whole grid' }), appliesTo: isIterative,
     help: 'Pixels reconstructed; outside they stay zero.',
   },
@@ -158,12 +167,21 @@ export function describeRecipeFields(): RecipeField[] {
 
 function formatValue(f: RecipeField, v: unknown): string {
   if (f.key === 'extend') return `${String(v)} extension`;
+  if (f.key === 'prior') return `prior: ${priorLabel(v)}`;
   if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
   if (f.kind === 'grid') {
     const g = v as { size: number; pixel: number } | undefined;
     return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
   }
   return `${f.key} ${String(v)}`;
+}
+
+/** A prior source in words: its short form, or the recipe or image it names. */
+function priorLabel(v: unknown): string {
+  if (typeof v === 'string') return choiceLabel(v);
+  const p = v as { source?: string; recipe?: { method?: string; extend?: string } } | undefined;
+  if (p?.source === 'recipe' && p.recipe) return choiceLabel(p.recipe.extend && p.recipe.extend !== 'none' ? `${p.recipe.method}:${p.recipe.extend}` : String(p.recipe.method));
+  return p?.source === 'image' ? 'image' : 'default';
 }
 
 /** A one-line description of a recipe, e.g. "FBP, hann, cutoff 0.8, 576 px × 1 mm". */
