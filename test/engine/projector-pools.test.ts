@@ -72,3 +72,16 @@ describe('adjoint chunk plan', () => {
     expect(planAdjointChunks(2, 4, 2).views).toEqual([[0, 1], [1, 2]]);
   });
 });
+
+describe('reading from a shared-memory pool', () => {
+  it('returns an ordinary (not shared) array, which storage and transfer accept', async () => {
+    const ws = await openWorkspace(2);
+    pools.push(ws);
+    const b = ws.alloc('b', 5);
+    await ws.write(b, Float32Array.from([1, 2, 3, 4, 5]));
+    const got = await ws.read(b, 1, 3);
+    expect(Array.from(got)).toEqual([2, 3, 4]);
+    expect(got.buffer instanceof SharedArrayBuffer).toBe(false);
+    expect(structuredClone(got)).toEqual(got);
+  });
+});
