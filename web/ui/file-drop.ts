@@ -37,7 +37,7 @@ export class FileDrop extends LitElement {
         @dragover=${(e: DragEvent) => { e.preventDefault(); this.dragging = true; }}
         @dragleave=${() => (this.dragging = false)}
         @drop=${(e: DragEvent) => { e.preventDefault(); this.dragging = false; this.emit(e.dataTransfer?.files); }}>
-      ${this.busy ? 'Reading the file…' : html`Drop scan files here: a scan file, with a .json geometry beside it when the file has none`}
+      ${this.busy ? 'Reading the file…' : html`Drop scan files here: NRRD, MetaImage, raw + JSON or TIFF frames (with flat* and dark* files), and a .json geometry when the data carry none`}
       <div><button ?disabled=${this.busy} @click=${() => this.renderRoot.querySelector('input')!.click()}>Choose files…</button></div>
       <input type="file" multiple aria-label="Scan files"
         @change=${(e: Event) => { const input = e.target as HTMLInputElement; this.emit(input.files); input.value = ''; }}>
