@@ -20,6 +20,9 @@ export type KernelName =
   | 'extendViews'
   | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
   | 'josephForwardCone' | 'josephAdjointCone'
+  | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
+  | 'tvScale' | 'tvGradient' | 'tvWeights'
+  | 'padImageRows' | 'unpadSumRows'
   | 'tv3Scale' | 'tv3Gradient' | 'tv3Weights';
 
 /** The exports of an engine instance, as the host sees them. */
