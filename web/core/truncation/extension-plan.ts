@@ -2,6 +2,7 @@
 // the object (edges.ts, not a constant), scaled to the mass each view misses where the mass
 // consistency condition gives it (mass.ts), the number of channels to add on each side, and
 // the kernel's parameter table (assembly/extend.ts).
+import { paddedLength } from '../recon/filter-design';
 import { extendDetector } from '../geometry/presets';
 import type { Geometry } from '../geometry/types';
 import { firstChannelU } from '../geometry/view-vectors';
@@ -49,6 +50,14 @@ export interface ExtensionPlan extends DetectorExtension {
   /** Tail length per view and side, mm in s. */
   lengths: PerSide<Float64Array>;
   summary: ExtensionSummary;
+}
+
+/**
+ * Most channels a tail may add on one side of an nCh-channel detector: paddedLength(nCh) - nCh,
+ * about one detector width, which keeps the extended row's FFT at twice the plain one's.
+ */
+export function maxTailChannels(nCh: number): number {
+  return paddedLength(nCh) - nCh;
 }
 
 /** Bounds on the factor by which a tail is stretched to meet the missing mass (common practice: guard against noise). */
@@ -125,7 +134,34 @@ export function planTails(scan: Scan, method: Exclude<ExtendMethod, 'none'>, a: 
       }
     }
   }
+  capTails(scan.geometry, a, lengths, water);
   return { lengths, water, scaled };
+}
+
+/**
+ * Caps tails at maxTailChannels(nCh) channels, so that the FFT of an extended row is at most
+ * twice as long as a plain row's (fbp.ts and fdk.ts pad to 2 (max(left, right) + channels) - 1);
+ * a longer tail is compressed to fit (water: stretched), the mass scaling still holding to
+ * within the cap.
+ */
+function capTails(g: Geometry, a: EdgeAnalysis, lengths: PerSide<Float64Array>, water: PerSide<CylinderTail[]>): void {
+  const nCh = a.s.length;
+  const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
+  const uLast = u0 + (nCh - 1) * pitch;
+  const capChannels = maxTailChannels(nCh);
+  const capS = [
+    Math.abs(a.s[0] - a.rays.s(u0 - (capChannels - 1) * pitch)),
+    Math.abs(a.rays.s(uLast + (capChannels - 1) * pitch) - a.s[nCh - 1]),
+  ];
+  for (const side of [0, 1] as const) {
+    for (let v = 0; v < a.nViews; v++) {
+      const L = lengths[side][v];
+      if (!(L > capS[side])) continue;
+      lengths[side][v] = capS[side];
+      const t = water[side][v];
+      water[side][v] = { ...t, stretch: t.stretch * (capS[side] / L) };
+    }
+  }
 }
 
 /** The kernel's parameters (EXTEND_PARAMS floats per view) for the tails, written into `out` from view 0 of `stride` views apart (1: consecutive). */
@@ -151,17 +187,18 @@ export function longestTails(t: TailPlan): PerSide<number> {
 }
 
 /**
- * Channels to add on each side: enough for the longest tail (`reach`, mm in s) and for a
- * displaced detector's short side to mirror its long one.
+ * Channels to add on each side: enough for the longest tail (`reach`, mm in s; at most
+ * maxTailChannels) and for a displaced detector's short side to mirror its long one.
  */
 export function channelsForReach(g: Geometry, a: EdgeAnalysis, reach: PerSide<number>): { left: number; right: number } {
   const nCh = g.detector.channels;
   const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
   const uLast = u0 + (nCh - 1) * pitch;
   const margin = displacedDetectorMargin(g);
+  const tail = (n: number) => Math.min(maxTailChannels(nCh), n);
   return {
-    left: Math.max(margin.left, reach[0] > 0 ? Math.ceil((u0 - a.rays.u(a.s[0] - reach[0])) / pitch) + 1 : 0),
-    right: Math.max(margin.right, reach[1] > 0 ? Math.ceil((a.rays.u(a.s[nCh - 1] + reach[1]) - uLast) / pitch) + 1 : 0),
+    left: Math.max(margin.left, reach[0] > 0 ? tail(Math.ceil((u0 - a.rays.u(a.s[0] - reach[0])) / pitch) + 1) : 0),
+    right: Math.max(margin.right, reach[1] > 0 ? tail(Math.ceil((a.rays.u(a.s[nCh - 1] + reach[1]) - uLast) / pitch) + 1) : 0),
   };
 }
 
