@@ -10,6 +10,7 @@ import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium } from 'playwright-core';
 import { cliReference } from './cli-reference.mjs';
+import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
 import { ensurePageBuilt } from '../../scripts/page-build.mjs';
@@ -47,6 +48,9 @@ async function main() {
   await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
+  await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
+    reference.cone = coneReference(root);
+  });
   const server = await serveDirectory(join(root, 'dist'));
   const modes = [
     { mode: 'http', url: server.url, origin: new URL(server.url).origin },
@@ -67,6 +71,7 @@ async function main() {
   } finally {
     await server.close();
     if (reference) rmSync(reference.dir, { recursive: true, force: true });
+    if (reference?.cone) rmSync(reference.cone.dir, { recursive: true, force: true });
   }
   return h.finish();
 }

@@ -3,8 +3,10 @@
 // Metadata and bulk arrays live under separate keys: listing reads only the small records.
 import type { DataResidual } from '../core/data-residual';
 import type { Comparison } from '../core/compare';
+import type { VolumeComparison } from '../core/compare-volume';
 import type { Geometry } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
+import type { StoredVolumeInfo, VolumeSlab } from './volumes';
 
 /** Version of the record layout this build writes. */
 export const SCHEMA_VERSION = 1;
@@ -29,6 +31,8 @@ export interface ScanMeta {
   bytes: number;
   /** True when a reference image (ground truth) is stored with the scan. */
   hasReference: boolean;
+  /** Cone-beam scans: the reference volume, stored in slabs (volumes.ts); `reference` is then its central slice. */
+  referenceVolume?: StoredVolumeInfo;
   /** Things the reader noticed about the data (e.g. negative line integrals). */
   warnings: string[];
 }
@@ -74,6 +78,10 @@ export interface ResultMeta {
   /** Wall-clock seconds of the run. */
   seconds: number;
   bytes: number;
+  /** Cone-beam results: the volume, stored in slabs (volumes.ts); the image is its central slice. */
+  volume?: StoredVolumeInfo;
+  /** Comparison of the volume with the scan's reference volume (FOV cylinder), when it has one. */
+  volumeMetrics?: VolumeComparison | null;
 }
 
 /** A finished reconstruction's pixels (mu, 1/mm, x fastest). */
@@ -92,7 +100,7 @@ export interface Settings {
   demoCreated: boolean;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings;
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,

@@ -1,15 +1,21 @@
 // Reconstructions in storage: description and pixels written in one transaction.
 import { get, getMany, update, type UseStore } from 'idb-keyval';
 import type { Image2D } from '../core/image';
+import type { Volume } from '../core/volume';
 import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
-import { checkRecord, keys, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
+import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
 import { checkName, newId } from './scans';
+import { loadVolume, slabKeys, volumeEntries } from './volumes';
 
-export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius'>;
+export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius' | 'volume'>;
 
-/** Stores a reconstruction; returns its description. */
-export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore()): Promise<ResultMeta> {
+/**
+ * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction;
+ * returns its description.
+ */
+export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume): Promise<ResultMeta> {
   const id = newId();
+  const slabs = volume ? volumeEntries('result', id, volume) : undefined;
   const meta: ResultMeta = {
     ...input,
     schema: SCHEMA_VERSION,
@@ -20,11 +26,19 @@ export async function saveResult(input: NewResult, image: Image2D, store: UseSto
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength,
+    bytes: image.data.byteLength + (volume ? volume.data.byteLength : 0),
+    ...(slabs ? { volume: slabs.info } : {}),
   };
   const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data };
-  await putAll([[keys.result(id), meta], [keys.resultData(id), data]], store);
+  await putAll([[keys.result(id), meta], [keys.resultData(id), data], ...(slabs?.entries ?? [])], store);
   return meta;
+}
+
+/** A stored result's volume (cone-beam scans); throws RecordError when it has none or a slab is damaged. */
+export async function loadResultVolume(id: string, store: UseStore = pageStore()): Promise<{ meta: ResultMeta; volume: Volume }> {
+  const meta = await getResultMeta(id, store);
+  if (!meta.volume) throw new RecordError(`result "${meta.name}" holds an image, not a volume`);
+  return { meta, volume: await loadVolume('result', id, meta.volume, store) };
 }
 
 /** Stored results, oldest first; only those of `scanId` when given. */
@@ -56,7 +70,7 @@ export async function renameResult(id: string, name: string, store: UseStore = p
   await update(keys.result(id), (old) => ({ ...checkRecord<ResultMeta>(old, 'result', keys.result(id)), name: n }), store);
 }
 
-/** Deletes a result. */
+/** Deletes a result (and its volume's slabs). */
 export async function deleteResult(id: string, store: UseStore = pageStore()): Promise<void> {
-  await deleteAll([keys.result(id), keys.resultData(id)], store);
+  await deleteAll([keys.result(id), keys.resultData(id), ...(await slabKeys('result', id, store))], store);
 }
