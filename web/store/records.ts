@@ -5,6 +5,9 @@ import type { DataResidual } from '../core/data-residual';
 import type { Comparison } from '../core/compare';
 import type { Geometry } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
+import type { ModelInfo } from '../core/model/description';
+import type { ModelSignature } from '../core/model/signature';
+import type { StoredConsistency } from './consistency';
 
 /** Version of the record layout this build writes. */
 export const SCHEMA_VERSION = 1;
@@ -74,6 +77,8 @@ export interface ResultMeta {
   /** Wall-clock seconds of the run. */
   seconds: number;
   bytes: number;
+  /** Consistency report of the image against the measured data (network prior runs; its residual sinogram is in ResultData). */
+  consistency?: StoredConsistency;
 }
 
 /** A finished reconstruction's pixels (mu, 1/mm, x fastest). */
@@ -82,6 +87,8 @@ export interface ResultData {
   kind: 'result-data';
   id: string;
   data: Float32Array;
+  /** With ResultMeta.consistency: (A f - p) and the flagged rays, [view][channel]. */
+  consistency?: { residual: Float32Array; flagged: Uint8Array };
 }
 
 /** Page settings. */
@@ -92,7 +99,34 @@ export interface Settings {
   demoCreated: boolean;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings;
+/** A user's network (ONNX) with its rimfill-model/1 description, checked on import. */
+export interface ModelMeta {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'model';
+  id: string;
+  name: string;
+  createdAt: number;
+  /** The validated description (defaults filled). */
+  info: ModelInfo;
+  /** Inputs and outputs as the runtime read them from the model. */
+  signature: ModelSignature;
+  fileNames: { model: string; description: string };
+  /** Bytes of the ONNX file. */
+  bytes: number;
+  /** What the import check could not settle (e.g. shapes known only at run time). */
+  warnings: string[];
+}
+
+/** A stored network's ONNX bytes and the description as the user wrote it. */
+export interface ModelData {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'model-data';
+  id: string;
+  onnx: Uint8Array;
+  description: string;
+}
+
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | ModelMeta | ModelData;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,
@@ -100,6 +134,8 @@ export const keys = {
   result: (id: string) => `result/${id}`,
   resultData: (id: string) => `result-data/${id}`,
   settings: 'settings',
+  model: (id: string) => `model/${id}`,
+  modelData: (id: string) => `model-data/${id}`,
 };
 
 /** Thrown when a stored record cannot be read by this build. */

@@ -9,6 +9,13 @@ export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' 
 
 /** Stores a reconstruction; returns its description. */
 export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore()): Promise<ResultMeta> {
+  const { meta, entries } = resultRecords(input, image);
+  await putAll(entries, store);
+  return meta;
+}
+
+/** The records of a new result (for writing several in one transaction with putAll). */
+export function resultRecords(input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}): { meta: ResultMeta; entries: Array<[string, unknown]> } {
   const id = newId();
   const meta: ResultMeta = {
     ...input,
@@ -20,11 +27,10 @@ export async function saveResult(input: NewResult, image: Image2D, store: UseSto
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength,
+    bytes: image.data.byteLength + (extra.consistency ? extra.consistency.residual.byteLength + extra.consistency.flagged.byteLength : 0),
   };
-  const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data };
-  await putAll([[keys.result(id), meta], [keys.resultData(id), data]], store);
-  return meta;
+  const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data, ...extra };
+  return { meta, entries: [[keys.result(id), meta], [keys.resultData(id), data]] };
 }
 
 /** Stored results, oldest first; only those of `scanId` when given. */
