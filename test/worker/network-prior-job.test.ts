@@ -11,7 +11,7 @@ import { dataResidualOf } from '../../web/core/consistency/residual-figures';
 import { dataResidual } from '../../web/core/data-residual';
 import type { Workspace } from '../../web/core/engine/workspace';
 import { CancelledError, InputError } from '../../web/core/errors';
-import { squareGrid } from '../../web/core/image';
+import { gridOrigin, squareGrid } from '../../web/core/image';
 import { validateModelInfo } from '../../web/core/model/description';
 import { networkInputRecipe } from '../../web/core/model/network-input';
 import { rasterize } from '../../web/core/phantoms/ellipse';
@@ -86,7 +86,20 @@ describe('network-prior step of the page', () => {
     expect(Buffer.from(stored!.report.residual.buffer).equals(Buffer.from(direct.residual.buffer))).toBe(true);
     expect(Buffer.from(stored!.report.profiles.flagged).equals(Buffer.from(direct.profiles.flagged))).toBe(true);
     expectDiskLocalized(stored!.report, scan.geometry, FALSE_DISK, 2 * PIXEL + 2.5);
-    expect(out.network.bytes).toBe(image.data.byteLength + direct.residual.byteLength + direct.profiles.flagged.byteLength);
+    // The disagreement map lights the disk up and little else (disagreement-map.test.ts).
+    const map = stored!.map!;
+    const { x0, y0 } = gridOrigin(grid);
+    let onDisk = 0, onDiskCount = 0, centre = 0;
+    for (let k = 0; k < map.length; k++) {
+      const x = x0 + (k % SIZE) * PIXEL, y = y0 + Math.floor(k / SIZE) * PIXEL;
+      if (Math.hypot(x - FALSE_DISK.cx, y - FALSE_DISK.cy) < FALSE_DISK.r - 3) [onDisk, onDiskCount] = [onDisk + map[k], onDiskCount + 1];
+      if (Math.hypot(x, y) < 50) centre = Math.max(centre, map[k]);
+    }
+    expect(onDisk / onDiskCount).toBeGreaterThan(0.9);
+    // Within 50 mm of the isocentre the disk (124 mm out) subtends (2 r / d) / pi <= 0.10 of the
+    // directions at d >= 74 mm; the flags' channel averaging widens its shadow a little (measured 0.11).
+    expect(centre).toBeLessThan(0.15);
+    expect(out.network.bytes).toBe(image.data.byteLength + direct.residual.byteLength + direct.profiles.flagged.byteLength + map.byteLength);
   });
 
   it('the data-residual figures read off the report match a separate re-projection', async () => {

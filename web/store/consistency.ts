@@ -22,20 +22,27 @@ export interface StoredConsistency {
   warnings: string[];
 }
 
-/** Splits a report into the description part and the per-ray arrays. */
-export function storedConsistency(r: ConsistencyReport, checkedGrid: ImageGrid): { meta: StoredConsistency; rays: { residual: Float32Array; flagged: Uint8Array } } {
+/** The arrays of a stored report: per ray, and the disagreement map on the checked grid. */
+export interface ConsistencyArrays {
+  residual: Float32Array;
+  flagged: Uint8Array;
+  map?: Float32Array;
+}
+
+/** Splits a report into the description part and the arrays (`map`: disagreementMap on the checked grid). */
+export function storedConsistency(r: ConsistencyReport, checkedGrid: ImageGrid, map?: Float32Array): { meta: StoredConsistency; arrays: ConsistencyArrays } {
   const p = r.profiles;
   return {
     meta: {
       views: r.views, channels: r.channels, summary: r.summary, checkedGrid, warnings: r.warnings,
       viewRms: p.viewRms, viewRelative: p.viewRelative, viewMaxAbs: p.viewMaxAbs, viewFlagged: p.viewFlagged, channelRms: p.channelRms,
     },
-    rays: { residual: r.residual, flagged: p.flagged },
+    arrays: { residual: r.residual, flagged: p.flagged, ...(map ? { map } : {}) },
   };
 }
 
 /** A stored report rebuilt as the ConsistencyReport the views draw. */
-export function asReport(meta: StoredConsistency, rays: { residual: Float32Array; flagged: Uint8Array }): ConsistencyReport {
+export function asReport(meta: StoredConsistency, rays: ConsistencyArrays): ConsistencyReport {
   return {
     views: meta.views,
     channels: meta.channels,
@@ -46,12 +53,20 @@ export function asReport(meta: StoredConsistency, rays: { residual: Float32Array
   };
 }
 
+/** A stored consistency report with the grid it was checked on and its disagreement map. */
+export interface LoadedConsistency {
+  report: ConsistencyReport;
+  checkedGrid: ImageGrid;
+  /** Share of flagged rays through each pixel of checkedGrid (absent when no ray was flagged). */
+  map?: Float32Array;
+}
+
 /** The consistency report stored with a result (undefined when the result has none). */
-export async function loadConsistency(resultId: string, store: UseStore = pageStore()): Promise<{ report: ConsistencyReport; checkedGrid: ImageGrid } | undefined> {
+export async function loadConsistency(resultId: string, store: UseStore = pageStore()): Promise<LoadedConsistency | undefined> {
   const [m, d] = await getMany([keys.result(resultId), keys.resultData(resultId)], store);
   const meta = checkRecord<ResultMeta>(m, 'result', keys.result(resultId));
   if (!meta.consistency) return undefined;
   const data = checkRecord<ResultData>(d, 'result-data', keys.resultData(resultId));
   if (!data.consistency) throw new RecordError(`stored record ${keys.resultData(resultId)}: the consistency report's residual sinogram is missing`);
-  return { report: asReport(meta.consistency, data.consistency), checkedGrid: meta.consistency.checkedGrid };
+  return { report: asReport(meta.consistency, data.consistency), checkedGrid: meta.consistency.checkedGrid, map: data.consistency.map };
 }

@@ -87,8 +87,11 @@ export interface ResultData {
   kind: 'result-data';
   id: string;
   data: Float32Array;
-  /** With ResultMeta.consistency: (A f - p) and the flagged rays, [view][channel]. */
-  consistency?: { residual: Float32Array; flagged: Uint8Array };
+  /**
+   * With ResultMeta.consistency: (A f - p) and the flagged rays, [view][channel]; the share of
+   * flagged rays through each pixel of the checked image (absent when no ray was flagged).
+   */
+  consistency?: { residual: Float32Array; flagged: Uint8Array; map?: Float32Array };
 }
 
 /** Page settings. */

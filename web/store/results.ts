@@ -27,7 +27,7 @@ export function resultRecords(input: NewResult, image: Image2D, extra: Partial<P
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength + (extra.consistency ? extra.consistency.residual.byteLength + extra.consistency.flagged.byteLength : 0),
+    bytes: image.data.byteLength + (extra.consistency ? extra.consistency.residual.byteLength + extra.consistency.flagged.byteLength + (extra.consistency.map?.byteLength ?? 0) : 0),
   };
   const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data, ...extra };
   return { meta, entries: [[keys.result(id), meta], [keys.resultData(id), data]] };

@@ -6,6 +6,7 @@
 import { compareImages, type Comparison } from '../core/compare';
 import { consistencyReport, type ConsistencyReport } from '../core/consistency/consistency-report';
 import { dataConsistentFromPrior, dataConsistentUnavailable } from '../core/consistency/data-consistent';
+import { disagreementMap } from '../core/consistency/disagreement-map';
 import { dataResidualOf } from '../core/consistency/residual-figures';
 import type { Workspace } from '../core/engine/workspace';
 import { InputError, throwIfCancelled } from '../core/errors';
@@ -16,6 +17,7 @@ import { chooseGrid } from '../core/recipe/grid';
 import { validateRecipe, type GridChoice } from '../core/recipe/recipe';
 import { runRecipe } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
+import type { Scan } from '../core/scan';
 import { storedConsistency } from '../store/consistency';
 import { putAll, type UseStore } from '../store/db';
 import { loadModel } from '../store/models';
@@ -81,6 +83,12 @@ function nonFiniteWarning(image: Image2D, warnings: string[]): void {
   if (bad) warnings.push(`${bad} pixels are not finite numbers (NaN or infinity): the image is not trustworthy`);
 }
 
+/** The disagreement map of a checked image (undefined when no ray was flagged). */
+async function mapOf(ws: Workspace, scan: Scan, image: Image2D, report: ConsistencyReport, hooks: RunHooks): Promise<Float32Array | undefined> {
+  if (report.summary.flaggedRays === 0) return undefined;
+  return disagreementMap(ws, scan, image.grid, report.profiles.flagged, hooks);
+}
+
 /** Runs the network-prior step on a stored scan with a stored network and stores what it made. */
 export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkPriorRequest, hooks: RunHooks = {}): Promise<NetworkPriorOutcome> {
   const t0 = performance.now();
@@ -105,16 +113,18 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
   }
   const netSeconds = (performance.now() - t0) / 1000;
   const netReport = await consistencyReport(ws, scan, net.output, stage(hooks, 0.45, 0.55));
+  const netMap = await mapOf(ws, scan, net.output, netReport, stage(hooks, 0.55, 0.6));
   const netWarnings = [...model.warnings, ...net.warnings, ...netReport.warnings];
   nonFiniteWarning(net.output, netWarnings);
 
   const skipped = req.dataConsistent ? dataConsistentUnavailable() : '';
-  let dc: { image: Image2D; report: Record<string, unknown>; warnings: string[]; consistency: ConsistencyReport; seconds: number } | undefined;
+  let dc: { image: Image2D; report: Record<string, unknown>; warnings: string[]; consistency: ConsistencyReport; map?: Float32Array; seconds: number } | undefined;
   if (req.dataConsistent && !skipped) {
     const t1 = performance.now();
-    const r = await dataConsistentFromPrior(ws, scan, net.prior, { grid, iterations: req.iterations }, stage(hooks, 0.55, 0.92));
-    const consistency = await consistencyReport(ws, scan, r.image, stage(hooks, 0.92, 0.98));
-    dc = { ...r, consistency, warnings: [...r.warnings, ...consistency.warnings], seconds: (performance.now() - t1) / 1000 };
+    const r = await dataConsistentFromPrior(ws, scan, net.prior, { grid, iterations: req.iterations }, stage(hooks, 0.6, 0.92));
+    const consistency = await consistencyReport(ws, scan, r.image, stage(hooks, 0.92, 0.97));
+    const map = await mapOf(ws, scan, r.image, consistency, stage(hooks, 0.97, 0.98));
+    dc = { ...r, consistency, map, warnings: [...r.warnings, ...consistency.warnings], seconds: (performance.now() - t1) / 1000 };
     nonFiniteWarning(r.image, dc.warnings);
   }
   throwIfCancelled(hooks.signal);
@@ -122,22 +132,22 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
 
   const modelRef = { id: model.id, name: model.name, fileName: model.fileNames.model, info: model.info };
   const gridChoice = { size: grid.nx, pixel: grid.dx };
-  const netStored = storedConsistency(netReport, net.output.grid);
+  const netStored = storedConsistency(netReport, net.output.grid, netMap);
   const netRecords = resultRecords({
     scanId: req.scanId,
     name: `Network: ${model.name}`,
     recipe: { method: 'network', model: modelRef, input: net.report.inputRecipe, grid: gridChoice },
     warnings: netWarnings,
-    report: { network: net.report, model: modelRef },
+    report: { network: net.report, model: modelRef, dataConsistent: req.dataConsistent ? (skipped ? { skipped } : { ran: true }) : { skipped: 'not asked for' } },
     metrics: compared(net.output, reference, netWarnings),
     residual: dataResidualOf(netReport),
     consistency: netStored.meta,
     seconds: netSeconds,
-  }, net.output, { consistency: netStored.rays });
+  }, net.output, { consistency: netStored.arrays });
   const entries = [...netRecords.entries];
   let consistent: ResultMeta | undefined;
   if (dc) {
-    const stored = storedConsistency(dc.consistency, dc.image.grid);
+    const stored = storedConsistency(dc.consistency, dc.image.grid, dc.map);
     const rec = resultRecords({
       scanId: req.scanId,
       name: `Data-consistent, prior from ${model.name}`,
@@ -148,7 +158,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
       residual: dataResidualOf(dc.consistency),
       consistency: stored.meta,
       seconds: dc.seconds,
-    }, dc.image, { consistency: stored.rays });
+    }, dc.image, { consistency: stored.arrays });
     entries.push(...rec.entries);
     consistent = rec.meta;
   }

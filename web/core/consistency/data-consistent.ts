@@ -22,7 +22,7 @@ export interface DataConsistentOptions {
 export function dataConsistentUnavailable(): string {
   return (METHODS as readonly string[]).includes('prior')
     ? ''
-    : 'the prior-guided data-consistent method (recipe method "prior") is not part of this build yet';
+    : 'the prior-guided data-consistent method is not part of this build yet';
 }
 
 /** Reconstructs `scan` with the prior-guided data-consistent method from `prior` (any grid, mu or HU). */
