@@ -73,6 +73,12 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const summary = page.locator('#truncation-summary');
     await summary.waitFor();
     check(/100% of views/.test(await summary.innerText()), `truncation summary: ${await summary.innerText()}`);
+    // The demo thorax with arms is about 560 mm across; the water-cylinder estimate of its extent
+    // must say it is far wider than the 205 mm field of view (the fits are approximate: 400-700 mm).
+    const object = await page.locator('#truncation-object').innerText();
+    const across = Number(/(\d+) mm across/.exec(object)?.[1]);
+    check(across > 400 && across < 700, `estimated object: ${object}`);
+    check(/miss up to/.test(await page.locator('#truncation-mass').innerText()), 'missing mass reported');
     await page.locator('rf-sinogram-image canvas').waitFor();
     await shot(page, '1-projections');
   });

@@ -160,7 +160,7 @@ export class AppShell extends LitElement {
     const views = scan.data.length / (d.channels * d.rows);
     const mid = Math.floor(d.rows / 2);
     const row = d.rows === 1 ? scan.data : Float32Array.from({ length: views * d.channels }, (_, k) => scan.data[(Math.floor(k / d.channels) * d.rows + mid) * d.channels + (k % d.channels)]);
-    const report = detectTruncation({ geometry: { ...meta.geometry, detector: { ...d, rows: 1 } }, data: row });
+    const report = detectTruncation({ geometry: { ...meta.geometry, detector: { ...d, rows: 1 } }, data: row, muWater: meta.muWater });
     this.loaded = { id, projections: row, report, truth: reference, referenceGrid: reference?.grid };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);

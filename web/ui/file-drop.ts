@@ -28,7 +28,7 @@ export class FileDrop extends LitElement {
   constructor() {
     super();
     this.busy = false;
-    this.prompt = 'Drop scan files here: a scan file, with a .json geometry beside it when the file has none';
+    this.prompt = 'Drop scan files here: NRRD, MetaImage, raw + JSON or TIFF frames (with flat* and dark* files), and a .json geometry when the data carry none';
     this.inputLabel = 'Scan files';
     this.dragging = false;
   }

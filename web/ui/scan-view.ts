@@ -67,14 +67,17 @@ export class ScanView extends LitElement {
               <dt>Water</dt><dd>${m.muWater ? `µ = ${m.muWater.toFixed(5)} /mm (images in HU)` : 'µ of water unknown (images in 1/mm)'}</dd>
               <dt>Ground truth</dt><dd>${m.hasReference ? 'stored with the scan' : 'none'}</dd>
               ${r ? html`<dt>Cut-off views</dt><dd id="truncation-summary">${pct(r.truncatedFraction)} of views (left edge ${pct(r.leftFraction)}, right edge ${pct(r.rightFraction)})</dd>
-                <dt>Edge threshold</dt><dd class="num">${r.threshold.toFixed(3)} (noise σ ≈ ${r.noiseSigma.toFixed(4)})</dd>` : nothing}
+                <dt>Edge threshold</dt><dd class="num">${r.threshold.toFixed(3)} (noise σ ≈ ${r.noiseSigma.toFixed(4)})</dd>
+                ${r.summary.worstSide !== 'none' ? html`<dt>Reach beyond the edges</dt><dd id="truncation-reach">left up to ${r.summary.maxExtentMm.left.toFixed(0)} mm, right up to ${r.summary.maxExtentMm.right.toFixed(0)} mm (water cylinder fits${r.muAssumed ? ', µ of water assumed' : ''})</dd>` : nothing}
+                <dt>Estimated object</dt><dd id="truncation-object">${r.summary.objectDiameterMm.toFixed(0)} mm across, against a ${r.summary.fovDiameterMm.toFixed(0)} mm field of view</dd>
+                <dt>Missing mass</dt><dd id="truncation-mass">${'unavailable' in r.mass ? r.mass.unavailable : html`cut-off views miss up to ${pct(r.mass.maxMissingFraction)} of the object (mean ${pct(r.mass.meanMissingFraction)}; mass consistency${r.mass.basis === 'complete-views' ? '' : ', lower bound'})`}</dd>` : nothing}
               ${m.source.type === 'demo' ? html`<dt>Origin</dt><dd>${m.source.description}</dd>` : html`<dt>Files</dt><dd>${m.source.fileNames.join(', ')}</dd>`}
             </dl>
             ${m.warnings.map((w) => html`<p class="warning">${w}</p>`)}
           </div>
           <div class="card">
             <h2>Edge values over the views</h2>
-            ${r ? html`<rf-line-plot xLabel="view" yLabel="line integral at the edge" caption="Mean of the outermost channels for each view"
+            ${r ? html`<rf-line-plot xLabel="view" yLabel="line integral at the edge" caption="Outermost channel of each view"
               .series=${[
                 { label: 'left edge', colour: SERIES_COLOURS[0], x: index, y: views.map((v) => v.left.value) },
                 { label: 'right edge', colour: SERIES_COLOURS[1], x: index, y: views.map((v) => v.right.value) },
