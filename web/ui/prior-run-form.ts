@@ -24,10 +24,11 @@ const emit = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatc
  * data-consistent reconstruction follows; progress and cancel while it runs.
  * @fires prior-run - detail: { modelId, grid?, dataConsistent, iterations? }
  * @fires prior-cancel - the user stops the running job
+ * @fires model-select - detail: { id }, another network chosen
  */
 export class PriorRunForm extends LitElement {
   static properties = {
-    models: { attribute: false }, modelId: { type: String }, referenceGrid: { attribute: false }, scanName: { type: String },
+    models: { attribute: false }, modelId: { type: String }, referenceGrid: { attribute: false }, scanName: { type: String }, unsupported: { type: String },
     job: { attribute: false }, error: { type: String },
     gridMode: { state: true }, custom: { state: true }, dataConsistent: { state: true }, iterations: { state: true },
   };
@@ -39,6 +40,8 @@ export class PriorRunForm extends LitElement {
   declare referenceGrid: ImageGrid | undefined;
   /** The scan the step runs on. */
   declare scanName: string;
+  /** Why the step cannot run on this scan ('' when it can). */
+  declare unsupported: string;
   /** The running job, if any. */
   declare job: PriorJobState | undefined;
   /** Why the last run failed ('' when it did not). */
@@ -67,6 +70,7 @@ export class PriorRunForm extends LitElement {
     this.modelId = '';
     this.referenceGrid = undefined;
     this.scanName = '';
+    this.unsupported = '';
     this.job = undefined;
     this.error = '';
     this.gridMode = 'auto';
@@ -128,11 +132,12 @@ export class PriorRunForm extends LitElement {
       <div class="row"><label>Image grid</label>${this.gridChoices()}</div>
       <div class="row"><label>Data-consistent step</label>${this.dataConsistentChoice()}</div>
       <div class="actions">
-        <button class="primary" id="run-prior" ?disabled=${!this.modelId || !!j} @click=${this.run}>Run the network on “${this.scanName}”</button>
+        <button class="primary" id="run-prior" ?disabled=${!this.modelId || !!j || !!this.unsupported} @click=${this.run}>Run the network on “${this.scanName}”</button>
         ${j ? html`<button id="cancel-prior" @click=${() => emit(this, 'prior-cancel')}>Cancel</button>` : nothing}
       </div>
       ${j ? html`<div><progress max="1" .value=${j.fraction} aria-label="Progress of the network prior"></progress>
           <div class="status num">${(100 * j.fraction).toFixed(0)}% · ${j.stage || 'starting'} · on “${j.scanName}”${j.remainingMs !== undefined ? ` · ${formatDuration(j.remainingMs)} left` : ''}</div></div>` : nothing}
+      ${this.unsupported ? html`<p class="warning">${this.unsupported}</p>` : nothing}
       ${this.error ? html`<div class="error" role="alert" id="prior-error">${this.error}</div>` : nothing}`;
   }
 }

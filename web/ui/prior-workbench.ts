@@ -193,6 +193,13 @@ export class PriorWorkbench extends LitElement {
     }
   }
 
+  /** Why the network prior cannot run on the chosen scan ('' when it can). */
+  private unsupported(): string {
+    const g = this.scan?.geometry;
+    return g && (g.kind === 'cone' || g.detector.rows !== 1)
+      ? `This scan has ${g.detector.rows} detector rows (${g.kind} beam); the network prior works on 2D scans (one detector row).` : '';
+  }
+
   private angles(): number[] | undefined {
     const g = this.scan?.geometry;
     if (!g?.anglesDeg || g.views) return undefined;
@@ -224,6 +231,7 @@ export class PriorWorkbench extends LitElement {
             @model-import-error-dismiss=${() => (this.importError = '')}></rf-model-library></div>
         <div class="card"><h2>Network prior on “${this.scan?.name ?? ''}”</h2>
           <rf-prior-run-form .models=${this.models} .modelId=${this.modelId} .referenceGrid=${this.referenceGrid} .scanName=${this.scan?.name ?? ''}
+            .unsupported=${this.unsupported()}
             .job=${this.job} .error=${this.runError}
             @model-select=${(e: CustomEvent) => (this.modelId = e.detail.id)}
             @prior-run=${(e: CustomEvent) => this.run(e.detail)}
