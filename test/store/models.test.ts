@@ -48,7 +48,7 @@ describe('stored consistency reports', () => {
   const grid = squareGrid(4, 1);
   const report: ConsistencyReport = {
     views: 2, channels: 3, residual: Float32Array.from([0.1, -0.2, 0.3, 0, 0, 0.5]), warnings: ['w'],
-    summary: { relativeRms: 0.1, rmsResidual: 0.2, meanResidual: 0.1, rmsMeasured: 2, rays: 6, excludedRays: 0, averagedChannels: 1, robustSigma: 0.05, threshold: 0.25, flaggedRays: 2, flaggedFraction: 1 / 3, flaggedViews: 2 },
+    summary: { relativeRms: 0.1, rmsResidual: 0.2, meanResidual: 0.1, rmsMeasured: 2, rays: 6, excludedRays: 0, averagedChannels: 1, robustSigma: 0.05, noiseBins: [{ upTo: 3, sigma: 0.05, rays: 6 }], threshold: 0.25, thresholdMax: 0.25, flaggedRays: 2, flaggedFraction: 1 / 3, flaggedViews: 2 },
     profiles: { flagged: Uint8Array.from([0, 0, 1, 0, 0, 1]), viewRms: Float32Array.from([0.2, 0.3]), viewRelative: Float32Array.from([0.1, 0.1]), viewMaxAbs: Float32Array.from([0.3, 0.5]), viewFlagged: Int32Array.from([1, 1]), channelRms: Float32Array.from([0.1, 0.2, 0.4]) },
   };
   const image = { grid, data: new Float32Array(16), quantity: 'mu' as const };

@@ -101,7 +101,8 @@ export class ConsistencyReportView extends LitElement {
         : html`<div class="verdict warning" data-verdict="disagrees"><strong>${s.flaggedRays.toLocaleString('en')} rays disagree</strong> (${pct(s.flaggedFraction)} of the measured rays) in
             <span data-flagged-views>${s.flaggedViews}</span> of ${r.views} views. Do not trust the structures these rays cross.</div>`}
       <p class="small">A ray disagrees when its residual, averaged over ${s.averagedChannels} channel${s.averagedChannels === 1 ? '' : 's'} (the width of a small structure), exceeds
-        ${val(s.threshold)}: the larger of 5 robust standard deviations of all residuals (${val(s.robustSigma)}) and 0.5 % of the largest measured line integral.
+        ${s.thresholdMax > s.threshold ? `${val(s.threshold)} to ${val(s.thresholdMax)}` : val(s.threshold)}: 5 robust standard deviations of the residuals of rays with similar measured
+        values (noise grows with the line integral), but never less than 0.5 % of the largest measured line integral.
         Only measured rays can be checked: a wrong structure outside the measured field of view shows only in the views whose rays cross it.</p>
       ${runs.length ? html`<div><h3>Where it disagrees</h3>
           ${this.map && this.image && this.window ? html`<rf-disagreement-map .image=${this.image} .map=${this.map} .window=${this.window}></rf-disagreement-map>` : nothing}
