@@ -13,6 +13,18 @@ import './residual-sinogram';
 const pct = (v: number) => `${(100 * v).toFixed(v < 0.001 ? 3 : 2)} %`;
 const val = (v: number) => (Math.abs(v) >= 0.01 || v === 0 ? v.toFixed(3) : v.toExponential(2));
 
+/**
+ * A point most of whose measured rays disagree is taken for a wrong structure (a false one is
+ * crossed only by disagreeing rays: disagreement-map.ts); below, the flags are scattered.
+ */
+const STRUCTURE_SHARE = 0.5;
+
+function mapPeak(map: Float32Array): number {
+  let m = 0;
+  for (const v of map) if (v > m) m = v;
+  return m;
+}
+
 /** Runs listed in words; the rest are counted. */
 const LISTED_RUNS = 4;
 
@@ -46,6 +58,7 @@ export class ConsistencyReportView extends LitElement {
     .what { color: var(--muted); font-size: 13px; }
     .verdict { border-radius: 6px; padding: 7px 10px; font-size: 13px; }
     .verdict.ok { background: #e8f4ea; color: var(--ok); }
+    .verdict.scattered { background: var(--accent-soft); color: var(--accent); }
     p { margin: 0; font-size: 13px; }
     .small { font-size: 12px; color: var(--muted); }
     ul { margin: 0; padding-left: 18px; font-size: 13px; }
@@ -83,6 +96,23 @@ export class ConsistencyReportView extends LitElement {
     };
   }
 
+  /** Plain-words verdict: consistent; scattered disagreeing rays (noise outliers); or a structure the data contradict. */
+  private verdict() {
+    const s = this.report.summary, views = this.report.views;
+    if (s.flaggedRays === 0) {
+      return html`<div class="verdict ok" data-verdict="consistent">No ray disagrees beyond the threshold: the image explains the measured data to within their noise and its own pixel grid.</div>`;
+    }
+    const counted = html`<strong>${s.flaggedRays.toLocaleString('en')} ray${s.flaggedRays === 1 ? '' : 's'} disagree${s.flaggedRays === 1 ? 's' : ''}</strong>
+      (${pct(s.flaggedFraction)} of the measured rays) in <span data-flagged-views>${s.flaggedViews}</span> of ${views} views.`;
+    const peak = this.map ? mapPeak(this.map) : undefined;
+    if (peak !== undefined && peak < STRUCTURE_SHARE) {
+      return html`<div class="verdict scattered" data-verdict="scattered">${counted} They are scattered: no point of the image is crossed mainly by disagreeing rays
+        (at most ${Math.round(100 * peak)} % of its rays), as with outliers of the noise rather than a wrong structure.</div>`;
+    }
+    return html`<div class="verdict warning" data-verdict="disagrees">${counted} Do not trust the structures these rays cross${peak !== undefined
+      ? html`: up to ${Math.round(100 * peak)} % of the rays through a point of the image disagree (map below)` : ''}.</div>`;
+  }
+
   render() {
     const r = this.report;
     if (!r) return nothing;
@@ -96,10 +126,7 @@ export class ConsistencyReportView extends LitElement {
         <span class="what">difference from the measured data (RMS of re-projection − measurement, relative to the measured line integrals)</span></div>
       <p class="small num">Over ${s.rays.toLocaleString('en')} measured rays${g ? `, image re-projected on its own grid (${g.nx} × ${g.ny} pixels of ${Number(g.dx.toPrecision(4))} mm)` : ''}.
         RMS residual ${val(s.rmsResidual)}; mean ${val(s.meanResidual)} (${Math.abs(bias) < 0.005 ? 'no overall bias' : bias > 0 ? 'the image attenuates too much overall' : 'the image attenuates too little overall'}).</p>
-      ${s.flaggedRays === 0
-        ? html`<div class="verdict ok" data-verdict="consistent">No ray disagrees beyond the threshold: the image explains the measured data to within their noise and its own pixel grid.</div>`
-        : html`<div class="verdict warning" data-verdict="disagrees"><strong>${s.flaggedRays.toLocaleString('en')} rays disagree</strong> (${pct(s.flaggedFraction)} of the measured rays) in
-            <span data-flagged-views>${s.flaggedViews}</span> of ${r.views} views. Do not trust the structures these rays cross.</div>`}
+      ${this.verdict()}
       <p class="small">A ray disagrees when its residual, averaged over ${s.averagedChannels} channel${s.averagedChannels === 1 ? '' : 's'} (the width of a small structure), exceeds
         ${s.thresholdMax > s.threshold ? `${val(s.threshold)} to ${val(s.thresholdMax)}` : val(s.threshold)}: 5 robust standard deviations of the residuals of rays with similar measured
         values (noise grows with the line integral), but never less than 0.5 % of the largest measured line integral.
