@@ -16,7 +16,8 @@ export async function priorReference(root, dir) {
   const m = await import(pathToFileURL(f('test-models.mjs')).href);
   const cli = (...args) => execFileSync(process.execPath, [join(root, 'bin/rimfill.js'), ...args], { encoding: 'utf8' });
   cli('reconstruct', f('scan.nrrd'), '--method', 'fbp', '--extend', 'water', '--size', String(m.MODEL_SIZE), '--pixel', String(m.MODEL_PIXEL), '--out', f('net-input.nrrd'));
-  const fbp = parseFloatNrrd(readFileSync(f('net-input.nrrd'))).data;
+  const input = parseFloatNrrd(readFileSync(f('net-input.nrrd')));
+  const fbp = input.data;
   const files = {
     disk: { onnx: f('bright-disk.onnx'), json: f('bright-disk.json') },
     wrongSize: { onnx: f('wrong-size.onnx'), json: f('wrong-size.json') },
@@ -27,5 +28,5 @@ export async function priorReference(root, dir) {
   writeFileSync(files.wrongSize.onnx, m.fixedIdentityModel(128));
   writeFileSync(files.wrongSize.json, m.description('Wrong-size test network'));
   const check = JSON.parse(cli('prior-check', f('scan.nrrd'), '--model', files.disk.onnx, '--model-info', files.disk.json, '--json'));
-  return { files, check, disk: m.DISK };
+  return { files, check, disk: m.DISK, muWater: Number(input.keys['rimfill.muWater']) };
 }

@@ -23,6 +23,32 @@ async function chooseFiles(page, files) {
   await page.locator('rf-model-library rf-file-drop input[type="file"]').setInputFiles(files);
 }
 
+/**
+ * Draws a region inside the false disk on the linked panels and reads the region table: the
+ * network's output there is the phantom plus the disk exactly (test-models.ts), so the drop to
+ * the data-consistent result is the share of the disk's contrast the data removed (issue 8:
+ * at least 80%).
+ */
+async function diskContrastRemoved(page, prior) {
+  const view = page.locator('rf-prior-run-view');
+  await view.locator('rf-viewer-toolbar button[data-tool="region"]').click();
+  const b = await view.locator('#network-side rf-image-viewer canvas').boundingBox();
+  // Both panels show the demo's 576 mm field fitted to the panel, anterior (+y) up.
+  const s = b.width / 576;
+  const x = b.x + b.width / 2 + prior.disk.cx * s, y = b.y + b.height / 2 - prior.disk.cy * s;
+  await page.mouse.move(x, y);
+  await page.mouse.down();
+  await page.mouse.move(x + 0.6 * prior.disk.r * s, y, { steps: 4 });
+  await page.mouse.up();
+  const rows = view.locator('rf-region-table tbody tr');
+  await rows.nth(1).waitFor();
+  const mean = async (i) => Number((await rows.nth(i).locator('td').nth(1).innerText()).trim());
+  const contrastHu = (1000 * prior.disk.value) / prior.muWater;
+  const removed = (await mean(0)) - (await mean(1));
+  console.log(`       disk contrast ${contrastHu.toFixed(0)} HU; the data-consistent step removed ${removed.toFixed(0)} HU (${(100 * removed / contrastHu).toFixed(0)}%)`);
+  check(removed >= 0.8 * contrastHu, `the data-consistent result keeps ${(contrastHu - removed).toFixed(0)} of the disk's ${contrastHu.toFixed(0)} HU`);
+}
+
 export async function priorTests(h, { context, mode, url, origin, artifacts, prior }) {
   const shot = (page, name) => page.screenshot({ path: join(artifacts, `${mode}-prior-${name}.png`), fullPage: true });
   const requests = [];
@@ -95,7 +121,10 @@ export async function priorTests(h, { context, mode, url, origin, artifacts, pri
       await page.locator('#consistent-report rf-consistency-report').waitFor();
       const dcFigure = Number((await page.locator('#consistent-report [data-figure="relative-rms"]').innerText()).replace('%', ''));
       check(dcFigure < figure, `data-consistent figure ${dcFigure}% is not below the network's ${figure}%`);
+      const verdict = await page.locator('#consistent-report [data-verdict]').getAttribute('data-verdict');
+      check(verdict === 'consistent' || verdict === 'scattered', `data-consistent verdict: ${verdict}`);
       check((await storedKeys(page, 'result/')).length === before + 2, 'network output and data-consistent result are stored');
+      await diskContrastRemoved(page, prior);
     }
     await page.locator('#network-report rf-residual-sinogram canvas').waitFor();
     await shot(page, '2-report');
