@@ -32,7 +32,9 @@ async function chooseFiles(page, files) {
 async function diskContrastRemoved(page, prior) {
   const view = page.locator('rf-prior-run-view');
   await view.locator('rf-viewer-toolbar button[data-tool="region"]').click();
-  const b = await view.locator('#network-side rf-image-viewer canvas').boundingBox();
+  const canvas = view.locator('#network-side rf-image-viewer canvas');
+  await canvas.scrollIntoViewIfNeeded();
+  const b = await canvas.boundingBox();
   // Both panels show the demo's 576 mm field fitted to the panel, anterior (+y) up.
   const s = b.width / 576;
   const x = b.x + b.width / 2 + prior.disk.cx * s, y = b.y + b.height / 2 - prior.disk.cy * s;
