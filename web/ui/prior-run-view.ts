@@ -166,11 +166,11 @@ export class PriorRunView extends LitElement {
         @line-change=${(e: CustomEvent) => (this.line = e.detail.line)}
         @region-change=${(e: CustomEvent) => (this.region = e.detail.region)}>
         <div class="card side" id="network-side"><h2><span class="dot" data-colour=${COLOURS.network}></span>Network output</h2>
-          <p class="sub">${r.network.meta.name} · ${g(r.network.display)} · ${r.network.meta.seconds.toFixed(1)} s</p>
+          <p class="sub">${g(r.network.display)} · ${r.network.meta.seconds.toFixed(1)} s</p>
           ${this.viewer('network', r.network.display, COLOURS.network, toolbarWindow)}</div>
         <div class="card side" id="consistent-side"><h2><span class="dot" data-colour=${COLOURS.consistent}></span>${differenceShown ? 'What the data changed' : 'Data-consistent result'}</h2>
           ${r.consistent && right
-            ? html`<p class="sub">${differenceShown ? 'data-consistent result − network output' : r.consistent.meta.name} · ${g(right)} · ${r.consistent.meta.seconds.toFixed(1)} s</p>
+            ? html`<p class="sub">${differenceShown ? 'data-consistent result − network output · ' : ''}${g(right)} · ${r.consistent.meta.seconds.toFixed(1)} s</p>
                 ${this.viewer(differenceShown ? 'difference' : 'consistent', right, COLOURS.consistent, this.panelWindow(differenceShown))}`
             : html`<p class="placeholder">${r.consistentMissing}</p>`}</div>
       </div>
