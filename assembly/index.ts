@@ -12,6 +12,9 @@ export { coneFilterViews } from './cone-filter';
 export { backprojectCone } from './cone-backproject';
 export { padVolume, unpadVolume } from './cone-volume';
 export { josephForwardCone, josephAdjointCone } from './cone-joseph';
+export { sartWeights, sartCorrection, sartUpdate, squaredDistances, copyRange } from './sart';
+export { tvScale, tvGradient, tvWeights } from './tv';
+export { padImageRows, unpadSumRows } from './image-bands';
 
 /** First byte the host may use for its buffers. */
 export function heapBase(): usize {

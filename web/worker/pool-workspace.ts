@@ -72,6 +72,10 @@ export class PoolWorkspace implements Workspace {
     return this.memory !== undefined;
   }
 
+  get sharedMemory(): boolean {
+    return this.shared;
+  }
+
   alloc(name: string, length: number): Buf {
     const b = this.layout.alloc(name, length);
     if (this.memory) ensureMemory(this.memory, this.layout.bytes);
@@ -104,7 +108,11 @@ export class PoolWorkspace implements Workspace {
   async read(buf: Buf, start = 0, length = buf.length - start, worker = 0): Promise<Float32Array> {
     checkRange(buf, start, length);
     if (this.memory) {
-      return new Float32Array(this.memory.buffer.slice(buf.ptr + start * 4, buf.ptr + (start + length) * 4));
+      // A copy in an ordinary ArrayBuffer: slicing a shared buffer would give a shared one,
+      // which IndexedDB cannot store and postMessage does not transfer.
+      const out = new Float32Array(length);
+      out.set(new Float32Array(this.memory.buffer, buf.ptr + start * 4, length));
+      return out;
     }
     const r = await this.clients[worker].request({ op: 'read', ptr: buf.ptr + start * 4, byteLength: length * 4 });
     return new Float32Array(r.data!);

@@ -4,6 +4,7 @@ import { availableParallelism } from 'node:os';
 import { benchExtension, extensionBenchLines } from './extension-overhead';
 import { benchFdk } from './fdk-bench';
 import { benchFormats, formatFiguresText } from './formats';
+import { benchIterative, iterativeLines } from './iterative';
 import { benchKernels } from './kernels';
 import { benchNetwork, networkBenchText } from './network';
 import type { SectionResult } from './section';
@@ -22,6 +23,14 @@ export const SECTIONS: BenchSection[] = [
     run: async (r) => {
       const b = await benchExtension(Math.min(2, availableParallelism()), r);
       return { json: b, lines: extensionBenchLines(b) };
+    },
+  },
+  {
+    name: 'iterative', about: '20 iterations of OS-SART + reweighted TV on a 512x512 extended grid, 360 views, fan beam (1 and 2 workers); prior-guided for information',
+    run: async (r) => {
+      // Each run takes seconds: best of at most two.
+      const b = await benchIterative(Math.min(r, 2));
+      return { json: b, lines: iterativeLines(b) };
     },
   },
   {

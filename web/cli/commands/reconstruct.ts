@@ -6,6 +6,7 @@ import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { runRecipe } from '../../core/recipe/run';
+import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { PendingWrites } from '../io';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
@@ -24,12 +25,15 @@ ${SCAN_INPUT_HELP}
   as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).
   A cone-beam scan gives a volume (FDK for --method fbp): N x N voxels (default 256 across the
   field of view) and --slices slices of --slice-spacing mm (default: cubic voxels covering the
-  measured height).`;
+  measured height).
+${ITERATIVE_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
 const FIELD_OPTIONS: Record<string, string> = {
   method: 'method', filter: 'filter', cutoff: 'cutoff', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel',
   'volume.slices': 'slices', 'volume.spacing': 'slice-spacing',
+  ...Object.fromEntries(Object.entries(ITERATIVE_FIELD_OPTIONS).map(([option, field]) => [field, option])),
+  nonNegative: 'allow-negative',
 };
 
 function asOptionError(err: unknown): unknown {
@@ -54,6 +58,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
     if (o.slices === undefined || o['slice-spacing'] === undefined) throw new InputError('options --slices and --slice-spacing go together (slices and mm between them)');
     raw.volume = { slices: o.slices, spacing: o['slice-spacing'] };
   }
+  addIterativeFields(raw, a);
   try {
     return validateRecipe(raw);
   } catch (err) {
@@ -64,7 +69,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     method: 'string', out: 'string', filter: 'string', cutoff: 'number', extend: 'string', size: 'int', pixel: 'number',
-    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS,
+    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
@@ -76,7 +81,11 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const ws = await openWorkspace(a.options.workers as number | undefined);
   try {
     const t0 = performance.now();
-    const r = await runRecipe(ws, scan, recipe, { onProgress: a.options.json ? undefined : progressLine(recipe.method) });
+    const hooks = { onProgress: a.options.json ? undefined : progressLine(recipe.method) };
+    const { inputs, warnings: priorWarnings, priorReport } = await iterativeInputs(recipe, a, ws, scan, hooks);
+    readWarnings.push(...priorWarnings);
+    const r = await runRecipe(ws, scan, recipe, hooks, inputs);
+    if (priorReport) r.report.priorSource = priorReport;
     const seconds = (performance.now() - t0) / 1000;
     const image = r.image;
     const writes = new PendingWrites();
@@ -97,7 +106,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     const g = image.grid;
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s`,
+      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
       warnings: [...readWarnings, ...r.warnings],
     };
   } finally {

@@ -19,7 +19,10 @@ export type KernelName =
   | 'backproject2d' | 'atanApprox'
   | 'extendViews'
   | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
-  | 'josephForwardCone' | 'josephAdjointCone';
+  | 'josephForwardCone' | 'josephAdjointCone'
+  | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
+  | 'tvScale' | 'tvGradient' | 'tvWeights'
+  | 'padImageRows' | 'unpadSumRows';
 
 /** The exports of an engine instance, as the host sees them. */
 export type EngineExports = Record<KernelName, (...args: number[]) => number> & {

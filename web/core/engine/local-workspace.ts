@@ -5,6 +5,8 @@ import { Layout, resolveArgs, type Buf, type Part, type Workspace } from './work
 
 export class LocalWorkspace implements Workspace {
   readonly parallelism: number;
+  /** Every part runs on the one instance, so all see the same memory. */
+  readonly sharedMemory = true;
   private readonly layout: Layout;
 
   private constructor(private readonly engine: EngineInstance, parallelism: number) {

@@ -31,6 +31,11 @@ export interface Part {
 export interface Workspace {
   /** How many parts `run` executes at once (number of workers). */
   readonly parallelism: number;
+  /**
+   * True when all parts read and write one memory, so a part's writes are visible to the others
+   * without copying (then band-parallel variants of a step may be used). Absent: false.
+   */
+  readonly sharedMemory?: boolean;
   /** Reserves `length` elements (4 bytes each), 16-byte aligned. Layout only; contents undefined. */
   alloc(name: string, length: number): Buf;
   /** One buffer per worker (scratch that parts must not share). */

@@ -5,6 +5,7 @@
 // (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
 import { FILTER_WINDOWS } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
+import { isIterativeMethod } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
 
 export interface FieldChoice {
@@ -50,6 +51,10 @@ export type RecipeField = ChoiceField | NumberField | GridField | TextField;
 /** Readable names for known choice values; unknown values show as they are. */
 const CHOICE_LABELS: Record<string, string> = {
   fbp: 'Filtered backprojection (FBP)',
+  'fbp:water': 'FBP with water cylinder extension',
+  'fbp:mirror': 'FBP with mirror extension',
+  'fbp:edge': 'FBP with edge extension',
+  'fbp:cosine': 'FBP with cosine taper extension',
   sart: 'SART (algebraic, iterative)',
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
@@ -76,6 +81,10 @@ export function choiceLabel(value: string): string {
 }
 
 const isFbp = (r: Record<string, unknown>) => r.method === 'fbp';
+const isIterative = (r: Record<string, unknown>) => isIterativeMethod(String(r.method));
+const usesTv = (r: Record<string, unknown>) => r.method === 'tv' || r.method === 'wtv' || r.method === 'prior';
+const isReweighted = (r: Record<string, unknown>) => r.method === 'wtv' || r.method === 'prior';
+const isPrior = (r: Record<string, unknown>) => r.method === 'prior';
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
@@ -93,6 +102,47 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'How the cut-off projections are continued beyond the detector edges before filtering, as far as the object is estimated to reach.',
   },
   { key: 'grid', label: 'Image grid', kind: 'grid', help: 'Pixels along each side and pixel size; automatic covers the measured field of view and the estimated object.' },
+  {
+    key: 'iterations', label: 'Iterations', kind: 'integer', min: 1, max: 1000, step: 1, appliesTo: isIterative,
+    help: 'Full passes over all views (at most; the residual tolerance may stop earlier).',
+  },
+  {
+    key: 'subsets', label: 'Ordered subsets', kind: 'integer', min: 1, max: 1000, step: 1, appliesTo: isIterative,
+    help: 'Groups of views updated in turn: more subsets converge faster per pass but amplify noise.',
+  },
+  {
+    key: 'relaxation', label: 'Relaxation', kind: 'number', min: 0.05, max: 1.95, step: 0.05, appliesTo: isIterative,
+    help: 'Fraction of each SART correction applied (0 to 2; lower is slower and less noisy).',
+  },
+  {
+    key: 'tolerance', label: 'Residual tolerance', kind: 'number', min: 0, max: 0.5, step: 0.001, appliesTo: isIterative,
+    help: 'Stop once the measured-data residual falls below this fraction of its start (0: run all iterations).',
+  },
+  {
+    key: 'tvStrength', label: 'TV strength', kind: 'number', min: 0.0005, max: 1, step: 0.0005, appliesTo: usesTv,
+    help: 'Length of the total-variation steps relative to the image (ASD-POCS alpha): more smooths more.',
+  },
+  {
+    key: 'tvSteps', label: 'TV steps', kind: 'integer', min: 1, max: 200, step: 1, appliesTo: usesTv,
+    help: 'Total-variation descent steps after each pass over the data.',
+  },
+  {
+    key: 'tvEps', label: 'Edge threshold', kind: 'number', min: 0.00001, max: 0.1, step: 0.0001, unit: '1/mm', appliesTo: isReweighted,
+    help: 'Reweighted TV: gradients well above this (per pixel) count as edges and are smoothed less.',
+  },
+  {
+    key: 'priorWeight', label: 'Prior weight', kind: 'number', min: 0.05, max: 1, step: 0.05, appliesTo: isPrior,
+    help: 'Weight of the prior\'s projections beyond the detector, relative to the measured data.',
+  },
+  {
+    key: 'prior', label: 'Prior', kind: 'choice', appliesTo: isPrior,
+    choices: choicesOf(EXTEND_METHODS.filter((e) => e !== 'none').map((e) => `fbp:${e}`).concat('fbp')),
+    help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view.',
+  },
+  {
+    key: 'support', label: 'Support', kind: 'choice', choices: choicesOf(['circle', 'grid'], { circle: 'Disk inscribed in the grid', grid: 'Whole grid' }), appliesTo: isIterative,
+    help: 'Pixels reconstructed; outside they stay zero.',
+  },
 ];
 
 /**
@@ -117,12 +167,21 @@ export function describeRecipeFields(): RecipeField[] {
 
 function formatValue(f: RecipeField, v: unknown): string {
   if (f.key === 'extend') return `${String(v)} extension`;
+  if (f.key === 'prior') return `prior: ${priorLabel(v)}`;
   if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
   if (f.kind === 'grid') {
     const g = v as { size: number; pixel: number } | undefined;
     return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
   }
   return `${f.key} ${String(v)}`;
+}
+
+/** A prior source in words: its short form, or the recipe or image it names. */
+function priorLabel(v: unknown): string {
+  if (typeof v === 'string') return choiceLabel(v);
+  const p = v as { source?: string; recipe?: { method?: string; extend?: string } } | undefined;
+  if (p?.source === 'recipe' && p.recipe) return choiceLabel(p.recipe.extend && p.recipe.extend !== 'none' ? `${p.recipe.method}:${p.recipe.extend}` : String(p.recipe.method));
+  return p?.source === 'image' ? 'image' : 'default';
 }
 
 /** A one-line description of a recipe, e.g. "FBP, hann, cutoff 0.8, 576 px × 1 mm". */

@@ -4,9 +4,10 @@
 import { InputError } from '../errors';
 import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
 import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
+import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 
 /** Reconstruction methods available in this build. */
-export const METHODS = ['fbp'] as const;
+export const METHODS = ['fbp', ...ITERATIVE_METHODS] as const;
 export type Method = (typeof METHODS)[number];
 
 export interface GridChoice {
@@ -16,7 +17,8 @@ export interface GridChoice {
   pixel: number;
 }
 
-export interface Recipe {
+/** The iterative methods' fields (iterations, subsets, prior, ...) are in iterative/options.ts. */
+export interface Recipe extends IterativeFields {
   method: Method;
   /** Reconstruction grid; absent: chosen from the scan (grid.ts). */
   grid?: GridChoice;
@@ -68,6 +70,7 @@ export function validateRecipe(input: unknown): Recipe {
     out.grid = { size: g.size as number, pixel: g.pixel };
   }
   if (r.volume !== undefined) out.volume = validateSliceChoice(r.volume);
+  Object.assign(out, validateIterativeFields(r, validateRecipe));
   return out;
 }
 

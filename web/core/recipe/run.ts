@@ -12,6 +12,10 @@ import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
 import { runConeRecipe } from './run-cone';
+import { isIterativeMethod } from '../iterative/options';
+import { runIterative, type RecipeInputs } from '../iterative/run';
+
+export type { RecipeInputs } from '../iterative/run';
 
 export interface RecipeResult {
   /** The reconstruction, mu in 1/mm, with the scan's mu_water and FOV radius. */
@@ -23,8 +27,11 @@ export interface RecipeResult {
   volume?: Volume;
 }
 
-/** Reconstructs `scan` as the recipe says. */
-export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
+/** Reconstructs `scan` as the recipe says. `inputs` carries images some methods need (a prior). */
+export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}): Promise<RecipeResult> {
+  if (isIterativeMethod(recipe.method)) {
+    return runIterative(ws, scan, recipe, hooks, inputs, (nested, h) => runRecipe(ws, scan, nested, h, inputs));
+  }
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
   const g = scan.geometry;

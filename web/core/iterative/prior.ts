@@ -1,0 +1,80 @@
+// The prior image of prior-guided data-consistent reconstruction: checked, converted to mu and
+// resampled onto the reconstruction grid; and how far a result departs from it.
+import { InputError } from '../errors';
+import { huToMu, type Image2D, type ImageGrid } from '../image';
+import { circleMask } from '../metrics';
+import { resampleBilinear, sameGrid } from '../resample';
+
+/** The prior on the reconstruction grid (mu, 1/mm), with notes about what was done to it. */
+export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array): { data: Float32Array; warnings: string[] } {
+  const warnings: string[] = [];
+  let mu = prior.data;
+  if (prior.quantity === 'hu') {
+    if (!(prior.muWater && prior.muWater > 0)) throw new InputError('prior: values are HU but its mu_water is unknown');
+    mu = huToMu(prior.data, prior.muWater);
+  }
+  let bad = 0;
+  for (const v of mu) if (!Number.isFinite(v)) bad++;
+  if (bad > 0) throw new InputError(`prior: ${bad} of ${mu.length} pixels are not finite numbers, expected attenuation values`);
+  const data = sameGrid(prior.grid, grid) ? Float32Array.from(mu) : resampleBilinear(mu, prior.grid, grid);
+  if (!sameGrid(prior.grid, grid)) {
+    const g = prior.grid;
+    warnings.push(`prior resampled (bilinear) from ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm onto the reconstruction grid`);
+    const uncovered = uncoveredPixels(g, grid, support);
+    if (uncovered > 0) warnings.push(`the prior does not cover ${uncovered} pixels of the reconstruction support; they count as 0 (air) there`);
+  }
+  let negative = 0, lowest = 0;
+  for (const v of data) {
+    if (v < 0) negative++;
+    lowest = Math.min(lowest, v);
+  }
+  // Negative values are kept (clipping would bias the prior's projections); the first
+  // non-negative update clips them in the image.
+  if (negative > 0) warnings.push(`prior: ${negative} pixels have negative attenuation (lowest ${lowest.toPrecision(3)} /mm)`);
+  return { data, warnings };
+}
+
+/** Support pixels whose centre lies outside the prior's grid. */
+function uncoveredPixels(from: ImageGrid, to: ImageGrid, support: Uint8Array): number {
+  const hx = ((from.nx - 1) / 2) * from.dx, hy = ((from.ny - 1) / 2) * from.dy;
+  const x0 = to.cx - ((to.nx - 1) / 2) * to.dx, y0 = to.cy - ((to.ny - 1) / 2) * to.dy;
+  let n = 0;
+  for (let j = 0; j < to.ny; j++) {
+    for (let i = 0; i < to.nx; i++) {
+      if (!support[j * to.nx + i]) continue;
+      const x = x0 + i * to.dx - from.cx, y = y0 + j * to.dy - from.cy;
+      if (Math.abs(x) > hx || Math.abs(y) > hy) n++;
+    }
+  }
+  return n;
+}
+
+export interface Departure {
+  pixels: number;
+  /** RMS of result - prior, 1/mm. */
+  rms: number;
+  /** The same in HU, when mu_water is known. */
+  rmsHu?: number;
+  /** Mean of result - prior, 1/mm. */
+  mean: number;
+}
+
+/** RMS and mean difference of `result` from `prior` inside and outside the FOV circle, within the support. */
+export function departureFromPrior(
+  result: Float32Array, prior: Float32Array, grid: ImageGrid, support: Uint8Array, fovRadius: number, muWater?: number,
+): { insideFov: Departure; outsideFov: Departure } {
+  const inFov = circleMask(grid, fovRadius);
+  const region = (inside: boolean): Departure => {
+    let s = 0, s2 = 0, n = 0;
+    for (let i = 0; i < result.length; i++) {
+      if (!support[i] || (inFov[i] === 1) !== inside) continue;
+      const d = result[i] - prior[i];
+      s += d;
+      s2 += d * d;
+      n++;
+    }
+    const rms = n ? Math.sqrt(s2 / n) : NaN;
+    return { pixels: n, rms, mean: n ? s / n : NaN, ...(muWater ? { rmsHu: (1000 * rms) / muWater } : {}) };
+  };
+  return { insideFov: region(true), outsideFov: region(false) };
+}

@@ -1,0 +1,132 @@
+// Running an iterative recipe (sart, tv, wtv, prior): prior, grid, problem set-up, iterations,
+// and the report (convergence history, per-view residuals, departure from the prior).
+import type { Buf, Workspace } from '../engine/workspace';
+import { InputError, throwIfCancelled } from '../errors';
+import { fovRadius } from '../geometry/view-vectors';
+import { squareGrid, type Image2D, type ImageGrid } from '../image';
+import { chooseGrid, DEFAULT_GRID_SIZE } from '../recipe/grid';
+import type { Recipe } from '../recipe/recipe';
+import { require2d } from '../recon/projector';
+import type { RunHooks } from '../run-hooks';
+import type { Scan } from '../scan';
+import { resolveOptions, type IterativeMethod } from './options';
+import { OsSart } from './os-sart';
+import { priorOnGrid } from './prior';
+import { checkScanData, perViewSquares, setUpProblem, supportMask, type Problem } from './problem';
+import { iterativeReport } from './report';
+import { solve } from './solve';
+
+/** Images a recipe run may need besides the scan. */
+export interface RecipeInputs {
+  /** The prior of method "prior" when its source is "image" (any grid; resampled). */
+  prior?: Image2D;
+  /** The support mask when the recipe's support is "image": > 0.5 inside (any grid; resampled). */
+  supportMask?: Image2D;
+}
+
+/** What runRecipe returns (the same shape as recipe/run.ts RecipeResult). */
+export interface IterativeResult {
+  image: Image2D;
+  warnings: string[];
+  report: Record<string, unknown>;
+}
+
+/** Runs another recipe on the same scan (recipe/run.ts runRecipe, passed in to avoid an import cycle). */
+export type NestedRun = (recipe: Recipe, hooks: RunHooks) => Promise<IterativeResult>;
+
+const now = () => performance.now() / 1000;
+
+/** A square grid of DEFAULT_GRID_SIZE pixels centred on the isocentre that covers `g`. */
+function gridCovering(g: ImageGrid): ImageGrid {
+  const half = Math.max(Math.abs(g.cx) + (g.nx * g.dx) / 2, Math.abs(g.cy) + (g.ny * g.dy) / 2);
+  return squareGrid(DEFAULT_GRID_SIZE, (2 * half) / DEFAULT_GRID_SIZE);
+}
+
+function scaled(hooks: RunHooks, from: number, to: number): RunHooks {
+  const p = hooks.onProgress;
+  return { signal: hooks.signal, onProgress: p ? (f, stage) => p(from + (to - from) * f, stage) : undefined };
+}
+
+async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks): Promise<{ image: Image2D; warnings: string[] }> {
+  const src = recipe.prior;
+  if (!src) throw new InputError('recipe prior: method "prior" needs a prior');
+  if (src.source === 'image') {
+    if (!inputs.prior) throw new InputError('prior: the recipe takes its prior from an image, but none was given');
+    return { image: inputs.prior, warnings: [] };
+  }
+  const r = await nested(src.recipe, hooks);
+  return { image: r.image, warnings: r.warnings.map((w) => `prior (${src.recipe.method}): ${w}`) };
+}
+
+/**
+ * Writes the start image (the prior, or zeros) into x; for a prior, fits the unmeasured channels
+ * of the target to its projections. Returns the squared measured residual of the start image.
+ */
+async function prepareStart(ws: Workspace, sart: OsSart, x: Buf, problem: Problem, prior?: Float32Array): Promise<number> {
+  const { nViews, nCh, target } = problem;
+  const [k0, k1] = problem.measured;
+  await ws.write(x, prior ?? new Float32Array(problem.grid.nx * problem.grid.ny));
+  await sart.projector.forward(x, sart.corr);
+  const start = await ws.read(sart.corr);
+  if (prior) {
+    for (let q = 0; q < nViews; q++) {
+      target.set(start.subarray(q * nCh, q * nCh + k0), q * nCh);
+      target.set(start.subarray(q * nCh + k1, (q + 1) * nCh), q * nCh + k1);
+    }
+    await ws.write(sart.target, target);
+  }
+  return perViewSquares(start, target, nCh, k0, k1).reduce((s, v) => s + v, 0);
+}
+
+/** Reconstructs `scan` with an iterative method. Nothing is returned or kept when cancelled. */
+export async function runIterative(
+  ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks, inputs: RecipeInputs, nested: NestedRun,
+): Promise<IterativeResult> {
+  const t0 = now();
+  const method = recipe.method as IterativeMethod;
+  const o = resolveOptions(method, recipe);
+  throwIfCancelled(hooks.signal);
+  if (scan.geometry.kind === 'cone') throw new InputError(`recipe method: got "${method}" for a cone-beam scan, expected fbp (the iterative methods work on 2D scans)`);
+  require2d(scan.geometry);
+  checkScanData(scan);
+  const obtained = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05)) : undefined;
+  const warnings: string[] = obtained?.warnings ?? [];
+  const priorImage = obtained?.image;
+  const grid = recipe.grid ? squareGrid(recipe.grid.size, recipe.grid.pixel) : priorImage ? gridCovering(priorImage.grid) : chooseGrid(scan);
+  const support = supportMask(grid, o.support, inputs.supportMask);
+  const nViews = scan.data.length / scan.geometry.detector.channels;
+  const subsets = Math.min(o.subsets, nViews);
+  if (subsets < o.subsets) warnings.push(`subsets: ${o.subsets} asked, the scan has ${nViews} views; using ${subsets}`);
+  const problem = setUpProblem(scan, grid, support, subsets, method === 'prior' ? o.priorWeight : 0);
+  const prior = priorImage ? priorOnGrid(priorImage, grid, support) : undefined;
+  if (prior) warnings.push(...prior.warnings);
+  const fov = fovRadius(scan.geometry);
+  const reach = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
+  if (method === 'prior' && reach < 1.2 * fov) {
+    warnings.push(`the grid reaches only ${reach.toFixed(0)} mm from its centre, little beyond the measured FOV (radius ${fov.toFixed(0)} mm): the object outside the FOV is not reconstructed; give a grid (size, pixel) that covers the whole object`);
+  }
+
+  ws.reset();
+  throwIfCancelled(hooks.signal);
+  hooks.onProgress?.(0.05, 'setup');
+  const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support) }, hooks);
+  const x = ws.alloc('image', grid.nx * grid.ny);
+  const startResidual = await prepareStart(ws, sart, x, problem, prior?.data.map((v, i) => v * support[i]));
+  const t1 = now();
+
+  const measuredRays = problem.nViews * (problem.measured[1] - problem.measured[0]);
+  const outcome = await solve({ ws, grid, sart, x, startResidual, measuredRays }, method, o, scaled(hooks, 0.06, 0.99));
+  const t2 = now();
+
+  await sart.projector.forward(x, sart.corr);
+  const image = await ws.read(x);
+  const report = iterativeReport({
+    method, options: { ...o, subsets }, problem, outcome, startResidual, finalSino: await ws.read(sart.corr), image,
+    prior: prior?.data, fov, muWater: scan.muWater,
+  });
+  report.timings = { setup: t1 - t0, iterations: t2 - t1, total: now() - t0 };
+  const bad = image.reduce((n, v) => n + (Number.isFinite(v) ? 0 : 1), 0);
+  if (bad > 0) warnings.push(`the result has ${bad} pixels that are not finite numbers: do not trust it`);
+  hooks.onProgress?.(1, 'done');
+  return { image: { grid, data: image, quantity: 'mu', muWater: scan.muWater, fovRadius: fov }, warnings, report };
+}
