@@ -6,7 +6,6 @@ import 'fake-indexeddb/auto';
 import { createStore, keys as allKeys } from 'idb-keyval';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { consistencyReport } from '../../web/core/consistency/consistency-report';
-import { dataConsistentUnavailable } from '../../web/core/consistency/data-consistent';
 import { dataResidualOf } from '../../web/core/consistency/residual-figures';
 import { dataResidual } from '../../web/core/data-residual';
 import type { Workspace } from '../../web/core/engine/workspace';
@@ -64,11 +63,11 @@ describe('network-prior step of the page', () => {
   it('stores the network output with the consistency report computed directly', async () => {
     const { store, ctx, scanId, modelId } = await setUp();
     const stages: string[] = [];
-    const out = await runNetworkPriorJob(ctx, { scanId, modelId, dataConsistent: true, grid: { size: 128, pixel: 4.5 } }, { onProgress: (_, s) => stages.push(s) });
-    expect(stages).toEqual(expect.arrayContaining(['network input', 'network', 'reprojection', 'storing']));
-    // This build has no prior-guided method yet: the step says so and stores only the network output.
-    expect(out.consistentSkipped).toBe(dataConsistentUnavailable());
+    const out = await runNetworkPriorJob(ctx, { scanId, modelId, dataConsistent: false, grid: { size: 128, pixel: 4.5 } }, { onProgress: (_, s) => stages.push(s) });
+    expect(stages).toEqual(expect.arrayContaining(['network input', 'network', 'reprojection', 'disagreement map', 'storing']));
+    // Without the data-consistent step only the network output is stored, and it says why.
     expect(out.consistent).toBeUndefined();
+    expect(out.network.report.dataConsistent).toEqual({ skipped: 'it was not asked for' });
     expect((await listResults(scanId, store)).map((r) => r.id)).toEqual([out.network.id]);
     expect(out.network.recipe).toMatchObject({ method: 'network', model: { id: modelId, name: 'bright disk' }, grid: { size: 128, pixel: 4.5 } });
 

@@ -1,7 +1,7 @@
 import { html, LitElement, css, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
-import { dataConsistentUnavailable } from '../core/consistency/data-consistent';
 import type { ImageGrid } from '../core/image';
+import { ITERATIVE_DEFAULTS } from '../core/iterative/options';
 import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
 import type { ModelMeta } from '../store/records';
 import { formatDuration } from './logic/time-left';
@@ -86,9 +86,8 @@ export class PriorRunForm extends LitElement {
   private run() {
     const g = this.referenceGrid;
     const grid = this.gridMode === 'reference' && g ? { size: g.nx, pixel: g.dx } : this.gridMode === 'custom' ? { ...this.custom } : undefined;
-    // The wish is sent even when this build lacks the step: the job records why it did not run.
     const dataConsistent = this.dataConsistent;
-    const iterations = dataConsistent && !dataConsistentUnavailable() && this.iterations.trim() !== '' ? Number(this.iterations) : undefined;
+    const iterations = dataConsistent && this.iterations.trim() !== '' ? Number(this.iterations) : undefined;
     emit(this, 'prior-run', { modelId: this.modelId, grid, dataConsistent, iterations });
   }
 
@@ -107,16 +106,13 @@ export class PriorRunForm extends LitElement {
   }
 
   private dataConsistentChoice() {
-    const missing = dataConsistentUnavailable();
     return html`<div class="choices">
-      <label><input type="checkbox" name="data-consistent" .checked=${live(this.dataConsistent && !missing)} ?disabled=${!!missing}
+      <label><input type="checkbox" name="data-consistent" .checked=${live(this.dataConsistent)}
         @change=${(e: Event) => (this.dataConsistent = (e.target as HTMLInputElement).checked)}>Then reconstruct data-consistently from the network's image</label>
-      ${missing
-        ? html`<span class="help" id="data-consistent-missing" title=${missing}>Not available in this version of Rimfill: the prior-guided data-consistent reconstruction is not included yet.
-            The network's output and its check against the measured data are shown on their own.</span>`
-        : html`<label>Iterations <input type="number" name="prior-iterations" min="1" max="10000" step="1" placeholder="default" .value=${live(this.iterations)}
-            ?disabled=${!this.dataConsistent} @input=${(e: Event) => (this.iterations = (e.target as HTMLInputElement).value)}></label>
-          <span class="help">The measured rays are fitted to the measurements, the rays beyond the detector to the network's image; the iterations start from it.</span>`}
+      <label>Iterations <input type="number" name="prior-iterations" min="1" max="10000" step="1" placeholder=${String(ITERATIVE_DEFAULTS.iterations)} .value=${live(this.iterations)}
+        ?disabled=${!this.dataConsistent} @input=${(e: Event) => (this.iterations = (e.target as HTMLInputElement).value)}></label>
+      <span class="help">Prior-guided reconstruction: the measured rays are fitted to the measurements, the rays beyond the detector to the network's image,
+        starting from it, with reweighted total variation. Inside the measured field of view the data overrule the network.</span>
     </div>`;
   }
 

@@ -5,7 +5,7 @@
 // network output and the data-consistent result are written in one transaction.
 import { compareImages, type Comparison } from '../core/compare';
 import { consistencyReport, type ConsistencyReport } from '../core/consistency/consistency-report';
-import { dataConsistentFromPrior, dataConsistentUnavailable } from '../core/consistency/data-consistent';
+import { dataConsistentFromPrior } from '../core/consistency/data-consistent';
 import { disagreementMap } from '../core/consistency/disagreement-map';
 import { dataResidualOf } from '../core/consistency/residual-figures';
 import type { Workspace } from '../core/engine/workspace';
@@ -40,10 +40,8 @@ export interface NetworkPriorRequest {
 export interface NetworkPriorOutcome {
   /** The stored network output (with its consistency report). */
   network: ResultMeta;
-  /** The stored data-consistent result, when the step ran. */
+  /** The stored data-consistent result, when the step was asked for. */
   consistent?: ResultMeta;
-  /** Why the data-consistent step did not run ('' when it ran or was not asked for). */
-  consistentSkipped: string;
 }
 
 export interface NetworkPriorContext {
@@ -117,9 +115,8 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
   const netWarnings = [...model.warnings, ...net.warnings, ...netReport.warnings];
   nonFiniteWarning(net.output, netWarnings);
 
-  const skipped = req.dataConsistent ? dataConsistentUnavailable() : '';
   let dc: { image: Image2D; report: Record<string, unknown>; warnings: string[]; consistency: ConsistencyReport; map?: Float32Array; seconds: number } | undefined;
-  if (req.dataConsistent && !skipped) {
+  if (req.dataConsistent) {
     const t1 = performance.now();
     const r = await dataConsistentFromPrior(ws, scan, net.prior, { grid, iterations: req.iterations }, stage(hooks, 0.6, 0.92));
     const consistency = await consistencyReport(ws, scan, r.image, stage(hooks, 0.92, 0.97));
@@ -138,7 +135,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
     name: `Network: ${model.name}`,
     recipe: { method: 'network', model: modelRef, input: net.report.inputRecipe, grid: gridChoice },
     warnings: netWarnings,
-    report: { network: net.report, model: modelRef, dataConsistent: req.dataConsistent ? (skipped ? { skipped } : { ran: true }) : { skipped: 'not asked for' } },
+    report: { network: net.report, model: modelRef, dataConsistent: req.dataConsistent ? { ran: true } : { skipped: 'it was not asked for' } },
     metrics: compared(net.output, reference, netWarnings),
     residual: dataResidualOf(netReport),
     consistency: netStored.meta,
@@ -164,5 +161,5 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
   }
   await putAll(entries, store);
   hooks.onProgress?.(1, 'storing');
-  return { network: netRecords.meta, consistent, consistentSkipped: skipped };
+  return { network: netRecords.meta, consistent };
 }
