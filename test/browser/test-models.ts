@@ -9,8 +9,8 @@ import { thorax } from '../../web/core/phantoms/thorax';
 export const MODEL_SIZE = 288;
 export const MODEL_PIXEL = 2;
 
-/** A false structure inside the demo scan's field of view (radius 102 mm): +0.01 /mm, about +500 HU. */
-export const DISK = { cx: 40, cy: 25, r: 12, value: 0.01 };
+/** A false structure in the heart (muscle, centre (4, 30) mm), inside the demo scan's field of view (radius 102 mm): +0.01 /mm, about +500 HU. */
+export const DISK = { cx: 4, cy: 30, r: 12, value: 0.01 };
 
 /** The description of a network on the model grid fed with water-extended FBP (mu in and out). */
 export function description(name: string, size = MODEL_SIZE): string {
