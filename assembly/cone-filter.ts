@@ -55,7 +55,7 @@ export function coneFilterViews(
     }
     const block = out + <usize>(v - chunk0) * blockBytes;
     memory.fill(block, 0, rowBytes);
-    filterViews(rows, nCh, 0, nRows, 0, H, nPad, twRe, twIm, bitrev, re, im, block + rowBytes, stride);
+    filterViews(rows, nCh, 0, nRows, 0, 0, H, nPad, twRe, twIm, bitrev, re, im, block + rowBytes, stride);
     memory.fill(block + <usize>(nRows + 1) * rowBytes, 0, rowBytes << 1);
   }
 }

@@ -50,12 +50,26 @@ export function parkerWeight(beta: number, gamma: number, delta: number): number
 }
 
 export interface Preweights {
-  /** nViews x nChannels weights (angular step x redundancy x cosine pre-weight). */
+  /**
+   * nViews x nChannels weights (angular step x redundancy x cosine pre-weight); or, when
+   * `perView` is set (a factored result), one row of nChannels that view v uses scaled by perView[v].
+   */
   weights: Float32Array;
+  perView?: Float32Array;
   /** What the user should know (short angular range and the like). */
   warnings: string[];
   /** Scan type found from the angles. */
   scanType: 'full' | 'short' | 'limited';
+}
+
+/** True when every view has the distances of view 0. */
+function sameDistances(n: number, distances: (v: number) => { R: number; D: number }, same: (a: number, b: number) => boolean): boolean {
+  const { R, D } = distances(0);
+  for (let v = 1; v < n; v++) {
+    const d = distances(v);
+    if (!same(d.R, R) || !same(d.D, D)) return false;
+  }
+  return true;
 }
 
 /** Fan angle of channel coordinate u (mm) on a detector at distance D (flat or curved). */
@@ -71,7 +85,7 @@ export function fanAngle(u: number, D: number, curved: boolean): number {
  * Kak & Slaney eq. for R'(s) = R(s) D / sqrt(D^2 + s^2)) or R cos(gamma) (curved, R'(gamma) =
  * R(gamma) D cos gamma in their notation).
  */
-export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = firstChannelU(g)): Preweights {
+export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = firstChannelU(g), allowFactored = false): Preweights {
   const views = viewVectors(g);
   const kind = kernelKind(g);
   const n = views.length / VIEW_STRIDE;
@@ -83,7 +97,6 @@ export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = 
   const step = n > 1 ? span / (n - 1) : Math.PI;
   const sign = n > 1 && beta[n - 1] < beta[0] ? -1 : 1;
   const fan = kind !== KernelKind.parallel;
-  const weights = new Float32Array(n * channels);
 
   // Half fan angle of the detector (largest |gamma|), for the short-scan check.
   let delta = 0;
@@ -123,6 +136,19 @@ export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = 
   const gammas = new Float64Array(channels), cosines = new Float64Array(channels).fill(1);
   let lastR = NaN, lastD = NaN;
   const same = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.abs(b);
+  // A full turn with the same distances in every view factors into a channel row times a view
+  // scale (redundancy and cosine depend on the channel only, the angular step on the view).
+  if (allowFactored && scanType === 'full' && (!fan || sameDistances(n, distances, same))) {
+    const { R, D } = fan ? distances(0) : { R: 1, D: 1 };
+    const row = new Float32Array(channels);
+    for (let k = 0; k < channels; k++) {
+      const gamma = fan ? fanAngle(u0 + k * pitch, D, kind === KernelKind.fanCurved) : 0;
+      const cosine = !fan ? 1 : kind === KernelKind.fanCurved ? R * Math.cos(gamma) : Math.cos(gamma);
+      row[k] = (displaced ? displacedDetectorWeight(fan ? gamma : u0 + k * pitch, displaced) : 0.5) * cosine;
+    }
+    return { weights: row, perView: Float32Array.from(dBeta), warnings, scanType };
+  }
+  const weights = new Float32Array(n * channels);
   for (let v = 0; v < n; v++) {
     const { R, D } = fan ? distances(v) : { R: 1, D: 1 };
     if (fan && !(same(R, lastR) && same(D, lastD))) {

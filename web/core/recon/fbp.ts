@@ -52,7 +52,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const nViews = table.length / VIEW_STRIDE;
   const t0 = now();
   // Weights for the extended channels; the measured detector (g) sets the redundancy.
-  const { weights, warnings } = fbpPreweights(g, nCh, firstChannelU(ge));
+  const { weights, perView, warnings } = fbpPreweights(g, nCh, firstChannelU(ge), true);
   const t1 = now();
   throwIfCancelled(hooks.signal);
 
@@ -61,7 +61,8 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const nxs = (grid.nx + 3) & ~3;
   const views = ws.alloc('views', table.length);
   const sino = ws.alloc('sino', nViews * nCh);
-  const w = ws.alloc('weights', nViews * nCh);
+  const w = ws.alloc('weights', weights.length);
+  const scale = perView ? ws.alloc('viewScale', nViews) : undefined;
   const filtered = ws.alloc('filtered', nViews * stride);
   const img = ws.alloc('image', nxs * grid.ny);
   // Zero padding: the measured channels must be filtered exactly (linear convolution), which
@@ -75,6 +76,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const ims = ws.allocPerWorker('fftIm', filter.nPad);
   await ws.write(views, table);
   await ws.write(w, weights);
+  if (scale) await ws.write(scale, perView!);
   let tExtend = 0;
   if (ext) {
     const te = now();
@@ -89,7 +91,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   await ws.run(
     splitRange(nViews, ws.parallelism, 2).map(([a, b], i) => ({
       kernel: 'filterViews' as const,
-      args: [sino, nCh, a, b, w, filter.response, filter.nPad, filter.twRe, filter.twIm, filter.bitrev, res[i], ims[i], filtered, stride],
+      args: [sino, nCh, a, b, w, scale ?? 0, filter.response, filter.nPad, filter.twRe, filter.twIm, filter.bitrev, res[i], ims[i], filtered, stride],
       writes: [{ buf: filtered, start: a * stride, length: (b - a) * stride }],
     })),
   );

@@ -2,6 +2,7 @@
 // the object (edges.ts, not a constant), scaled to the mass each view misses where the mass
 // consistency condition gives it (mass.ts), the number of channels to add on each side, and
 // the kernel's parameter table (assembly/extend.ts).
+import { paddedLength } from '../recon/filter-design';
 import { extendDetector } from '../geometry/presets';
 import type { Geometry } from '../geometry/types';
 import { firstChannelU } from '../geometry/view-vectors';
@@ -52,6 +53,14 @@ export interface ExtensionPlan extends DetectorExtension {
 }
 
 /** Bounds on the factor by which a tail is stretched to meet the missing mass (common practice: guard against noise). */
+/**
+ * Most channels a tail may add on one side of an nCh-channel detector: paddedLength(nCh) - nCh,
+ * about one detector width, which keeps the extended row's FFT at twice the plain one's.
+ */
+export function maxTailChannels(nCh: number): number {
+  return paddedLength(nCh) - nCh;
+}
+
 const MASS_SCALE_MIN = 0.5;
 const MASS_SCALE_MAX = 2;
 
@@ -123,13 +132,31 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
   }
 
   // Channels to add: enough for the longest tail on each side, and for a displaced detector's
-  // short side to mirror its long one.
+  // short side to mirror its long one. Tails are capped at MAX_TAIL_CHANNELS(nCh) channels, so
+  // that the FFT of an extended row is at most twice as long as a plain row's (fbp.ts pads to
+  // 2 (max(left, right) + channels) - 1); a longer tail is compressed to fit (water: stretched),
+  // the mass scaling above still holding to within the cap.
   const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
   const uLast = u0 + (nCh - 1) * pitch;
+  const capChannels = maxTailChannels(nCh);
+  const capS = [
+    Math.abs(a.s[0] - a.rays.s(u0 - (capChannels - 1) * pitch)),
+    Math.abs(a.rays.s(uLast + (capChannels - 1) * pitch) - a.s[nCh - 1]),
+  ];
+  for (const side of [0, 1] as const) {
+    for (let v = 0; v < nViews; v++) {
+      const L = lengths[side][v];
+      if (!(L > capS[side])) continue;
+      lengths[side][v] = capS[side];
+      const t = water[side][v];
+      if (t) water[side][v] = { ...t, stretch: t.stretch * (capS[side] / L) };
+    }
+  }
   const reach = (side: 0 | 1) => lengths[side].reduce((x, y) => Math.max(x, y), 0);
   const margin = displacedDetectorMargin(g);
-  const left = Math.max(margin.left, reach(0) > 0 ? Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1 : 0);
-  const right = Math.max(margin.right, reach(1) > 0 ? Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1 : 0);
+  const tail = (n: number) => Math.min(capChannels, n);
+  const left = Math.max(margin.left, reach(0) > 0 ? tail(Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1) : 0);
+  const right = Math.max(margin.right, reach(1) > 0 ? tail(Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1) : 0);
   const { geometry, coord } = extendedLayout(g, left, right);
   const nExt = left + nCh + right;
 
