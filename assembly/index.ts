@@ -15,6 +15,7 @@ export { josephForwardCone, josephAdjointCone } from './cone-joseph';
 export { sartWeights, sartCorrection, sartUpdate, squaredDistances, copyRange } from './sart';
 export { tvScale, tvGradient, tvWeights } from './tv';
 export { padImageRows, unpadSumRows } from './image-bands';
+export { tv3Scale, tv3Gradient, tv3Weights } from './tv3d';
 
 /** First byte the host may use for its buffers. */
 export function heapBase(): usize {

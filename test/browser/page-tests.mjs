@@ -306,6 +306,103 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await shot(page, '7-after-reload');
   });
 
+  await h.step(`${mode}: the cone-beam demo on request; FDK with water extension in the workers agrees with the command line`, async () => {
+    check(reference?.cone, 'the command-line cone-beam reference ran');
+    check(!(await page.locator('rf-scan-library li').filter({ hasText: 'cone-beam' }).count()), 'no cone-beam demo before it is asked for');
+    await page.locator('#cone-demo').click();
+    const item = page.locator('rf-scan-library li').filter({ hasText: 'cone-beam scan' });
+    await item.waitFor({ timeout: 180_000 });
+    check(/Cone beam, flat detector 192 × 144 × 2 mm, 200 views over 200°/.test(await item.innerText()), `scan summary: ${await item.innerText()}`);
+    await item.click();
+    await page.locator('#tab-reconstruct').click();
+    await page.locator('#field-method').selectOption('fbp');
+    await page.locator('#field-extend').selectOption('water');
+    await page.locator('rf-recipe-form input[value="reference"]').check();
+    const before = await page.locator('rf-run-queue li').count();
+    await queueAndWait(page, before + 1);
+    const job = page.locator('rf-run-queue li').nth(before);
+    await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
+    check((await job.getAttribute('data-state')) === 'done', `cone job: ${await job.innerText()}`);
+    await page.locator('#tab-images').click();
+    const choice = page.locator('rf-volume-view #volume-choice');
+    await choice.waitFor();
+    await page.waitForFunction(() => {
+      const v = document.querySelector('rf-app')?.shadowRoot?.querySelector('rf-volume-view');
+      return /water extension/.test(v?.shadowRoot?.querySelector('#volume-choice')?.selectedOptions?.[0]?.textContent ?? '') && !!v?.volume;
+    }, undefined, { timeout: 30_000 });
+    // The volume against the reference volume, inside and outside the FOV cylinder, as the
+    // command line computes it (same engine; the table shows RMSE to 0.1 HU).
+    const want = reference.cone.comparison;
+    for (const region of ['volume', 'insideFov', 'outsideFov']) {
+      const got = Number(await page.locator(`rf-volume-metrics tr[data-region="${region}"] td[data-metric="rmse"]`).innerText());
+      near(got, want.regions[region].rmse, 0.051, `${region} RMSE (HU)`);
+    }
+    await shot(page, '8-cone-volume');
+  });
+
+  await h.step(`${mode}: the volume viewer shows three planes with a linked cursor, window presets, profile, region and the FOV cylinder`, async () => {
+    const view = page.locator('rf-volume-view');
+    const planes = view.locator('rf-image-viewer[data-plane]');
+    check((await planes.count()) === 3, `${await planes.count()} planes`);
+    const heading = (plane) => view.locator('.plane h3').nth(['axial', 'coronal', 'sagittal'].indexOf(plane)).innerText();
+    const coord = async (plane) => Number(/= (-?\d+\.\d) mm/.exec(await heading(plane))[1]);
+    check(/FOV cylinder \(dashed\): radius 118\.5 mm, half height 90\.0 mm/.test(await view.locator('#volume-point').innerText()), `point line: ${await view.locator('#volume-point').innerText()}`);
+    // The slice tool: a click in the axial plane, 60 mm right of and 40 mm above its centre,
+    // moves the sagittal plane to that x and the coronal plane to that y; z stays.
+    const z0 = await coord('axial');
+    const axial = planes.nth(0).locator('canvas');
+    const b = await axial.boundingBox();
+    const mmPerPx = (196 * 3) / b.width; // the whole 588 mm grid fits the square panel at zoom 1
+    await axial.click({ position: { x: b.width / 2 + 60 / mmPerPx, y: b.height / 2 - 40 / mmPerPx } });
+    near(await coord('sagittal'), 60, 3, 'sagittal plane x after the click (mm)');
+    near(await coord('coronal'), 40, 3, 'coronal plane y after the click (mm)');
+    check((await coord('axial')) === z0, 'the axial plane keeps its z');
+    // A click in the coronal plane moves the axial plane to that height.
+    const coronal = planes.nth(1).locator('canvas');
+    const c = await coronal.boundingBox();
+    await coronal.click({ position: { x: c.width / 2, y: c.height / 2 - 30 / mmPerPx } });
+    near(await coord('axial'), 30, 3, 'axial plane z after the click in the coronal plane (mm)');
+    // The sliders move one plane only.
+    const slide = (plane, index) => view.locator(`input[name="slice-${plane}"]`).evaluate((el, i) => {
+      el.value = String(i);
+      el.dispatchEvent(new Event('input', { bubbles: true }));
+    }, index);
+    await slide('sagittal', 98);
+    near(await coord('sagittal'), 1.5, 0.01, 'sagittal plane at slice 99 (mm)');
+    near(await coord('coronal'), 40, 3, 'coronal plane unchanged by the sagittal slider');
+    await slide('coronal', 98);
+    await slide('axial', 33);
+    await shot(page, '9-volume-cursor');
+    // Window presets, a line profile across the coronal plane, a region in the sagittal plane.
+    await view.locator('rf-viewer-toolbar button[data-preset="Lung"]').click();
+    check((await view.locator('rf-viewer-toolbar input[name="width"]').inputValue()) === '1500', 'lung window on the volume');
+    await view.locator('rf-viewer-toolbar button[data-preset="Soft tissue"]').click();
+    await view.locator('rf-viewer-toolbar button[data-tool="line"]').click();
+    await page.mouse.move(c.x + c.width * 0.2, c.y + c.height * 0.5);
+    await page.mouse.down();
+    await page.mouse.move(c.x + c.width * 0.8, c.y + c.height * 0.5, { steps: 5 });
+    await page.mouse.up();
+    await view.locator('rf-line-plot#volume-profile path').first().waitFor();
+    const s = await planes.nth(2).locator('canvas').boundingBox();
+    await view.locator('rf-viewer-toolbar button[data-tool="region"]').click();
+    await page.mouse.move(s.x + s.width * 0.5, s.y + s.height * 0.5);
+    await page.mouse.down();
+    await page.mouse.move(s.x + s.width * 0.53, s.y + s.height * 0.5, { steps: 3 });
+    await page.mouse.up();
+    const row = view.locator('rf-region-table tbody tr');
+    await row.first().waitFor();
+    const cells = await row.first().locator('td').allInnerTexts();
+    check(/Sagittal/.test(cells[0]) && Number.isFinite(Number(cells[1])) && Number(cells[3]) > 0, `region row: ${cells.join(' | ')}`);
+    const readout = await planes.nth(2).locator('.readout').innerText();
+    check(/y -?\d+\.\d mm, z -?\d+\.\d mm: -?\d+ HU/.test(readout), `sagittal read-out: ${readout}`);
+    await shot(page, '10-volume-tools');
+    // The shown volume saved as NRRD: its grid, mu values and FOV cylinder in the header.
+    const saved = parseFloatNrrd((await download(page, () => view.locator('#export-volume').click())).bytes);
+    check(saved.sizes.join(' ') === '196 196 66', `saved volume sizes ${saved.sizes}`);
+    check(saved.keys['rimfill.quantity'] === 'mu' && Number(saved.keys['rimfill.fovHalfHeight']) > 89, `saved volume keys ${JSON.stringify(saved.keys)}`);
+    check(/^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space directions ${saved.fields['space directions']}`);
+  });
+
   await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {
     const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
     const outside = requests.filter((u) => !own(u));

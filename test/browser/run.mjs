@@ -10,6 +10,7 @@ import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium } from 'playwright-core';
 import { cliReference } from './cli-reference.mjs';
+import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
 import { priorReference } from './prior-reference.mjs';
@@ -51,6 +52,11 @@ async function main() {
   await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
+  if (!priorsOnly) {
+    await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
+      reference.cone = coneReference(root);
+    });
+  }
   let prior;
   if (reference) {
     await h.step('command-line reference: test networks and rimfill prior-check on the demo scan', async () => {
@@ -78,6 +84,7 @@ async function main() {
   } finally {
     await server.close();
     if (reference) rmSync(reference.dir, { recursive: true, force: true });
+    if (reference?.cone) rmSync(reference.cone.dir, { recursive: true, force: true });
   }
   return h.finish();
 }

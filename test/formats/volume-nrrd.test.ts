@@ -1,8 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import { parseNrrd } from '../../web/core/formats/nrrd';
-import { isVolumeNrrd, readVolumeNrrd, writeVolumeNrrd } from '../../web/core/formats/volume-nrrd';
+import { isVolumeNrrd, writeVolumeNrrd } from '../../web/core/formats/volume-nrrd';
+import { readImageFile } from '../../web/core/formats/read-image';
+import { asMuVolume } from '../../web/core/formats/volume';
 import { InputError } from '../../web/core/errors';
 import type { Volume } from '../../web/core/volume';
+
+/** Reads volume bytes the one way every volume is read: readImageFile, then asMuVolume. */
+async function readVolumeNrrd(bytes: Uint8Array, muWater?: number): Promise<Volume> {
+  return asMuVolume((await readImageFile([{ name: 'volume.nrrd', bytes }])).volume, muWater);
+}
 
 const volume = (): Volume => ({
   grid: { nx: 5, ny: 4, nz: 3, dx: 0.5, dy: 0.75, dz: 2, cx: 1, cy: -2, cz: 10 },
@@ -53,15 +60,25 @@ describe('volume NRRD', () => {
     expect(v.data[1]).toBeCloseTo(0.02, 9);
   });
 
+  it('turns axes that point the other way, z included (NRRD space directions)', async () => {
+    // Voxel value = its index; with z running downwards from z = 4 mm the slices come back in
+    // increasing z, starting at 4 - 2 x 1.5 = 1 mm.
+    const d = Float32Array.from({ length: 12 }, (_, i) => i);
+    const v = await readVolumeNrrd(nrrd(['type: float', 'dimension: 3', 'sizes: 2 2 3', 'endian: little', 'encoding: raw', 'space dimension: 3',
+      'space directions: (1,0,0) (0,1,0) (0,0,-1.5)', 'space origin: (0,0,4)'], d));
+    expect(v.grid.dz).toBe(1.5);
+    expect(v.grid.cz).toBeCloseTo(2.5, 12);
+    expect(Array.from(v.data)).toEqual([8, 9, 10, 11, 4, 5, 6, 7, 0, 1, 2, 3]);
+  });
+
   it('rejects what it cannot place in space, naming the problem', async () => {
     const d = new Float32Array(8);
     const base = ['type: float', 'dimension: 3', 'sizes: 2 2 2', 'endian: little', 'encoding: raw'];
-    await expect(readVolumeNrrd(nrrd(['type: float', 'dimension: 2', 'sizes: 4 2', 'endian: little', 'encoding: raw'], d))).rejects.toThrow(/expected three axes/);
-    await expect(readVolumeNrrd(nrrd([...base, 'space dimension: 3', 'space directions: (1,0.5,0) (0,1,0) (0,0,1)'], d))).rejects.toThrow(/rotated space directions/);
-    await expect(readVolumeNrrd(nrrd([...base, 'space dimension: 3', 'space directions: (-1,0,0) (0,1,0) (0,0,1)'], d))).rejects.toThrow(/against the axes/);
-    await expect(readVolumeNrrd(nrrd([...base, 'space dimension: 3', 'space directions: (1,0,0) (0,1,0)'], d))).rejects.toThrow(/expected three vectors/);
-    await expect(readVolumeNrrd(nrrd([...base, 'rimfill.quantity:=hu'], d))).rejects.toThrow(/mu_water is unknown/);
+    await expect(readVolumeNrrd(nrrd([...base, 'space dimension: 3', 'space directions: (1,0.5,0) (0,1,0) (0,0,1)'], d))).rejects.toThrow(/expected axis-aligned directions/);
+    await expect(readVolumeNrrd(nrrd([...base, 'space dimension: 3', 'space directions: (1,0,0) (0,1,0)'], d))).rejects.toThrow(/expected 3 vectors, one per axis/);
+    await expect(readVolumeNrrd(nrrd([...base, 'rimfill.quantity:=hu'], d))).rejects.toThrow(/values are HU but mu_water is unknown/);
     await expect(readVolumeNrrd(nrrd([...base, 'rimfill.fovRadius:=-3'], d))).rejects.toThrow(InputError);
+    await expect(readVolumeNrrd(nrrd([...base, 'rimfill.fovHalfHeight:=x'], d))).rejects.toThrow(/rimfill.fovHalfHeight: got "x"/);
   });
 
   it('tells volumes from single images', async () => {

@@ -3,7 +3,11 @@ import type { Geometry } from '../../web/core/geometry/types';
 import { validateGeometry } from '../../web/core/geometry/validate';
 import type { Workspace } from '../../web/core/engine/workspace';
 import { Projector3d } from '../../web/core/recon/projector3d';
-import type { VolumeGrid } from '../../web/core/volume';
+import { readFileSync } from 'node:fs';
+import { basename } from 'node:path';
+import { readImageFile } from '../../web/core/formats/read-image';
+import { asMuVolume } from '../../web/core/formats/volume';
+import type { Volume, VolumeGrid } from '../../web/core/volume';
 
 /** A circular cone-beam geometry with a flat detector (mm, degrees). */
 export function cone(opts: {
@@ -29,4 +33,9 @@ export async function project(ws: Workspace, grid: VolumeGrid, g: Geometry, volu
   await ws.write(vb, volume);
   await p.forward(vb, sb);
   return ws.read(sb);
+}
+
+/** A volume file read as every volume is read (readImageFile, then asMuVolume). */
+export async function readVolumeFile(path: string, muWater?: number): Promise<Volume> {
+  return asMuVolume((await readImageFile([{ name: basename(path), bytes: new Uint8Array(readFileSync(path)) }])).volume, muWater);
 }

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 
 export const PYTHON = '/usr/bin/python3';
 
-const PACKAGES: Record<string, string> = { numpy: 'python3-numpy', pydicom: 'python3-pydicom', tifffile: 'python3-tifffile', PIL: 'python3-pil' };
+const PACKAGES: Record<string, string> = { numpy: 'python3-numpy', pydicom: 'python3-pydicom', tifffile: 'python3-tifffile', PIL: 'python3-pil', skimage: 'python3-skimage' };
 
 /** Checks that /usr/bin/python3 can import the modules, throwing a message naming the apt packages. */
 export function requirePython(modules: string[]): void {

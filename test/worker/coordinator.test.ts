@@ -22,6 +22,9 @@ import { listScans, loadScan, saveScan } from '../../web/store/scans';
 import { loadSettings } from '../../web/store/settings';
 import { Coordinator } from '../../web/worker/coordinator';
 import { buildDemoScan, DEMO } from '../../web/worker/demo-scan';
+import { CONE_DEMO, coneDemoGeometry } from '../../web/worker/demo-cone-scan';
+import { loadResultVolume } from '../../web/store/results';
+import { writeFileSync } from 'node:fs';
 import { localWorkspace } from '../helpers/engine';
 
 let n = 0;
@@ -149,6 +152,41 @@ describe('demo scan', () => {
     const ctl = new AbortController();
     const p = buildDemoScan({ signal: ctl.signal, onProgress: (f) => f > 0.1 && ctl.abort() });
     await expect(p).rejects.toThrow(CancelledError);
+  });
+});
+
+describe('cone-beam demo scan', () => {
+  it('is the scan `rimfill simulate` writes with the same settings; FDK runs on it and stores its volume with metrics', async () => {
+    // The page's settings (CONE_DEMO) binned further and with a coarse truth to keep the test short.
+    expect(CONE_DEMO).toMatchObject({ preset: 'demo-cone', bin: 2, viewStep: 2, photons: 200_000, seed: 7 });
+    const small = { ...CONE_DEMO, bin: 8, viewStep: 8, truthVoxel: 12 };
+    const dir = mkdtempSync(join(tmpdir(), 'rimfill-cone-demo-'));
+    const f = (x: string) => join(dir, x);
+    writeFileSync(f('g.json'), JSON.stringify(coneDemoGeometry(small)));
+    await simulate(['--phantom', 'thorax', '--geometry', f('g.json'), '--photons', String(small.photons), '--seed', String(small.seed), '--out', f('scan.nrrd')]);
+    const cli = await readScanNrrd(readFileSync(f('scan.nrrd')));
+    const { c, store } = coordinator();
+    const fractions: number[] = [];
+    const meta = await c.createConeDemo({ onProgress: (x) => fractions.push(x) }, small);
+    expect(meta.referenceVolume?.grid).toMatchObject({ dx: 12, dz: 12 });
+    expect(meta.referenceVolume!.grid.nz % 2).toBe(1);
+    const page = await loadScan(meta.id, store);
+    expect(page.scan.geometry).toEqual(cli.geometry);
+    let differ = 0;
+    for (let i = 0; i < cli.data.length; i++) if (page.scan.data[i] !== cli.data[i]) differ++;
+    expect(differ).toBe(0);
+    expect(fractions.at(-1)).toBe(1);
+
+    const r = await c.run(meta.id, { method: 'fbp', extend: 'water', grid: { size: 48, pixel: 12 } }, undefined, {});
+    expect(r.volume?.grid).toMatchObject({ nx: 48, dx: 12 });
+    const { volume } = await loadResultVolume(r.id, store);
+    expect(volume.data.length).toBe(48 * 48 * r.volume!.grid.nz);
+    // Figures over the FOV cylinder against the reference volume, and the residual on every ray.
+    expect(r.volumeMetrics!.unit).toBe('HU');
+    expect(r.volumeMetrics!.regions.insideFov!.pixels).toBeGreaterThan(100);
+    expect(r.volumeMetrics!.fovRadiusMm).toBeCloseTo(118.5, 0);
+    expect(r.residual!.rays).toBe(page.scan.data.length);
+    expect(r.metrics!.regions.insideFov).not.toBeNull();
   });
 });
 

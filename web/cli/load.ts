@@ -5,16 +5,16 @@ import { InputError } from '../core/errors';
 import { presetGeometry, PRESET_NAMES } from '../core/geometry/presets';
 import type { Geometry } from '../core/geometry/types';
 import { validateGeometry } from '../core/geometry/validate';
-import { readImage2D } from '../core/formats/read-image';
+import { readImage2D, readImageFile } from '../core/formats/read-image';
 import { readScanFile } from '../core/formats/read-scan';
 import type { ScanReadResult } from '../core/formats/scan-assembly';
-import { readVolumeNrrd } from '../core/formats/volume-nrrd';
+import { asMuVolume, imageAsMu, volumeSlice } from '../core/formats/volume';
 import type { Image2D } from '../core/image';
 import { checkMuWater } from '../core/preprocess/hu-calibration';
 import type { Scan } from '../core/scan';
 import type { OptionType, ParsedArgs } from './args';
 import { gatherFiles } from './gather';
-import { readBytes, readJson } from './io';
+import { readJson } from './io';
 
 /** Options every command that reads a scan accepts (design.md, "Command line"). */
 export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
@@ -90,8 +90,21 @@ export async function loadImage(path: string, what = 'image', muWater?: number, 
   return image;
 }
 
-/** Reads a volume file (NRRD, values as mu). */
-export async function loadVolume(path: string, what = 'volume', muWater?: number): Promise<Volume> {
-  if (!/\.nrrd$/i.test(path)) throw new InputError(`${what} ${path}: expected a .nrrd volume`);
-  return readVolumeNrrd(readBytes(path, what), muWater);
+/**
+ * Reads a volume (file or folder: NRRD, MetaImage, raw + JSON, DICOM series, TIFF stack) as mu;
+ * HU data need mu_water (the file's or given). Warnings: what the reader noticed.
+ */
+export async function loadVolume(path: string, what = 'volume', muWater?: number, a?: ParsedArgs): Promise<{ volume: Volume; warnings: string[] }> {
+  const { volume, warnings } = await readImageFile(gatherFiles(path, what), { maxBytes: memoryLimit(a) });
+  return { volume: asMuVolume(volume, muWater), warnings };
+}
+
+/**
+ * Reads an image or a volume (file or folder) as mu: a volume when the data hold more than one
+ * slice, else an image. HU data need mu_water (the file's or given).
+ */
+export async function loadImageOrVolume(path: string, what: string, muWater?: number): Promise<{ image?: Image2D; volume?: Volume; warnings: string[] }> {
+  const { volume, warnings } = await readImageFile(gatherFiles(path, what));
+  if (volume.nz > 1) return { volume: asMuVolume(volume, muWater), warnings };
+  return { image: imageAsMu(volumeSlice(volume, 0), muWater), warnings };
 }

@@ -38,10 +38,15 @@ export async function dataResidual(ws: Workspace, image: Image2D, scan: Scan, ho
   await proj.forward(img, sino);
   const ax = await ws.read(sino);
   hooks.onProgress?.(1, 'residual');
-  const p = scan.data, nCh = proj.nCh;
+  return residualFigures(ax, scan.data, proj.nViews);
+}
+
+/** Residual figures of re-projected data `ax` against measured `p`, both nViews x (rays per view). */
+export function residualFigures(ax: Float32Array, p: Float32Array, nViews: number): DataResidual {
+  const nCh = p.length / nViews;
   let ss = 0, pp = 0, sum = 0, maxAbs = 0, worstView = 0, worstViewRms = 0;
   const perViewRms: number[] = [];
-  for (let v = 0; v < proj.nViews; v++) {
+  for (let v = 0; v < nViews; v++) {
     let sv = 0;
     for (let k = v * nCh; k < (v + 1) * nCh; k++) {
       const r = ax[k] - p[k];
@@ -55,6 +60,6 @@ export async function dataResidual(ws: Workspace, image: Image2D, scan: Scan, ho
     perViewRms.push(rv);
     if (rv > worstViewRms) [worstView, worstViewRms] = [v, rv];
   }
-  const rays = proj.nViews * nCh;
+  const rays = p.length;
   return { rays, rms: Math.sqrt(ss / rays), relative: pp > 0 ? Math.sqrt(ss / pp) : NaN, bias: sum / rays, maxAbs, worstView, worstViewRms, perViewRms };
 }

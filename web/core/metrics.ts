@@ -77,6 +77,27 @@ function gaussianFilter(src: Float64Array, nx: number, ny: number, taps: Float64
  * it averages the SSIM map over the mask.
  */
 export function ssim(a: Float32Array, b: Float32Array, nx: number, ny: number, dataRange: number, mask?: Uint8Array): number {
+  const map = ssimMap(a, b, nx, ny, dataRange);
+  const pad = ssimBorder();
+  let s = 0, count = 0;
+  for (let j = 0; j < ny; j++) {
+    for (let i = 0; i < nx; i++) {
+      const k = j * nx + i;
+      if (mask ? !mask[k] : i < pad || j < pad || i >= nx - pad || j >= ny - pad) continue;
+      s += map[k];
+      count++;
+    }
+  }
+  return count ? s / count : NaN;
+}
+
+/** Pixels at each image border that the unmasked mean leaves out (half the window). */
+export function ssimBorder(): number {
+  return (gaussianTaps().length - 1) / 2;
+}
+
+/** The SSIM map of ssim() (one value per pixel, before averaging). */
+export function ssimMap(a: Float32Array, b: Float32Array, nx: number, ny: number, dataRange: number): Float64Array {
   const taps = gaussianTaps();
   const n = nx * ny;
   const x = Float64Array.from(a), y = Float64Array.from(b);
@@ -88,16 +109,10 @@ export function ssim(a: Float32Array, b: Float32Array, nx: number, ny: number, d
   }
   const [mx, my, mxx, myy, mxy] = [x, y, xx, yy, xy].map((v) => gaussianFilter(v, nx, ny, taps));
   const c1 = (0.01 * dataRange) ** 2, c2 = (0.03 * dataRange) ** 2;
-  const pad = (taps.length - 1) / 2;
-  let s = 0, count = 0;
-  for (let j = 0; j < ny; j++) {
-    for (let i = 0; i < nx; i++) {
-      const k = j * nx + i;
-      if (mask ? !mask[k] : i < pad || j < pad || i >= nx - pad || j >= ny - pad) continue;
-      const vx = mxx[k] - mx[k] * mx[k], vy = myy[k] - my[k] * my[k], cxy = mxy[k] - mx[k] * my[k];
-      s += ((2 * mx[k] * my[k] + c1) * (2 * cxy + c2)) / ((mx[k] ** 2 + my[k] ** 2 + c1) * (vx + vy + c2));
-      count++;
-    }
+  const out = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const vx = mxx[k] - mx[k] * mx[k], vy = myy[k] - my[k] * my[k], cxy = mxy[k] - mx[k] * my[k];
+    out[k] = ((2 * mx[k] * my[k] + c1) * (2 * cxy + c2)) / ((mx[k] ** 2 + my[k] ** 2 + c1) * (vx + vy + c2));
   }
-  return count ? s / count : NaN;
+  return out;
 }

@@ -3,11 +3,13 @@
 // Metadata and bulk arrays live under separate keys: listing reads only the small records.
 import type { DataResidual } from '../core/data-residual';
 import type { Comparison } from '../core/compare';
+import type { VolumeComparison } from '../core/compare-volume';
 import type { Geometry } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
 import type { ModelInfo } from '../core/model/description';
 import type { ModelSignature } from '../core/model/signature';
 import type { StoredConsistency } from './consistency';
+import type { StoredVolumeInfo, VolumeSlab } from './volumes';
 
 /** Version of the record layout this build writes. */
 export const SCHEMA_VERSION = 1;
@@ -32,6 +34,8 @@ export interface ScanMeta {
   bytes: number;
   /** True when a reference image (ground truth) is stored with the scan. */
   hasReference: boolean;
+  /** Cone-beam scans: the reference volume, stored in slabs (volumes.ts); `reference` is then its central slice. */
+  referenceVolume?: StoredVolumeInfo;
   /** Things the reader noticed about the data (e.g. negative line integrals). */
   warnings: string[];
 }
@@ -77,6 +81,10 @@ export interface ResultMeta {
   /** Wall-clock seconds of the run. */
   seconds: number;
   bytes: number;
+  /** Cone-beam results: the volume, stored in slabs (volumes.ts); the image is its central slice. */
+  volume?: StoredVolumeInfo;
+  /** Comparison of the volume with the scan's reference volume (FOV cylinder), when it has one. */
+  volumeMetrics?: VolumeComparison | null;
   /** Consistency report of the image against the measured data (network prior runs; its residual sinogram is in ResultData). */
   consistency?: StoredConsistency;
 }
@@ -129,7 +137,7 @@ export interface ModelData {
   description: string;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | ModelMeta | ModelData;
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,

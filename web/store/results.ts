@@ -1,22 +1,31 @@
 // Reconstructions in storage: description and pixels written in one transaction.
 import { get, getMany, update, type UseStore } from 'idb-keyval';
 import type { Image2D } from '../core/image';
+import type { Volume } from '../core/volume';
 import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
-import { checkRecord, keys, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
+import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
 import { checkName, newId } from './scans';
+import { loadVolume, slabKeys, volumeEntries } from './volumes';
 
-export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius'>;
+export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius' | 'volume'>;
 
-/** Stores a reconstruction; returns its description. */
-export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore()): Promise<ResultMeta> {
-  const { meta, entries } = resultRecords(input, image);
+/**
+ * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction;
+ * returns its description.
+ */
+export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume): Promise<ResultMeta> {
+  const { meta, entries } = resultRecords(input, image, {}, volume);
   await putAll(entries, store);
   return meta;
 }
 
 /** The records of a new result (for writing several in one transaction with putAll). */
-export function resultRecords(input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}): { meta: ResultMeta; entries: Array<[string, unknown]> } {
+export function resultRecords(
+  input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}, volume?: Volume,
+): { meta: ResultMeta; entries: Array<[string, unknown]> } {
   const id = newId();
+  const slabs = volume ? volumeEntries('result', id, volume) : undefined;
+  const c = extra.consistency;
   const meta: ResultMeta = {
     ...input,
     schema: SCHEMA_VERSION,
@@ -27,10 +36,18 @@ export function resultRecords(input: NewResult, image: Image2D, extra: Partial<P
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength + (extra.consistency ? extra.consistency.residual.byteLength + extra.consistency.flagged.byteLength + (extra.consistency.map?.byteLength ?? 0) : 0),
+    bytes: image.data.byteLength + (volume ? volume.data.byteLength : 0) + (c ? c.residual.byteLength + c.flagged.byteLength + (c.map?.byteLength ?? 0) : 0),
+    ...(slabs ? { volume: slabs.info } : {}),
   };
   const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data, ...extra };
-  return { meta, entries: [[keys.result(id), meta], [keys.resultData(id), data]] };
+  return { meta, entries: [[keys.result(id), meta], [keys.resultData(id), data], ...(slabs?.entries ?? [])] };
+}
+
+/** A stored result's volume (cone-beam scans); throws RecordError when it has none or a slab is damaged. */
+export async function loadResultVolume(id: string, store: UseStore = pageStore()): Promise<{ meta: ResultMeta; volume: Volume }> {
+  const meta = await getResultMeta(id, store);
+  if (!meta.volume) throw new RecordError(`result "${meta.name}" holds an image, not a volume`);
+  return { meta, volume: await loadVolume('result', id, meta.volume, store) };
 }
 
 /** Stored results, oldest first; only those of `scanId` when given. */
@@ -62,7 +79,7 @@ export async function renameResult(id: string, name: string, store: UseStore = p
   await update(keys.result(id), (old) => ({ ...checkRecord<ResultMeta>(old, 'result', keys.result(id)), name: n }), store);
 }
 
-/** Deletes a result. */
+/** Deletes a result (and its volume's slabs). */
 export async function deleteResult(id: string, store: UseStore = pageStore()): Promise<void> {
-  await deleteAll([keys.result(id), keys.resultData(id)], store);
+  await deleteAll([keys.result(id), keys.resultData(id), ...(await slabKeys('result', id, store))], store);
 }

@@ -6,8 +6,10 @@ import { viewCount, type Geometry } from '../core/geometry/types';
 import { checkGeometryMatchesData, validateGeometry } from '../core/geometry/validate';
 import type { Image2D } from '../core/image';
 import type { Scan } from '../core/scan';
+import type { Volume } from '../core/volume';
 import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
-import { checkRecord, keys, SCHEMA_VERSION, type ScanData, type ScanMeta, type ScanSource, type StoredImage } from './records';
+import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ScanData, type ScanMeta, type ScanSource, type StoredImage } from './records';
+import { loadVolume, slabKeys, volumeEntries } from './volumes';
 
 /** A new record id (random, sortable enough for display). */
 export function newId(): string {
@@ -28,6 +30,8 @@ export interface NewScan {
   scan: Scan;
   source: ScanSource;
   reference?: StoredImage;
+  /** Cone-beam scans: the whole reference volume (`reference` then holds its central slice). */
+  referenceVolume?: Volume;
   warnings?: string[];
 }
 
@@ -35,7 +39,8 @@ export interface NewScan {
 export async function saveScan(input: NewScan, store: UseStore = pageStore()): Promise<ScanMeta> {
   const id = newId();
   const { scan } = input;
-  const refBytes = input.reference ? input.reference.data.byteLength : 0;
+  const refBytes = (input.reference ? input.reference.data.byteLength : 0) + (input.referenceVolume ? input.referenceVolume.data.byteLength : 0);
+  const slabs = input.referenceVolume ? volumeEntries('scan', id, input.referenceVolume) : undefined;
   const meta: ScanMeta = {
     schema: SCHEMA_VERSION,
     kind: 'scan',
@@ -48,11 +53,19 @@ export async function saveScan(input: NewScan, store: UseStore = pageStore()): P
     source: input.source,
     bytes: scan.data.byteLength + refBytes,
     hasReference: !!input.reference,
+    ...(slabs ? { referenceVolume: slabs.info } : {}),
     warnings: input.warnings ?? [],
   };
   const data: ScanData = { schema: SCHEMA_VERSION, kind: 'scan-data', id, projections: scan.data, reference: input.reference };
-  await putAll([[keys.scan(id), meta], [keys.scanData(id), data]], store);
+  await putAll([[keys.scan(id), meta], [keys.scanData(id), data], ...(slabs?.entries ?? [])], store);
   return meta;
+}
+
+/** A cone-beam scan's reference volume; throws RecordError when it has none or a slab is damaged. */
+export async function loadReferenceVolume(id: string, store: UseStore = pageStore()): Promise<Volume> {
+  const meta = await getScanMeta(id, store);
+  if (!meta.referenceVolume) throw new RecordError(`scan "${meta.name}" has no reference volume`);
+  return loadVolume('scan', id, meta.referenceVolume, store);
 }
 
 /** Every stored scan's description, oldest first. */
@@ -98,16 +111,15 @@ export async function setScanGeometry(id: string, geometry: unknown, store: UseS
   return next;
 }
 
-/** Deletes a scan, its projections and every result made from it, in one transaction. */
+/** Deletes a scan, its projections, reference volume and every result made from it (with their volumes), in one transaction. */
 export async function deleteScan(id: string, store: UseStore = pageStore()): Promise<void> {
   const resultKeys = await keysWithPrefix('result/', store);
   const metas = await getMany(resultKeys, store);
-  const doomed: string[] = [keys.scan(id), keys.scanData(id)];
-  metas.forEach((m, i) => {
-    if ((m as { scanId?: string } | undefined)?.scanId === id) {
-      const rid = resultKeys[i].slice('result/'.length);
-      doomed.push(keys.result(rid), keys.resultData(rid));
-    }
-  });
+  const doomed: string[] = [keys.scan(id), keys.scanData(id), ...(await slabKeys('scan', id, store))];
+  for (let i = 0; i < metas.length; i++) {
+    if ((metas[i] as { scanId?: string } | undefined)?.scanId !== id) continue;
+    const rid = resultKeys[i].slice('result/'.length);
+    doomed.push(keys.result(rid), keys.resultData(rid), ...(await slabKeys('result', rid, store)));
+  }
   await deleteAll(doomed, store);
 }

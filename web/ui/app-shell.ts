@@ -23,6 +23,8 @@ import './results-view';
 import './run-queue';
 import './scan-library';
 import './scan-view';
+import './volume-view';
+import { volumeChoices, volumeLoader } from './volume-choices';
 
 type Tab = 'scan' | 'reconstruct' | 'images' | 'prior';
 
@@ -46,7 +48,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
-    importing: { state: true }, importError: { state: true }, demoBusy: { state: true }, demoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -65,6 +67,8 @@ export class AppShell extends LitElement {
   declare importError: string;
   declare demoBusy: boolean;
   declare demoFraction: number;
+  declare coneDemoBusy: boolean;
+  declare coneDemoFraction: number;
   declare storage: StorageUse;
   declare engine: EngineInfo | undefined;
   declare alert: string;
@@ -109,6 +113,8 @@ export class AppShell extends LitElement {
     this.importError = '';
     this.demoBusy = false;
     this.demoFraction = 0;
+    this.coneDemoBusy = false;
+    this.coneDemoFraction = 0;
     this.storage = {};
     this.engine = undefined;
     this.alert = '';
@@ -145,6 +151,21 @@ export class AppShell extends LitElement {
       this.alert = `The demo scan could not be made: ${message(err)}`;
     } finally {
       this.demoBusy = false;
+    }
+  }
+
+  /** The cone-beam demo, made only when asked for (the first visit stays quick). */
+  private async createConeDemo() {
+    this.coneDemoBusy = true;
+    this.coneDemoFraction = 0;
+    try {
+      const meta = await this.client.createConeDemo({ onProgress: (p) => (this.coneDemoFraction = p.fraction) });
+      await this.refreshLibrary();
+      await this.selectScan(meta.id);
+    } catch (err) {
+      this.alert = `The cone-beam demo could not be made: ${message(err)}`;
+    } finally {
+      this.coneDemoBusy = false;
     }
   }
 
@@ -358,7 +379,8 @@ export class AppShell extends LitElement {
         this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       })}
-      @reference-change=${(e: CustomEvent) => this.setReference(e.detail.id)}></rf-results-view>`;
+      @reference-change=${(e: CustomEvent) => this.setReference(e.detail.id)}></rf-results-view>
+      ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .load=${volumeLoader(scan.id)}></rf-volume-view>` : nothing}`;
   }
 
   private priorTab(scan: ScanMeta) {
@@ -387,7 +409,7 @@ export class AppShell extends LitElement {
       <div class="body">
         <aside>
           <rf-scan-library .scans=${this.scans} .selectedId=${this.selectedScanId} ?importing=${this.importing} .importError=${this.importError}
-            ?demoBusy=${this.demoBusy} .storage=${this.storage}
+            ?demoBusy=${this.demoBusy} ?coneDemoBusy=${this.coneDemoBusy} .coneDemoFraction=${this.coneDemoFraction} .storage=${this.storage}
             .libraryBytes=${this.scans.reduce((a, s) => a + s.bytes, 0) + this.results.reduce((a, r) => a + r.bytes, 0)}
             @scan-select=${(e: CustomEvent) => this.selectScan(e.detail.id)}
             @scan-rename=${(e: CustomEvent) => this.storeAction(() => renameScan(e.detail.id, e.detail.name))}
@@ -395,6 +417,7 @@ export class AppShell extends LitElement {
             @files-chosen=${(e: CustomEvent) => this.importFiles(e.detail.files)}
             @import-error-dismiss=${() => (this.importError = '')}
             @demo-request=${() => this.createDemo()}
+            @cone-demo-request=${() => this.createConeDemo()}
             @persist-request=${async () => { await requestPersistence(); await this.storageUseRefresh(); }}></rf-scan-library>
         </aside>
         <main>

@@ -5,8 +5,8 @@ import { INITIAL_VIEW, pan, scaleFor, toImage, toScreen, zoomAbout, type ViewSta
 import { dragWindow, type DisplayWindow } from './logic/window-level';
 import { theme } from './theme';
 
-/** What a left-button drag does. */
-export type Tool = 'window' | 'move' | 'line' | 'region';
+/** What a left-button drag does ('slice': move the crosshair of a volume's planes). */
+export type Tool = 'window' | 'move' | 'line' | 'region' | 'slice';
 
 export interface LineMark {
   p0: Point;
@@ -29,13 +29,14 @@ const fire = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEven
  * @fires cursor-change - detail: { point } (mm) or { point: null } when the pointer leaves
  * @fires line-change - detail: { line } while drawing with the line tool
  * @fires region-change - detail: { region } while drawing with the region tool
+ * @fires crosshair-change - detail: { point } (mm) on press and drag with the slice tool
  * @fires panel-focus - the panel was clicked (it becomes the one exported)
  */
 export class ImageViewer extends LitElement {
   static properties = {
     image: { attribute: false }, window: { attribute: false }, view: { attribute: false }, cursor: { attribute: false },
     tool: { type: String }, line: { attribute: false }, region: { attribute: false }, colour: { type: String },
-    showFov: { type: Boolean }, active: { type: Boolean },
+    showFov: { type: Boolean }, active: { type: Boolean }, crosshair: { attribute: false },
   };
   /** The image in display units. */
   declare image: DisplayImage;
@@ -52,6 +53,8 @@ export class ImageViewer extends LitElement {
   declare showFov: boolean;
   /** This panel is the one exports use. */
   declare active: boolean;
+  /** Where the other planes of a volume cut this one, mm (null: no crosshair). */
+  declare crosshair: Point | null;
 
   private cache?: { values: Float32Array; width: number; level: number; canvas: HTMLCanvasElement };
   private size = { w: 0, h: 0 };
@@ -80,6 +83,7 @@ export class ImageViewer extends LitElement {
     this.colour = '#888';
     this.showFov = true;
     this.active = false;
+    this.crosshair = null;
   }
 
   disconnectedCallback() {
@@ -140,15 +144,34 @@ export class ImageViewer extends LitElement {
     ctx.imageSmoothingEnabled = s * g.dx < 3;
     ctx.drawImage(this.windowed(), corner.x, corner.y, g.nx * g.dx * s, g.ny * g.dy * s);
     const at = (p: Point) => toScreen(p, g, w, h, this.view);
-    if (this.showFov && this.image.fovRadius) {
-      const c = at({ x: 0, y: 0 });
+    if (this.showFov && (this.image.fovRadius || this.image.outline)) {
       ctx.setLineDash([6, 5]);
       ctx.strokeStyle = 'rgba(111, 179, 224, 0.85)';
       ctx.lineWidth = 1.2;
       ctx.beginPath();
-      ctx.arc(c.x, c.y, this.image.fovRadius * s, 0, 2 * Math.PI);
+      if (this.image.fovRadius) {
+        const c = at({ x: 0, y: 0 });
+        ctx.arc(c.x, c.y, this.image.fovRadius * s, 0, 2 * Math.PI);
+      }
+      this.image.outline?.forEach((p, i) => {
+        const q = at(p);
+        if (i) ctx.lineTo(q.x, q.y);
+        else ctx.moveTo(q.x, q.y);
+      });
+      if (this.image.outline) ctx.closePath();
       ctx.stroke();
       ctx.setLineDash([]);
+    }
+    if (this.crosshair) {
+      const c = at(this.crosshair);
+      ctx.strokeStyle = 'rgba(255, 176, 64, 0.75)';
+      ctx.lineWidth = 1;
+      ctx.beginPath();
+      ctx.moveTo(0, c.y);
+      ctx.lineTo(w, c.y);
+      ctx.moveTo(c.x, 0);
+      ctx.lineTo(c.x, h);
+      ctx.stroke();
     }
     if (this.line) {
       const a = at(this.line.p0), b = at(this.line.p1);
@@ -199,6 +222,7 @@ export class ImageViewer extends LitElement {
     const { p } = this.point(e);
     (e.currentTarget as HTMLElement).setPointerCapture(e.pointerId);
     this.drag = { mode, x: e.clientX, y: e.clientY, window: this.window, view: this.view, p0: p };
+    if (mode === 'slice') fire(this, 'crosshair-change', { point: p });
     e.preventDefault();
   }
 
@@ -212,6 +236,7 @@ export class ImageViewer extends LitElement {
     if (d.mode === 'window') fire(this, 'window-change', { window: dragWindow(d.window, dx, dy) });
     else if (d.mode === 'move') fire(this, 'view-change', { view: pan(d.view, dx, dy, this.image.grid, this.size.w, this.size.h) });
     else if (d.mode === 'line') fire(this, 'line-change', { line: { p0: d.p0, p1: p } });
+    else if (d.mode === 'slice') fire(this, 'crosshair-change', { point: p });
     else fire(this, 'region-change', { region: { centre: d.p0, radius: Math.hypot(p.x - d.p0.x, p.y - d.p0.y) } });
   }
 
@@ -231,6 +256,7 @@ export class ImageViewer extends LitElement {
     if (!this.image) return nothing;
     const v = this.cursor ? pixelAt(this.image.values, this.image.grid, this.cursor) : NaN;
     const unit = this.image.unit;
+    const axes = this.image.axes ?? ['x', 'y'];
     const fmt = (x: number) => (unit === 'HU' ? x.toFixed(0) : x.toPrecision(4));
     return html`<div class="panel ${this.active ? 'active' : ''}">
         <canvas aria-label=${`Image: ${this.image.label}`}
@@ -242,7 +268,7 @@ export class ImageViewer extends LitElement {
         <div class="corner num">W ${fmt(this.window.width)} · L ${fmt(this.window.level)} ${unit}</div>
       </div>
       <div class="readout num">${this.cursor
-        ? html`x ${this.cursor.x.toFixed(1)} mm, y ${this.cursor.y.toFixed(1)} mm: <strong>${Number.isFinite(v) ? `${fmt(v)} ${unit}` : 'outside the image'}</strong>`
+        ? html`${axes[0]} ${this.cursor.x.toFixed(1)} mm, ${axes[1]} ${this.cursor.y.toFixed(1)} mm: <strong>${Number.isFinite(v) ? `${fmt(v)} ${unit}` : 'outside the image'}</strong>`
         : html`&nbsp;`}</div>`;
   }
 }

@@ -15,6 +15,7 @@ const emit = (el: HTMLElement, name: string, detail: unknown = {}) =>
  * @fires scan-rename - detail: { id, name }
  * @fires scan-delete - detail: { id }
  * @fires demo-request - the user asks for the demo scan (shown when it is not in the library)
+ * @fires cone-demo-request - the user asks for the cone-beam demo scan (likewise)
  * @fires files-chosen - from the drop area, detail: { files }
  * @fires import-error-dismiss - the user closed the import error
  */
@@ -25,6 +26,8 @@ export class ScanLibrary extends LitElement {
     importing: { type: Boolean },
     importError: { type: String },
     demoBusy: { type: Boolean },
+    coneDemoBusy: { type: Boolean },
+    coneDemoFraction: { type: Number },
     storage: { attribute: false },
     libraryBytes: { type: Number },
     editing: { state: true },
@@ -40,6 +43,9 @@ export class ScanLibrary extends LitElement {
   declare importError: string;
   /** The demo scan is being made. */
   declare demoBusy: boolean;
+  /** The cone-beam demo scan is being made, and how far it got (0 to 1). */
+  declare coneDemoBusy: boolean;
+  declare coneDemoFraction: number;
   /** What the browser reports about storage. */
   declare storage: StorageUse;
   /** Bytes of scans and results stored. */
@@ -74,6 +80,8 @@ export class ScanLibrary extends LitElement {
     this.importing = false;
     this.importError = '';
     this.demoBusy = false;
+    this.coneDemoBusy = false;
+    this.coneDemoFraction = 0;
     this.storage = {};
     this.libraryBytes = 0;
     this.editing = '';
@@ -121,7 +129,8 @@ export class ScanLibrary extends LitElement {
   }
 
   render() {
-    const hasDemo = this.scans.some((s) => s.source.type === 'demo');
+    const hasDemo = this.scans.some((s) => s.source.type === 'demo' && s.geometry.kind !== 'cone');
+    const hasConeDemo = this.scans.some((s) => s.source.type === 'demo' && s.geometry.kind === 'cone');
     return html`
       <h2>Scans</h2>
       <rf-file-drop ?busy=${this.importing}></rf-file-drop>
@@ -131,6 +140,10 @@ export class ScanLibrary extends LitElement {
         ? html`<ul role="listbox" aria-label="Stored scans">${this.scans.map((s) => this.item(s))}</ul>`
         : html`<p class="empty">${this.demoBusy ? 'Preparing the demo scan…' : 'No scans stored yet.'}</p>`}
       ${!hasDemo && !this.demoBusy ? html`<div><button class="small" @click=${() => emit(this, 'demo-request')}>Add the demo scan</button></div>` : nothing}
+      ${this.coneDemoBusy
+        ? html`<div class="sub">Simulating the cone-beam demo scan and its ground-truth volume…<progress max="1" .value=${this.coneDemoFraction}></progress></div>`
+        : !hasConeDemo ? html`<div><button class="small" id="cone-demo" title="A truncated C-arm cone-beam scan of the 3D thorax phantom, with its ground-truth volume (made in the page, about 20 MB)"
+            @click=${() => emit(this, 'cone-demo-request')}>Add the cone-beam demo scan</button></div>` : nothing}
       <rf-storage-meter .use=${this.storage} .storedBytes=${this.libraryBytes}></rf-storage-meter>
     `;
   }

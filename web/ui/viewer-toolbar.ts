@@ -12,6 +12,8 @@ const TOOLS: Array<{ tool: Tool; label: string; title: string }> = [
   { tool: 'region', label: 'Region', title: 'Drag out a circle to measure mean and SD inside it' },
 ];
 
+const SLICE_TOOL = { tool: 'slice' as Tool, label: 'Slices', title: 'Click or drag in one plane to move the other planes through that point' };
+
 const send = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
 
 /**
@@ -25,7 +27,7 @@ const send = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatc
 export class ViewerToolbar extends LitElement {
   static properties = {
     window: { attribute: false }, unit: { type: String }, tool: { type: String },
-    showFov: { type: Boolean }, showDifference: { type: Boolean }, canDifference: { type: Boolean },
+    showFov: { type: Boolean }, showDifference: { type: Boolean }, canDifference: { type: Boolean }, sliceTool: { type: Boolean },
   };
   declare window: DisplayWindow;
   declare unit: DisplayUnit;
@@ -35,6 +37,8 @@ export class ViewerToolbar extends LitElement {
   declare showDifference: boolean;
   /** A reference exists to take differences from. */
   declare canDifference: boolean;
+  /** Offer the slice tool (planes of a volume) and hide the difference switch. */
+  declare sliceTool: boolean;
 
   static styles = [theme, css`
     :host { display: flex; flex-wrap: wrap; gap: 8px 18px; align-items: center; }
@@ -66,12 +70,12 @@ export class ViewerToolbar extends LitElement {
       </div>
       <div class="group" role="group" aria-label="Drag tool">
         <label>Drag</label>
-        ${TOOLS.map((t) => html`<button class="small" data-tool=${t.tool} aria-pressed=${this.tool === t.tool} title=${t.title} @click=${() => send(this, 'tool-change', { tool: t.tool })}>${t.label}</button>`)}
+        ${(this.sliceTool ? [SLICE_TOOL, ...TOOLS] : TOOLS).map((t) => html`<button class="small" data-tool=${t.tool} aria-pressed=${this.tool === t.tool} title=${t.title} @click=${() => send(this, 'tool-change', { tool: t.tool })}>${t.label}</button>`)}
       </div>
       <div class="group">
         <label class="check"><input type="checkbox" .checked=${live(this.showFov)} @change=${(e: Event) => send(this, 'fov-toggle', { show: (e.target as HTMLInputElement).checked })}>Field of view</label>
-        <label class="check"><input type="checkbox" name="difference" .checked=${live(this.showDifference)} ?disabled=${!this.canDifference}
-          @change=${(e: Event) => send(this, 'difference-toggle', { show: (e.target as HTMLInputElement).checked })}>Difference from reference</label>
+        ${this.sliceTool ? nothing : html`<label class="check"><input type="checkbox" name="difference" .checked=${live(this.showDifference)} ?disabled=${!this.canDifference}
+          @change=${(e: Event) => send(this, 'difference-toggle', { show: (e.target as HTMLInputElement).checked })}>Difference from reference</label>`}
       </div>`;
   }
 }

@@ -14,6 +14,7 @@ export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string
 export type AppRequest =
   | { op: 'import'; files: File[]; name?: string }
   | { op: 'demo' }
+  | { op: 'demo-cone' }
   | { op: 'run'; scanId: string; recipe: unknown; name?: string }
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
@@ -24,6 +25,7 @@ export type AppRequest =
 export interface AppReplies {
   import: ScanMeta;
   demo: ScanMeta;
+  'demo-cone': ScanMeta;
   run: ResultMeta;
   compare: Comparison;
   info: EngineInfo;

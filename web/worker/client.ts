@@ -82,6 +82,11 @@ export class EngineClient {
     return this.call({ op: 'demo' }, options);
   }
 
+  /** Simulates and stores the cone-beam demo scan (made only when asked for). */
+  createConeDemo(options: CallOptions = {}): Promise<AppReplies['demo-cone']> {
+    return this.call({ op: 'demo-cone' }, options);
+  }
+
   /** Runs a recipe on a stored scan; resolves to the stored result. */
   run(scanId: string, recipe: unknown, options: CallOptions & { name?: string } = {}): Promise<AppReplies['run']> {
     return this.call({ op: 'run', scanId, recipe, name: options.name }, options);

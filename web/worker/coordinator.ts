@@ -1,22 +1,26 @@
 // The coordinator: imports, the demo, recipe runs and comparisons, off the page's main thread.
 // It is the only writer of scans and results; runs take turns on one engine workspace.
 import { compareImages, type Comparison } from '../core/compare';
+import { compareVolumes, type VolumeComparison } from '../core/compare-volume';
 import { dataResidual } from '../core/data-residual';
 import { InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
+import type { Volume } from '../core/volume';
 import { recipeSummary } from '../core/recipe/fields';
 import { validateRecipe } from '../core/recipe/recipe';
 import { runRecipe } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
+import { volumeDataResidual } from '../core/volume-residual';
 import { pageStore, type UseStore } from '../store/db';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import { loadResultImage, saveResult } from '../store/results';
-import { loadScan, saveScan } from '../store/scans';
+import { loadReferenceVolume, loadScan, saveScan } from '../store/scans';
 import { saveSettings } from '../store/settings';
 import type { NetworkRunner } from '../core/model/runner';
 import { saveModel } from '../store/models';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
+import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
 import { checkModelFiles } from './import-model-files';
 import { readScanFiles } from './import-scan';
@@ -49,6 +53,8 @@ export class Coordinator {
         return (await this.importScan(r.files, r.name, hooks)) as AppReplies[K];
       case 'demo':
         return (await this.createDemo(hooks)) as AppReplies[K];
+      case 'demo-cone':
+        return (await this.createConeDemo(hooks)) as AppReplies[K];
       case 'run':
         return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks))) as AppReplies[K];
       case 'compare':
@@ -102,18 +108,32 @@ export class Coordinator {
     return meta;
   }
 
+  /** Simulates and stores the cone-beam demo scan with its reference volume. */
+  async createConeDemo(hooks: RunHooks, settings: ConeDemoSettings = CONE_DEMO): Promise<ScanMeta> {
+    const { scan, reference, referenceVolume } = await buildConeDemoScan(hooks, settings);
+    throwIfCancelled(hooks.signal);
+    const d = scan.geometry.detector;
+    return saveScan({
+      name: CONE_DEMO_NAME,
+      scan,
+      reference,
+      referenceVolume,
+      source: { type: 'demo', description: `Simulated by the page: 3D thorax phantom with arms, 60 keV, ${settings.photons} photons per ray, C-arm flat panel of ${d.channels} x ${d.rows} cells of ${d.pitch[0]} mm on a 200-degree arc (FOV radius 118 mm).` },
+    }, this.store);
+  }
+
   /** Reconstructs a stored scan and stores the result with its comparison to the scan's reference. */
   async run(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks): Promise<ResultMeta> {
     const t0 = performance.now();
     const recipe = validateRecipe(recipeInput);
-    const { scan, reference } = await loadScan(scanId, this.store);
+    const { meta: scanMeta, scan, reference } = await loadScan(scanId, this.store);
     throwIfCancelled(hooks.signal);
     const ws = await this.openWorkspace();
     const out = await runRecipe(ws, scan, recipe, hooks);
     throwIfCancelled(hooks.signal);
     const warnings = [...out.warnings];
-    const bad = countNonFinite(out.image.data);
-    if (bad) warnings.push(`${bad} pixels are not finite numbers (NaN or infinity): the image is not trustworthy`);
+    const bad = countNonFinite(out.volume?.data ?? out.image.data);
+    if (bad) warnings.push(`${bad} ${out.volume ? 'voxels' : 'pixels'} are not finite numbers (NaN or infinity): the ${out.volume ? 'volume' : 'image'} is not trustworthy`);
     let metrics: Comparison | null = null;
     if (reference) {
       try {
@@ -123,8 +143,10 @@ export class Coordinator {
         warnings.push(`no comparison with the reference: ${err.message}`);
       }
     }
+    let volumeMetrics: VolumeComparison | null | undefined;
+    if (out.volume) volumeMetrics = scanMeta.referenceVolume && !bad ? await this.compareWithReferenceVolume(scanId, out.volume, hooks) : null;
     hooks.onProgress?.(0.99, 'checking against the measured data');
-    const residual = await dataResidual(ws, out.image, scan, hooks);
+    const residual = out.volume ? await volumeDataResidual(ws, out.volume, scan, hooks) : await dataResidual(ws, out.image, scan, hooks);
     hooks.onProgress?.(1, 'storing');
     return saveResult({
       scanId,
@@ -135,7 +157,15 @@ export class Coordinator {
       metrics,
       residual,
       seconds: (performance.now() - t0) / 1000,
-    }, out.image, this.store);
+      ...(out.volume ? { volumeMetrics } : {}),
+    }, out.image, this.store, out.volume);
+  }
+
+  /** The volume against the scan's reference volume, inside and outside its FOV cylinder. */
+  private async compareWithReferenceVolume(scanId: string, volume: Volume, hooks: RunHooks): Promise<VolumeComparison> {
+    hooks.onProgress?.(0.97, 'comparing with the reference volume');
+    const reference = await loadReferenceVolume(scanId, this.store);
+    return compareVolumes(volume, reference, { fovRadius: volume.fovRadius, fovHalfHeight: volume.fovHalfHeight });
   }
 
   /** Compares a stored result with its scan's reference image or with another result. */

@@ -2,13 +2,18 @@
 import { compareImages, type Comparison } from '../../core/compare';
 import { dataResidual, type DataResidual } from '../../core/data-residual';
 import { InputError } from '../../core/errors';
-import { parseArgs } from '../args';
+import type { Image2D } from '../../core/image';
+import type { Scan } from '../../core/scan';
+import type { Volume } from '../../core/volume';
+import { volumeDataResidual } from '../../core/volume-residual';
+import { parseArgs, type ParsedArgs } from '../args';
 import { openWorkspace } from '../engine-node';
-import { loadImage, loadScan, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
+import { loadImage, loadImageOrVolume, loadScan, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
+import { compareVolumeFiles } from './compare-volume';
 import type { CommandResult } from './types';
 
 export const compareHelp = `rimfill compare image.nrrd [--reference truth.nrrd] [--scan scan.nrrd] [--fov]
-    [--fov-radius mm] [--workers N] [--json]
+    [--fov-radius mm] [--fov-half-height mm] [--per-slice] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   With --reference: RMSE (HU when mu_water is known), PSNR and SSIM (Wang et al. 2004) over the
   image, the object, and with --fov inside and outside the measured field of view (radius from
@@ -35,14 +40,35 @@ function residualLine(r: DataResidual): string {
   return `data residual on the measured channels: RMS ${r.rms.toPrecision(3)} (relative ${(100 * r.relative).toFixed(2)}%), bias ${r.bias.toPrecision(3)}, worst view ${r.worstView} (RMS ${r.worstViewRms.toPrecision(3)})`;
 }
 
+/** The data residual of an image or volume against a scan, on a workspace opened for it. */
+async function residualOf(a: ParsedArgs, scan: Scan, image: Image2D | undefined, volume: Volume | undefined): Promise<DataResidual> {
+  const ws = await openWorkspace(a.options.workers as number | undefined);
+  try {
+    return volume ? await volumeDataResidual(ws, volume, scan) : await dataResidual(ws, image!, scan);
+  } finally {
+    ws.dispose();
+  }
+}
+
 export async function compare(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { ...SCAN_INPUT_OPTIONS, reference: 'string', scan: 'string', fov: 'flag', 'fov-radius': 'number', workers: 'int', json: 'flag' }, 1);
+  const a = parseArgs(argv, {
+    ...SCAN_INPUT_OPTIONS, reference: 'string', scan: 'string', fov: 'flag', 'fov-radius': 'number', 'fov-half-height': 'number',
+    'per-slice': 'flag', workers: 'int', json: 'flag',
+  }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('compare: give the image file, e.g. rimfill compare image.nrrd --reference truth.nrrd');
   const refPath = a.options.reference as string | undefined, scanPath = a.options.scan as string | undefined;
   if (!refPath && !scanPath) throw new InputError('compare: give --reference truth.nrrd, --scan scan.nrrd, or both');
-  const image = await loadImage(path, 'image', a.options['mu-water'] as number | undefined);
+  const loaded = await loadImageOrVolume(path, 'image', a.options['mu-water'] as number | undefined);
   const scan = scanPath ? await loadScan(scanPath, a) : undefined;
+  if (loaded.volume) {
+    const v = await compareVolumeFiles(a, loaded.volume, refPath);
+    const residual = scan ? await residualOf(a, scan, undefined, loaded.volume) : undefined;
+    const text = [v.text, residual ? residualLine(residual) : ''].filter(Boolean).join('\n');
+    return { json: { ...(v.comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...loaded.warnings, ...(v.comparison?.notes ?? [])] };
+  }
+  if (a.options['per-slice'] || a.options['fov-half-height'] !== undefined) throw new InputError('options --per-slice and --fov-half-height: only for volumes (this image has one slice)');
+  const image = loaded.image!;
   let comparison: Comparison | undefined;
   if (refPath) {
     const reference = await loadImage(refPath, 'reference', image.muWater);
@@ -54,15 +80,7 @@ export async function compare(argv: string[]): Promise<CommandResult> {
     }
     comparison = compareImages(image, reference, fov);
   }
-  let residual: DataResidual | undefined;
-  if (scan) {
-    const ws = await openWorkspace(a.options.workers as number | undefined);
-    try {
-      residual = await dataResidual(ws, image, scan);
-    } finally {
-      ws.dispose();
-    }
-  }
+  const residual = scan ? await residualOf(a, scan, image, undefined) : undefined;
   const text = [comparison ? table(comparison) : '', residual ? residualLine(residual) : ''].filter(Boolean).join('\n');
-  return { json: { ...(comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: comparison?.notes };
+  return { json: { ...(comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...loaded.warnings, ...(comparison?.notes ?? [])] };
 }

@@ -25,8 +25,9 @@ ${SCAN_INPUT_HELP}
   edge (constant + roll-off), mirror (Ohnesorge 2000), water (Hsieh 2004), cosine (taper), each
   as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).
   A cone-beam scan gives a volume (FDK for --method fbp): N x N voxels (default 256 across the
-  field of view) and --slices slices of --slice-spacing mm (default: cubic voxels covering the
-  measured height).
+  field of view or the estimated object) and --slices slices of --slice-spacing mm (default:
+  cubic voxels covering the measured height); --extend works row by row on cone-beam scans, and
+  the iterative methods reconstruct the volume with the 3D projector (6-neighbour TV).
 ${ITERATIVE_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
@@ -99,7 +100,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
       const vg = v.grid;
       return {
         json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, FDK in ${seconds.toFixed(2)} s`,
+        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
         warnings: [...readWarnings, ...r.warnings],
       };
     }

@@ -8,7 +8,7 @@ import type { Geometry } from '../../core/geometry/types';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
 import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
-import { namedSolidPhantom } from '../../core/phantoms/solid-phantoms';
+import { namedSolidPhantom, SOLID_PHANTOM_NAMES } from '../../core/phantoms/solid-phantoms';
 import { voxelize } from '../../core/phantoms/solid';
 import { Projector3d } from '../../core/recon/projector3d';
 import type { Scan } from '../../core/scan';
@@ -61,8 +61,12 @@ export async function simulateCone(a: ParsedArgs, full: Geometry): Promise<Comma
   let data: Float32Array;
   let truth: Volume | undefined;
   let muWater: number | undefined;
-  if (/\.nrrd$/i.test(phantomArg)) {
-    truth = await loadVolume(phantomArg, 'phantom');
+  const readWarnings: string[] = [];
+  if (!(SOLID_PHANTOM_NAMES as readonly string[]).includes(phantomArg)) {
+    // A volume file or folder (NRRD, MetaImage, raw + JSON, DICOM series, TIFF), forward projected.
+    const loaded = await loadVolume(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a);
+    readWarnings.push(...loaded.warnings);
+    truth = loaded.volume;
     muWater = truth.muWater;
     data = await projectVolume(truth, full, a.options.workers as number | undefined);
   } else {
@@ -105,7 +109,7 @@ export async function simulateCone(a: ParsedArgs, full: Geometry): Promise<Comma
     photons: photons ?? null,
     zeroCountReadings: zeroCounts,
   };
-  const warnings = zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : [];
+  const warnings = [...readWarnings, ...(zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : [])];
   return {
     json: summary,
     text: `wrote ${out}: ${summary.views} views x ${d.rows} rows x ${d.channels} channels, FOV radius ${summary.fovRadiusMm.toFixed(1)} mm, half height ${summary.fovHalfHeightMm.toFixed(1)} mm`,

@@ -31,8 +31,9 @@ export const simulateHelp = `rimfill simulate --phantom <name|image file> --geom
   object; --truth writes the object on a grid (--size x --size pixels of --pixel mm, default:
   covering the object). An image phantom may be NRRD, MetaImage, raw + JSON, DICOM (file or
   series folder; HU need --mu-water) or TIFF; --slice picks one slice of a volume.
-  Cone-beam geometries (e.g. --geometry demo-cone) simulate 3D phantoms or volume files; the
-  truth is then a volume of --slices slices (default: the measured height).`;
+  Cone-beam geometries (e.g. --geometry demo-cone) simulate 3D phantoms or volumes (any of the
+  image formats above, e.g. a DICOM series folder; HU need --mu-water); the truth is then a
+  volume of --slices slices (default: the measured height).`;
 
 export async function simulate(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {

@@ -22,7 +22,8 @@ export type KernelName =
   | 'josephForwardCone' | 'josephAdjointCone'
   | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
   | 'tvScale' | 'tvGradient' | 'tvWeights'
-  | 'padImageRows' | 'unpadSumRows';
+  | 'padImageRows' | 'unpadSumRows'
+  | 'tv3Scale' | 'tv3Gradient' | 'tv3Weights';
 
 /** The exports of an engine instance, as the host sees them. */
 export type EngineExports = Record<KernelName, (...args: number[]) => number> & {

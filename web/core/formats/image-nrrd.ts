@@ -1,6 +1,6 @@
 // Images as NRRD with "space directions" and "space origin" (mm, origin = centre of the first
 // pixel) and rimfill.quantity mu | hu (design.md); 2D images or 3D volumes. Axis-aligned
-// directions only; a negative direction along x or y is turned positive by flipping the data.
+// directions only; a negative direction is turned positive by flipping the data along that axis.
 import { InputError } from '../errors';
 import type { Image2D } from '../image';
 import type { ReadLimits } from './limits';
@@ -14,6 +14,14 @@ function vectors(text: string | undefined): number[][] {
   return [...text.matchAll(/\(([^)]*)\)|none/g)].map((m) => (m[1] === undefined ? [] : m[1].split(',').map(Number)));
 }
 
+/** A non-negative length from a key, or undefined when absent. */
+function optionalLength(keys: Record<string, string>, key: string, what: string): number | undefined {
+  if (keys[key] === undefined) return undefined;
+  const v = Number(keys[key]);
+  if (!(v >= 0) || !Number.isFinite(v)) throw new InputError(`image ${key}: got "${keys[key]}", expected ${what}`);
+  return v;
+}
+
 /** Reads a 2D image or 3D volume from NRRD (files[0]; a detached data file among the rest). */
 export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: ReadLimits): Promise<ImageVolume> {
   const n = await parseNrrd(files[0].bytes, { ...limits, files });
@@ -22,8 +30,11 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
   const dirs = vectors(n.fields['space directions']).filter((v) => v.length > 0);
   const spacing: [number, number, number] = [1, 1, 1];
   const signs = [1, 1, 1];
+  if (dirs.length > 0 && dirs.length !== n.sizes.length) {
+    throw new InputError(`image space directions: got "${n.fields['space directions']}", expected ${n.sizes.length} vectors, one per axis (mm)`);
+  }
   if (dirs.length >= 2) {
-    dirs.slice(0, n.sizes.length).forEach((d, axis) => {
+    dirs.forEach((d, axis) => {
       const len = Math.hypot(...d);
       if (!(len > 0) || d.some((x, k) => k !== axis && Math.abs(x) > 1e-6 * len)) {
         throw new InputError(`image space directions: got "${n.fields['space directions']}", expected axis-aligned directions (resample rotated images first)`);
@@ -40,13 +51,13 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
   if (o.some((x) => !Number.isFinite(x))) throw new InputError(`image space origin: got "${n.fields['space origin']}", expected finite coordinates in mm`);
   const quantity = n.keys['rimfill.quantity'] ?? 'unknown';
   if (quantity !== 'mu' && quantity !== 'hu' && quantity !== 'unknown') throw new InputError(`image rimfill.quantity: got "${quantity}", expected mu or hu`);
-  const fov = n.keys['rimfill.fovRadius'] !== undefined ? Number(n.keys['rimfill.fovRadius']) : undefined;
-  if (fov !== undefined && !(fov >= 0)) throw new InputError(`image rimfill.fovRadius: got "${n.keys['rimfill.fovRadius']}", expected a radius in mm`);
+  const fov = optionalLength(n.keys, 'rimfill.fovRadius', 'a radius in mm');
+  const fovHalfHeight = optionalLength(n.keys, 'rimfill.fovHalfHeight', 'a half height in mm');
   const volume: ImageVolume = {
     nx, ny, nz, spacing, origin: o, data: n.data, quantity: quantity as VolumeQuantity,
-    muWater: positiveKey(n.keys['rimfill.muWater'], 'image rimfill.muWater', 'mu of water in 1/mm'), fovRadius: fov, format: 'NRRD',
+    muWater: positiveKey(n.keys['rimfill.muWater'], 'image rimfill.muWater', 'mu of water in 1/mm'), fovRadius: fov, fovHalfHeight, format: 'NRRD',
   };
-  return flipAxes(volume, signs[0] < 0, signs[1] < 0);
+  return flipAxes(volume, signs[0] < 0, signs[1] < 0, signs[2] < 0);
 }
 
 /** Reads a 2D image as mu (1/mm); HU files need mu_water (in the file or given). */

@@ -2,6 +2,7 @@
 // 1/mm (mu), HU, or as stored when the file does not say.
 import { InputError } from '../errors';
 import { checkGrid, huToMu, type Image2D } from '../image';
+import { checkVolumeGrid, type Volume } from '../volume';
 
 export type VolumeQuantity = 'mu' | 'hu' | 'unknown';
 
@@ -18,6 +19,8 @@ export interface ImageVolume {
   quantity: VolumeQuantity;
   muWater?: number;
   fovRadius?: number;
+  /** Half height of the measured region on the axis, mm (cone-beam reconstructions). */
+  fovHalfHeight?: number;
   /** The format it came from, for messages ("DICOM", "NRRD", ...). */
   format: string;
 }
@@ -51,14 +54,15 @@ export function imageAsVolume(image: Image2D, format: string): ImageVolume {
   };
 }
 
-/** Reverses the x and/or y axis of a volume (for files whose axes point the other way). */
-export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean): ImageVolume {
-  if (!flipX && !flipY) return v;
+/** Reverses the x, y and/or z axis of a volume (for files whose axes point the other way). */
+export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean, flipZ = false): ImageVolume {
+  if (!flipX && !flipY && !flipZ) return v;
   const { nx, ny, nz } = v;
   const out = new Float32Array(v.data.length);
   for (let k = 0; k < nz; k++) {
+    const ks = flipZ ? nz - 1 - k : k;
     for (let j = 0; j < ny; j++) {
-      const src = k * nx * ny + (flipY ? ny - 1 - j : j) * nx;
+      const src = ks * nx * ny + (flipY ? ny - 1 - j : j) * nx;
       const dst = k * nx * ny + j * nx;
       for (let i = 0; i < nx; i++) out[dst + i] = v.data[src + (flipX ? nx - 1 - i : i)];
     }
@@ -66,7 +70,28 @@ export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean): ImageV
   const origin: [number, number, number] = [
     flipX ? v.origin[0] - (nx - 1) * v.spacing[0] : v.origin[0],
     flipY ? v.origin[1] - (ny - 1) * v.spacing[1] : v.origin[1],
-    v.origin[2],
+    flipZ ? v.origin[2] - (nz - 1) * v.spacing[2] : v.origin[2],
   ];
   return { ...v, data: out, origin };
+}
+
+/**
+ * The volume as the engine's Volume in mu (1/mm), on the grid its voxel centres lie on: the one
+ * converter from files (readImageFile: NRRD, MetaImage, raw + JSON, DICOM series, TIFF) to
+ * phantoms, priors and references. HU data are converted with mu_water (the one given, else
+ * the file's); a grid beyond the engine's limits is refused (checkVolumeGrid).
+ */
+export function asMuVolume(v: ImageVolume, muWater?: number): Volume {
+  const [dx, dy, dz] = v.spacing;
+  const grid = checkVolumeGrid({
+    nx: v.nx, ny: v.ny, nz: v.nz, dx, dy, dz,
+    cx: v.origin[0] + ((v.nx - 1) / 2) * dx, cy: v.origin[1] + ((v.ny - 1) / 2) * dy, cz: v.origin[2] + ((v.nz - 1) / 2) * dz,
+  });
+  const mw = muWater ?? v.muWater;
+  let data = v.data;
+  if (v.quantity === 'hu') {
+    if (!(mw && mw > 0)) throw new InputError(`volume: the ${v.format} values are HU but mu_water is unknown; give it with --mu-water`);
+    data = huToMu(v.data, mw);
+  }
+  return { grid, data, quantity: 'mu', muWater: mw, fovRadius: v.fovRadius, fovHalfHeight: v.fovHalfHeight };
 }

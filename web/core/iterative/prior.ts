@@ -1,9 +1,11 @@
-// The prior image of prior-guided data-consistent reconstruction: checked, converted to mu and
-// resampled onto the reconstruction grid; and how far a result departs from it.
+// The prior image (or volume) of prior-guided data-consistent reconstruction: checked, converted
+// to mu and resampled onto the reconstruction grid; and how far a result departs from it.
 import { InputError } from '../errors';
 import { huToMu, type Image2D, type ImageGrid } from '../image';
-import { circleMask } from '../metrics';
 import { resampleBilinear, sameGrid } from '../resample';
+import { resampleTrilinear, sameVolumeGrid } from '../resample-volume';
+import type { Volume, VolumeGrid } from '../volume';
+import { discMask, type ReconGrid } from './space';
 
 /** The prior on the reconstruction grid (mu, 1/mm), with notes about what was done to it. */
 export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array): { data: Float32Array; warnings: string[] } {
@@ -23,15 +25,31 @@ export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array
     const uncovered = uncoveredPixels(g, grid, support);
     if (uncovered > 0) warnings.push(`the prior does not cover ${uncovered} pixels of the reconstruction support; they count as 0 (air) there`);
   }
+  return { data, warnings: [...warnings, ...negativeNote(data, 'pixels')] };
+}
+
+/** The prior volume (mu, 1/mm) on the reconstruction volume's grid (trilinear where they differ). */
+export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): { data: Float32Array; warnings: string[] } {
+  let bad = 0;
+  for (const v of prior.data) if (!Number.isFinite(v)) bad++;
+  if (bad > 0) throw new InputError(`prior: ${bad} of ${prior.data.length} voxels are not finite numbers, expected attenuation values`);
+  if (sameVolumeGrid(prior.grid, grid)) return { data: Float32Array.from(prior.data), warnings: negativeNote(prior.data, 'voxels') };
+  const g = prior.grid;
+  const data = resampleTrilinear(prior.data, g, grid);
+  return { data, warnings: [`prior resampled (trilinear) from ${g.nx} x ${g.ny} x ${g.nz} voxels onto the reconstruction volume`, ...negativeNote(data, 'voxels')] };
+}
+
+/**
+ * A note on negative values. They are kept (clipping would bias the prior's projections); the
+ * first non-negative update clips them in the image.
+ */
+function negativeNote(data: Float32Array, what: 'pixels' | 'voxels'): string[] {
   let negative = 0, lowest = 0;
   for (const v of data) {
     if (v < 0) negative++;
     lowest = Math.min(lowest, v);
   }
-  // Negative values are kept (clipping would bias the prior's projections); the first
-  // non-negative update clips them in the image.
-  if (negative > 0) warnings.push(`prior: ${negative} pixels have negative attenuation (lowest ${lowest.toPrecision(3)} /mm)`);
-  return { data, warnings };
+  return negative > 0 ? [`prior: ${negative} ${what} have negative attenuation (lowest ${lowest.toPrecision(3)} /mm)`] : [];
 }
 
 /** Support pixels whose centre lies outside the prior's grid. */
@@ -59,11 +77,14 @@ export interface Departure {
   mean: number;
 }
 
-/** RMS and mean difference of `result` from `prior` inside and outside the FOV circle, within the support. */
+/**
+ * RMS and mean difference of `result` from `prior` inside and outside the FOV circle (in every
+ * slice of a volume), within the support.
+ */
 export function departureFromPrior(
-  result: Float32Array, prior: Float32Array, grid: ImageGrid, support: Uint8Array, fovRadius: number, muWater?: number,
+  result: Float32Array, prior: Float32Array, grid: ReconGrid, support: Uint8Array, fovRadius: number, muWater?: number,
 ): { insideFov: Departure; outsideFov: Departure } {
-  const inFov = circleMask(grid, fovRadius);
+  const inFov = discMask(grid, fovRadius);
   const region = (inside: boolean): Departure => {
     let s = 0, s2 = 0, n = 0;
     for (let i = 0; i < result.length; i++) {

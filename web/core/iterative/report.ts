@@ -26,11 +26,11 @@ export interface ReportInputs {
 /** JSON-ready report; per-view figures in the scan's view order. */
 export function iterativeReport(r: ReportInputs): Record<string, unknown> {
   const { problem, finalSino } = r;
-  const { nCh, grid, support, plan, target } = problem;
+  const { nCh, rows, grid, support, plan, target } = problem;
   const [k0, k1] = problem.measured;
   const nMeasured = k1 - k0;
-  const measuredRays = problem.nViews * nMeasured;
-  const perView = perViewSquares(finalSino, target, nCh, k0, k1);
+  const measuredRays = problem.nViews * rows * nMeasured;
+  const perView = perViewSquares(finalSino, target, nCh, k0, k1, false, rows);
   const finalResidual = perView.reduce((s, v) => s + v, 0);
   const report: Record<string, unknown> = {
     method: r.method,
@@ -50,15 +50,15 @@ export function iterativeReport(r: ReportInputs): Record<string, unknown> {
       startRms: Math.sqrt(r.startResidual / measuredRays),
       finalRms: Math.sqrt(finalResidual / measuredRays),
       finalRelative: r.startResidual > 0 ? Math.sqrt(finalResidual / r.startResidual) : 0,
-      perViewRms: unpermute(perView.map((s) => Math.sqrt(s / nMeasured)), plan.permutation),
+      perViewRms: unpermute(perView.map((s) => Math.sqrt(s / (rows * nMeasured))), plan.permutation),
     },
   };
   if (r.prior) {
     const unmeasured = nCh - nMeasured;
-    const away = perViewSquares(finalSino, target, nCh, k0, k1, true);
+    const away = perViewSquares(finalSino, target, nCh, k0, k1, true, rows);
     report.prior = {
       departure: departureFromPrior(r.image, r.prior, grid, support, r.fov, r.muWater),
-      unmeasuredPerViewRms: unpermute(away.map((s) => (unmeasured ? Math.sqrt(s / unmeasured) : 0)), plan.permutation),
+      unmeasuredPerViewRms: unpermute(away.map((s) => (unmeasured ? Math.sqrt(s / (rows * unmeasured)) : 0)), plan.permutation),
     };
   }
   return report;

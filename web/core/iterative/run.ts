@@ -1,20 +1,25 @@
 // Running an iterative recipe (sart, tv, wtv, prior): prior, grid, problem set-up, iterations,
-// and the report (convergence history, per-view residuals, departure from the prior).
+// and the report (convergence history, per-view residuals, departure from the prior). 2D scans
+// give an image; cone-beam scans a volume (space.ts), whose central slice is the image.
 import type { Buf, Workspace } from '../engine/workspace';
 import { InputError, throwIfCancelled } from '../errors';
+import { coneFovHalfHeight } from '../geometry/cone';
 import { fovRadius } from '../geometry/view-vectors';
 import { squareGrid, type Image2D, type ImageGrid } from '../image';
 import { chooseGrid, DEFAULT_GRID_SIZE } from '../recipe/grid';
 import type { Recipe } from '../recipe/recipe';
+import { chooseVolumeGrid } from '../recipe/volume-grid';
 import { require2d } from '../recon/projector';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
+import { axialSlice, sliceAt, type Volume } from '../volume';
 import { resolveOptions, type IterativeMethod } from './options';
 import { OsSart } from './os-sart';
-import { priorOnGrid } from './prior';
+import { priorOnGrid, priorVolumeOnGrid } from './prior';
 import { checkScanData, perViewSquares, setUpProblem, supportMask, type Problem } from './problem';
 import { iterativeReport } from './report';
 import { solve } from './solve';
+import { gridSize, isVolumeGrid, type ReconGrid } from './space';
 
 /** Images a recipe run may need besides the scan. */
 export interface RecipeInputs {
@@ -29,6 +34,8 @@ export interface IterativeResult {
   image: Image2D;
   warnings: string[];
   report: Record<string, unknown>;
+  /** Cone-beam scans: the volume (`image` is its central slice). */
+  volume?: Volume;
 }
 
 /** Runs another recipe on the same scan (recipe/run.ts runRecipe, passed in to avoid an import cycle). */
@@ -47,15 +54,19 @@ function scaled(hooks: RunHooks, from: number, to: number): RunHooks {
   return { signal: hooks.signal, onProgress: p ? (f, stage) => p(from + (to - from) * f, stage) : undefined };
 }
 
-async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks): Promise<{ image: Image2D; warnings: string[] }> {
+async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks, cone: boolean): Promise<{ image: Image2D; volume?: Volume; warnings: string[] }> {
   const src = recipe.prior;
   if (!src) throw new InputError('recipe prior: method "prior" needs a prior');
   if (src.source === 'image') {
+    if (cone) throw new InputError('prior: a cone-beam scan takes its prior from a recipe on the scan (e.g. "fbp:water"), not from an image');
     if (!inputs.prior) throw new InputError('prior: the recipe takes its prior from an image, but none was given');
     return { image: inputs.prior, warnings: [] };
   }
-  const r = await nested(src.recipe, hooks);
-  return { image: r.image, warnings: r.warnings.map((w) => `prior (${src.recipe.method}): ${w}`) };
+  // A cone-beam prior is reconstructed on the recipe's volume when its own recipe names none
+  // (no resampling, and no default-sized volume for a small problem).
+  const own = cone && !src.recipe.grid && !src.recipe.volume ? { ...src.recipe, grid: recipe.grid, volume: recipe.volume } : src.recipe;
+  const r = await nested(own, hooks);
+  return { image: r.image, volume: r.volume, warnings: r.warnings.map((w) => `prior (${src.recipe.method}): ${w}`) };
 }
 
 /**
@@ -63,19 +74,29 @@ async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedR
  * of the target to its projections. Returns the squared measured residual of the start image.
  */
 async function prepareStart(ws: Workspace, sart: OsSart, x: Buf, problem: Problem, prior?: Float32Array): Promise<number> {
-  const { nViews, nCh, target } = problem;
+  const { nViews, rows, nCh, target } = problem;
   const [k0, k1] = problem.measured;
-  await ws.write(x, prior ?? new Float32Array(problem.grid.nx * problem.grid.ny));
+  await ws.write(x, prior ?? new Float32Array(gridSize(problem.grid)));
   await sart.projector.forward(x, sart.corr);
   const start = await ws.read(sart.corr);
   if (prior) {
-    for (let q = 0; q < nViews; q++) {
+    // Every detector row of every view: the unmeasured channels take the prior's projections.
+    for (let q = 0; q < nViews * rows; q++) {
       target.set(start.subarray(q * nCh, q * nCh + k0), q * nCh);
       target.set(start.subarray(q * nCh + k1, (q + 1) * nCh), q * nCh + k1);
     }
     await ws.write(sart.target, target);
   }
-  return perViewSquares(start, target, nCh, k0, k1).reduce((s, v) => s + v, 0);
+  return perViewSquares(start, target, nCh, k0, k1, false, rows).reduce((s, v) => s + v, 0);
+}
+
+/**
+ * The grid: the recipe's, else the prior's extent, else as FBP / FDK choose it (a cone-beam
+ * scan's volume: recipe/volume-grid.ts).
+ */
+function chooseIterativeGrid(scan: Scan, recipe: Recipe, prior?: { image: Image2D; volume?: Volume }): ReconGrid {
+  if (scan.geometry.kind === 'cone') return !recipe.grid && !recipe.volume && prior?.volume ? prior.volume.grid : chooseVolumeGrid(scan, recipe.grid, recipe.volume);
+  return recipe.grid ? squareGrid(recipe.grid.size, recipe.grid.pixel) : prior ? gridCovering(prior.image.grid) : chooseGrid(scan);
 }
 
 /** Reconstructs `scan` with an iterative method. Nothing is returned or kept when cancelled. */
@@ -86,19 +107,25 @@ export async function runIterative(
   const method = recipe.method as IterativeMethod;
   const o = resolveOptions(method, recipe);
   throwIfCancelled(hooks.signal);
-  if (scan.geometry.kind === 'cone') throw new InputError(`recipe method: got "${method}" for a cone-beam scan, expected fbp (the iterative methods work on 2D scans)`);
-  require2d(scan.geometry);
+  const cone = scan.geometry.kind === 'cone';
+  if (!cone) require2d(scan.geometry);
   checkScanData(scan);
-  const obtained = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05)) : undefined;
+  const obtained = method === 'prior' ? await obtainPrior(recipe, inputs, nested, scaled(hooks, 0, 0.05), cone) : undefined;
   const warnings: string[] = obtained?.warnings ?? [];
-  const priorImage = obtained?.image;
-  const grid = recipe.grid ? squareGrid(recipe.grid.size, recipe.grid.pixel) : priorImage ? gridCovering(priorImage.grid) : chooseGrid(scan);
+  const grid = chooseIterativeGrid(scan, recipe, obtained);
   const support = supportMask(grid, o.support, inputs.supportMask);
-  const nViews = scan.data.length / scan.geometry.detector.channels;
+  const d = scan.geometry.detector;
+  const nViews = scan.data.length / (d.channels * d.rows);
   const subsets = Math.min(o.subsets, nViews);
   if (subsets < o.subsets) warnings.push(`subsets: ${o.subsets} asked, the scan has ${nViews} views; using ${subsets}`);
   const problem = setUpProblem(scan, grid, support, subsets, method === 'prior' ? o.priorWeight : 0);
-  const prior = priorImage ? priorOnGrid(priorImage, grid, support) : undefined;
+  let prior: { data: Float32Array; warnings: string[] } | undefined;
+  if (obtained && isVolumeGrid(grid)) {
+    if (!obtained.volume) throw new InputError(`prior: the recipe "${recipe.prior?.source === 'recipe' ? recipe.prior.recipe.method : 'image'}" gave no volume for this cone-beam scan`);
+    prior = priorVolumeOnGrid(obtained.volume, grid);
+  } else if (obtained) {
+    prior = priorOnGrid(obtained.image, grid as ImageGrid, support);
+  }
   if (prior) warnings.push(...prior.warnings);
   const fov = fovRadius(scan.geometry);
   const reach = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
@@ -110,7 +137,7 @@ export async function runIterative(
   throwIfCancelled(hooks.signal);
   hooks.onProgress?.(0.05, 'setup');
   const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support) }, hooks);
-  const x = ws.alloc('image', grid.nx * grid.ny);
+  const x = ws.alloc('image', gridSize(grid));
   const startResidual = await prepareStart(ws, sart, x, problem, prior?.data.map((v, i) => v * support[i]));
   const t1 = now();
 
@@ -126,7 +153,11 @@ export async function runIterative(
   });
   report.timings = { setup: t1 - t0, iterations: t2 - t1, total: now() - t0 };
   const bad = image.reduce((n, v) => n + (Number.isFinite(v) ? 0 : 1), 0);
-  if (bad > 0) warnings.push(`the result has ${bad} pixels that are not finite numbers: do not trust it`);
+  if (bad > 0) warnings.push(`the result has ${bad} ${isVolumeGrid(grid) ? 'voxels' : 'pixels'} that are not finite numbers: do not trust it`);
   hooks.onProgress?.(1, 'done');
+  if (isVolumeGrid(grid)) {
+    const volume: Volume = { grid, data: image, quantity: 'mu', muWater: scan.muWater, fovRadius: fov, fovHalfHeight: coneFovHalfHeight(scan.geometry) };
+    return { image: axialSlice(volume, sliceAt(grid, 0)), volume, warnings, report };
+  }
   return { image: { grid, data: image, quantity: 'mu', muWater: scan.muWater, fovRadius: fov }, warnings, report };
 }

@@ -7,12 +7,11 @@
 // alpha |f_1|. We use alpha |f_1| for every start image: from a prior the first data step is
 // small and dp would leave the TV phase too weak to remove the prior's false detail.
 import type { Buf, Workspace } from '../engine/workspace';
-import type { ImageGrid } from '../image';
 import type { RunHooks } from '../run-hooks';
-import { BandOps } from './image-ops';
 import type { IterativeMethod, IterativeOptions } from './options';
 import type { OsSart } from './os-sart';
 import { TvDescent } from './tv-descent';
+import { gridBands, gridSize, type ReconGrid } from './space';
 
 /** ASD-POCS step control constants (Sidky & Pan 2008, from memory; references.md section 5). */
 export const ASD_POCS = { rMax: 0.95, alphaRed: 0.95, betaRed: 0.995 } as const;
@@ -36,7 +35,7 @@ export interface SolveOutcome {
 
 export interface SolveContext {
   ws: Workspace;
-  grid: ImageGrid;
+  grid: ReconGrid;
   sart: OsSart;
   /** The image, updated in place; holds the start image on entry. */
   x: Buf;
@@ -51,8 +50,8 @@ export async function solve(ctx: SolveContext, method: IterativeMethod, o: Itera
   const useTv = method !== 'sart';
   const weighted = method === 'wtv' || method === 'prior';
   const tv = await TvDescent.create(ws, grid, sart.support);
-  const rows = new BandOps(ws, grid.nx, grid.ny);
-  const before = useTv ? ws.alloc('dataStepStart', grid.nx * grid.ny) : undefined;
+  const rows = gridBands(ws, grid);
+  const before = useTv ? ws.alloc('dataStepStart', gridSize(grid)) : undefined;
   const floor = o.nonNegative ? 0 : -3.4e38;
   const start = Math.sqrt(ctx.startResidual);
   const history: IterationHistory = { residual: [], residualRms: [], tv: [], tvStep: [] };

@@ -1,11 +1,12 @@
 // Steepest descent on the (weighted) total variation, as in the TV phase of ASD-POCS (Sidky &
 // Pan 2008): N steps of fixed length along the normalized TV gradient, restricted to the
 // support. Reweighted TV refreshes its weights 1 / (|grad f| + eps) from the current image
-// (Candes, Wakin & Boyd 2008). Kernels: assembly/tv.ts, split by image rows.
-import type { Buf, Workspace } from '../engine/workspace';
+// (Candes, Wakin & Boyd 2008). Kernels: assembly/tv.ts for images, assembly/tv3d.ts
+// (6-neighbour) for volumes, split by lines of x (space.ts).
+import type { Buf, Part, Workspace } from '../engine/workspace';
 import { throwIfCancelled } from '../errors';
-import type { ImageGrid } from '../image';
-import { BandOps } from './image-ops';
+import type { BandOps } from './image-ops';
+import { gridBands, gridSize, isVolumeGrid, type ReconGrid } from './space';
 
 /**
  * Smoothing delta^2 in |grad f| = sqrt(dx^2 + dy^2 + delta^2), (1/mm)^2: delta = 1e-5 /mm is
@@ -21,49 +22,56 @@ export class TvDescent {
   private readonly start: Buf;
   private readonly rows: BandOps;
 
-  private constructor(ws: Workspace, private readonly grid: ImageGrid, private readonly support: Buf) {
-    const n = grid.nx * grid.ny;
+  private constructor(ws: Workspace, private readonly grid: ReconGrid, private readonly support: Buf) {
+    const n = gridSize(grid);
     this.g = ws.alloc('tvScale', n);
     this.grad = ws.alloc('tvGradient', n);
     this.weights = ws.alloc('tvWeights', n);
     this.start = ws.alloc('tvStart', n);
-    this.rows = new BandOps(ws, grid.nx, grid.ny);
+    this.rows = gridBands(ws, grid);
+  }
+
+  /** The grid's size arguments of the TV kernels: nx, ny (images) or nx, ny, nz (volumes). */
+  private sizes(): number[] {
+    const g = this.grid;
+    return isVolumeGrid(g) ? [g.nx, g.ny, g.nz] : [g.nx, g.ny];
+  }
+
+  /** A TV kernel call on lines [a, b): the 2D kernel for images, its 3D twin for volumes. */
+  private kernel(name: 'tvWeights' | 'tvScale' | 'tvGradient', before: Part['args'], a: number, b: number, after: Part['args']): Pick<Part, 'kernel' | 'args'> {
+    const volume = isVolumeGrid(this.grid);
+    const kernel = volume ? (({ tvWeights: 'tv3Weights', tvScale: 'tv3Scale', tvGradient: 'tv3Gradient' } as const)[name]) : name;
+    return { kernel, args: [...before, ...this.sizes(), a, b, ...after] };
   }
 
   /** Lays out the buffers; weights start at 1 (plain TV). */
-  static async create(ws: Workspace, grid: ImageGrid, support: Buf): Promise<TvDescent> {
+  static async create(ws: Workspace, grid: ReconGrid, support: Buf): Promise<TvDescent> {
     const t = new TvDescent(ws, grid, support);
-    await ws.write(t.weights, new Float32Array(grid.nx * grid.ny).fill(1));
+    await ws.write(t.weights, new Float32Array(gridSize(grid)).fill(1));
     return t;
   }
 
   /** Reweighted TV: w = 1 / (|grad x| + eps). */
   refreshWeights(x: Buf, eps: number): Promise<number[]> {
-    const { nx, ny } = this.grid;
     return this.rows.run((from, to, a, b) => ({
-      kernel: 'tvWeights',
-      args: [x, this.weights, nx, ny, a, b, eps],
+      ...this.kernel('tvWeights', [x, this.weights], a, b, [eps]),
       writes: [{ buf: this.weights, start: from, length: to - from }],
     }));
   }
 
   /** The plain (unweighted) TV of x, sum over pixels of |grad x|, 1/mm. */
   value(x: Buf): Promise<number> {
-    const { nx, ny } = this.grid;
     return this.rows.total((from, to, a, b) => ({
-      kernel: 'tvScale',
-      args: [x, this.weights, this.g, nx, ny, a, b, TV_SMOOTHING, this.rows.sums],
+      ...this.kernel('tvScale', [x, this.weights, this.g], a, b, [TV_SMOOTHING, this.rows.sums]),
       writes: [{ buf: this.g, start: from, length: to - from }],
     }));
   }
 
   /** The gradient of the (weighted) TV at x into `grad`; returns its norm. */
   private async gradient(x: Buf): Promise<number> {
-    const { nx, ny } = this.grid;
     await this.value(x);
     const sq = await this.rows.total((from, to, a, b) => ({
-      kernel: 'tvGradient',
-      args: [x, this.g, this.support, this.grad, nx, ny, a, b, this.rows.sums],
+      ...this.kernel('tvGradient', [x, this.g, this.support, this.grad], a, b, [this.rows.sums]),
       writes: [{ buf: this.grad, start: from, length: to - from }],
     }));
     return Math.sqrt(sq);

@@ -1,9 +1,12 @@
-// Running a recipe on a cone-beam scan (runRecipe dispatches here by geometry kind).
+// Running a recipe on a cone-beam scan (runRecipe dispatches here by geometry kind): FDK, with
+// the detector extended row by row when the recipe asks for truncation correction.
 import type { Workspace } from '../engine/workspace';
 import { InputError } from '../errors';
 import { fdk3d } from '../recon/fdk';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
+import { planConeExtension } from '../truncation/cone-extension';
+import { coneRowExtension } from '../truncation/row-extension';
 import { axialSlice, sliceAt } from '../volume';
 import type { Recipe } from './recipe';
 import type { RecipeResult } from './run';
@@ -14,12 +17,25 @@ export async function runConeRecipe(ws: Workspace, scan: Scan, recipe: Recipe, h
   if (recipe.method !== 'fbp') {
     throw new InputError(`recipe method: got "${recipe.method}", expected fbp (FDK) for a cone-beam scan`);
   }
-  const grid = chooseVolumeGrid(scan, recipe.grid, recipe.volume);
-  const r = await fdk3d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff }, hooks);
+  const t0 = performance.now();
+  const extend = recipe.extend ?? 'none';
+  // The edge analysis takes the first 5% of the progress bar, FDK the rest.
+  const plan = extend !== 'none'
+    ? await planConeExtension(scan, extend, { signal: hooks.signal, onProgress: (f, stage) => hooks.onProgress?.(0.05 * f, stage) })
+    : undefined;
+  const grid = chooseVolumeGrid(scan, recipe.grid, recipe.volume, plan?.objectRadius);
+  const planSeconds = (performance.now() - t0) / 1000;
+  const extension = plan ? coneRowExtension(plan, scan.geometry.detector.channels) : undefined;
+  const r = await fdk3d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension }, {
+    signal: hooks.signal,
+    onProgress: (f, stage) => hooks.onProgress?.(plan ? 0.05 + 0.95 * f : f, stage),
+  });
+  const warnings = [...r.warnings];
+  if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {
     image: axialSlice(r.volume, sliceAt(grid, 0)),
     volume: r.volume,
-    warnings: r.warnings,
-    report: { algorithm: 'fdk', scanType: r.scanType, timings: r.timings },
+    warnings,
+    report: { algorithm: 'fdk', scanType: r.scanType, timings: { ...r.timings, plan: planSeconds }, ...(plan ? { extension: plan.summary } : {}) },
   };
 }

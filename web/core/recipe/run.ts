@@ -35,9 +35,9 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
   const g = scan.geometry;
-  const is2d = g.kind !== 'cone' && g.detector.rows === 1;
-  if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on 2D scans)`);
   if (g.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks);
+  const is2d = g.detector.rows === 1;
+  if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on single-row and cone-beam scans)`);
   const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
   const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;

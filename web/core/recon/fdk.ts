@@ -109,7 +109,8 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
       scratch: ws.allocPerWorker('coneViews', 16 * chunk),
     };
   });
-  const filter = await prepareFilter(ws, gf, nChF, window, params.cutoff ?? 1);
+  // Zero padding as in fbp2d: the measured channels filtered exactly (linear convolution).
+  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, window, params.cutoff ?? 1);
   const res = ws.allocPerWorker('fftRe', filter.nPad);
   const ims = ws.allocPerWorker('fftIm', filter.nPad);
   await ext?.prepare?.(ws, scan);

@@ -1,6 +1,9 @@
-// The central detector row of a cone-beam scan as a fan-beam scan, so that the 2D truncation
-// analysis (edges, water-cylinder reach, mass) can report on a cone-beam scan.
+// Detector rows of a cone-beam scan as fan-beam scans, so that the 2D truncation analysis
+// (edges, water-cylinder reach, mass) can report on a cone-beam scan and plan its extension row
+// by row. A row's rays, projected onto the plane of the source orbit, are the central row's
+// rays: the ray coordinate s of a channel is the same in every row.
 import type { Geometry } from '../geometry/types';
+import { firstChannelU, firstRowV } from '../geometry/view-vectors';
 import type { Scan } from '../scan';
 
 /** Index of the detector row nearest v = 0 (the plane of the source orbit). */
@@ -10,18 +13,42 @@ export function centralRow(g: Geometry): number {
   return Math.min(d.rows - 1, Math.max(0, k));
 }
 
-/** A fan-beam scan made of row `centralRow` of every view (flat detector, same channels). */
-export function centralRowScan(scan: Scan): Scan {
+/** The fan-beam geometry of one detector row (flat detector, same channels and views). */
+export function rowGeometry(g: Geometry): Geometry {
+  const d = g.detector;
+  return { ...g, kind: 'fan', detector: { ...d, shape: 'flat', rows: 1, offset: [d.offset[0], 0] } };
+}
+
+/** A fan-beam scan made of detector row `row` of every view (a 2D scan is returned as it is). */
+export function rowScan(scan: Scan, row: number): Scan {
   const g = scan.geometry;
   const d = g.detector;
   if (g.kind !== 'cone') return scan;
-  const row = centralRow(g);
   const nViews = scan.data.length / (d.channels * d.rows);
   const data = new Float32Array(nViews * d.channels);
   for (let v = 0; v < nViews; v++) {
     const from = (v * d.rows + row) * d.channels;
     data.set(scan.data.subarray(from, from + d.channels), v * d.channels);
   }
-  const geometry: Geometry = { ...g, kind: 'fan', detector: { ...d, shape: 'flat', rows: 1, offset: [d.offset[0], 0] } };
-  return { ...scan, geometry, data };
+  return { ...scan, geometry: rowGeometry(g), data };
+}
+
+/** The central row of a cone-beam scan as a fan-beam scan. */
+export function centralRowScan(scan: Scan): Scan {
+  return rowScan(scan, centralRow(scan.geometry));
+}
+
+/**
+ * How much longer a ray of detector row `row` runs through an object that does not vary along z
+ * than its projection onto the orbit plane: sqrt(D^2 + u^2 + v^2) / sqrt(D^2 + u^2) (the secant
+ * of the ray's tilt), at the detector edges (u varies it by well under 0.1% over a tail). A water
+ * cylinder seen by that row projects as 2 (mu sec) sqrt(r^2 - s^2): the row's fits use mu sec.
+ * `sourceDetector` is D, mm.
+ */
+export function rowSecant(g: Geometry, row: number, sourceDetector: number): number {
+  const d = g.detector;
+  const v = firstRowV(g) + row * d.pitch[1];
+  const u0 = firstChannelU(g), u1 = u0 + (d.channels - 1) * d.pitch[0];
+  const sec = (u: number) => Math.sqrt(1 + (v * v) / (sourceDetector ** 2 + u * u));
+  return (sec(u0) + sec(u1)) / 2;
 }

@@ -148,28 +148,44 @@ export function analyseEdges(scan: Scan, options: EdgeOptions = {}): EdgeAnalysi
   const maxExtent = edgeS.map((e) => Math.max(0, bound - Math.abs(e))) as PerSide<number>;
 
   const truncated = [new Uint8Array(nViews), new Uint8Array(nViews)] as PerSide<Uint8Array>;
-  const tails = [[], []] as PerSide<CylinderTail[]>;
-  const extent = [new Float64Array(nViews), new Float64Array(nViews)] as PerSide<Float64Array>;
-  const boundary = [new Float64Array(nViews), new Float64Array(nViews)] as PerSide<Float64Array>;
-  for (const side of [0, 1] as const) {
+  const smooth = [0, 1].map((side) => {
     const raw = new Float64Array(nViews);
     for (let v = 0; v < nViews; v++) {
       truncated[side][v] = stats.mean[side][v] > threshold ? 1 : 0;
       if (truncated[side][v]) raw[v] = tailLength(constrainedCylinder(stats.value[side][v], stats.slope[side][v], mu, maxExtent[side]));
     }
-    const smooth = smoothAcrossViews(raw, truncated[side], smoothingViews, circular);
+    return smoothAcrossViews(raw, truncated[side], smoothingViews, circular);
+  }) as PerSide<Float64Array>;
+  const none = [[], []] as PerSide<CylinderTail[]>;
+  const zeros = [new Float64Array(nViews), new Float64Array(nViews)] as PerSide<Float64Array>;
+  return withTailLengths({
+    geometry: g, rays, s, nViews, threshold, noiseSigma, mu, muAssumed: options.mu === undefined && scan.muWater === undefined,
+    fitChannels, smoothingViews, stats, truncated, tails: none, extent: zeros, boundary: zeros, maxExtent,
+  }, smooth);
+}
+
+/**
+ * The analysis with new tail lengths (mm in s, per view and side, e.g. smoothed further): the
+ * water cylinders through each cut-off edge value with that length (at most maxExtent), their
+ * reach and the object boundaries are rebuilt; sides that are not cut off keep no tail.
+ */
+export function withTailLengths(a: EdgeAnalysis, lengths: PerSide<Float64Array>): EdgeAnalysis {
+  const n = a.nViews, nCh = a.s.length;
+  const edgeS = [a.s[0], a.s[nCh - 1]];
+  const tails = [[], []] as PerSide<CylinderTail[]>;
+  const extent = [new Float64Array(n), new Float64Array(n)] as PerSide<Float64Array>;
+  const boundary = [new Float64Array(n), new Float64Array(n)] as PerSide<Float64Array>;
+  for (const side of [0, 1] as const) {
     const outward = side === 0 ? -1 : 1;
-    for (let v = 0; v < nViews; v++) {
-      const tail = truncated[side][v] ? cylinderWithLength(stats.value[side][v], Math.min(smooth[v], maxExtent[side]), mu) : NO_TAIL;
+    for (let v = 0; v < n; v++) {
+      const cut = a.truncated[side][v];
+      const tail = cut ? cylinderWithLength(a.stats.value[side][v], Math.min(lengths[side][v], a.maxExtent[side]), a.mu) : NO_TAIL;
       tails[side].push(tail);
       extent[side][v] = tailLength(tail);
-      boundary[side][v] = truncated[side][v] ? edgeS[side] + outward * extent[side][v] : stats.support[side][v];
+      boundary[side][v] = cut ? edgeS[side] + outward * extent[side][v] : a.stats.support[side][v];
     }
   }
-  return {
-    geometry: g, rays, s, nViews, threshold, noiseSigma, mu, muAssumed: options.mu === undefined && scan.muWater === undefined,
-    fitChannels, smoothingViews, stats, truncated, tails, extent, boundary, maxExtent,
-  };
+  return { ...a, tails, extent, boundary };
 }
 
 /** Radius about the isocentre of a circle holding the estimated object, mm. */

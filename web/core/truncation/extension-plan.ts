@@ -52,7 +52,6 @@ export interface ExtensionPlan extends DetectorExtension {
   summary: ExtensionSummary;
 }
 
-/** Bounds on the factor by which a tail is stretched to meet the missing mass (common practice: guard against noise). */
 /**
  * Most channels a tail may add on one side of an nCh-channel detector: paddedLength(nCh) - nCh,
  * about one detector width, which keeps the extended row's FFT at twice the plain one's.
@@ -61,6 +60,7 @@ export function maxTailChannels(nCh: number): number {
   return paddedLength(nCh) - nCh;
 }
 
+/** Bounds on the factor by which a tail is stretched to meet the missing mass (common practice: guard against noise). */
 const MASS_SCALE_MIN = 0.5;
 const MASS_SCALE_MAX = 2;
 
@@ -94,16 +94,20 @@ function methodArea(method: ExtendMethod, pe: number, length: number, water: Cyl
   }
 }
 
+/** Tail lengths and water cylinders per view and side, after mass scaling. */
+export interface TailPlan {
+  lengths: PerSide<Float64Array>;
+  water: PerSide<CylinderTail[]>;
+  /** Tails scaled to restore a view's mass. */
+  scaled: number;
+}
+
 /**
- * Plans the extension of a 2D scan by `method`. `analysis` and `mass` may be passed when already
- * computed. Tails start at each cut-off edge's least-squares edge value (continuity) and end at
- * the estimated object boundary; a side that is not cut off gets no tail.
+ * Tails of a 2D scan (or one detector row) by `method`: from each cut-off edge's analysed reach,
+ * scaled so that the extended view restores the object's mass where `m` has complete views.
  */
-export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>, analysis?: EdgeAnalysis, mass?: MassReport | null): ExtensionPlan {
-  const a = analysis ?? analyseEdges(scan);
-  const g = scan.geometry;
-  const nCh = g.detector.channels, nViews = a.nViews;
-  const m = mass === undefined ? (massUnavailable(scan) || !mayHaveCompleteViews(a) ? null : massConsistency(scan, a.threshold)) : mass;
+export function planTails(scan: Scan, method: Exclude<ExtendMethod, 'none'>, a: EdgeAnalysis, m: MassReport | null): TailPlan {
+  const nCh = a.s.length, nViews = a.nViews;
   const lengths = [Float64Array.from(a.extent[0]), Float64Array.from(a.extent[1])] as PerSide<Float64Array>;
   const water = [a.tails[0].slice(), a.tails[1].slice()] as PerSide<CylinderTail[]>;
   const pe = (side: 0 | 1, v: number) => Math.max(0, a.stats.value[side][v]);
@@ -130,12 +134,18 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
       }
     }
   }
+  capTails(scan.geometry, a, lengths, water);
+  return { lengths, water, scaled };
+}
 
-  // Channels to add: enough for the longest tail on each side, and for a displaced detector's
-  // short side to mirror its long one. Tails are capped at MAX_TAIL_CHANNELS(nCh) channels, so
-  // that the FFT of an extended row is at most twice as long as a plain row's (fbp.ts pads to
-  // 2 (max(left, right) + channels) - 1); a longer tail is compressed to fit (water: stretched),
-  // the mass scaling above still holding to within the cap.
+/**
+ * Caps tails at maxTailChannels(nCh) channels, so that the FFT of an extended row is at most
+ * twice as long as a plain row's (fbp.ts and fdk.ts pad to 2 (max(left, right) + channels) - 1);
+ * a longer tail is compressed to fit (water: stretched), the mass scaling still holding to
+ * within the cap.
+ */
+function capTails(g: Geometry, a: EdgeAnalysis, lengths: PerSide<Float64Array>, water: PerSide<CylinderTail[]>): void {
+  const nCh = a.s.length;
   const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
   const uLast = u0 + (nCh - 1) * pitch;
   const capChannels = maxTailChannels(nCh);
@@ -144,56 +154,95 @@ export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>,
     Math.abs(a.rays.s(uLast + (capChannels - 1) * pitch) - a.s[nCh - 1]),
   ];
   for (const side of [0, 1] as const) {
-    for (let v = 0; v < nViews; v++) {
+    for (let v = 0; v < a.nViews; v++) {
       const L = lengths[side][v];
       if (!(L > capS[side])) continue;
       lengths[side][v] = capS[side];
       const t = water[side][v];
-      if (t) water[side][v] = { ...t, stretch: t.stretch * (capS[side] / L) };
+      water[side][v] = { ...t, stretch: t.stretch * (capS[side] / L) };
     }
   }
-  const reach = (side: 0 | 1) => lengths[side].reduce((x, y) => Math.max(x, y), 0);
-  const margin = displacedDetectorMargin(g);
-  const tail = (n: number) => Math.min(capChannels, n);
-  const left = Math.max(margin.left, reach(0) > 0 ? tail(Math.ceil((u0 - a.rays.u(a.s[0] - reach(0))) / pitch) + 1) : 0);
-  const right = Math.max(margin.right, reach(1) > 0 ? tail(Math.ceil((a.rays.u(a.s[nCh - 1] + reach(1)) - uLast) / pitch) + 1) : 0);
-  const { geometry, coord } = extendedLayout(g, left, right);
-  const nExt = left + nCh + right;
+}
 
-  const params = new Float32Array(nViews * EXTEND_PARAMS);
-  for (let v = 0; v < nViews; v++) {
+/** The kernel's parameters (EXTEND_PARAMS floats per view) for the tails, written into `out` from view 0 of `stride` views apart (1: consecutive). */
+export function tailParams(method: Exclude<ExtendMethod, 'none'>, a: EdgeAnalysis, t: TailPlan, out = new Float32Array(a.nViews * EXTEND_PARAMS), stride = 1, first = 0): Float32Array {
+  for (let v = 0; v < a.nViews; v++) {
     for (const side of [0, 1] as const) {
       if (!a.truncated[side][v]) continue;
-      const o = v * EXTEND_PARAMS + 4 * side, L = lengths[side][v], p = pe(side, v);
+      const o = ((first + v * stride) * EXTEND_PARAMS) + 4 * side, L = t.lengths[side][v], p = Math.max(0, a.stats.value[side][v]);
       if (method === 'water') {
-        const t = water[side][v];
-        params.set([2 * t.mu, t.radius, t.inset, t.stretch > 0 ? 1 / t.stretch : 0], o);
-      } else if (method === 'edge') params.set([p, L, EDGE_PLATEAU * L, 0], o);
-      else if (method === 'cosine') params.set([p, L, 0, 0], o);
-      else params.set([0, L, 0, 0], o);
+        const w = t.water[side][v];
+        out.set([2 * w.mu, w.radius, w.inset, w.stretch > 0 ? 1 / w.stretch : 0], o);
+      } else if (method === 'edge') out.set([p, L, EDGE_PLATEAU * L, 0], o);
+      else if (method === 'cosine') out.set([p, L, 0, 0], o);
+      else out.set([0, L, 0, 0], o);
     }
   }
+  return out;
+}
 
-  const stat = (side: 0 | 1) => {
-    let sum = 0, n = 0;
-    for (let v = 0; v < nViews; v++) if (a.truncated[side][v]) { sum += lengths[side][v]; n++; }
-    return { mean: n ? sum / n : 0, max: reach(side) };
-  };
-  const [sl, sr] = [stat(0), stat(1)];
+/** Longest tail on each side, mm in s. */
+export function longestTails(t: TailPlan): PerSide<number> {
+  return [0, 1].map((side) => t.lengths[side].reduce((x, y) => Math.max(x, y), 0)) as PerSide<number>;
+}
+
+/**
+ * Channels to add on each side: enough for the longest tail (`reach`, mm in s; at most
+ * maxTailChannels) and for a displaced detector's short side to mirror its long one.
+ */
+export function channelsForReach(g: Geometry, a: EdgeAnalysis, reach: PerSide<number>): { left: number; right: number } {
+  const nCh = g.detector.channels;
+  const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
+  const uLast = u0 + (nCh - 1) * pitch;
+  const margin = displacedDetectorMargin(g);
+  const tail = (n: number) => Math.min(maxTailChannels(nCh), n);
   return {
-    method, left, right, code: EXTEND_CODES[method], params, coord, geometry, lengths,
+    left: Math.max(margin.left, reach[0] > 0 ? tail(Math.ceil((u0 - a.rays.u(a.s[0] - reach[0])) / pitch) + 1) : 0),
+    right: Math.max(margin.right, reach[1] > 0 ? tail(Math.ceil((a.rays.u(a.s[nCh - 1] + reach[1]) - uLast) / pitch) + 1) : 0),
+  };
+}
+
+/** Mean tail length over the cut-off views of each side, and the longest, mm. */
+export function tailStats(truncated: PerSide<Uint8Array>, lengths: PerSide<Float64Array>): { mean: PerSide<number>; max: PerSide<number> } {
+  const mean = [0, 0] as PerSide<number>, max = [0, 0] as PerSide<number>;
+  for (const side of [0, 1] as const) {
+    let sum = 0, n = 0;
+    for (let v = 0; v < lengths[side].length; v++) {
+      max[side] = Math.max(max[side], lengths[side][v]);
+      if (truncated[side][v]) { sum += lengths[side][v]; n++; }
+    }
+    mean[side] = n ? sum / n : 0;
+  }
+  return { mean, max };
+}
+
+/**
+ * Plans the extension of a 2D scan by `method`. `analysis` and `mass` may be passed when already
+ * computed. Tails start at each cut-off edge's least-squares edge value (continuity) and end at
+ * the estimated object boundary; a side that is not cut off gets no tail.
+ */
+export function planExtension(scan: Scan, method: Exclude<ExtendMethod, 'none'>, analysis?: EdgeAnalysis, mass?: MassReport | null): ExtensionPlan {
+  const a = analysis ?? analyseEdges(scan);
+  const g = scan.geometry;
+  const m = mass === undefined ? (massUnavailable(scan) || !mayHaveCompleteViews(a) ? null : massConsistency(scan, a.threshold)) : mass;
+  const tails = planTails(scan, method, a, m);
+  const { left, right } = channelsForReach(g, a, longestTails(tails));
+  const { geometry, coord } = extendedLayout(g, left, right);
+  const { mean, max } = tailStats(a.truncated, tails.lengths);
+  return {
+    method, left, right, code: EXTEND_CODES[method], params: tailParams(method, a, tails), coord, geometry, lengths: tails.lengths,
     summary: {
       method, source: EXTEND_DESCRIPTIONS[method],
-      channelsAdded: { left, right }, extendedChannels: nExt,
-      meanTailMm: { left: sl.mean, right: sr.mean }, maxTailMm: { left: sl.max, right: sr.max },
-      massScaledTails: scaled, massBasis: m ? m.basis : 'unavailable',
+      channelsAdded: { left, right }, extendedChannels: coord.length,
+      meanTailMm: { left: mean[0], right: mean[1] }, maxTailMm: { left: max[0], right: max[1] },
+      massScaledTails: tails.scaled, massBasis: m ? m.basis : 'unavailable',
       muWater: a.mu, muAssumed: a.muAssumed,
     },
   };
 }
 
 /** The extended detector and the s coordinate of each of its channels. */
-function extendedLayout(g: Geometry, left: number, right: number): { geometry: Geometry; coord: Float32Array } {
+export function extendedLayout(g: Geometry, left: number, right: number): { geometry: Geometry; coord: Float32Array } {
   const rays = rayCoordinates(g);
   const u0 = firstChannelU(g), pitch = g.detector.pitch[0];
   const coord = new Float32Array(left + g.detector.channels + right);

@@ -3,6 +3,7 @@
 // side at the top (rows drawn from the last to the first, image.ts stores y increasing).
 import { muToHu, type Image2D } from '../../core/image';
 import { resampleBilinear, sameGrid } from '../../core/resample';
+import type { Point } from './measure';
 import { greyOf, type DisplayWindow } from './window-level';
 
 export type DisplayUnit = 'HU' | '1/mm';
@@ -16,6 +17,10 @@ export interface DisplayImage {
   unit: DisplayUnit;
   /** Measured field-of-view radius, mm, when known. */
   fovRadius?: number;
+  /** The field of view as a closed polygon (mm), drawn when given (planes of a volume). */
+  outline?: Point[];
+  /** Names of the horizontal and vertical axes for read-outs (default x, y). */
+  axes?: [string, string];
 }
 
 /** Display values of an image (mu, 1/mm). */

@@ -1,0 +1,82 @@
+// Volumes in storage (cone-beam reconstructions and reference volumes): the voxels are split
+// into slabs of whole axial slices, one record per slab under `<prefix>/<owner id>/<slab>`, so
+// that no single record grows with the volume. The description (grid, FOV, slab count) lives in
+// the owner's record; the slab records are written in the owner's transaction (putAll: all or
+// nothing) and checked on reading (kind, schema, owner, position and size).
+import { getMany, type UseStore } from 'idb-keyval';
+import type { Volume, VolumeGrid } from '../core/volume';
+import { keysWithPrefix, pageStore } from './db';
+import { checkRecord, RecordError, SCHEMA_VERSION } from './records';
+
+/** Largest slab, in voxels (16 MiB of float32). */
+export const SLAB_VOXELS = 4 * 2 ** 20;
+
+/** Where a volume's slabs are kept: a result's reconstruction or a scan's reference. */
+export type VolumeOwner = 'result' | 'scan';
+
+/** A stored volume's description, kept in its owner's record. */
+export interface StoredVolumeInfo {
+  grid: VolumeGrid;
+  muWater?: number;
+  fovRadius?: number;
+  fovHalfHeight?: number;
+  /** Slices per slab (the last slab may hold fewer) and the number of slabs. */
+  slicesPerSlab: number;
+  slabs: number;
+}
+
+/** One slab of slices [k0, k0 + slices) of a volume (mu, 1/mm, x fastest). */
+export interface VolumeSlab {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'volume-slab';
+  owner: string;
+  index: number;
+  k0: number;
+  slices: number;
+  data: Float32Array;
+}
+
+const PREFIX: Record<VolumeOwner, string> = { result: 'result-volume', scan: 'scan-volume' };
+
+/** Key of slab `index` of the volume of `owner` / `id`. */
+export function slabKey(owner: VolumeOwner, id: string, index: number): string {
+  return `${PREFIX[owner]}/${id}/${String(index).padStart(5, '0')}`;
+}
+
+/** Keys of every stored slab of a volume. */
+export function slabKeys(owner: VolumeOwner, id: string, store: UseStore = pageStore()): Promise<string[]> {
+  return keysWithPrefix(`${PREFIX[owner]}/${id}/`, store);
+}
+
+/** The description and slab records of a volume, ready for putAll with its owner's record. */
+export function volumeEntries(owner: VolumeOwner, id: string, v: Volume, slabVoxels = SLAB_VOXELS): { info: StoredVolumeInfo; entries: Array<[string, VolumeSlab]> } {
+  const g = v.grid;
+  const perSlice = g.nx * g.ny;
+  const slicesPerSlab = Math.max(1, Math.min(g.nz, Math.floor(slabVoxels / perSlice)));
+  const slabs = Math.ceil(g.nz / slicesPerSlab);
+  const entries: Array<[string, VolumeSlab]> = [];
+  for (let s = 0; s < slabs; s++) {
+    const k0 = s * slicesPerSlab, slices = Math.min(slicesPerSlab, g.nz - k0);
+    const data = v.data.slice(k0 * perSlice, (k0 + slices) * perSlice);
+    entries.push([slabKey(owner, id, s), { schema: SCHEMA_VERSION, kind: 'volume-slab', owner: id, index: s, k0, slices, data }]);
+  }
+  return { info: { grid: g, muWater: v.muWater, fovRadius: v.fovRadius, fovHalfHeight: v.fovHalfHeight, slicesPerSlab, slabs }, entries };
+}
+
+/** Reads a stored volume; throws RecordError when a slab is missing or does not fit its description. */
+export async function loadVolume(owner: VolumeOwner, id: string, info: StoredVolumeInfo, store: UseStore = pageStore()): Promise<Volume> {
+  const g = info.grid;
+  const perSlice = g.nx * g.ny;
+  const keys = Array.from({ length: info.slabs }, (_, s) => slabKey(owner, id, s));
+  const values = await getMany(keys, store);
+  const data = new Float32Array(perSlice * g.nz);
+  values.forEach((value, s) => {
+    const slab = checkRecord<VolumeSlab>(value, 'volume-slab', keys[s]);
+    const k0 = s * info.slicesPerSlab, slices = Math.min(info.slicesPerSlab, g.nz - k0);
+    if (slab.owner !== id || slab.index !== s || slab.k0 !== k0 || slab.slices !== slices || slab.data.length !== slices * perSlice) {
+      throw new RecordError(`stored record ${keys[s]}: slab ${slab.index} of "${slab.owner}" with ${slab.data?.length} voxels from slice ${slab.k0}, expected slab ${s} of "${id}" with ${slices * perSlice} voxels from slice ${k0}`);
+    }
+    data.set(slab.data, k0 * perSlice);
+  });
+  return { grid: g, data, quantity: 'mu', muWater: info.muWater, fovRadius: info.fovRadius, fovHalfHeight: info.fovHalfHeight };
+}
