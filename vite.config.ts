@@ -1,10 +1,14 @@
 import { defineConfig } from 'vitest/config';
 import { viteSingleFile } from 'vite-plugin-singlefile';
 import { contentSecurityPolicy } from './scripts/vite-csp.mjs';
+import { ortWasmEmbedded } from './scripts/vite-ort.mjs';
 
 // The page: web/index.html built into ONE self-contained dist/index.html (scripts, workers and
 // the engine inlined), so it works from a static server and opened from disk; a strict
-// Content-Security-Policy with hashes of the inline code forbids any network use.
+// Content-Security-Policy with hashes of the inline code forbids any network use. The network
+// runtime's wasm is embedded by our build (scripts/build-ort.mjs); ortWasmEmbedded keeps Vite
+// from inlining a second copy, in the page and in the workers (the model worker is nested in
+// the coordinator worker).
 // The test section configures vitest for the Node tests (browser tests: test/browser/run.mjs).
 export default defineConfig({
   root: 'web',
@@ -16,8 +20,8 @@ export default defineConfig({
     reportCompressedSize: false,
     chunkSizeWarningLimit: 20_000,
   },
-  worker: { format: 'iife' },
-  plugins: [viteSingleFile({ removeViteModuleLoader: true }), contentSecurityPolicy()],
+  worker: { format: 'iife', plugins: () => [ortWasmEmbedded()] },
+  plugins: [ortWasmEmbedded(), viteSingleFile({ removeViteModuleLoader: true }), contentSecurityPolicy()],
   test: {
     root: '.',
     include: ['test/**/*.test.ts'],

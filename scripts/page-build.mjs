@@ -3,7 +3,7 @@ import { execFileSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 
-const SOURCES = ['web', 'assembly', 'vite.config.ts', 'scripts/vite-csp.mjs', 'scripts/build-engine.mjs', 'package.json'];
+const SOURCES = ['web', 'assembly', 'vite.config.ts', 'scripts/vite-csp.mjs', 'scripts/vite-ort.mjs', 'scripts/build-engine.mjs', 'scripts/build-ort.mjs', 'package.json'];
 
 /** Newest modification time under the page's sources, ms. */
 function newestSource(root) {

@@ -2,7 +2,7 @@
 // playwright-core: once served from a loopback static server (cross-origin isolated: shared
 // engine memory) and once opened from disk (file://: separate memories). Builds the page first
 // when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
-// Usage: node test/browser/run.mjs [--rebuild] [--only http|file]
+// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only]
 import { execSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -13,6 +13,8 @@ import { cliReference } from './cli-reference.mjs';
 import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
+import { priorReference } from './prior-reference.mjs';
+import { priorTests } from './prior-tests.mjs';
 import { ensurePageBuilt } from '../../scripts/page-build.mjs';
 import { serveDirectory } from '../../scripts/serve-page.mjs';
 
@@ -21,6 +23,8 @@ const dist = join(root, 'dist/index.html');
 const artifacts = join(root, 'test-artifacts');
 const argv = process.argv.slice(2);
 const only = argv.includes('--only') ? argv[argv.indexOf('--only') + 1] : undefined;
+/** Only the network-prior steps (on a fresh profile the page makes the demo scan itself). */
+const priorsOnly = argv.includes('--priors-only');
 
 function chromiumPath() {
   try {
@@ -48,9 +52,17 @@ async function main() {
   await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
-  await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
-    reference.cone = coneReference(root);
-  });
+  if (!priorsOnly) {
+    await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
+      reference.cone = coneReference(root);
+    });
+  }
+  let prior;
+  if (reference) {
+    await h.step('command-line reference: test networks and rimfill prior-check on the demo scan', async () => {
+      prior = await priorReference(root, reference.dir);
+    });
+  }
   const server = await serveDirectory(join(root, 'dist'));
   const modes = [
     { mode: 'http', url: server.url, origin: new URL(server.url).origin },
@@ -62,7 +74,8 @@ async function main() {
       const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
       const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1440, height: 1000 }, acceptDownloads: true });
       try {
-        await pageTests(h, { context, ...m, artifacts, reference });
+        if (!priorsOnly) await pageTests(h, { context, ...m, artifacts, reference });
+        if (prior) await priorTests(h, { context, ...m, artifacts, prior });
       } finally {
         await context.close();
         rmSync(profile, { recursive: true, force: true });

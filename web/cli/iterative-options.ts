@@ -8,6 +8,7 @@ import type { RecipeInputs } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
 import type { Scan } from '../core/scan';
 import type { Workspace } from '../core/engine/workspace';
+import type { Image2D } from '../core/image';
 import type { OptionType, ParsedArgs } from './args';
 import { loadImage } from './load';
 import { hasPriorOptions, PRIOR_OPTIONS, resolvePrior } from './prior-source';
@@ -77,21 +78,24 @@ export function addIterativeFields(raw: Record<string, unknown>, a: ParsedArgs):
 /** Images the recipe needs besides the scan: a prior (file or network) and a support mask. */
 export async function iterativeInputs(
   recipe: Recipe, a: ParsedArgs, ws: Workspace, scan: Scan, hooks: RunHooks,
-): Promise<{ inputs: RecipeInputs; warnings: string[]; priorReport?: Record<string, unknown> }> {
+): Promise<{ inputs: RecipeInputs; warnings: string[]; priorReport?: Record<string, unknown>; checkedPrior?: Image2D }> {
   const inputs: RecipeInputs = {};
   const warnings: string[] = [];
   let priorReport: Record<string, unknown> | undefined;
+  /** The prior as checked against the data: a network's output on its own grid, or the image. */
+  let checkedPrior: Image2D | undefined;
   if (recipe.prior?.source === 'image') {
     // A network's prior is made on the grid the reconstruction will use.
     const grid = chooseGrid(scan, recipe.grid);
     const p = await resolvePrior(a, ws, scan, grid, hooks);
     inputs.prior = p.prior;
+    checkedPrior = p.network?.output ?? p.prior;
     warnings.push(...p.warnings);
     if (p.network) priorReport = { source: 'network', model: p.model, ...p.network.report };
     else priorReport = { source: 'image', path: a.options.prior };
   }
   if (recipe.support === 'image') inputs.supportMask = await loadImage(a.options.support as string, 'support mask', scan.muWater);
-  return { inputs, warnings, priorReport };
+  return { inputs, warnings, priorReport, checkedPrior };
 }
 
 /** ", 20 iterations (stopped by iterations), measured-data residual 3.1% of its start" for iterative reports. */

@@ -1,11 +1,11 @@
 // Storage limits: a full quota is reported with what could be deleted; the page asks for
 // persistent storage and shows use against the browser's estimate.
 import { getMany, type UseStore } from 'idb-keyval';
-import type { ResultMeta, ScanMeta } from './records';
+import type { ModelMeta, ResultMeta, ScanMeta } from './records';
 
 /** The browser refused a write because the storage quota is used up. Nothing was written. */
 export class StorageFullError extends Error {
-  constructor(message: string, readonly largest: Array<{ kind: 'scan' | 'result'; id: string; name: string; bytes: number }>) {
+  constructor(message: string, readonly largest: Array<{ kind: 'scan' | 'result' | 'model'; id: string; name: string; bytes: number }>) {
     super(message);
     this.name = 'StorageFullError';
   }
@@ -38,8 +38,8 @@ export async function toStorageError(err: unknown, store: UseStore): Promise<unk
       const r = s.getAllKeys();
       r.onsuccess = () => res(r.result);
       r.onerror = () => rej(r.error);
-    }))).map(String).filter((k) => k.startsWith('scan/') || k.startsWith('result/'));
-    const metas = (await getMany<ScanMeta | ResultMeta>(keys, store)).filter((m): m is ScanMeta | ResultMeta => !!m);
+    }))).map(String).filter((k) => k.startsWith('scan/') || k.startsWith('result/') || k.startsWith('model/'));
+    const metas = (await getMany<ScanMeta | ResultMeta | ModelMeta>(keys, store)).filter((m): m is ScanMeta | ResultMeta | ModelMeta => !!m);
     largest = metas
       .map((m) => ({ kind: m.kind, id: m.id, name: m.name, bytes: m.bytes }))
       .sort((a, b) => b.bytes - a.bytes)
@@ -51,7 +51,7 @@ export async function toStorageError(err: unknown, store: UseStore): Promise<unk
   const list = largest.map((l) => `${l.kind} "${l.name}" (${formatBytes(l.bytes)})`).join(', ');
   return new StorageFullError(
     'The browser\'s storage for this page is full, so nothing was saved. ' +
-      (list ? `Delete scans or results you no longer need; the largest are: ${list}.` : 'Delete scans or results you no longer need.'),
+      (list ? `Delete scans, results or networks you no longer need; the largest are: ${list}.` : 'Delete scans, results or networks you no longer need.'),
     largest,
   );
 }

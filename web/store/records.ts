@@ -6,6 +6,9 @@ import type { Comparison } from '../core/compare';
 import type { VolumeComparison } from '../core/compare-volume';
 import type { Geometry } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
+import type { ModelInfo } from '../core/model/description';
+import type { ModelSignature } from '../core/model/signature';
+import type { StoredConsistency } from './consistency';
 import type { StoredVolumeInfo, VolumeSlab } from './volumes';
 
 /** Version of the record layout this build writes. */
@@ -82,6 +85,8 @@ export interface ResultMeta {
   volume?: StoredVolumeInfo;
   /** Comparison of the volume with the scan's reference volume (FOV cylinder), when it has one. */
   volumeMetrics?: VolumeComparison | null;
+  /** Consistency report of the image against the measured data (network prior runs; its residual sinogram is in ResultData). */
+  consistency?: StoredConsistency;
 }
 
 /** A finished reconstruction's pixels (mu, 1/mm, x fastest). */
@@ -90,6 +95,11 @@ export interface ResultData {
   kind: 'result-data';
   id: string;
   data: Float32Array;
+  /**
+   * With ResultMeta.consistency: (A f - p) and the flagged rays, [view][channel]; the share of
+   * flagged rays through each pixel of the checked image (absent when no ray was flagged).
+   */
+  consistency?: { residual: Float32Array; flagged: Uint8Array; map?: Float32Array };
 }
 
 /** Page settings. */
@@ -100,7 +110,34 @@ export interface Settings {
   demoCreated: boolean;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab;
+/** A user's network (ONNX) with its rimfill-model/1 description, checked on import. */
+export interface ModelMeta {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'model';
+  id: string;
+  name: string;
+  createdAt: number;
+  /** The validated description (defaults filled). */
+  info: ModelInfo;
+  /** Inputs and outputs as the runtime read them from the model. */
+  signature: ModelSignature;
+  fileNames: { model: string; description: string };
+  /** Bytes of the ONNX file. */
+  bytes: number;
+  /** What the import check could not settle (e.g. shapes known only at run time). */
+  warnings: string[];
+}
+
+/** A stored network's ONNX bytes and the description as the user wrote it. */
+export interface ModelData {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'model-data';
+  id: string;
+  onnx: Uint8Array;
+  description: string;
+}
+
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,
@@ -108,6 +145,8 @@ export const keys = {
   result: (id: string) => `result/${id}`,
   resultData: (id: string) => `result-data/${id}`,
   settings: 'settings',
+  model: (id: string) => `model/${id}`,
+  modelData: (id: string) => `model-data/${id}`,
 };
 
 /** Thrown when a stored record cannot be read by this build. */

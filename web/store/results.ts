@@ -14,8 +14,18 @@ export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' 
  * returns its description.
  */
 export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume): Promise<ResultMeta> {
+  const { meta, entries } = resultRecords(input, image, {}, volume);
+  await putAll(entries, store);
+  return meta;
+}
+
+/** The records of a new result (for writing several in one transaction with putAll). */
+export function resultRecords(
+  input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}, volume?: Volume,
+): { meta: ResultMeta; entries: Array<[string, unknown]> } {
   const id = newId();
   const slabs = volume ? volumeEntries('result', id, volume) : undefined;
+  const c = extra.consistency;
   const meta: ResultMeta = {
     ...input,
     schema: SCHEMA_VERSION,
@@ -26,12 +36,11 @@ export async function saveResult(input: NewResult, image: Image2D, store: UseSto
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength + (volume ? volume.data.byteLength : 0),
+    bytes: image.data.byteLength + (volume ? volume.data.byteLength : 0) + (c ? c.residual.byteLength + c.flagged.byteLength + (c.map?.byteLength ?? 0) : 0),
     ...(slabs ? { volume: slabs.info } : {}),
   };
-  const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data };
-  await putAll([[keys.result(id), meta], [keys.resultData(id), data], ...(slabs?.entries ?? [])], store);
-  return meta;
+  const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data, ...extra };
+  return { meta, entries: [[keys.result(id), meta], [keys.resultData(id), data], ...(slabs?.entries ?? [])] };
 }
 
 /** A stored result's volume (cone-beam scans); throws RecordError when it has none or a slab is damaged. */

@@ -17,6 +17,7 @@ import { TRUTH } from './results-view';
 import type { QueueJob } from './run-queue';
 import { theme } from './theme';
 import './caution-banner';
+import './prior-workbench';
 import './recipe-form';
 import './results-view';
 import './run-queue';
@@ -25,7 +26,7 @@ import './scan-view';
 import './volume-view';
 import { volumeChoices, volumeLoader } from './volume-choices';
 
-type Tab = 'scan' | 'reconstruct' | 'images';
+type Tab = 'scan' | 'reconstruct' | 'images' | 'prior';
 
 interface LoadedScan {
   id: string;
@@ -337,7 +338,8 @@ export class AppShell extends LitElement {
     return html`
       <section role="tabpanel" aria-labelledby="tab-scan" ?hidden=${this.tab !== 'scan'}>${this.scanTab(scan)}</section>
       <section role="tabpanel" aria-labelledby="tab-reconstruct" ?hidden=${this.tab !== 'reconstruct'}>${this.reconstructTab(scan)}</section>
-      <section role="tabpanel" aria-labelledby="tab-images" ?hidden=${this.tab !== 'images'}>${this.imagesTab(scan)}</section>`;
+      <section role="tabpanel" aria-labelledby="tab-images" ?hidden=${this.tab !== 'images'}>${this.imagesTab(scan)}</section>
+      <section role="tabpanel" aria-labelledby="tab-prior" ?hidden=${this.tab !== 'prior'}>${this.priorTab(scan)}</section>`;
   }
 
   private scanTab(scan: ScanMeta) {
@@ -381,6 +383,12 @@ export class AppShell extends LitElement {
       ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .load=${volumeLoader(scan.id)}></rf-volume-view>` : nothing}`;
   }
 
+  private priorTab(scan: ScanMeta) {
+    return html`<rf-prior-workbench .client=${this.client} .scan=${scan} .results=${this.results.filter((r) => r.scanId === scan.id)}
+      .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?active=${this.tab === 'prior'}
+      @library-changed=${() => this.refreshLibrary()}></rf-prior-workbench>`;
+  }
+
   render() {
     const running = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting').length;
     const resultCount = this.results.filter((r) => r.scanId === this.selectedScanId).length;
@@ -388,6 +396,7 @@ export class AppShell extends LitElement {
       ['scan', 'Projections', nothing],
       ['reconstruct', 'Reconstruct', running ? html`<span class="badge">${running}</span>` : nothing],
       ['images', 'Images', resultCount ? html`<span class="badge">${resultCount}</span>` : nothing],
+      ['prior', 'Network prior', nothing],
     ];
     return html`
       <header>

@@ -6,9 +6,13 @@ import { theme } from './theme';
  * @fires files-chosen - detail: { files: File[] }, when files are dropped or picked.
  */
 export class FileDrop extends LitElement {
-  static properties = { busy: { type: Boolean }, dragging: { state: true } };
+  static properties = { busy: { type: Boolean }, prompt: { type: String }, inputLabel: { type: String }, dragging: { state: true } };
   /** True while an import runs (the area shows it and refuses more). */
   declare busy: boolean;
+  /** What to drop, in plain words. */
+  declare prompt: string;
+  /** Accessible name of the file picker. */
+  declare inputLabel: string;
   declare dragging: boolean;
 
   static styles = [theme, css`
@@ -24,6 +28,8 @@ export class FileDrop extends LitElement {
   constructor() {
     super();
     this.busy = false;
+    this.prompt = 'Drop scan files here: NRRD, MetaImage, raw + JSON or TIFF frames (with flat* and dark* files), and a .json geometry when the data carry none';
+    this.inputLabel = 'Scan files';
     this.dragging = false;
   }
 
@@ -37,9 +43,9 @@ export class FileDrop extends LitElement {
         @dragover=${(e: DragEvent) => { e.preventDefault(); this.dragging = true; }}
         @dragleave=${() => (this.dragging = false)}
         @drop=${(e: DragEvent) => { e.preventDefault(); this.dragging = false; this.emit(e.dataTransfer?.files); }}>
-      ${this.busy ? 'Reading the file…' : html`Drop scan files here: NRRD, MetaImage, raw + JSON or TIFF frames (with flat* and dark* files), and a .json geometry when the data carry none`}
+      ${this.busy ? 'Reading the file…' : this.prompt}
       <div><button ?disabled=${this.busy} @click=${() => this.renderRoot.querySelector('input')!.click()}>Choose files…</button></div>
-      <input type="file" multiple aria-label="Scan files"
+      <input type="file" multiple aria-label=${this.inputLabel}
         @change=${(e: Event) => { const input = e.target as HTMLInputElement; this.emit(input.files); input.value = ''; }}>
     </div>`;
   }

@@ -2,9 +2,11 @@
 // id; the coordinator answers with progress messages and then exactly one done or error.
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
 import type { Comparison } from '../core/compare';
-import type { ResultMeta, ScanMeta } from '../store/records';
+import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
+import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
+import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 1;
+export const APP_PROTOCOL_VERSION = 2;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -15,7 +17,9 @@ export type AppRequest =
   | { op: 'demo-cone' }
   | { op: 'run'; scanId: string; recipe: unknown; name?: string }
   | { op: 'compare'; resultId: string; against: CompareTarget }
-  | { op: 'info' };
+  | { op: 'info' }
+  | { op: 'import-model'; files: File[] }
+  | { op: 'network-prior'; request: NetworkPriorRequest };
 
 /** What each request resolves to. */
 export interface AppReplies {
@@ -25,6 +29,8 @@ export interface AppReplies {
   run: ResultMeta;
   compare: Comparison;
   info: EngineInfo;
+  'import-model': ModelMeta;
+  'network-prior': NetworkPriorOutcome;
 }
 
 export interface EngineInfo {
@@ -36,7 +42,7 @@ export interface EngineInfo {
 
 /** Messages to the coordinator. */
 export type ToCoordinator =
-  | { op: 'init'; version: number; kernelPorts: MessagePort[] }
+  | { op: 'init'; version: number; kernelPorts: MessagePort[]; ortRuntime: PackedOrtRuntime }
   | ({ id: number } & AppRequest)
   | { op: 'cancel'; id: number };
 

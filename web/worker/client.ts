@@ -6,6 +6,7 @@
 import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
+import type { NetworkPriorRequest } from './network-prior-job';
 
 /** What the client needs of a Worker (a real Web Worker, or a stand-in in tests). */
 export interface WorkerLike {
@@ -94,6 +95,16 @@ export class EngineClient {
   /** Image-quality figures of a result against its scan's reference or another result. */
   compare(resultId: string, against: CompareTarget, options: CallOptions = {}): Promise<AppReplies['compare']> {
     return this.call({ op: 'compare', resultId, against }, options);
+  }
+
+  /** Checks a network (its .onnx file and .json description) in the runtime and stores it. */
+  importModel(files: File[], options: CallOptions = {}): Promise<AppReplies['import-model']> {
+    return this.call({ op: 'import-model', files }, options);
+  }
+
+  /** Runs a stored network on a stored scan, checks its output against the data; stores what it made. */
+  runNetworkPrior(request: NetworkPriorRequest, options: CallOptions = {}): Promise<AppReplies['network-prior']> {
+    return this.call({ op: 'network-prior', request }, options);
   }
 
   /** Pool size and memory mode. */

@@ -7,7 +7,10 @@ import type { RunHooks } from '../core/run-hooks';
 import { StorageFullError } from '../store/quota';
 import { APP_PROTOCOL_VERSION, type AppRequest, type FromCoordinator, type ToCoordinator, type WireError } from './app-protocol';
 import { Coordinator } from './coordinator';
+import { browserModelWorkerStarter } from './browser-model-starter';
 import { messagePortAsWorkerPort } from './message-port';
+import { ModelRuntime } from './model-runtime';
+import type { PackedOrtRuntime } from './ort-runtime-pack';
 import { PoolWorkspace } from './pool-workspace';
 
 const post = (msg: FromCoordinator) => (self as unknown as Worker).postMessage(msg);
@@ -20,10 +23,12 @@ function toWire(err: unknown): WireError {
   return { name: 'Error', message: String(err) };
 }
 
-function start(kernelPorts: MessagePort[]): Coordinator {
+function start(kernelPorts: MessagePort[], ortRuntime: PackedOrtRuntime): Coordinator {
   const shared = (self as unknown as { crossOriginIsolated?: boolean }).crossOriginIsolated === true && typeof SharedArrayBuffer !== 'undefined';
+  const models = new ModelRuntime(browserModelWorkerStarter(ortRuntime));
   return new Coordinator({
     sharedMemory: shared,
+    openModel: (onnx, signal) => models.open(onnx, signal),
     openWorkspace: async () => {
       const module = await WebAssembly.compile(base64ToBytes(shared ? engineSharedWasmBase64 : engineWasmBase64) as BufferSource);
       return PoolWorkspace.create(kernelPorts.map(messagePortAsWorkerPort), module, shared ? createMemory(true) : undefined);
@@ -59,7 +64,7 @@ self.onmessage = (e: MessageEvent<ToCoordinator>) => {
   const msg = e.data;
   if (msg.op === 'init') {
     if (msg.version !== APP_PROTOCOL_VERSION) throw new Error(`page speaks protocol ${msg.version}, engine ${APP_PROTOCOL_VERSION}`);
-    coordinator = start(msg.kernelPorts);
+    coordinator = start(msg.kernelPorts, msg.ortRuntime);
     return;
   }
   if (msg.op === 'cancel') {

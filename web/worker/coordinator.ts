@@ -13,14 +13,18 @@ import { runRecipe } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
 import { volumeDataResidual } from '../core/volume-residual';
 import { pageStore, type UseStore } from '../store/db';
-import type { ResultMeta, ScanMeta } from '../store/records';
+import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import { loadResultImage, saveResult } from '../store/results';
 import { loadReferenceVolume, loadScan, saveScan } from '../store/scans';
 import { saveSettings } from '../store/settings';
+import type { NetworkRunner } from '../core/model/runner';
+import { saveModel } from '../store/models';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
 import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
+import { checkModelFiles } from './import-model-files';
 import { readScanFiles } from './import-scan';
+import { runNetworkPriorJob } from './network-prior-job';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -28,6 +32,8 @@ export interface CoordinatorOptions {
   /** Whether that workspace shares memory between workers (for `info`). */
   sharedMemory: boolean;
   store?: UseStore;
+  /** Opens ONNX bytes in the network runtime (the model worker); absent: no network support. */
+  openModel?: (onnx: Uint8Array, signal?: AbortSignal) => Promise<NetworkRunner>;
 }
 
 export class Coordinator {
@@ -55,6 +61,10 @@ export class Coordinator {
         return (await this.compare(r.resultId, r.against)) as AppReplies[K];
       case 'info':
         return (await this.info()) as AppReplies[K];
+      case 'import-model':
+        return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
+      case 'network-prior':
+        return (await this.exclusive(async () => runNetworkPriorJob({ ws: await this.openWorkspace(), store: this.store, open: this.modelOpener() }, r.request, hooks))) as AppReplies[K];
     }
   }
 
@@ -66,6 +76,22 @@ export class Coordinator {
     hooks.onProgress?.(0.8, 'storing');
     const fileNames = files.map((f) => f.name);
     return saveScan({ name: name ?? fileNames.find((n) => /\.nrrd$/i.test(n)) ?? fileNames[0], scan, source: { type: 'file', fileNames }, warnings }, this.store);
+  }
+
+  /** Checks a network (ONNX + description) in the runtime and stores it (nothing is stored when it does not fit). */
+  async importModel(files: File[], hooks: RunHooks): Promise<ModelMeta> {
+    hooks.onProgress?.(0, 'checking the network');
+    const open = this.modelOpener();
+    const checked = await checkModelFiles(files, (bytes) => open(bytes, hooks.signal));
+    throwIfCancelled(hooks.signal);
+    hooks.onProgress?.(0.9, 'storing');
+    return saveModel(checked, this.store);
+  }
+
+  private modelOpener(): NonNullable<CoordinatorOptions['openModel']> {
+    const open = this.options.openModel;
+    if (!open) throw new Error('this engine was started without a network runtime');
+    return open;
   }
 
   /** Simulates and stores the demo scan with its ground truth. */

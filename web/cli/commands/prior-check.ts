@@ -19,8 +19,8 @@ export const priorCheckHelp = `rimfill prior-check scan.nrrd (--model net.onnx -
 ${SCAN_INPUT_HELP}
   Checks a prior against the measured data: reprojects it onto the scan's channels and reports,
   per view and channel, where it disagrees (relative RMS residual ||A f - p|| / ||p||; rays whose
-  residual, averaged over --flag-width mm (default ${DEFAULT_FLAG_WIDTH_MM}), exceeds max(5 robust sigma,
-  --flag-floor)). With --model the network runs on the scan (CPU) and --out writes its prior on
+  residual, averaged over --flag-width mm (default ${DEFAULT_FLAG_WIDTH_MM}), exceeds max(5 robust sigma of
+  the rays with similar measured values, --flag-floor)). With --model the network runs on the scan (CPU) and --out writes its prior on
   the reconstruction grid (--size/--pixel, default as reconstruct). --residual writes the
   residual sinogram (layout of the scan).`;
 
@@ -30,7 +30,7 @@ function text(r: ConsistencyReport, source: string, written: string[]): string {
   return [
     `prior: ${source}`,
     `consistency: relative RMS residual ${(100 * s.relativeRms).toFixed(2)}% on ${s.rays} measured rays (RMS ${s.rmsResidual.toFixed(4)}, mean ${s.meanResidual.toFixed(4)})`,
-    `disagreeing rays: ${s.flaggedRays} (${(100 * s.flaggedFraction).toFixed(2)}%) in ${s.flaggedViews} of ${r.views} views, threshold ${s.threshold.toFixed(4)} over ${s.averagedChannels} channels`,
+    `disagreeing rays: ${s.flaggedRays} (${(100 * s.flaggedFraction).toFixed(2)}%) in ${s.flaggedViews} of ${r.views} views, threshold ${s.threshold.toFixed(4)} to ${s.thresholdMax.toFixed(4)} over ${s.averagedChannels} channels (5 robust sigma among rays of similar measured value)`,
     `views with the largest RMS residual: ${worst.map((v) => `${v} (${r.profiles.viewRms[v].toFixed(4)})`).join(', ')}`,
     ...written.map((w) => `wrote ${w}`),
   ].join('\n');

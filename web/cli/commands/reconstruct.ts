@@ -9,6 +9,7 @@ import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { PendingWrites } from '../io';
+import { priorConsistency } from '../prior-consistency';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { openWorkspace } from '../engine-node';
 import { progressLine } from '../progress';
@@ -83,10 +84,12 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   try {
     const t0 = performance.now();
     const hooks = { onProgress: a.options.json ? undefined : progressLine(recipe.method) };
-    const { inputs, warnings: priorWarnings, priorReport } = await iterativeInputs(recipe, a, ws, scan, hooks);
+    const { inputs, warnings: priorWarnings, priorReport, checkedPrior } = await iterativeInputs(recipe, a, ws, scan, hooks);
     readWarnings.push(...priorWarnings);
     const r = await runRecipe(ws, scan, recipe, hooks, inputs);
     if (priorReport) r.report.priorSource = priorReport;
+    // The prior-guided method: the prior and the result checked against the measured data.
+    const consistency = recipe.method === 'prior' && !r.volume ? await priorConsistency(ws, scan, checkedPrior, r.image, hooks) : undefined;
     const seconds = (performance.now() - t0) / 1000;
     const image = r.image;
     const writes = new PendingWrites();
@@ -106,9 +109,10 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     writes.commit();
     const g = image.grid;
     return {
-      json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
-      warnings: [...readWarnings, ...r.warnings],
+      json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
+      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
+        (consistency ? `\n${consistency.text}` : ''),
+      warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };
   } finally {
     ws.dispose();

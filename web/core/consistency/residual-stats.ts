@@ -3,7 +3,9 @@
 // own spread. Disagreement is judged on the residual averaged over a few neighbouring channels
 // (a structure's width on the detector): the prior's pixel grid and the data's noise leave
 // residual spikes one or two channels wide at sharp edges, while a structure that is wrong in
-// the image leaves a band as wide as the structure's shadow.
+// the image leaves a band as wide as the structure's shadow. The spread is measured among rays
+// of similar measured value (noise-bins.ts), as photon noise grows with the line integral.
+import { noiseBins, robustSigmaOf, type NoiseBin } from './noise-bins';
 
 /** The overall figures of a residual sinogram. */
 export interface ResidualSummary {
@@ -25,10 +27,16 @@ export interface ResidualSummary {
   excludedRays: number;
   /** Channels averaged before flagging (odd; 1 = none). */
   averagedChannels: number;
-  /** Robust spread of the channel-averaged residual: 1.4826 * median |a - median a| (a Gaussian's sigma). */
+  /** Robust spread of the channel-averaged residual over all rays: 1.4826 * median |a - median a| (a Gaussian's sigma). */
   robustSigma: number;
-  /** Channel-averaged residual magnitude above which a ray counts as disagreeing. */
+  /** The same among rays of similar measured value, by measured value (increasing). */
+  noiseBins: NoiseBin[];
+  /**
+   * Channel-averaged residual magnitude above which a ray counts as disagreeing: max(5 sigma of
+   * its bin, floor). The smallest and the largest over the bins.
+   */
   threshold: number;
+  thresholdMax: number;
   /** Rays above the threshold, and their share of the measured rays. */
   flaggedRays: number;
   flaggedFraction: number;
@@ -76,19 +84,11 @@ export function averageChannels(residual: Float32Array, nViews: number, nCh: num
   return out;
 }
 
-/** Median of a copy of the values. */
-function median(values: Float32Array): number {
-  if (values.length === 0) return 0;
-  const s = Float32Array.from(values).sort();
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
-}
-
 /**
  * Summarizes `residual` = A f - p ([view][channel]; NaN where the measured value is not
- * finite) against `measured`. Flags use the residual averaged over `width` channels (odd);
- * `floor` is the smallest threshold (line-integral units), so that an almost perfect image
- * does not flag its rounding.
+ * finite) against `measured`. Flags use the residual averaged over `width` channels (odd),
+ * against 5 robust sigmas of the rays with similar measured values; `floor` is the smallest
+ * threshold (line-integral units), so that an almost perfect image does not flag its rounding.
  */
 export function residualStats(residual: Float32Array, measured: Float32Array, nViews: number, nCh: number, width: number, floor: number): { summary: ResidualSummary; profiles: ResidualProfiles } {
   const averaged = averageChannels(residual, nViews, nCh, width);
@@ -102,12 +102,9 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
     sumR2 += r * r;
     sumP2 += measured[i] * measured[i];
   }
-  const used = finite.subarray(0, rays);
-  const med = median(used);
-  const dev = used.map((r) => Math.abs(r - med));
-  // 1.4826 = 1 / Phi^-1(3/4): makes the MAD a consistent estimate of a Gaussian's sigma.
-  const robustSigma = 1.4826 * median(dev);
-  const threshold = Math.max(FLAG_SIGMAS * robustSigma, floor);
+  const robustSigma = robustSigmaOf(finite.subarray(0, rays));
+  const { bins, binOf } = noiseBins(averaged, measured);
+  const binThreshold = bins.map((b) => Math.max(FLAG_SIGMAS * b.sigma, floor));
 
   const viewRms = new Float32Array(nViews), viewRelative = new Float32Array(nViews), viewMaxAbs = new Float32Array(nViews);
   const viewFlagged = new Int32Array(nViews);
@@ -125,7 +122,8 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
       mx = Math.max(mx, Math.abs(r));
       chSum[k] += r * r;
       chCount[k]++;
-      if (Math.abs(averaged[v * nCh + k]) > threshold) {
+      const b = binOf[v * nCh + k];
+      if (b >= 0 && Math.abs(averaged[v * nCh + k]) > binThreshold[b]) {
         flagged[v * nCh + k] = 1;
         viewFlagged[v]++;
       }
@@ -146,7 +144,9 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
     excludedRays: residual.length - rays,
     averagedChannels: width,
     robustSigma,
-    threshold,
+    noiseBins: bins,
+    threshold: binThreshold.length ? Math.min(...binThreshold) : floor,
+    thresholdMax: binThreshold.length ? Math.max(...binThreshold) : floor,
     flaggedRays,
     flaggedFraction: rays ? flaggedRays / rays : 0,
     flaggedViews: viewFlagged.reduce((a, c) => a + (c > 0 ? 1 : 0), 0),
