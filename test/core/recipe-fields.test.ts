@@ -30,3 +30,17 @@ describe('recipe fields', () => {
     expect(recipeSummary({ method: 'fbp', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, ram-lak, cutoff 1, 576 px × 1 mm');
   });
 });
+
+describe('recipe field defaults shown by forms', () => {
+  // A form that leaves a field empty must show what the method will use (iterative/options.ts).
+  it('name the iterative methods\' own defaults, and a default choice that exists', () => {
+    const byKey = Object.fromEntries(describeRecipeFields().map((f) => [f.key, f]));
+    expect(byKey.iterations.defaultOf!({ method: 'sart' })).toBe(20);
+    expect(byKey.tvStrength.defaultOf!({ method: 'tv' })).toBe(0.002);
+    expect(byKey.tvStrength.defaultOf!({ method: 'wtv' })).toBe(0.005);
+    const prior = byKey.prior as ChoiceField;
+    expect(prior.choices.map((c) => c.value)).toContain(prior.defaultOf!({ method: 'prior' }));
+    const support = byKey.support as ChoiceField;
+    expect(support.choices.map((c) => c.value)).toContain(support.defaultOf!({ method: 'sart' }));
+  });
+});

@@ -80,12 +80,15 @@ export class RecipeForm extends LitElement {
     const v = this.values[f.key];
     const id = `field-${f.key}`;
     switch (f.kind) {
-      case 'choice':
-        return html`<select id=${id} name=${f.key} .value=${live(String(v ?? f.choices[0]?.value ?? ''))} @change=${(e: Event) => this.set(f.key, (e.target as HTMLSelectElement).value)}>
-          ${f.choices.map((c) => html`<option value=${c.value} ?selected=${c.value === v}>${c.label}</option>`)}</select>`;
+      case 'choice': {
+        const shown = String(v ?? f.defaultOf?.(this.values) ?? f.choices[0]?.value ?? '');
+        return html`<select id=${id} name=${f.key} .value=${live(shown)} @change=${(e: Event) => this.set(f.key, (e.target as HTMLSelectElement).value)}>
+          ${f.choices.map((c) => html`<option value=${c.value} ?selected=${c.value === shown}>${c.label}</option>`)}</select>`;
+      }
       case 'number':
       case 'integer':
         return html`<input id=${id} name=${f.key} type="number" min=${f.min} max=${f.max} step=${f.step} .value=${live(v === undefined ? '' : String(v))}
+          placeholder=${f.defaultOf ? `default ${f.defaultOf(this.values)}` : ''}
           @input=${(e: Event) => { const t = (e.target as HTMLInputElement).value; this.set(f.key, t === '' ? undefined : Number(t)); }}>`;
       case 'text':
         return html`<input id=${id} name=${f.key} .value=${live(String(v ?? ''))} @input=${(e: Event) => this.set(f.key, (e.target as HTMLInputElement).value)}>`;

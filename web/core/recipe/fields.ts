@@ -5,7 +5,7 @@
 // (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
 import { FILTER_WINDOWS } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
-import { isIterativeMethod } from '../iterative/options';
+import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, type IterativeOptions } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
 
 export interface FieldChoice {
@@ -22,6 +22,8 @@ interface FieldBase {
   help: string;
   /** When present, the field matters only for recipes where this returns true. */
   appliesTo?: (recipe: Record<string, unknown>) => boolean;
+  /** The value the method uses when the recipe leaves the field out (shown by forms). */
+  defaultOf?: (recipe: Record<string, unknown>) => number | string;
 }
 
 export interface ChoiceField extends FieldBase {
@@ -144,6 +146,17 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'Pixels reconstructed; outside they stay zero.',
   },
 ];
+
+/** The iterative method's own default of an option (iterative/options.ts). */
+const iterativeDefault = (key: keyof IterativeOptions) => (r: Record<string, unknown>) =>
+  resolveOptions(isIterativeMethod(String(r.method)) ? (r.method as 'sart') : 'sart', {})[key] as number | string;
+
+for (const f of RECIPE_FIELDS) {
+  if (f.key === 'prior') f.defaultOf = () => `${DEFAULT_PRIOR_RECIPE.method}:${DEFAULT_PRIOR_RECIPE.extend}`;
+  else if (['iterations', 'subsets', 'relaxation', 'tolerance', 'tvStrength', 'tvSteps', 'tvEps', 'priorWeight', 'support'].includes(f.key)) {
+    f.defaultOf = iterativeDefault(f.key as keyof IterativeOptions);
+  }
+}
 
 /**
  * Every field a form should offer: the described ones, then any field of DEFAULT_RECIPE that has
