@@ -175,4 +175,39 @@ np.stack(ref).astype('<f4').tofile('ref.f32')
     expect(flat.code).toBe(2);
     expect(flat.err).toMatch(/--fov-radius: got -4, expected a positive length/);
   });
+
+  it('takes a prior volume file for the prior-guided method on a truncated cone-beam scan (after the test above)', async () => {
+    // The prior is the truth volume itself (3 mm voxels, resampled onto the 64 x 64 x 56 voxels
+    // of 3.4 mm, which hold the whole head). The data-consistent result keeps the prior beyond
+    // the FOV, so there its RMSE must fall far below FDK with water extension (issue 4: "at
+    // least 3x lower than the best extrapolation + FBP" with a prior that is correct outside the
+    // FOV); inside, the data keep it close to the truth. Measured: outside 13 HU against 320,
+    // inside 26 HU against 60.
+    const grid = ['--size', '64', '--pixel', '3.4', '--slices', '56', '--slice-spacing', '3.4'];
+    const rec = await rimfill('reconstruct', f('cut.nrrd'), '--method', 'prior', '--prior', f('cut-truth.nrrd'), '--iterations', '2', ...grid, '--out', f('cut-prior.nrrd'), '--json');
+    expect(rec.code, rec.err).toBe(0);
+    const out = JSON.parse(rec.out);
+    expect(out.grid).toMatchObject({ nx: 64, ny: 64, nz: 56 });
+    expect(out.warnings.join(' ')).toMatch(/prior resampled \(trilinear\)/);
+    const water = await rimfill('reconstruct', f('cut.nrrd'), '--method', 'fbp', '--extend', 'water', ...grid, '--out', f('cut-water-whole.nrrd'));
+    expect(water.code, water.err).toBe(0);
+    const outside: Record<string, number> = {}, inside: Record<string, number> = {};
+    for (const name of ['water-whole', 'prior']) {
+      const cmp = await rimfill('compare', f(`cut-${name}.nrrd`), '--reference', f('cut-truth.nrrd'), '--fov', '--json');
+      expect(cmp.code, cmp.err).toBe(0);
+      outside[name] = JSON.parse(cmp.out).regions.outsideFov.rmse;
+      inside[name] = JSON.parse(cmp.out).regions.insideFov.rmse;
+    }
+    expect(outside.prior).toBeLessThan(outside['water-whole'] / 3);
+    expect(inside.prior).toBeLessThan(inside['water-whole']);
+
+    // What a cone-beam scan cannot take is refused with the reason, and nothing is written.
+    const net = await rimfill('reconstruct', f('cut.nrrd'), '--method', 'prior', '--model', f('none.onnx'), '--model-info', f('none.json'), ...grid, '--out', f('cut-net.nrrd'));
+    expect(net.code).toBe(2);
+    expect(net.err).toMatch(/the network prior works on 2D scans/);
+    expect(existsSync(f('cut-net.nrrd'))).toBe(false);
+    const typo = await rimfill('reconstruct', f('cut.nrrd'), '--method', 'prior', '--prior', 'fdk', ...grid, '--out', f('cut-typo.nrrd'));
+    expect(typo.code).toBe(2);
+    expect(typo.err).toMatch(/option --prior: got "fdk", expected an image file or folder that exists, or a method \(fbp, sart, tv, wtv\)/);
+  });
 });

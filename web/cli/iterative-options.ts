@@ -1,5 +1,6 @@
 // The iterative methods' options of `rimfill reconstruct` (sart, tv, wtv, prior): option spec,
 // help text, recipe fields they set, and the images they name (prior, support mask, network).
+import { existsSync } from 'node:fs';
 import { InputError } from '../core/errors';
 import { isIterativeMethod, ITERATIVE_METHODS } from '../core/iterative/options';
 import { chooseGrid } from '../core/recipe/grid';
@@ -10,7 +11,7 @@ import type { Scan } from '../core/scan';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
 import type { OptionType, ParsedArgs } from './args';
-import { loadImage } from './load';
+import { loadImage, loadVolume } from './load';
 import { hasPriorOptions, PRIOR_OPTIONS, resolvePrior } from './prior-source';
 
 /** Option name -> recipe field. */
@@ -27,14 +28,16 @@ export const ITERATIVE_OPTIONS: Record<string, OptionType> = {
 export const ITERATIVE_HELP = `    iterative methods (${ITERATIVE_METHODS.join(', ')}):
     [--iterations K] [--subsets N] [--relaxation 0..2] [--tolerance fraction]
     [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support circle|grid|mask.nrrd] [--allow-negative]
-    [--prior image.nrrd|METHOD | --model net.onnx --model-info net.json] [--prior-weight 0..1]
+    [--prior FILE|METHOD | --model net.onnx --model-info net.json] [--prior-weight 0..1]
   sart: ordered-subsets SART on the measured channels; tv, wtv: plus (reweighted) total
   variation (ASD-POCS). prior: the measured channels are fitted to the data, the channels beyond
   the detector to the projections of the prior, starting from it, with reweighted TV. The prior
-  is an image of the same object (any grid), a method whose result on this scan is the prior
-  (e.g. fbp with --extend mirror), or a user's network (--model); without one, FBP of the scan
-  with water-cylinder extension. Default grid: the prior's extent (image), else as for fbp. --json reports residual and TV per iteration, the residual
-  per view, and how far the result departs from the prior inside and outside the FOV.`;
+  is an image of the same object (any grid and image format; for a cone-beam scan a volume,
+  resampled), a method whose result on this scan is the prior (e.g. fbp with --extend mirror),
+  or a user's network (--model, 2D scans); without one, FBP (FDK) of the scan with water-
+  cylinder extension. Default grid: the prior's extent (2D image), else as for fbp. --json
+  reports residual and TV per iteration, the residual per view, and how far the result departs
+  from the prior inside and outside the FOV.`;
 
 /**
  * Sets the iterative fields of `raw` from the options (InputError for options the method does
@@ -63,9 +66,11 @@ export function addIterativeFields(raw: Record<string, unknown>, a: ParsedArgs):
     return;
   }
   const prior = o.prior as string | undefined;
-  if (prior !== undefined && !/\.nrrd$/i.test(prior) && o.model === undefined && o['model-info'] === undefined) {
-    const methods = METHODS.filter((m) => m !== 'prior');
-    if (!(methods as string[]).includes(prior)) throw new InputError(`option --prior: got "${prior}", expected an image file (.nrrd) or a method (${methods.join(', ')})`);
+  const methods: string[] = METHODS.filter((m) => m !== 'prior');
+  if (prior !== undefined && !methods.includes(prior) && !existsSync(prior)) {
+    throw new InputError(`option --prior: got "${prior}", expected an image file or folder that exists, or a method (${methods.join(', ')})`);
+  }
+  if (prior !== undefined && methods.includes(prior) && o.model === undefined && o['model-info'] === undefined) {
     const { method: _method, ...rest } = raw;
     for (const field of [...Object.values(ITERATIVE_FIELD_OPTIONS), 'nonNegative']) delete rest[field];
     raw.prior = { source: 'recipe', recipe: { ...rest, method: prior } };
@@ -84,7 +89,15 @@ export async function iterativeInputs(
   let priorReport: Record<string, unknown> | undefined;
   /** The prior as checked against the data: a network's output on its own grid, or the image. */
   let checkedPrior: Image2D | undefined;
-  if (recipe.prior?.source === 'image') {
+  if (recipe.prior?.source === 'image' && scan.geometry.kind === 'cone') {
+    if (a.options.model !== undefined || a.options['model-info'] !== undefined) {
+      throw new InputError('options --model, --model-info: the network prior works on 2D scans; for a cone-beam scan give --prior with a volume file or a method');
+    }
+    const v = await loadVolume(a.options.prior as string, 'prior', scan.muWater, a);
+    inputs.priorVolume = v.volume;
+    warnings.push(...v.warnings);
+    priorReport = { source: 'image', path: a.options.prior };
+  } else if (recipe.prior?.source === 'image') {
     // A network's prior is made on the grid the reconstruction will use.
     const grid = chooseGrid(scan, recipe.grid);
     const p = await resolvePrior(a, ws, scan, grid, hooks);

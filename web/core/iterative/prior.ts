@@ -30,6 +30,10 @@ export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array
 
 /** The prior volume (mu, 1/mm) on the reconstruction volume's grid (trilinear where they differ). */
 export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): { data: Float32Array; warnings: string[] } {
+  if (prior.quantity === 'hu') {
+    if (!(prior.muWater && prior.muWater > 0)) throw new InputError('prior: values are HU but its mu_water is unknown');
+    prior = { ...prior, data: huToMu(prior.data, prior.muWater), quantity: 'mu' };
+  }
   let bad = 0;
   for (const v of prior.data) if (!Number.isFinite(v)) bad++;
   if (bad > 0) throw new InputError(`prior: ${bad} of ${prior.data.length} voxels are not finite numbers, expected attenuation values`);
@@ -39,6 +43,9 @@ export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): { data: Floa
   return { data, warnings: [`prior resampled (trilinear) from ${g.nx} x ${g.ny} x ${g.nz} voxels onto the reconstruction volume`, ...negativeNote(data, 'voxels')] };
 }
 
+/** Negative values above this (1/mm, about -0.05 HU) are float rounding of zero (resampling, HU conversion), not worth a note. */
+const ROUNDING_OF_ZERO = -1e-6;
+
 /**
  * A note on negative values. They are kept (clipping would bias the prior's projections); the
  * first non-negative update clips them in the image.
@@ -46,7 +53,7 @@ export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): { data: Floa
 function negativeNote(data: Float32Array, what: 'pixels' | 'voxels'): string[] {
   let negative = 0, lowest = 0;
   for (const v of data) {
-    if (v < 0) negative++;
+    if (v < ROUNDING_OF_ZERO) negative++;
     lowest = Math.min(lowest, v);
   }
   return negative > 0 ? [`prior: ${negative} ${what} have negative attenuation (lowest ${lowest.toPrecision(3)} /mm)`] : [];

@@ -25,6 +25,8 @@ import { gridSize, isVolumeGrid, type ReconGrid } from './space';
 export interface RecipeInputs {
   /** The prior of method "prior" when its source is "image" (any grid; resampled). */
   prior?: Image2D;
+  /** The same for a cone-beam scan: a prior volume (any grid; trilinear resampling). */
+  priorVolume?: Volume;
   /** The support mask when the recipe's support is "image": > 0.5 inside (any grid; resampled). */
   supportMask?: Image2D;
 }
@@ -54,13 +56,25 @@ function scaled(hooks: RunHooks, from: number, to: number): RunHooks {
   return { signal: hooks.signal, onProgress: p ? (f, stage) => p(from + (to - from) * f, stage) : undefined };
 }
 
-async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks, cone: boolean): Promise<{ image: Image2D; volume?: Volume; warnings: string[] }> {
+/** The prior as obtained: an image (2D) or a volume (cone beam); `given`: it came from the caller, on its own grid. */
+interface ObtainedPrior {
+  image: Image2D;
+  volume?: Volume;
+  warnings: string[];
+  given?: boolean;
+}
+
+async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: NestedRun, hooks: RunHooks, cone: boolean): Promise<ObtainedPrior> {
   const src = recipe.prior;
   if (!src) throw new InputError('recipe prior: method "prior" needs a prior');
   if (src.source === 'image') {
-    if (cone) throw new InputError('prior: a cone-beam scan takes its prior from a recipe on the scan (e.g. "fbp:water"), not from an image');
+    if (cone) {
+      const v = inputs.priorVolume;
+      if (!v) throw new InputError('prior: a cone-beam scan takes a prior volume (a volume file) or a recipe on the scan (e.g. "fbp:water"); none was given');
+      return { image: axialSlice(v, sliceAt(v.grid, 0)), volume: v, warnings: [], given: true };
+    }
     if (!inputs.prior) throw new InputError('prior: the recipe takes its prior from an image, but none was given');
-    return { image: inputs.prior, warnings: [] };
+    return { image: inputs.prior, warnings: [], given: true };
   }
   // A cone-beam prior is reconstructed on the recipe's volume when its own recipe names none
   // (no resampling, and no default-sized volume for a small problem).
@@ -92,10 +106,11 @@ async function prepareStart(ws: Workspace, sart: OsSart, x: Buf, problem: Proble
 
 /**
  * The grid: the recipe's, else the prior's extent, else as FBP / FDK choose it (a cone-beam
- * scan's volume: recipe/volume-grid.ts).
+ * scan's volume: recipe/volume-grid.ts; a prior volume reconstructed from the scan sets it, a
+ * given one is resampled onto it).
  */
-function chooseIterativeGrid(scan: Scan, recipe: Recipe, prior?: { image: Image2D; volume?: Volume }): ReconGrid {
-  if (scan.geometry.kind === 'cone') return !recipe.grid && !recipe.volume && prior?.volume ? prior.volume.grid : chooseVolumeGrid(scan, recipe.grid, recipe.volume);
+function chooseIterativeGrid(scan: Scan, recipe: Recipe, prior?: ObtainedPrior): ReconGrid {
+  if (scan.geometry.kind === 'cone') return !recipe.grid && !recipe.volume && prior?.volume && !prior.given ? prior.volume.grid : chooseVolumeGrid(scan, recipe.grid, recipe.volume);
   return recipe.grid ? squareGrid(recipe.grid.size, recipe.grid.pixel) : prior ? gridCovering(prior.image.grid) : chooseGrid(scan);
 }
 
