@@ -1,7 +1,8 @@
 // The network-prior job through the command line, for the page to agree with: the test
 // networks are written here (test-models.ts, bundled by esbuild), the bright-disk network is
 // fitted to the demo scan's water-extended FBP on its grid, and `rimfill prior-check` reports
-// the consistency of its output.
+// the consistency of its output. The same image (phantom + disk) is also written as an NRRD file
+// (by hand: Teem NRRD format spec) for the page's image-file prior, with its own prior-check.
 import { execFileSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -28,5 +29,16 @@ export async function priorReference(root, dir) {
   writeFileSync(files.wrongSize.onnx, m.fixedIdentityModel(128));
   writeFileSync(files.wrongSize.json, m.description('Wrong-size test network'));
   const check = JSON.parse(cli('prior-check', f('scan.nrrd'), '--model', files.disk.onnx, '--model-info', files.disk.json, '--json'));
-  return { files, check, disk: m.DISK, muWater: Number(input.keys['rimfill.muWater']) };
+  files.imagePrior = f('disk-prior.nrrd');
+  writeFileSync(files.imagePrior, floatNrrd(m.truthWithDisk(), m.MODEL_SIZE, m.MODEL_PIXEL));
+  const imageCheck = JSON.parse(cli('prior-check', f('scan.nrrd'), '--prior', files.imagePrior, '--json'));
+  return { files, check, imageCheck, disk: m.DISK, muWater: Number(input.keys['rimfill.muWater']) };
+}
+
+/** A square image in mu as an attached raw little-endian float NRRD, centred on the isocentre. */
+function floatNrrd(data, size, pixel) {
+  const o = -((size - 1) / 2) * pixel;
+  const header = `NRRD0004\ntype: float\ndimension: 2\nsizes: ${size} ${size}\nendian: little\nencoding: raw\n`
+    + `space dimension: 2\nspace directions: (${pixel},0) (0,${pixel})\nspace origin: (${o},${o})\nrimfill.quantity:=mu\n\n`;
+  return Buffer.concat([Buffer.from(header, 'latin1'), Buffer.from(data.buffer, data.byteOffset, data.byteLength)]);
 }

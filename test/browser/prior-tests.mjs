@@ -32,7 +32,7 @@ async function chooseFiles(page, files) {
 async function diskContrastRemoved(page, prior) {
   const view = page.locator('rf-prior-run-view');
   await view.locator('rf-viewer-toolbar button[data-tool="region"]').click();
-  const canvas = view.locator('#network-side rf-image-viewer canvas');
+  const canvas = view.locator('#prior-side rf-image-viewer canvas');
   await canvas.scrollIntoViewIfNeeded();
   const b = await canvas.boundingBox();
   // Both panels show the demo's 576 mm field fitted to the panel, anterior (+y) up.
@@ -97,18 +97,18 @@ export async function priorTests(h, { context, mode, url, origin, artifacts, pri
     const before = (await storedKeys(page, 'result/')).length;
     await page.locator('#run-prior').click();
     await page.locator('rf-prior-run-form progress').waitFor({ timeout: 10_000 });
-    await page.locator('#network-report rf-consistency-report').waitFor({ timeout: RUN_TIMEOUT });
+    await page.locator('#prior-report rf-consistency-report').waitFor({ timeout: RUN_TIMEOUT });
     const errors = await page.locator('#prior-error').allInnerTexts();
     check(errors.length === 0, `run error: ${errors.join(' | ')}`);
     const want = prior.check.consistency;
-    const figure = Number((await page.locator('#network-report [data-figure="relative-rms"]').innerText()).replace('%', ''));
+    const figure = Number((await page.locator('#prior-report [data-figure="relative-rms"]').innerText()).replace('%', ''));
     // Shown to two decimals of a percent: half a unit of the last digit.
     near(figure, 100 * want.relativeRms, 0.0051, 'consistency figure (%) against rimfill prior-check');
-    const views = Number(await page.locator('#network-report [data-flagged-views]').innerText());
+    const views = Number(await page.locator('#prior-report [data-flagged-views]').innerText());
     // Same engine; rays within float rounding of the threshold may flip between the two.
     near(views, want.flaggedViews, Math.max(2, 0.02 * want.flaggedViews), 'views with disagreeing rays');
     check(want.flaggedViews > 0, 'the command line flags views for the bright-disk network');
-    const runs = await page.locator('#network-report #disagreement-runs li').allInnerTexts();
+    const runs = await page.locator('#prior-report #disagreement-runs li').allInnerTexts();
     check(runs.length > 0, 'the report says where the network disagrees');
     // The flagged views of the command line lie within the runs the page lists.
     const flagged = want.perView.flagged.map((n, v) => (n > 0 ? v : -1)).filter((v) => v >= 0);
@@ -122,7 +122,7 @@ export async function priorTests(h, { context, mode, url, origin, artifacts, pri
     check(verdict === 'consistent' || verdict === 'scattered', `data-consistent verdict: ${verdict}`);
     check((await storedKeys(page, 'result/')).length === before + 2, 'network output and data-consistent result are stored');
     await diskContrastRemoved(page, prior);
-    await page.locator('#network-report rf-residual-sinogram canvas').waitFor();
+    await page.locator('#prior-report rf-residual-sinogram canvas').waitFor();
     await shot(page, '2-report');
   });
 
@@ -141,13 +141,50 @@ export async function priorTests(h, { context, mode, url, origin, artifacts, pri
     check((await storedKeys(page, 'result')).length > after.length, 'the run after a cancel is stored');
   });
 
+  /** Runs a prior check with the form as it is set and waits for the new check to be shown. */
+  async function runCheck() {
+    const before = (await storedKeys(page, 'result/')).length;
+    await page.locator('#run-prior').click();
+    await page.locator('rf-prior-run-form progress').waitFor({ timeout: 10_000 });
+    await page.locator('rf-prior-run-form progress').waitFor({ state: 'detached', timeout: RUN_TIMEOUT });
+    const errors = await page.locator('#prior-error').allInnerTexts();
+    check(errors.length === 0, `run error: ${errors.join(' | ')}`);
+    check((await storedKeys(page, 'result/')).length === before + 1, 'the checked prior is stored as one new result (no data-consistent step asked for)');
+    await page.locator('#prior-side h2', { hasText: 'Prior image' }).waitFor({ timeout: 30_000 });
+    await page.locator('#prior-report rf-consistency-report').waitFor();
+    return Number((await page.locator('#prior-report [data-figure="relative-rms"]').innerText()).replace('%', ''));
+  }
+
+  await h.step(`${mode}: (priors) an image file as the prior is checked against the data as the command line checks it`, async () => {
+    await page.locator('rf-prior-run-form input[name="prior-source"][value="file"]').check();
+    await page.locator('#prior-file').setInputFiles(prior.files.imagePrior);
+    await page.locator('rf-prior-run-form input[name="data-consistent"]').uncheck();
+    const figure = await runCheck();
+    near(figure, 100 * prior.imageCheck.consistency.relativeRms, 0.0051, 'consistency figure (%) of the image prior against rimfill prior-check --prior');
+    const views = Number(await page.locator('#prior-report [data-flagged-views]').innerText());
+    near(views, prior.imageCheck.consistency.flaggedViews, Math.max(2, 0.02 * prior.imageCheck.consistency.flaggedViews), 'views with disagreeing rays');
+    check(/Prior: disk-prior\.nrrd/.test(await page.locator('#prior-shown').innerText()), 'the check is listed under the file\'s name');
+    await shot(page, '3-image-file');
+  });
+
+  await h.step(`${mode}: (priors) a stored result as the prior is checked and listed under its name`, async () => {
+    await page.locator('rf-prior-run-form input[name="prior-source"][value="result"]').check();
+    const chosen = page.locator('#prior-result');
+    const labels = (await chosen.locator('option').allInnerTexts()).map((t) => t.trim());
+    const label = labels.find((t) => /water/i.test(t)) ?? labels.find((t) => !t.startsWith('Prior:'));
+    await chosen.selectOption({ label });
+    const figure = await runCheck();
+    check(figure > 0, `consistency figure ${figure}%`);
+    check((await page.locator('#prior-shown').innerText()).includes(`Prior: ${label}`), `the check is listed as "Prior: ${label}"`);
+  });
+
   await h.step(`${mode}: (priors) reloading keeps the network and its runs`, async () => {
     await page.reload();
     await page.locator('rf-scan-library li').first().waitFor({ timeout: 60_000 });
     await page.locator('#tab-prior').click();
     await page.locator('rf-model-library li').first().waitFor();
     check((await page.locator('rf-model-library li').count()) === 1, 'one network after reload');
-    await page.locator('#network-report rf-consistency-report').waitFor({ timeout: 30_000 });
+    await page.locator('#prior-report rf-consistency-report').waitFor({ timeout: 30_000 });
     check((await page.locator('#prior-shown option').count()) >= 2, 'both runs are listed');
   });
 

@@ -23,22 +23,26 @@ export function description(name: string, size = MODEL_SIZE): string {
   }, null, 2);
 }
 
+/** The thorax phantom plus the false disk on the model grid (mu, 1/mm): what the bright-disk network returns. */
+export function truthWithDisk(): Float32Array {
+  const grid = squareGrid(MODEL_SIZE, MODEL_PIXEL);
+  const out = rasterize(thorax(), grid, 4);
+  const { x0, y0 } = gridOrigin(grid);
+  for (let j = 0; j < MODEL_SIZE; j++) {
+    for (let i = 0; i < MODEL_SIZE; i++) {
+      if ((x0 + i * MODEL_PIXEL - DISK.cx) ** 2 + (y0 + j * MODEL_PIXEL - DISK.cy) ** 2 < DISK.r ** 2) out[j * MODEL_SIZE + i] += DISK.value;
+    }
+  }
+  return out;
+}
+
 /**
  * output = input + (truth + disk - fbp): fed with the demo scan's water-extended FBP on the
  * model grid (`fbp`, as the command line makes it), it returns the thorax phantom plus a false disk.
  */
 export function brightDiskModel(fbp: Float32Array): Uint8Array {
-  const grid = squareGrid(MODEL_SIZE, MODEL_PIXEL);
-  const truth = rasterize(thorax(), grid, 4);
-  const { x0, y0 } = gridOrigin(grid);
-  const addend = new Float32Array(truth.length);
-  for (let j = 0; j < MODEL_SIZE; j++) {
-    for (let i = 0; i < MODEL_SIZE; i++) {
-      const k = j * MODEL_SIZE + i;
-      const inDisk = (x0 + i * MODEL_PIXEL - DISK.cx) ** 2 + (y0 + j * MODEL_PIXEL - DISK.cy) ** 2 < DISK.r ** 2;
-      addend[k] = truth[k] + (inDisk ? DISK.value : 0) - fbp[k];
-    }
-  }
+  const wanted = truthWithDisk();
+  const addend = wanted.map((v, k) => v - fbp[k]);
   const dims = [1, 1, MODEL_SIZE, MODEL_SIZE];
   return writeOnnxModel({
     inputs: [{ name: 'image', dims }],

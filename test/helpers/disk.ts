@@ -26,6 +26,18 @@ export function diskImage(d: Disk, grid: ImageGrid): Float32Array {
   return out;
 }
 
+/** Mean of (withDisk - clean) over the disk's pixels on `grid`, and how many pixels that is: the contrast a result kept. */
+export function contrastKept(withDisk: Float32Array, clean: Float32Array, d: Disk, grid: ImageGrid): { kept: number; pixels: number } {
+  const disk = diskImage(d, grid);
+  let sum = 0, n = 0;
+  for (let i = 0; i < disk.length; i++) {
+    if (!disk[i]) continue;
+    sum += withDisk[i] - clean[i];
+    n++;
+  }
+  return { kept: sum / n, pixels: n };
+}
+
 /** Distance (mm) from the disk centre to the central ray of every view and channel ([view][channel]). */
 export function rayDistances(g: Geometry, d: Disk): Float32Array {
   const views = viewVectors(g);

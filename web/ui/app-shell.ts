@@ -396,7 +396,7 @@ export class AppShell extends LitElement {
       ['scan', 'Projections', nothing],
       ['reconstruct', 'Reconstruct', running ? html`<span class="badge">${running}</span>` : nothing],
       ['images', 'Images', resultCount ? html`<span class="badge">${resultCount}</span>` : nothing],
-      ['prior', 'Network prior', nothing],
+      ['prior', 'Prior check', nothing],
     ];
     return html`
       <header>

@@ -24,18 +24,23 @@ export interface RunSide {
   map?: Float32Array;
 }
 
-/** A network-prior run: the network's output and, when the step ran, the data-consistent result. */
+/** A prior check: the prior (a network's output, a stored result or an image file) and, when the step ran, the data-consistent result. */
 export interface ShownRun {
-  network: RunSide;
+  prior: RunSide;
   consistent?: RunSide;
   /** Why there is no data-consistent result. */
   consistentMissing: string;
 }
 
-const COLOURS = { network: SERIES_COLOURS[0], consistent: SERIES_COLOURS[2] };
+const COLOURS = { prior: SERIES_COLOURS[0], consistent: SERIES_COLOURS[2] };
+
+/** How a checked prior is named: a network's output, or a prior image. */
+export function priorTitle(meta: ResultMeta): string {
+  return meta.recipe.method === 'network' ? 'Network output' : 'Prior image';
+}
 
 /**
- * A network-prior run side by side: the network's output and the data-consistent result with
+ * A prior check side by side: the prior and the data-consistent result with
  * linked window, zoom, cursor, line profile and region; the difference the data made; and the
  * consistency report of each against the measured data.
  */
@@ -84,7 +89,7 @@ export class PriorRunView extends LitElement {
   }
 
   willUpdate(changed: Map<string, unknown>) {
-    if (!this.window && this.run) this.window = this.run.network.display.unit === 'HU' ? { width: 400, level: 40 } : autoWindow(this.run.network.display.values);
+    if (!this.window && this.run) this.window = this.run.prior.display.unit === 'HU' ? { width: 400, level: 40 } : autoWindow(this.run.prior.display.values);
     if (changed.has('run') && !this.run?.consistent) this.showDifference = false;
   }
 
@@ -93,12 +98,12 @@ export class PriorRunView extends LitElement {
     this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = d.dataset.colour ?? ''));
   }
 
-  /** What the right panel shows: the data-consistent result, or its difference from the network's output. */
+  /** What the right panel shows: the data-consistent result, or its difference from the prior. */
   private right(): DisplayImage | undefined {
     const c = this.run.consistent?.display;
     if (!c || !this.showDifference) return c;
-    const a = c, b = this.run.network.display;
-    if (!this.diff || this.diff.a !== a || this.diff.b !== b) this.diff = { a, b, d: difference(a, b, 'Data-consistent − network output') };
+    const a = c, b = this.run.prior.display;
+    if (!this.diff || this.diff.a !== a || this.diff.b !== b) this.diff = { a, b, d: difference(a, b, `Data-consistent − ${priorTitle(this.run.prior.meta).toLowerCase()}`) };
     return this.diff.d;
   }
 
@@ -147,15 +152,16 @@ export class PriorRunView extends LitElement {
     const right = this.right();
     const differenceShown = this.showDifference && !!right;
     const toolbarWindow = this.window ?? { width: 400, level: 40 };
-    const shown = [{ label: r.network.meta.name, colour: COLOURS.network, image: r.network.display }];
+    const shown = [{ label: r.prior.meta.name, colour: COLOURS.prior, image: r.prior.display }];
     if (right) shown.push({ label: right.label, colour: COLOURS.consistent, image: right });
+    const title = priorTitle(r.prior.meta);
     const g = (d: DisplayImage) => `${d.grid.nx} × ${d.grid.ny} pixels of ${Number(d.grid.dx.toPrecision(4))} mm`;
     return html`
       <div class="card">
-        <rf-viewer-toolbar .window=${toolbarWindow} .unit=${r.network.display.unit} .tool=${this.tool} .showFov=${this.showFov}
+        <rf-viewer-toolbar .window=${toolbarWindow} .unit=${r.prior.display.unit} .tool=${this.tool} .showFov=${this.showFov}
           .showDifference=${differenceShown} .canDifference=${!!r.consistent}
           @window-change=${(e: CustomEvent) => (this.window = e.detail.window)}
-          @window-auto=${() => (this.window = autoWindow(r.network.display.values))}
+          @window-auto=${() => (this.window = autoWindow(r.prior.display.values))}
           @tool-change=${(e: CustomEvent) => (this.tool = e.detail.tool)}
           @fov-toggle=${(e: CustomEvent) => (this.showFov = e.detail.show)}
           @difference-toggle=${(e: CustomEvent) => (this.showDifference = e.detail.show)}></rf-viewer-toolbar>
@@ -165,18 +171,18 @@ export class PriorRunView extends LitElement {
         @cursor-change=${(e: CustomEvent) => (this.cursor = e.detail.point)}
         @line-change=${(e: CustomEvent) => (this.line = e.detail.line)}
         @region-change=${(e: CustomEvent) => (this.region = e.detail.region)}>
-        <div class="card side" id="network-side"><h2><span class="dot" data-colour=${COLOURS.network}></span>Network output</h2>
-          <p class="sub">${g(r.network.display)} · ${r.network.meta.seconds.toFixed(1)} s</p>
-          ${this.viewer('network', r.network.display, COLOURS.network, toolbarWindow)}</div>
+        <div class="card side" id="prior-side"><h2><span class="dot" data-colour=${COLOURS.prior}></span>${title}</h2>
+          <p class="sub">${g(r.prior.display)} · ${r.prior.meta.seconds.toFixed(1)} s</p>
+          ${this.viewer('prior', r.prior.display, COLOURS.prior, toolbarWindow)}</div>
         <div class="card side" id="consistent-side"><h2><span class="dot" data-colour=${COLOURS.consistent}></span>${differenceShown ? 'What the data changed' : 'Data-consistent result'}</h2>
           ${r.consistent && right
-            ? html`<p class="sub">${differenceShown ? 'data-consistent result − network output · ' : ''}${g(right)} · ${r.consistent.meta.seconds.toFixed(1)} s</p>
+            ? html`<p class="sub">${differenceShown ? `data-consistent result − ${title.toLowerCase()} · ` : ''}${g(right)} · ${r.consistent.meta.seconds.toFixed(1)} s</p>
                 ${this.viewer(differenceShown ? 'difference' : 'consistent', right, COLOURS.consistent, this.panelWindow(differenceShown))}`
             : html`<p class="placeholder">${r.consistentMissing}</p>`}</div>
       </div>
       ${this.measurements(shown)}
       <div class="pair">
-        ${this.report(r.network, 'network-report', 'Network output', COLOURS.network, '')}
+        ${this.report(r.prior, 'prior-report', title, COLOURS.prior, '')}
         ${this.report(r.consistent, 'consistent-report', 'Data-consistent result', COLOURS.consistent, r.consistentMissing)}
       </div>`;
   }

@@ -11,7 +11,7 @@ import type { EngineClient } from '../worker/client';
 import type { NetworkPriorRequest } from '../worker/network-prior-job';
 import { toDisplay } from './logic/display';
 import { remainingMs } from './logic/time-left';
-import type { PriorJobState } from './prior-run-form';
+import type { ChosenPrior, PriorJobState } from './prior-run-form';
 import type { RunSide, ShownRun } from './prior-run-view';
 import { theme } from './theme';
 import './model-library';
@@ -20,15 +20,18 @@ import './prior-run-view';
 
 const message = (err: unknown) => (err instanceof Error ? err.message : String(err));
 
-/** The data-consistent result made from a network result, if any. */
-function partnerOf(results: ResultMeta[], networkId: string): ResultMeta | undefined {
-  return results.find((r) => r.recipe.method === 'prior' && (r.recipe.prior as { resultId?: string } | undefined)?.resultId === networkId);
+/** The checked prior a data-consistent result was made from ('' for other results). */
+const priorIdOf = (r: ResultMeta) => (r.recipe.method === 'prior' ? (r.recipe.prior as { resultId?: string } | undefined)?.resultId ?? '' : '');
+
+/** The data-consistent result made from a checked prior, if any. */
+function partnerOf(results: ResultMeta[], priorId: string): ResultMeta | undefined {
+  return results.find((r) => priorIdOf(r) === priorId);
 }
 
 /**
- * The network prior: import and list networks; run one on the chosen scan (its output checked
- * against the measured data, then the data-consistent step); show a run side by side
- * (prior-run-view.ts). Its parts render only while the tab is shown (`active`); a run goes on
+ * Prior checks: import and list networks; check a prior against the chosen scan's measured data
+ * (a network run on the scan, a stored result or an image file), then the data-consistent step;
+ * show a check side by side (prior-run-view.ts). Its parts render only while the tab is shown (`active`); a run goes on
  * in between.
  * @fires library-changed - networks or results were stored or deleted
  */
@@ -54,7 +57,7 @@ export class PriorWorkbench extends LitElement {
   declare importError: string;
   declare job: PriorJobState | undefined;
   declare runError: string;
-  /** Network result shown ('' for the latest of the scan). */
+  /** Checked prior shown ('' for the latest of the scan). */
   declare shownId: string;
   declare shown: ShownRun | undefined;
   private controller?: AbortController;
@@ -98,9 +101,9 @@ export class PriorWorkbench extends LitElement {
     if (this.active && ['results', 'scan', 'shownId', 'active'].some((k) => changed.has(k))) void this.loadShown();
   }
 
-  /** Network runs of the scan (results holding a network's output and its report). */
-  private networkRuns(): ResultMeta[] {
-    return this.results.filter((r) => r.recipe.method === 'network' && r.consistency);
+  /** Checked priors of the scan (results holding a prior and its report, not the data-consistent results made from them). */
+  private checkedPriors(): ResultMeta[] {
+    return this.results.filter((r) => r.consistency && !priorIdOf(r));
   }
 
   private async refreshModels() {
@@ -141,7 +144,7 @@ export class PriorWorkbench extends LitElement {
     this.changed();
   }
 
-  private async run(detail: Omit<NetworkPriorRequest, 'scanId'>) {
+  private async run(detail: { prior: ChosenPrior } & Omit<NetworkPriorRequest, 'scanId' | 'modelId'>) {
     const scan = this.scan;
     if (!scan || this.job) return;
     this.runError = '';
@@ -149,11 +152,15 @@ export class PriorWorkbench extends LitElement {
     this.controller = controller;
     this.job = { scanName: scan.name, fraction: 0, stage: '' };
     try {
-      const out = await this.client.runNetworkPrior({ ...detail, scanId: scan.id }, {
+      const { prior, ...rest } = detail;
+      const options = {
         signal: controller.signal,
-        onProgress: (p) => (this.job = { scanName: scan.name, fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
-      });
-      if (this.scan?.id === scan.id) this.shownId = out.network.id;
+        onProgress: (p: { fraction: number; stage: string; elapsedMs: number }) => (this.job = { scanName: scan.name, fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
+      };
+      const shownId = prior.kind === 'network'
+        ? (await this.client.runNetworkPrior({ ...rest, modelId: prior.modelId, scanId: scan.id }, options)).network.id
+        : (await this.client.checkPrior({ ...rest, source: prior, scanId: scan.id }, options)).prior.id;
+      if (this.scan?.id === scan.id) this.shownId = shownId;
       this.changed();
     } catch (err) {
       if (!(err instanceof CancelledError)) this.runError = err instanceof InputError || err instanceof StorageFullError ? err.message : `The run failed: ${message(err)}`;
@@ -165,8 +172,9 @@ export class PriorWorkbench extends LitElement {
 
   /** Loads the images and reports of the shown run (the chosen one, else the latest). */
   private async loadShown() {
-    const runs = this.networkRuns();
+    const runs = this.checkedPriors();
     const net = runs.find((r) => r.id === this.shownId) ?? runs[runs.length - 1];
+    // (a network's output, a stored result or an image file)
     const dc = net && partnerOf(this.results, net.id);
     const key = net ? `${net.id}|${dc?.id ?? ''}` : '';
     if (key === this.loading) return;
@@ -182,9 +190,9 @@ export class PriorWorkbench extends LitElement {
     const skipped = (net.report.dataConsistent as { skipped?: string } | undefined)?.skipped;
     try {
       const shown: ShownRun = {
-        network: await side(net),
+        prior: await side(net),
         consistent: dc ? await side(dc) : undefined,
-        consistentMissing: skipped ? `The data-consistent step did not run: ${skipped}.` : 'No data-consistent result was made from this network output (it may have been deleted).',
+        consistentMissing: skipped ? `The data-consistent step did not run: ${skipped}.` : 'No data-consistent result was made from this prior (it may have been deleted).',
       };
       if (this.loading === key) this.shown = shown;
     } catch (err) {
@@ -193,11 +201,11 @@ export class PriorWorkbench extends LitElement {
     }
   }
 
-  /** Why the network prior cannot run on the chosen scan ('' when it can). */
+  /** Why a prior check cannot run on the chosen scan ('' when it can). */
   private unsupported(): string {
     const g = this.scan?.geometry;
     return g && (g.kind === 'cone' || g.detector.rows !== 1)
-      ? `This scan has ${g.detector.rows} detector rows (${g.kind} beam); the network prior works on 2D scans (one detector row).` : '';
+      ? `This scan has ${g.detector.rows} detector rows (${g.kind} beam); prior checks work on 2D scans (one detector row). A cone-beam scan takes a prior in a recipe of the Reconstruct tab.` : '';
   }
 
   private angles(): number[] | undefined {
@@ -207,11 +215,11 @@ export class PriorWorkbench extends LitElement {
   }
 
   private resultsSection() {
-    const runs = this.networkRuns();
-    if (!runs.length) return html`<div class="card placeholder">No network run on this scan yet.</div>`;
-    const shownId = this.shown?.network.meta.id ?? '';
+    const runs = this.checkedPriors();
+    if (!runs.length) return html`<div class="card placeholder">No prior checked against this scan yet.</div>`;
+    const shownId = this.shown?.prior.meta.id ?? '';
     return html`
-      <div class="card runs"><label for="prior-shown">Run shown</label>
+      <div class="card runs"><label for="prior-shown">Check shown</label>
         <select id="prior-shown" @change=${(e: Event) => (this.shownId = (e.target as HTMLSelectElement).value)}>
           ${[...runs].reverse().map((r) => html`<option value=${r.id} ?selected=${r.id === shownId}>${r.name} · ${new Date(r.createdAt).toLocaleString()}</option>`)}
         </select>
@@ -229,8 +237,8 @@ export class PriorWorkbench extends LitElement {
             @model-select=${(e: CustomEvent) => (this.modelId = e.detail.id)}
             @model-delete=${(e: CustomEvent) => this.deleteModel(e.detail.id)}
             @model-import-error-dismiss=${() => (this.importError = '')}></rf-model-library></div>
-        <div class="card"><h2>Network prior on “${this.scan?.name ?? ''}”</h2>
-          <rf-prior-run-form .models=${this.models} .modelId=${this.modelId} .referenceGrid=${this.referenceGrid} .scanName=${this.scan?.name ?? ''}
+        <div class="card"><h2>Check a prior against “${this.scan?.name ?? ''}”</h2>
+          <rf-prior-run-form .models=${this.models} .modelId=${this.modelId} .results=${this.results.filter((r) => !r.volume)} .referenceGrid=${this.referenceGrid} .scanName=${this.scan?.name ?? ''}
             .unsupported=${this.unsupported()}
             .job=${this.job} .error=${this.runError}
             @model-select=${(e: CustomEvent) => (this.modelId = e.detail.id)}

@@ -4,9 +4,10 @@
 import type { Comparison } from '../core/compare';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
+import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 2;
+export const APP_PROTOCOL_VERSION = 3;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -19,7 +20,8 @@ export type AppRequest =
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
   | { op: 'import-model'; files: File[] }
-  | { op: 'network-prior'; request: NetworkPriorRequest };
+  | { op: 'network-prior'; request: NetworkPriorRequest }
+  | { op: 'prior-check'; request: PriorCheckRequest };
 
 /** What each request resolves to. */
 export interface AppReplies {
@@ -31,6 +33,7 @@ export interface AppReplies {
   info: EngineInfo;
   'import-model': ModelMeta;
   'network-prior': NetworkPriorOutcome;
+  'prior-check': PriorCheckOutcome;
 }
 
 export interface EngineInfo {

@@ -7,6 +7,7 @@ import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
 import type { NetworkPriorRequest } from './network-prior-job';
+import type { PriorCheckRequest } from './prior-check-job';
 
 /** What the client needs of a Worker (a real Web Worker, or a stand-in in tests). */
 export interface WorkerLike {
@@ -105,6 +106,11 @@ export class EngineClient {
   /** Runs a stored network on a stored scan, checks its output against the data; stores what it made. */
   runNetworkPrior(request: NetworkPriorRequest, options: CallOptions = {}): Promise<AppReplies['network-prior']> {
     return this.call({ op: 'network-prior', request }, options);
+  }
+
+  /** Checks a stored result or an image file as a prior against a stored scan; stores what it made. */
+  checkPrior(request: PriorCheckRequest, options: CallOptions = {}): Promise<AppReplies['prior-check']> {
+    return this.call({ op: 'prior-check', request }, options);
   }
 
   /** Pool size and memory mode. */

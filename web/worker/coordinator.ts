@@ -25,6 +25,7 @@ import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
 import { checkModelFiles } from './import-model-files';
 import { readScanFiles } from './import-scan';
 import { runNetworkPriorJob } from './network-prior-job';
+import { runPriorCheckJob } from './prior-check-job';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -65,6 +66,8 @@ export class Coordinator {
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
         return (await this.exclusive(async () => runNetworkPriorJob({ ws: await this.openWorkspace(), store: this.store, open: this.modelOpener() }, r.request, hooks))) as AppReplies[K];
+      case 'prior-check':
+        return (await this.exclusive(async () => runPriorCheckJob({ ws: await this.openWorkspace(), store: this.store }, r.request, hooks))) as AppReplies[K];
     }
   }
 
@@ -129,7 +132,8 @@ export class Coordinator {
     const { meta: scanMeta, scan, reference } = await loadScan(scanId, this.store);
     throwIfCancelled(hooks.signal);
     const ws = await this.openWorkspace();
-    const out = await runRecipe(ws, scan, recipe, hooks);
+    // The reconstruction takes the first 95% of the bar; checks and storing the rest.
+    const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) });
     throwIfCancelled(hooks.signal);
     const warnings = [...out.warnings];
     const bad = countNonFinite(out.volume?.data ?? out.image.data);
@@ -145,8 +149,9 @@ export class Coordinator {
     }
     let volumeMetrics: VolumeComparison | null | undefined;
     if (out.volume) volumeMetrics = scanMeta.referenceVolume && !bad ? await this.compareWithReferenceVolume(scanId, out.volume, hooks) : null;
-    hooks.onProgress?.(0.99, 'checking against the measured data');
-    const residual = out.volume ? await volumeDataResidual(ws, out.volume, scan, hooks) : await dataResidual(ws, out.image, scan, hooks);
+    hooks.onProgress?.(0.97, 'checking against the measured data');
+    const checkHooks = { signal: hooks.signal };
+    const residual = out.volume ? await volumeDataResidual(ws, out.volume, scan, checkHooks) : await dataResidual(ws, out.image, scan, checkHooks);
     hooks.onProgress?.(1, 'storing');
     return saveResult({
       scanId,
@@ -163,7 +168,7 @@ export class Coordinator {
 
   /** The volume against the scan's reference volume, inside and outside its FOV cylinder. */
   private async compareWithReferenceVolume(scanId: string, volume: Volume, hooks: RunHooks): Promise<VolumeComparison> {
-    hooks.onProgress?.(0.97, 'comparing with the reference volume');
+    hooks.onProgress?.(0.96, 'comparing with the reference volume');
     const reference = await loadReferenceVolume(scanId, this.store);
     return compareVolumes(volume, reference, { fovRadius: volume.fovRadius, fovHalfHeight: volume.fovHalfHeight });
   }

@@ -3,27 +3,19 @@
 // consistency report against the measured data; then, when asked for, the prior-guided
 // data-consistent step and its own report. Nothing is stored until everything has run: the
 // network output and the data-consistent result are written in one transaction.
-import { compareImages, type Comparison } from '../core/compare';
-import { consistencyReport, type ConsistencyReport } from '../core/consistency/consistency-report';
-import { dataConsistentFromPrior } from '../core/consistency/data-consistent';
-import { disagreementMap } from '../core/consistency/disagreement-map';
-import { dataResidualOf } from '../core/consistency/residual-figures';
 import type { Workspace } from '../core/engine/workspace';
 import { InputError, throwIfCancelled } from '../core/errors';
-import type { Image2D } from '../core/image';
 import { networkPrior } from '../core/model/network-prior';
 import type { NetworkRunner } from '../core/model/runner';
 import { chooseGrid } from '../core/recipe/grid';
-import { validateRecipe, type GridChoice } from '../core/recipe/recipe';
+import type { GridChoice } from '../core/recipe/recipe';
 import { runRecipe } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
-import type { Scan } from '../core/scan';
-import { storedConsistency } from '../store/consistency';
 import { putAll, type UseStore } from '../store/db';
 import { loadModel } from '../store/models';
 import type { ResultMeta } from '../store/records';
-import { resultRecords } from '../store/results';
 import { loadScan } from '../store/scans';
+import { checkDataConsistentRequest, checkedResultRecords, checkImage, compared, consistentFromPrior, consistentResultRecords, require2dScan, stage } from './prior-steps';
 
 /** What the page asks for (validated here: it crosses from the page). */
 export interface NetworkPriorRequest {
@@ -51,40 +43,9 @@ export interface NetworkPriorContext {
   open: (onnx: Uint8Array, signal?: AbortSignal) => Promise<NetworkRunner>;
 }
 
-const stage = (hooks: RunHooks, a: number, b: number): RunHooks => ({
-  signal: hooks.signal,
-  onProgress: (f, name) => hooks.onProgress?.(a + (b - a) * f, name),
-});
-
 function checkRequest(r: NetworkPriorRequest): void {
   if (typeof r.scanId !== 'string' || typeof r.modelId !== 'string') throw new InputError('network prior: a scan and a network must be chosen');
-  if (r.grid !== undefined) validateRecipe({ method: 'fbp', grid: r.grid });
-  if (r.iterations !== undefined && !(Number.isInteger(r.iterations) && r.iterations >= 1 && r.iterations <= 10000)) {
-    throw new InputError(`network prior iterations: got ${r.iterations}, expected a whole number from 1 to 10000`);
-  }
-}
-
-function compared(image: Image2D, reference: Image2D | undefined, warnings: string[]): Comparison | null {
-  if (!reference) return null;
-  try {
-    return compareImages(image, reference, image.fovRadius);
-  } catch (err) {
-    if (!(err instanceof InputError)) throw err;
-    warnings.push(`no comparison with the reference: ${err.message}`);
-    return null;
-  }
-}
-
-function nonFiniteWarning(image: Image2D, warnings: string[]): void {
-  let bad = 0;
-  for (const v of image.data) if (!Number.isFinite(v)) bad++;
-  if (bad) warnings.push(`${bad} pixels are not finite numbers (NaN or infinity): the image is not trustworthy`);
-}
-
-/** The disagreement map of a checked image (undefined when no ray was flagged). */
-async function mapOf(ws: Workspace, scan: Scan, image: Image2D, report: ConsistencyReport, hooks: RunHooks): Promise<Float32Array | undefined> {
-  if (report.summary.flaggedRays === 0) return undefined;
-  return disagreementMap(ws, scan, image.grid, report.profiles.flagged, hooks);
+  checkDataConsistentRequest(r, 'network prior');
 }
 
 /** Runs the network-prior step on a stored scan with a stored network and stores what it made. */
@@ -93,10 +54,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
   checkRequest(req);
   const { ws, store } = ctx;
   const { meta: scanMeta, scan, reference } = await loadScan(req.scanId, store);
-  const g = scan.geometry;
-  if (g.kind === 'cone' || g.detector.rows !== 1) {
-    throw new InputError(`network prior: scan "${scanMeta.name}" has ${g.detector.rows} detector rows (${g.kind} beam); the network prior works on 2D scans`);
-  }
+  require2dScan(scan, scanMeta.name, 'network prior');
   const { meta: model, onnx } = await loadModel(req.modelId, store);
   const grid = chooseGrid(scan, req.grid);
   throwIfCancelled(hooks.signal);
@@ -110,52 +68,30 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
     await runner.dispose();
   }
   const netSeconds = (performance.now() - t0) / 1000;
-  const netReport = await consistencyReport(ws, scan, net.output, stage(hooks, 0.45, 0.55));
-  const netMap = await mapOf(ws, scan, net.output, netReport, stage(hooks, 0.55, 0.6));
-  const netWarnings = [...model.warnings, ...net.warnings, ...netReport.warnings];
-  nonFiniteWarning(net.output, netWarnings);
-
-  let dc: { image: Image2D; report: Record<string, unknown>; warnings: string[]; consistency: ConsistencyReport; map?: Float32Array; seconds: number } | undefined;
-  if (req.dataConsistent) {
-    const t1 = performance.now();
-    const r = await dataConsistentFromPrior(ws, scan, net.prior, { grid, iterations: req.iterations }, stage(hooks, 0.6, 0.92));
-    const consistency = await consistencyReport(ws, scan, r.image, stage(hooks, 0.92, 0.97));
-    const map = await mapOf(ws, scan, r.image, consistency, stage(hooks, 0.97, 0.98));
-    dc = { ...r, consistency, map, warnings: [...r.warnings, ...consistency.warnings], seconds: (performance.now() - t1) / 1000 };
-    nonFiniteWarning(r.image, dc.warnings);
-  }
+  const netCheck = await checkImage(ws, scan, net.output, stage(hooks, 0.45, 0.6));
+  const netWarnings = [...model.warnings, ...net.warnings, ...netCheck.warnings];
+  const dc = req.dataConsistent ? await consistentFromPrior(ws, scan, net.prior, grid, req.iterations, stage(hooks, 0.6, 0.98)) : undefined;
   throwIfCancelled(hooks.signal);
   hooks.onProgress?.(0.99, 'storing');
 
   const modelRef = { id: model.id, name: model.name, fileName: model.fileNames.model, info: model.info };
   const gridChoice = { size: grid.nx, pixel: grid.dx };
-  const netStored = storedConsistency(netReport, net.output.grid, netMap);
-  const netRecords = resultRecords({
+  const netRecords = checkedResultRecords({
     scanId: req.scanId,
     name: `Network: ${model.name}`,
     recipe: { method: 'network', model: modelRef, input: net.report.inputRecipe, grid: gridChoice },
     warnings: netWarnings,
     report: { network: net.report, model: modelRef, dataConsistent: req.dataConsistent ? { ran: true } : { skipped: 'it was not asked for' } },
     metrics: compared(net.output, reference, netWarnings),
-    residual: dataResidualOf(netReport),
-    consistency: netStored.meta,
     seconds: netSeconds,
-  }, net.output, { consistency: netStored.arrays });
+  }, net.output, netCheck);
   const entries = [...netRecords.entries];
   let consistent: ResultMeta | undefined;
   if (dc) {
-    const stored = storedConsistency(dc.consistency, dc.image.grid, dc.map);
-    const rec = resultRecords({
-      scanId: req.scanId,
-      name: `Data-consistent, prior from ${model.name}`,
-      recipe: { method: 'prior', prior: { source: 'network', model: modelRef, resultId: netRecords.meta.id }, grid: gridChoice, ...(req.iterations ? { iterations: req.iterations } : {}) },
-      warnings: dc.warnings,
-      report: { ...dc.report, priorResultId: netRecords.meta.id },
-      metrics: compared(dc.image, reference, dc.warnings),
-      residual: dataResidualOf(dc.consistency),
-      consistency: stored.meta,
-      seconds: dc.seconds,
-    }, dc.image, { consistency: stored.arrays });
+    const rec = consistentResultRecords(dc, {
+      scanId: req.scanId, priorName: model.name, priorSource: { source: 'network', model: modelRef }, priorId: netRecords.meta.id,
+      grid, iterations: req.iterations, reference,
+    });
     entries.push(...rec.entries);
     consistent = rec.meta;
   }
