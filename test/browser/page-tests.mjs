@@ -306,6 +306,27 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await shot(page, '7-after-reload');
   });
 
+  await h.step(`${mode}: a stored result serves as the prior of the prior-guided method`, async () => {
+    await page.locator('#tab-reconstruct').click();
+    await page.locator('#field-method').selectOption('prior');
+    const priorSelect = page.locator('#field-prior');
+    const stored = await priorSelect.locator('option').evaluateAll((os) => os.map((o) => ({ value: o.value, label: o.textContent })));
+    const water = stored.find((o) => o.value.startsWith('result:') && /water/.test(o.label));
+    check(water, `prior choices: ${stored.map((o) => o.label).join(' | ')}`);
+    await priorSelect.selectOption(water.value);
+    await page.locator('#field-iterations').fill('2');
+    await page.locator('rf-recipe-form input[value="reference"]').check();
+    check(/prior: “FBP/.test(await page.locator('rf-recipe-form .summary').innerText()), 'the summary names the stored result');
+    const before = await page.locator('rf-run-queue li').count();
+    const results = await resultCount(page);
+    await queueAndWait(page, before + 1);
+    const job = page.locator('rf-run-queue li').nth(before);
+    await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
+    check((await job.getAttribute('data-state')) === 'done', `prior job: ${await job.innerText()}`);
+    await page.locator('#tab-images').click();
+    check((await resultCount(page)) === results + 1, 'the result is stored');
+  });
+
   await h.step(`${mode}: the cone-beam demo on request; FDK with water extension in the workers agrees with the command line`, async () => {
     check(reference?.cone, 'the command-line cone-beam reference ran');
     check(!(await page.locator('rf-scan-library li').filter({ hasText: 'cone-beam' }).count()), 'no cone-beam demo before it is asked for');
@@ -401,6 +422,34 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     check(saved.sizes.join(' ') === '196 196 66', `saved volume sizes ${saved.sizes}`);
     check(saved.keys['rimfill.quantity'] === 'mu' && Number(saved.keys['rimfill.fovHalfHeight']) > 89, `saved volume keys ${JSON.stringify(saved.keys)}`);
     check(/^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space directions ${saved.fields['space directions']}`);
+  });
+
+  await h.step(`${mode}: a cone-beam recipe with chosen slices gives a volume of those slices`, async () => {
+    await page.locator('#tab-reconstruct').click();
+    await page.locator('#field-method').selectOption('fbp');
+    await page.locator('#field-extend').selectOption('none');
+    await page.locator('rf-recipe-form input[name="slices"][value="custom"]').check();
+    await page.locator('rf-recipe-form input[name="volumeSlices"]').fill('20');
+    await page.locator('rf-recipe-form input[name="volumeSpacing"]').fill('6');
+    check(/20 slices × 6 mm/.test(await page.locator('rf-recipe-form .summary').innerText()), 'the summary names the slices');
+    const before = await page.locator('rf-run-queue li').count();
+    await queueAndWait(page, before + 1);
+    const job = page.locator('rf-run-queue li').nth(before);
+    await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
+    check((await job.getAttribute('data-state')) === 'done', `cone job: ${await job.innerText()}`);
+    await page.locator('#tab-images').click();
+    const view = page.locator('rf-volume-view');
+    const choice = view.locator('#volume-choice');
+    const option = choice.locator('option').filter({ hasText: '20 slices × 6 mm' });
+    await option.waitFor({ state: 'attached', timeout: 30_000 });
+    await choice.selectOption(await option.getAttribute('value'));
+    await page.waitForFunction(() => {
+      const v = document.querySelector('rf-app')?.shadowRoot?.querySelector('rf-volume-view');
+      return /20 slices/.test(v?.shadowRoot?.querySelector('#volume-choice')?.selectedOptions?.[0]?.textContent ?? '') && v?.volume?.grid?.nz === 20;
+    }, undefined, { timeout: 30_000 });
+    const saved = parseFloatNrrd((await download(page, () => view.locator('#export-volume').click())).bytes);
+    check(saved.sizes[2] === 20, `saved volume sizes ${saved.sizes}`);
+    check(/\(0,0,6\)$/.test(saved.fields['space directions']), `space directions ${saved.fields['space directions']}`);
   });
 
   await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {

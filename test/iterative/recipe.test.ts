@@ -27,6 +27,7 @@ describe('iterative recipe fields', () => {
     const water = validateRecipe({ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', extend: 'water' } } });
     expect(water.prior).toMatchObject({ recipe: { extend: 'water' } });
     expect(validateRecipe({ method: 'prior', prior: { source: 'image' } }).prior).toEqual({ source: 'image' });
+    expect(validateRecipe({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'FBP', extra: 1 } }).prior).toEqual({ source: 'image', resultId: 'r1', name: 'FBP' });
   });
 
   it.each([
@@ -42,6 +43,7 @@ describe('iterative recipe fields', () => {
     [{ method: 'sart', nonNegative: 'yes' }, /recipe nonNegative: got "yes", expected true or false/],
     [{ method: 'sart', support: 'square' }, /recipe support: got "square", expected one of circle, grid/],
     [{ method: 'sart', prior: { source: 'image' } }, /recipe prior: given for method "sart"/],
+    [{ method: 'prior', prior: { source: 'image', resultId: 7 } }, /recipe prior\.resultId: got 7, expected a non-empty string/],
     [{ method: 'prior', prior: { source: 'web' } }, /recipe prior.source: got "web", expected "image" or "recipe"/],
     [{ method: 'prior', prior: { source: 'recipe' } }, /recipe prior.recipe: expected the recipe/],
     [{ method: 'prior', prior: { source: 'recipe', recipe: { method: 'prior' } } }, /recipe prior.recipe.method: got "prior"/],

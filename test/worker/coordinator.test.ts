@@ -17,7 +17,7 @@ import { rasterize } from '../../web/core/phantoms/ellipse';
 import { sheppLogan } from '../../web/core/phantoms/shepp-logan';
 import { analyticSinogram } from '../../web/core/simulate/analytic';
 import type { Geometry } from '../../web/core/geometry/types';
-import { listResults } from '../../web/store/results';
+import { listResults, loadResultImage } from '../../web/store/results';
 import { listScans, loadScan, saveScan } from '../../web/store/scans';
 import { loadSettings } from '../../web/store/settings';
 import { Coordinator } from '../../web/worker/coordinator';
@@ -25,6 +25,7 @@ import { buildDemoScan, DEMO } from '../../web/worker/demo-scan';
 import { CONE_DEMO, coneDemoGeometry } from '../../web/worker/demo-cone-scan';
 import { loadResultVolume } from '../../web/store/results';
 import { writeFileSync } from 'node:fs';
+import { cone as smallCone } from '../helpers/cone';
 import { localWorkspace } from '../helpers/engine';
 
 let n = 0;
@@ -117,6 +118,32 @@ describe('runs', () => {
     expect(await listResults(undefined, store)).toEqual([]);
     // The workspace still works after a cancel.
     expect((await c.run(s.id, { method: 'fbp', grid: { size: 32, pixel: 2.5 } }, undefined, {})).grid.nx).toBe(32);
+  });
+});
+
+describe('a stored result as the prior of a recipe', () => {
+  it('gives the same image as the recipe that made the result; what cannot serve is refused and nothing is stored', async () => {
+    const { c, store } = coordinator();
+    const s = await saveScan({ name: 'p', scan: smallScan().scan, source: { type: 'file', fileNames: [] } }, store);
+    const grid = { size: 64, pixel: 1.25 };
+    const fbp = await c.run(s.id, { method: 'fbp', extend: 'water', grid }, undefined, {});
+    const common = { method: 'prior', grid, iterations: 2, subsets: 6 };
+    const fromResult = await c.run(s.id, { ...common, prior: { source: 'image', resultId: fbp.id, name: fbp.name } }, undefined, {});
+    const fromRecipe = await c.run(s.id, { ...common, prior: { source: 'recipe', recipe: { method: 'fbp', extend: 'water', grid } } }, undefined, {});
+    expect(fromResult.name).toContain(`prior: “${fbp.name}”`);
+    // The same prior image either way (FBP is deterministic): the same reconstruction.
+    const a = (await loadResultImage(fromResult.id, store)).image.data, b = (await loadResultImage(fromRecipe.id, store)).image.data;
+    let worst = 0, scale = 0;
+    for (let i = 0; i < a.length; i++) [worst, scale] = [Math.max(worst, Math.abs(a[i] - b[i])), Math.max(scale, Math.abs(b[i]))];
+    expect(scale).toBeGreaterThan(0.01);
+    expect(worst).toBeLessThan(1e-6 * scale);
+
+    const before = (await listResults(s.id, store)).length;
+    await expect(c.run(s.id, { ...common, prior: { source: 'image' } }, undefined, {})).rejects.toThrow(/the page takes a prior image from a stored result; choose one/);
+    await expect(c.run(s.id, { ...common, prior: { source: 'image', resultId: 'gone', name: 'old FBP' } }, undefined, {})).rejects.toThrow(/the result "old FBP" is no longer stored/);
+    const coneScan = await saveScan({ name: 'c-arm', scan: { geometry: smallCone({ channels: 16, rows: 8, pitch: 1, views: 12 }), data: new Float32Array(16 * 8 * 12) }, source: { type: 'file', fileNames: [] } }, store);
+    await expect(c.run(coneScan.id, { ...common, prior: { source: 'image', resultId: fbp.id } }, undefined, {})).rejects.toThrow(/holds a 2D image; a cone-beam scan needs a volume as its prior/);
+    expect((await listResults(s.id, store)).length).toBe(before);
   });
 });
 

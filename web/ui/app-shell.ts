@@ -348,10 +348,19 @@ export class AppShell extends LitElement {
         @geometry-apply=${(e: CustomEvent) => this.applyGeometry(e.detail.geometry)}></rf-scan-view>`;
   }
 
+  /** Stored results a recipe of `scan` may take as its prior: volumes for a cone-beam scan, else images; any scan's (the same object scanned before). */
+  private priorChoices(scan: ScanMeta): Array<{ id: string; label: string }> {
+    const cone = scan.geometry.kind === 'cone';
+    const scanName = new Map(this.scans.map((s) => [s.id, s.name]));
+    return this.results.filter((r) => !!r.volume === cone)
+      .map((r) => ({ id: r.id, label: r.scanId === scan.id ? r.name : `${r.name} (scan “${scanName.get(r.scanId) ?? 'deleted'}”)` }));
+  }
+
   private reconstructTab(scan: ScanMeta) {
     return html`<div class="reconstruct">
         <div class="card"><h2>Recipe for “${scan.name}”</h2>
-          <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined}
+          <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?cone=${scan.geometry.kind === 'cone'}
+            .priorResults=${this.priorChoices(scan)}
             @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
         <div class="card"><h2>Queue</h2>
           <rf-run-queue .jobs=${this.jobs}

@@ -4,10 +4,14 @@ import { InputError } from '../core/errors';
 import type { ImageGrid } from '../core/image';
 import { describeRecipeFields, recipeSummary, type RecipeField } from '../core/recipe/fields';
 import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
+import { DEFAULT_VOLUME_SIZE } from '../core/recipe/volume-grid';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
 import { theme } from './theme';
 
 type GridMode = 'auto' | 'reference' | 'custom';
+
+/** Value prefix of a prior choice that names a stored result. */
+const RESULT_PRIOR = 'result:';
 
 /**
  * A recipe form generated from the recipe module's field descriptions (core/recipe/fields.ts):
@@ -16,18 +20,24 @@ type GridMode = 'auto' | 'reference' | 'custom';
  */
 export class RecipeForm extends LitElement {
   static properties = {
-    referenceGrid: { attribute: false }, disabled: { type: Boolean },
-    values: { state: true }, gridMode: { state: true }, error: { state: true },
+    referenceGrid: { attribute: false }, disabled: { type: Boolean }, cone: { type: Boolean }, priorResults: { attribute: false },
+    values: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true },
   };
   /** Grid of the scan's reference image, offered as "match the ground truth" (undefined: none). */
   declare referenceGrid: ImageGrid | undefined;
   /** No scan chosen. */
   declare disabled: boolean;
+  /** The chosen scan is cone beam: the form offers the volume's slices. */
+  declare cone: boolean;
+  /** Stored results the prior-guided method can start from (volumes for a cone-beam scan, else images). */
+  declare priorResults: Array<{ id: string; label: string }>;
+  declare slicesMode: 'auto' | 'custom';
   declare values: Record<string, unknown>;
   declare gridMode: GridMode;
   declare error: string;
   private readonly fields: RecipeField[] = describeRecipeFields();
   private customGrid = { size: 512, pixel: 1 };
+  private customSlices = { slices: 64, spacing: 2 };
 
   static styles = [theme, css`
     form { display: grid; grid-template-columns: repeat(auto-fill, minmax(220px, 1fr)); gap: 12px 16px; }
@@ -51,6 +61,9 @@ export class RecipeForm extends LitElement {
     this.values = { ...(DEFAULT_RECIPE as unknown as Record<string, unknown>) };
     this.gridMode = 'auto';
     this.error = '';
+    this.cone = false;
+    this.slicesMode = 'auto';
+    this.priorResults = [];
   }
 
   willUpdate(changed: Map<string, unknown>) {
@@ -68,6 +81,12 @@ export class RecipeForm extends LitElement {
     const g = this.referenceGrid;
     if (this.gridMode === 'reference' && g) r.grid = { size: g.nx, pixel: g.dx };
     if (this.gridMode === 'custom') r.grid = { ...this.customGrid };
+    if (this.cone && this.slicesMode === 'custom') r.volume = { ...this.customSlices };
+    if (typeof r.prior === 'string' && r.prior.startsWith(RESULT_PRIOR)) {
+      const id = r.prior.slice(RESULT_PRIOR.length);
+      const chosen = this.priorResults.find((p) => p.id === id);
+      r.prior = chosen ? { source: 'image', resultId: id, name: chosen.label } : undefined;
+    }
     return r;
   }
 
@@ -81,9 +100,12 @@ export class RecipeForm extends LitElement {
     const id = `field-${f.key}`;
     switch (f.kind) {
       case 'choice': {
-        const shown = String(v ?? f.defaultOf?.(this.values) ?? f.choices[0]?.value ?? '');
+        // The prior may also be a stored result (listed by the page, not by the field).
+        const extra = f.key === 'prior' ? this.priorResults.map((p) => ({ value: `${RESULT_PRIOR}${p.id}`, label: `Stored result: ${p.label}` })) : [];
+        const choices = [...f.choices, ...extra];
+        const shown = String(v !== undefined && choices.some((c) => c.value === v) ? v : f.defaultOf?.(this.values) ?? f.choices[0]?.value ?? '');
         return html`<select id=${id} name=${f.key} .value=${live(shown)} @change=${(e: Event) => this.set(f.key, (e.target as HTMLSelectElement).value)}>
-          ${f.choices.map((c) => html`<option value=${c.value} ?selected=${c.value === shown}>${c.label}</option>`)}</select>`;
+          ${choices.map((c) => html`<option value=${c.value} ?selected=${c.value === shown}>${c.label}</option>`)}</select>`;
       }
       case 'number':
       case 'integer':
@@ -101,7 +123,7 @@ export class RecipeForm extends LitElement {
     const g = this.referenceGrid;
     const mode = (m: GridMode) => () => { this.gridMode = m; this.error = ''; };
     return html`<div class="grid-choices" role="radiogroup" aria-label="Image grid">
-      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view (${DEFAULT_GRID_SIZE} px)</label>
+      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view and the estimated object (${this.cone ? DEFAULT_VOLUME_SIZE : DEFAULT_GRID_SIZE} px)</label>
       ${g ? html`<label><input type="radio" name="grid" value="reference" .checked=${live(this.gridMode === 'reference')} @change=${mode('reference')}>Match the ground truth: ${g.nx} px × ${g.dx} mm</label>` : nothing}
       <div class="custom"><label><input type="radio" name="grid" value="custom" .checked=${live(this.gridMode === 'custom')} @change=${mode('custom')}>Choose:</label>
       <label>size <input type="number" name="gridSize" min="8" max="4096" step="1" .value=${live(String(this.customGrid.size))} ?disabled=${this.gridMode !== 'custom'}
@@ -109,6 +131,20 @@ export class RecipeForm extends LitElement {
       <label>pixel <input type="number" name="gridPixel" min="0.01" max="100" step="0.05" .value=${live(String(this.customGrid.pixel))} ?disabled=${this.gridMode !== 'custom'}
         @input=${(e: Event) => { this.customGrid = { ...this.customGrid, pixel: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); }}> mm</label></div>
     </div>`;
+  }
+
+  /** The slices of a cone-beam volume: automatic (the measured field's height) or chosen. */
+  private slicesInput() {
+    const mode = (m: 'auto' | 'custom') => () => { this.slicesMode = m; this.error = ''; };
+    const set = (key: 'slices' | 'spacing') => (e: Event) => { this.customSlices = { ...this.customSlices, [key]: Number((e.target as HTMLInputElement).value) }; this.requestUpdate(); };
+    return html`<div class="field wide"><label>Volume slices</label>
+      <div class="grid-choices" role="radiogroup" aria-label="Volume slices">
+        <label><input type="radio" name="slices" value="auto" .checked=${live(this.slicesMode === 'auto')} @change=${mode('auto')}>Cover the height every view measures, slices as thick as the pixels are wide</label>
+        <div class="custom"><label><input type="radio" name="slices" value="custom" .checked=${live(this.slicesMode === 'custom')} @change=${mode('custom')}>Choose:</label>
+        <label><input type="number" name="volumeSlices" min="1" max="4096" step="1" .value=${live(String(this.customSlices.slices))} ?disabled=${this.slicesMode !== 'custom'} @input=${set('slices')}> slices</label>
+        <label>× <input type="number" name="volumeSpacing" min="0.01" max="100" step="0.1" .value=${live(String(this.customSlices.spacing))} ?disabled=${this.slicesMode !== 'custom'} @input=${set('spacing')}> mm apart</label></div>
+      </div>
+      <span class="help">Axial slices of the cone-beam volume, centred on the central plane; each side of a slice has the pixels of the image grid above.</span></div>`;
   }
 
   private queue(e: Event) {
@@ -131,6 +167,7 @@ export class RecipeForm extends LitElement {
           <label for=${`field-${f.key}`}>${f.label}${'unit' in f && f.unit ? ` (${f.unit})` : ''}</label>
           ${this.input(f)}
           <span class="help">${f.help}</span></div>`)}
+        ${this.cone ? this.slicesInput() : nothing}
       </form>
       <div class="actions">
         <button class="primary" id="queue-recipe" ?disabled=${this.disabled} @click=${this.queue}>Add to queue</button>

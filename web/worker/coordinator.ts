@@ -8,13 +8,13 @@ import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
 import type { Volume } from '../core/volume';
 import { recipeSummary } from '../core/recipe/fields';
-import { validateRecipe } from '../core/recipe/recipe';
-import { runRecipe } from '../core/recipe/run';
+import { validateRecipe, type Recipe } from '../core/recipe/recipe';
+import { runRecipe, type RecipeInputs } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
 import { volumeDataResidual } from '../core/volume-residual';
 import { pageStore, type UseStore } from '../store/db';
-import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
-import { loadResultImage, saveResult } from '../store/results';
+import { RecordError, type ModelMeta, type ResultMeta, type ScanMeta } from '../store/records';
+import { getResultMeta, loadResultImage, loadResultVolume, saveResult } from '../store/results';
 import { loadReferenceVolume, loadScan, saveScan } from '../store/scans';
 import { saveSettings } from '../store/settings';
 import type { NetworkRunner } from '../core/model/runner';
@@ -131,9 +131,10 @@ export class Coordinator {
     const recipe = validateRecipe(recipeInput);
     const { meta: scanMeta, scan, reference } = await loadScan(scanId, this.store);
     throwIfCancelled(hooks.signal);
+    const inputs = await this.recipeInputs(recipe, scan.geometry.kind === 'cone');
     const ws = await this.openWorkspace();
     // The reconstruction takes the first 95% of the bar; checks and storing the rest.
-    const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) });
+    const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) }, inputs);
     throwIfCancelled(hooks.signal);
     const warnings = [...out.warnings];
     const bad = countNonFinite(out.volume?.data ?? out.image.data);
@@ -164,6 +165,29 @@ export class Coordinator {
       seconds: (performance.now() - t0) / 1000,
       ...(out.volume ? { volumeMetrics } : {}),
     }, out.image, this.store, out.volume);
+  }
+
+  /**
+   * Images a recipe names from storage: the prior of method "prior" taken from a stored result
+   * (its volume for a cone-beam scan, else its image; any grid, resampled by the method).
+   */
+  private async recipeInputs(recipe: Recipe, cone: boolean): Promise<RecipeInputs> {
+    const p = recipe.prior;
+    if (p?.source !== 'image') return {};
+    if (!p.resultId) throw new InputError('recipe prior: the page takes a prior image from a stored result; choose one');
+    let meta: ResultMeta;
+    try {
+      meta = await getResultMeta(p.resultId, this.store);
+    } catch (err) {
+      if (!(err instanceof RecordError)) throw err;
+      throw new InputError(`recipe prior: the result "${p.name ?? p.resultId}" is no longer stored (${err.message})`);
+    }
+    if (cone) {
+      if (!meta.volume) throw new InputError(`recipe prior: result "${meta.name}" holds a 2D image; a cone-beam scan needs a volume as its prior`);
+      return { priorVolume: (await loadResultVolume(p.resultId, this.store)).volume };
+    }
+    if (meta.volume) throw new InputError(`recipe prior: result "${meta.name}" is a volume; a 2D scan needs an image as its prior`);
+    return { prior: (await loadResultImage(p.resultId, this.store)).image };
   }
 
   /** The volume against the scan's reference volume, inside and outside its FOV cylinder. */

@@ -11,10 +11,11 @@ export const SUPPORTS = ['circle', 'grid', 'image'] as const;
 export type SupportShape = (typeof SUPPORTS)[number];
 
 /**
- * Where the prior of --method prior comes from: an image handed to runRecipe (a file, a stored
- * result), or the result of another recipe on the same scan.
+ * Where the prior of --method prior comes from: an image handed to runRecipe (a file, or the
+ * stored result `resultId` that the page's coordinator loads), or the result of another recipe
+ * on the same scan.
  */
-export type PriorSource = { source: 'image' } | { source: 'recipe'; recipe: Recipe };
+export type PriorSource = { source: 'image'; resultId?: string; name?: string } | { source: 'recipe'; recipe: Recipe };
 
 /** Optional recipe fields of the iterative methods (absent: the default below). */
 export interface IterativeFields {
@@ -137,7 +138,15 @@ function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): Pr
     return validatePrior({ source: 'recipe', recipe: m[2] ? { method: m[1], extend: m[2] } : { method: m[1] } }, validateNested);
   }
   if (!isObject(p)) throw new InputError(`recipe prior: got ${JSON.stringify(p)}, expected {"source": "image"} or {"source": "recipe", "recipe": {...}}`);
-  if (p.source === 'image') return { source: 'image' };
+  if (p.source === 'image') {
+    const out: PriorSource = { source: 'image' };
+    for (const k of ['resultId', 'name'] as const) {
+      if (p[k] === undefined) continue;
+      if (typeof p[k] !== 'string' || !p[k]) throw new InputError(`recipe prior.${k}: got ${JSON.stringify(p[k])}, expected a non-empty string`);
+      out[k] = p[k] as string;
+    }
+    return out;
+  }
   if (p.source !== 'recipe') throw new InputError(`recipe prior.source: got ${JSON.stringify(p.source)}, expected "image" or "recipe"`);
   if (!isObject(p.recipe)) throw new InputError('recipe prior.recipe: expected the recipe (an object) whose result is the prior');
   if (p.recipe.method === 'prior') throw new InputError('recipe prior.recipe.method: got "prior", expected a method that needs no prior (e.g. fbp)');

@@ -192,16 +192,19 @@ function formatValue(f: RecipeField, v: unknown): string {
 /** A prior source in words: its short form, or the recipe or image it names. */
 function priorLabel(v: unknown): string {
   if (typeof v === 'string') return choiceLabel(v);
-  const p = v as { source?: string; recipe?: { method?: string; extend?: string } } | undefined;
+  const p = v as { source?: string; name?: string; recipe?: { method?: string; extend?: string } } | undefined;
   if (p?.source === 'recipe' && p.recipe) return choiceLabel(p.recipe.extend && p.recipe.extend !== 'none' ? `${p.recipe.method}:${p.recipe.extend}` : String(p.recipe.method));
-  return p?.source === 'image' ? 'image' : 'default';
+  if (p?.source === 'image') return p.name ? `“${p.name}”` : 'image';
+  return 'default';
 }
 
 /** A one-line description of a recipe, e.g. "FBP, hann, cutoff 0.8, 576 px × 1 mm". */
 export function recipeSummary(recipe: Record<string, unknown>): string {
-  return describeRecipeFields()
+  const parts = describeRecipeFields()
     .filter((f) => (f.appliesTo ? f.appliesTo(recipe) : true) && (recipe[f.key] !== undefined || f.kind === 'grid'))
     .filter((f) => !(f.key === 'extend' && recipe.extend === 'none'))
-    .map((f) => formatValue(f, recipe[f.key]))
-    .join(', ');
+    .map((f) => formatValue(f, recipe[f.key]));
+  const v = recipe.volume as { slices?: number; spacing?: number } | undefined;
+  if (v?.slices !== undefined) parts.push(`${v.slices} slices × ${v.spacing} mm`);
+  return parts.join(', ');
 }
