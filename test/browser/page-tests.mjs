@@ -1,6 +1,6 @@
 // The steps run against the page in one mode (served or opened from disk). Each step names
 // what a user does and what must follow; screenshots go to test-artifacts/<mode>-*.png.
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { check, near } from './harness.mjs';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
@@ -10,6 +10,9 @@ const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
 const JOB_TIMEOUT = 10 * 60_000;
 
 /** Text of every cell of the metrics table row for `label`, by column metric and region. */
+/** pydicom's CT test image (Debian python3-pydicom, installed by .ci/run). */
+const CT_SMALL = '/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm';
+
 async function metricsRow(page, label) {
   const row = page.locator(`rf-metrics-table tr[data-label="${label}"]`);
   const cells = await row.locator('td[data-metric]').allTextContents();
@@ -98,7 +101,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
 
   await h.step(`${mode}: (f) a malformed file is refused with the reason and nothing is stored`, async () => {
     const broken = Buffer.from('NRRD0004\ntype: float\ndimension: 3\nsizes: 10 1 5\nendian: little\nencoding: raw\nrimfill.geometry:={"kind":"parallel","detector":{"channels":10,"pitch":1},"anglesDeg":{"start":0,"step":36,"count":5}}\n\nonly a few bytes');
-    await page.locator('rf-file-drop input[type="file"]').setInputFiles({ name: 'broken.nrrd', mimeType: 'application/octet-stream', buffer: broken });
+    await page.locator('rf-scan-library rf-file-drop input[type="file"]').setInputFiles({ name: 'broken.nrrd', mimeType: 'application/octet-stream', buffer: broken });
     const err = page.locator('#import-error');
     await err.waitFor({ timeout: 30_000 });
     const text = await err.innerText();
@@ -325,6 +328,35 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     check((await job.getAttribute('data-state')) === 'done', `prior job: ${await job.innerText()}`);
     await page.locator('#tab-images').click();
     check((await resultCount(page)) === results + 1, 'the result is stored');
+  });
+
+  await h.step(`${mode}: an image file added to the scan becomes a result, compared with the ground truth; a damaged one is refused`, async () => {
+    await page.locator('#tab-images').click();
+    await page.locator('rf-result-list #reference').selectOption('truth');
+    const results = await resultCount(page);
+    const picker = page.locator('rf-result-list rf-file-drop input[type="file"]');
+    const junk = join(reference.dir, 'junk.nrrd');
+    writeFileSync(junk, 'NRRD0004\ntype: float\ndimension: 2\nsizes: 64 64\nencoding: raw\nendian: little\n\nshort');
+    await picker.setInputFiles(junk);
+    const err = page.locator('#image-import-error');
+    await err.waitFor({ timeout: 30_000 });
+    check(/junk\.nrrd/.test(await err.innerText()), `message: ${await err.innerText()}`);
+    check((await resultCount(page)) === results, 'nothing stored for the damaged file');
+    // The command line's ground truth of the demo scan, as a file: it must match the page's truth.
+    await picker.setInputFiles(join(reference.dir, 'truth.nrrd'));
+    const name = 'Image file: truth.nrrd';
+    await page.locator(`rf-metrics-table tr[data-label="${name}"]`).waitFor({ timeout: 60_000 });
+    check((await page.locator('#image-import-error').count()) === 0, 'the error is gone after a good file');
+    check((await resultCount(page)) === results + 1, 'the image is stored as a result');
+    const got = await metricsRow(page, name);
+    for (const region of ['image', 'insideFov', 'outsideFov']) check(got[region].rmse < 0.1, `${region} RMSE ${got[region].rmse} HU against the ground truth`);
+    check(Number.isFinite(got.residual) && got.residual > 0, `data residual ${got.residual}%`);
+    // A DICOM CT image (pydicom's test file CT_small.dcm, Debian python3-pydicom) is read in the
+    // page too: HU by its rescale, converted with the scan's mu_water.
+    await picker.setInputFiles(CT_SMALL);
+    await page.locator('rf-result-list li', { hasText: 'Image file: CT_small.dcm' }).waitFor({ timeout: 60_000 });
+    check((await resultCount(page)) === results + 2, 'the DICOM image is stored as a result');
+    await shot(page, '7b-image-added');
   });
 
   await h.step(`${mode}: the cone-beam demo on request; FDK with water extension in the workers agrees with the command line`, async () => {

@@ -10,7 +10,8 @@ import { describe, expect, it } from 'vitest';
 import { simulate } from '../../web/cli/commands/simulate';
 import { compareImages } from '../../web/core/compare';
 import { CancelledError, InputError } from '../../web/core/errors';
-import { readImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd, writeImageNrrd } from '../../web/core/formats/image-nrrd';
+import { writeVolumeNrrd } from '../../web/core/formats/volume-nrrd';
 import { readScanNrrd, writeScanNrrd } from '../../web/core/formats/scan-nrrd';
 import { squareGrid } from '../../web/core/image';
 import { rasterize } from '../../web/core/phantoms/ellipse';
@@ -144,6 +145,50 @@ describe('a stored result as the prior of a recipe', () => {
     const coneScan = await saveScan({ name: 'c-arm', scan: { geometry: smallCone({ channels: 16, rows: 8, pitch: 1, views: 12 }), data: new Float32Array(16 * 8 * 12) }, source: { type: 'file', fileNames: [] } }, store);
     await expect(c.run(coneScan.id, { ...common, prior: { source: 'image', resultId: fbp.id } }, undefined, {})).rejects.toThrow(/holds a 2D image; a cone-beam scan needs a volume as its prior/);
     expect((await listResults(s.id, store)).length).toBe(before);
+  });
+});
+
+describe('an image file added to a scan', () => {
+  it('is stored as a result, compared with the reference and checked against the data; a bad file stores nothing', async () => {
+    const { c, store } = coordinator();
+    const { scan, truth } = smallScan();
+    const grid = squareGrid(64, 1.25);
+    const s = await saveScan({ name: 'phantom', scan, source: { type: 'file', fileNames: [] }, reference: { grid, data: truth, muWater: 0.02 } }, store);
+    // The truth in HU: the rescale rule HU = 1000 (mu - mu_w) / mu_w (references.md), mu_water from the scan.
+    const hu = truth.map((v) => (1000 * (v - 0.02)) / 0.02);
+    const file = new File([(await writeImageNrrd({ grid, data: hu, quantity: 'hu' })) as BlobPart], 'earlier.nrrd');
+    const r = await c.importImage(s.id, [file], undefined, {});
+    expect(r).toMatchObject({ name: 'Image file: earlier.nrrd', recipe: { method: 'imported', fileNames: ['earlier.nrrd'] } });
+    // The reference itself, read back: RMSE within float rounding of the HU conversion.
+    expect(r.metrics!.regions.image!.rmse).toBeLessThan(0.01);
+    // The phantom on 1.25 mm pixels re-projects onto the analytic data within a few percent.
+    expect(r.residual!.relative).toBeLessThan(0.05);
+    expect(r.residual!.rays).toBe(scan.data.length);
+
+    const before = await listResults(s.id, store);
+    const short = new File([(await writeImageNrrd({ grid, data: hu, quantity: 'hu' })).subarray(0, 2000) as BlobPart], 'cut.nrrd');
+    await expect(c.importImage(s.id, [short], undefined, {})).rejects.toThrow(/cut\.nrrd: /);
+    const noMu = await saveScan({ name: 'no mu', scan: { ...scan, muWater: undefined }, source: { type: 'file', fileNames: [] } }, store);
+    await expect(c.importImage(noMu.id, [file], undefined, {})).rejects.toThrow(/earlier\.nrrd: .*mu_water/);
+    expect(await listResults(s.id, store)).toEqual(before);
+    expect(await listResults(noMu.id, store)).toEqual([]);
+  });
+
+  it('is a volume for a cone-beam scan', async () => {
+    const { c, store } = coordinator();
+    const g = smallCone({ channels: 16, rows: 8, pitch: 1, views: 12 });
+    const s = await saveScan({ name: 'c-arm', scan: { geometry: g, data: new Float32Array(16 * 8 * 12), muWater: 0.02 }, source: { type: 'file', fileNames: [] } }, store);
+    const vgrid = { nx: 8, ny: 8, nz: 4, dx: 1, dy: 1, dz: 1, cx: 0, cy: 0, cz: 0 };
+    const data = new Float32Array(8 * 8 * 4).fill(0.02);
+    const file = new File([(await writeVolumeNrrd({ grid: vgrid, data, quantity: 'mu' })) as BlobPart], 'vol.nrrd');
+    await expect(c.importImage(s.id, [file], 2, {})).rejects.toThrow(/a cone-beam scan takes the whole volume/);
+    const r = await c.importImage(s.id, [file], undefined, {});
+    expect(r.volume).toBeDefined();
+    const { volume } = await loadResultVolume(r.id, store);
+    expect(volume.grid).toMatchObject({ nx: 8, ny: 8, nz: 4 });
+    expect(Array.from(volume.data)).toEqual(Array.from(data));
+    // A uniform volume against zero data: the residual is all of its projections.
+    expect(r.residual!.rays).toBe(16 * 8 * 12);
   });
 });
 

@@ -12,7 +12,7 @@ import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
 import { geometrySummary } from './logic/describe';
 import { remainingMs } from './logic/time-left';
-import { MAX_COMPARED } from './result-list';
+import { MAX_COMPARED, type ImageImportState } from './result-list';
 import { TRUTH } from './results-view';
 import type { QueueJob } from './run-queue';
 import { theme } from './theme';
@@ -48,7 +48,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
-    importing: { state: true }, importError: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, imageImport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -65,6 +65,8 @@ export class AppShell extends LitElement {
   declare jobs: QueueJob[];
   declare importing: boolean;
   declare importError: string;
+  /** An image file being added to the chosen scan (Images tab). */
+  declare imageImport: ImageImportState;
   declare demoBusy: boolean;
   declare demoFraction: number;
   declare coneDemoBusy: boolean;
@@ -111,6 +113,7 @@ export class AppShell extends LitElement {
     this.jobs = [];
     this.importing = false;
     this.importError = '';
+    this.imageImport = { busy: false, error: '' };
     this.demoBusy = false;
     this.demoFraction = 0;
     this.coneDemoBusy = false;
@@ -208,6 +211,19 @@ export class AppShell extends LitElement {
       this.importError = err instanceof StorageFullError || err instanceof InputError ? err.message : `Import failed: ${message(err)}`;
     } finally {
       this.importing = false;
+    }
+  }
+
+  /** Adds an image file to the scan as a result and shows it beside those ticked. */
+  private async importImage(scanId: string, files: File[], slice?: number) {
+    this.imageImport = { busy: true, error: '' };
+    try {
+      const meta = await this.client.importImage(scanId, files, slice);
+      await this.refreshLibrary();
+      if (this.selectedScanId === scanId && !this.compareIds.includes(meta.id)) await this.toggleResult(meta.id);
+      this.imageImport = { busy: false, error: '' };
+    } catch (err) {
+      this.imageImport = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The image could not be added: ${message(err)}` };
     }
   }
 
@@ -381,7 +397,9 @@ export class AppShell extends LitElement {
   private imagesTab(scan: ScanMeta) {
     return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images}
       .truth=${this.loaded?.id === scan.id ? this.loaded.truth : undefined} .referenceId=${this.referenceId} .comparisons=${this.comparisons}
-      .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)}
+      .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)} ?cone=${scan.geometry.kind === 'cone'} .imageImport=${this.imageImport}
+      @image-files-chosen=${(e: CustomEvent) => this.importImage(scan.id, e.detail.files, e.detail.slice)}
+      @image-import-error-dismiss=${() => (this.imageImport = { ...this.imageImport, error: '' })}
       @result-toggle=${(e: CustomEvent) => this.toggleResult(e.detail.id)}
       @result-delete=${(e: CustomEvent) => this.storeAction(async () => {
         await deleteResult(e.detail.id);

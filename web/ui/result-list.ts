@@ -1,27 +1,45 @@
 import { html, LitElement, css, nothing } from 'lit';
 import type { ResultMeta } from '../store/records';
 import { SERIES_COLOURS, theme } from './theme';
+import './file-drop';
 
 /** Most results compared at once. */
 export const MAX_COMPARED = 4;
 
 const send = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
 
+/** An image file being added to the scan, as the list shows it. */
+export interface ImageImportState {
+  busy: boolean;
+  /** Why the last one was refused ('' when it was not). */
+  error: string;
+}
+
 /**
- * A scan's results: tick up to four to compare, choose the reference, delete.
+ * A scan's results: tick up to four to compare, choose the reference, delete; add an image file
+ * as a result (an earlier reconstruction, a DICOM CT image, a model's output).
  * @fires result-toggle - detail: { id }
  * @fires result-delete - detail: { id }
  * @fires reference-change - detail: { id }
+ * @fires image-files-chosen - detail: { files, slice? }
+ * @fires image-import-error-dismiss
  */
 export class ResultList extends LitElement {
-  static properties = { results: { attribute: false }, selected: { attribute: false }, referenceId: { type: String }, hasTruth: { type: Boolean }, confirming: { state: true } };
+  static properties = {
+    results: { attribute: false }, selected: { attribute: false }, referenceId: { type: String }, hasTruth: { type: Boolean }, cone: { type: Boolean },
+    imageImport: { attribute: false }, confirming: { state: true }, slice: { state: true },
+  };
   declare results: ResultMeta[];
   /** Ticked ids, in order. */
   declare selected: string[];
   declare referenceId: string;
   /** The scan has a ground truth to compare with. */
   declare hasTruth: boolean;
+  /** The scan is cone beam: an added image file is a volume. */
+  declare cone: boolean;
+  declare imageImport: ImageImportState;
   declare confirming: string;
+  declare slice: string;
 
   static styles = [theme, css`
     :host { display: flex; flex-direction: column; gap: 10px; }
@@ -34,6 +52,8 @@ export class ResultList extends LitElement {
     .row { display: flex; gap: 6px; margin: 6px 0 0 24px; }
     select { width: 100%; }
     .empty { font-size: 13px; color: var(--muted); }
+    .slice { display: flex; gap: 6px; align-items: center; font-size: 12px; margin-top: 8px; }
+    .slice input { width: 70px; }
   `];
 
   constructor() {
@@ -42,7 +62,10 @@ export class ResultList extends LitElement {
     this.selected = [];
     this.referenceId = '';
     this.hasTruth = false;
+    this.cone = false;
+    this.imageImport = { busy: false, error: '' };
     this.confirming = '';
+    this.slice = '';
   }
 
   updated() {
@@ -77,6 +100,17 @@ export class ResultList extends LitElement {
             <option value="" ?selected=${this.referenceId === ''}>Nothing</option>
             ${this.results.map((r) => html`<option value=${r.id} ?selected=${this.referenceId === r.id}>${r.name}</option>`)}
           </select></label>
+      </div>
+      <div class="card">
+        <h2>Add an image</h2>
+        <rf-file-drop ?busy=${this.imageImport.busy} inputLabel="Image files"
+          prompt=${`Drop an image ${this.cone ? 'volume ' : ''}of this object: an earlier full-field reconstruction, a DICOM CT ${this.cone ? 'series' : 'image'}, your own model's output (NRRD, MetaImage, raw + JSON, DICOM, TIFF; mu or HU)`}
+          @files-chosen=${(e: CustomEvent) => send(this, 'image-files-chosen', { files: e.detail.files, ...(this.slice.trim() !== '' ? { slice: Number(this.slice) } : {}) })}></rf-file-drop>
+        ${this.cone ? nothing : html`<label class="slice">Slice of a volume file <input type="number" name="image-slice" min="0" step="1" placeholder="0" .value=${this.slice}
+          @input=${(e: Event) => (this.slice = (e.target as HTMLInputElement).value)}></label>`}
+        <p class="empty">It becomes a result of this scan, checked against the measured data: compare with it, choose it as the reference, or start the prior-guided method from it.</p>
+        ${this.imageImport.error ? html`<div class="error" role="alert" id="image-import-error">${this.imageImport.error}
+          <button class="small" @click=${() => send(this, 'image-import-error-dismiss', {})}>Dismiss</button></div>` : nothing}
       </div>`;
   }
 }

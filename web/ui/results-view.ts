@@ -13,6 +13,7 @@ import { regionStats, sampleProfile, type Point } from './logic/measure';
 import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
 import { autoWindow, type DisplayWindow } from './logic/window-level';
 import type { MetricsRow } from './metrics-table';
+import type { ImageImportState } from './result-list';
 import type { PlotSeries } from './line-plot';
 import { SERIES_COLOURS, theme } from './theme';
 import './image-viewer';
@@ -46,6 +47,7 @@ export class ResultsView extends LitElement {
   static properties = {
     results: { attribute: false }, selected: { attribute: false }, images: { attribute: false }, truth: { attribute: false },
     referenceId: { type: String }, comparisons: { attribute: false }, scanName: { type: String }, scanSummary: { type: String },
+    cone: { type: Boolean }, imageImport: { attribute: false },
     window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
     line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
     exportError: { state: true },
@@ -64,6 +66,10 @@ export class ResultsView extends LitElement {
   declare comparisons: Map<string, Comparison | string>;
   declare scanName: string;
   declare scanSummary: string;
+  /** The scan is cone beam (an added image is a volume). */
+  declare cone: boolean;
+  /** An image file being added to the scan. */
+  declare imageImport: ImageImportState;
   declare window: DisplayWindow | undefined;
   declare diffWindow: DisplayWindow;
   declare view: ViewState;
@@ -101,6 +107,8 @@ export class ResultsView extends LitElement {
     this.comparisons = new Map();
     this.scanName = '';
     this.scanSummary = '';
+    this.cone = false;
+    this.imageImport = { busy: false, error: '' };
     this.diffWindow = { width: 500, level: 0 };
     this.view = INITIAL_VIEW;
     this.cursor = null;
@@ -259,7 +267,8 @@ export class ResultsView extends LitElement {
     const active = shown.find((p) => p.key === this.activeKey);
     const differenceShown = shown !== panels;
     return html`
-      <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}></rf-result-list>
+      <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}
+        ?cone=${this.cone} .imageImport=${this.imageImport}></rf-result-list>
       <div class="main">
         ${!panels.length ? html`<div class="card empty">${this.results.length ? 'Tick one to four results on the left to view and compare them.' : 'No results for this scan yet: run a recipe from the Reconstruct tab.'}</div>` : html`
         <div class="card">

@@ -7,7 +7,7 @@ import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-j
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 3;
+export const APP_PROTOCOL_VERSION = 4;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -19,6 +19,7 @@ export type AppRequest =
   | { op: 'run'; scanId: string; recipe: unknown; name?: string }
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
+  | { op: 'import-image'; scanId: string; files: File[]; slice?: number }
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
   | { op: 'prior-check'; request: PriorCheckRequest };
@@ -31,6 +32,7 @@ export interface AppReplies {
   run: ResultMeta;
   compare: Comparison;
   info: EngineInfo;
+  'import-image': ResultMeta;
   'import-model': ModelMeta;
   'network-prior': NetworkPriorOutcome;
   'prior-check': PriorCheckOutcome;

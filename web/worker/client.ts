@@ -98,6 +98,11 @@ export class EngineClient {
     return this.call({ op: 'compare', resultId, against }, options);
   }
 
+  /** Adds an image file to a stored scan as a result (checked against its data and reference). */
+  importImage(scanId: string, files: File[], slice?: number, options: CallOptions = {}): Promise<AppReplies['import-image']> {
+    return this.call({ op: 'import-image', scanId, files, ...(slice !== undefined ? { slice } : {}) }, options);
+  }
+
   /** Checks a network (its .onnx file and .json description) in the runtime and stores it. */
   importModel(files: File[], options: CallOptions = {}): Promise<AppReplies['import-model']> {
     return this.call({ op: 'import-model', files }, options);

@@ -6,7 +6,10 @@ import { dataResidual } from '../core/data-residual';
 import { InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
-import type { Volume } from '../core/volume';
+import { axialSlice, sliceAt, type Volume } from '../core/volume';
+import { coneFovHalfHeight } from '../core/geometry/cone';
+import { fovRadius } from '../core/geometry/view-vectors';
+import type { Scan } from '../core/scan';
 import { recipeSummary } from '../core/recipe/fields';
 import { validateRecipe, type Recipe } from '../core/recipe/recipe';
 import { runRecipe, type RecipeInputs } from '../core/recipe/run';
@@ -23,7 +26,8 @@ import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-pr
 import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
 import { checkModelFiles } from './import-model-files';
-import { readScanFiles } from './import-scan';
+import { readScanFiles, type InputFile } from './import-scan';
+import { readImageFiles, readVolumeFiles } from './read-image-files';
 import { runNetworkPriorJob } from './network-prior-job';
 import { runPriorCheckJob } from './prior-check-job';
 
@@ -62,6 +66,8 @@ export class Coordinator {
         return (await this.compare(r.resultId, r.against)) as AppReplies[K];
       case 'info':
         return (await this.info()) as AppReplies[K];
+      case 'import-image':
+        return (await this.exclusive(() => this.importImage(r.scanId, r.files, r.slice, hooks))) as AppReplies[K];
       case 'import-model':
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
@@ -136,33 +142,86 @@ export class Coordinator {
     // The reconstruction takes the first 95% of the bar; checks and storing the rest.
     const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) }, inputs);
     throwIfCancelled(hooks.signal);
+    return this.checkAndStore(ws, { scanId, scanMeta, scan, reference }, out, {
+      name: name ?? recipeSummary(recipe as unknown as Record<string, unknown>),
+      recipe: recipe as unknown as Record<string, unknown>,
+      t0,
+    }, hooks);
+  }
+
+  /**
+   * Adds an image file to a stored scan as a result (an earlier full-field reconstruction, a
+   * DICOM CT slice or series, a user's model output): a volume for a cone-beam scan, else one
+   * slice. It is compared with the scan's reference and checked against the measured data like
+   * a reconstruction, and can then be a reference, a comparison or a prior.
+   */
+  async importImage(scanId: string, files: InputFile[], slice: number | undefined, hooks: RunHooks): Promise<ResultMeta> {
+    const t0 = performance.now();
+    const loaded = await loadScan(scanId, this.store);
+    const { scan } = loaded;
+    hooks.onProgress?.(0, 'reading');
+    const g = scan.geometry;
+    const fov = fovRadius(g);
+    let out: { image: Image2D; volume?: Volume; warnings: string[]; report: Record<string, unknown> };
+    let read: { name: string; fileNames: string[] };
+    if (g.kind === 'cone') {
+      if (slice !== undefined) throw new InputError('image import: a cone-beam scan takes the whole volume; leave the slice empty');
+      const r = await readVolumeFiles(files, scan.muWater);
+      const volume: Volume = { ...r.value, fovRadius: fov, fovHalfHeight: coneFovHalfHeight(g) };
+      out = { image: axialSlice(volume, sliceAt(volume.grid, 0)), volume, warnings: r.warnings, report: {} };
+      read = r;
+    } else {
+      const r = await readImageFiles(files, scan.muWater, slice);
+      out = { image: { ...r.value, fovRadius: fov }, warnings: r.warnings, report: {} };
+      read = r;
+    }
+    throwIfCancelled(hooks.signal);
+    const ws = await this.openWorkspace();
+    return this.checkAndStore(ws, { scanId, scanMeta: loaded.meta, scan, reference: loaded.reference }, out, {
+      name: `Image file: ${read.name}`,
+      recipe: { method: 'imported', fileNames: read.fileNames, ...(slice !== undefined ? { slice } : {}) },
+      t0,
+    }, hooks);
+  }
+
+  /**
+   * Compares an image (or volume) with the scan's reference, re-projects it against the measured
+   * data, and stores it as a result of the scan (warnings for values that cannot be trusted).
+   */
+  private async checkAndStore(
+    ws: Workspace,
+    s: { scanId: string; scanMeta: ScanMeta; scan: Scan; reference?: Image2D },
+    out: { image: Image2D; volume?: Volume; warnings: string[]; report: Record<string, unknown> },
+    what: { name: string; recipe: Record<string, unknown>; t0: number },
+    hooks: RunHooks,
+  ): Promise<ResultMeta> {
     const warnings = [...out.warnings];
     const bad = countNonFinite(out.volume?.data ?? out.image.data);
     if (bad) warnings.push(`${bad} ${out.volume ? 'voxels' : 'pixels'} are not finite numbers (NaN or infinity): the ${out.volume ? 'volume' : 'image'} is not trustworthy`);
     let metrics: Comparison | null = null;
-    if (reference) {
+    if (s.reference) {
       try {
-        metrics = compareImages(out.image, reference, out.image.fovRadius);
+        metrics = compareImages(out.image, s.reference, out.image.fovRadius);
       } catch (err) {
         if (!(err instanceof InputError)) throw err;
         warnings.push(`no comparison with the reference: ${err.message}`);
       }
     }
     let volumeMetrics: VolumeComparison | null | undefined;
-    if (out.volume) volumeMetrics = scanMeta.referenceVolume && !bad ? await this.compareWithReferenceVolume(scanId, out.volume, hooks) : null;
+    if (out.volume) volumeMetrics = s.scanMeta.referenceVolume && !bad ? await this.compareWithReferenceVolume(s.scanId, out.volume, hooks) : null;
     hooks.onProgress?.(0.97, 'checking against the measured data');
     const checkHooks = { signal: hooks.signal };
-    const residual = out.volume ? await volumeDataResidual(ws, out.volume, scan, checkHooks) : await dataResidual(ws, out.image, scan, checkHooks);
+    const residual = out.volume ? await volumeDataResidual(ws, out.volume, s.scan, checkHooks) : await dataResidual(ws, out.image, s.scan, checkHooks);
     hooks.onProgress?.(1, 'storing');
     return saveResult({
-      scanId,
-      name: name ?? recipeSummary(recipe as unknown as Record<string, unknown>),
-      recipe: recipe as unknown as Record<string, unknown>,
+      scanId: s.scanId,
+      name: what.name,
+      recipe: what.recipe,
       warnings,
       report: out.report,
       metrics,
       residual,
-      seconds: (performance.now() - t0) / 1000,
+      seconds: (performance.now() - what.t0) / 1000,
       ...(out.volume ? { volumeMetrics } : {}),
     }, out.image, this.store, out.volume);
   }

@@ -7,7 +7,6 @@
 // data-consistent result beside it, in one transaction: nothing is stored when anything fails.
 import type { Workspace } from '../core/engine/workspace';
 import { InputError, throwIfCancelled } from '../core/errors';
-import { readImage2D } from '../core/formats/read-image';
 import { fovRadius } from '../core/geometry/view-vectors';
 import type { Image2D } from '../core/image';
 import { chooseGrid } from '../core/recipe/grid';
@@ -18,6 +17,7 @@ import type { ResultMeta } from '../store/records';
 import { loadResultImage } from '../store/results';
 import { loadScan } from '../store/scans';
 import type { InputFile } from './import-scan';
+import { readImageFiles } from './read-image-files';
 import { checkDataConsistentRequest, checkedResultRecords, checkImage, compared, consistentFromPrior, consistentResultRecords, require2dScan, stage } from './prior-steps';
 
 /** Where the prior comes from. */
@@ -75,16 +75,8 @@ async function loadPrior(source: PriorImageSource, muWater: number | undefined, 
     const { meta, image } = await loadResultImage(source.resultId, store);
     return { image: { ...image, fovRadius: fov }, name: meta.name, source: { kind: 'result', resultId: meta.id, scanId: meta.scanId, name: meta.name }, warnings: [] };
   }
-  const named = await Promise.all(source.files.map(async (f) => ({ name: f.name, bytes: new Uint8Array(await f.arrayBuffer()) })));
-  const fileNames = named.map((f) => f.name);
-  try {
-    const { image, warnings } = await readImage2D(named, { muWater, slice: source.slice });
-    const name = fileNames.find((n) => !/\.(raw|json)$/i.test(n)) ?? fileNames[0];
-    return { image: { ...image, muWater: image.muWater ?? muWater, fovRadius: fov }, name, source: { kind: 'file', fileNames, ...(source.slice !== undefined ? { slice: source.slice } : {}) }, warnings };
-  } catch (err) {
-    if (err instanceof InputError && !err.message.includes(fileNames[0])) throw new InputError(`${fileNames.join(', ')}: ${err.message}`);
-    throw err;
-  }
+  const r = await readImageFiles(source.files, muWater, source.slice);
+  return { image: { ...r.value, fovRadius: fov }, name: r.name, source: { kind: 'file', fileNames: r.fileNames, ...(source.slice !== undefined ? { slice: source.slice } : {}) }, warnings: r.warnings };
 }
 
 /** Checks a prior image against a stored scan (and, when asked, reconstructs from it) and stores both. */
