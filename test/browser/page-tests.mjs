@@ -359,6 +359,37 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await shot(page, '7b-image-added');
   });
 
+  await h.step(`${mode}: HU calibration from a region marked with its known HU gives back the scan's mu_water; a wrong value is refused`, async () => {
+    // The ground truth as a result (the step above): a region in it, marked with the HU the page
+    // shows there, must give back the mu_water the scan was simulated with (HU = 1000 (mu - mu_w) / mu_w).
+    const name = 'Image file: truth.nrrd';
+    const viewer = page.locator('rf-results-view rf-image-viewer', { hasText: name });
+    await page.locator('rf-results-view rf-viewer-toolbar button[data-tool="region"]').click();
+    const box = await viewer.locator('canvas').boundingBox();
+    await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
+    await page.mouse.down();
+    await page.mouse.move(box.x + box.width * 0.53, box.y + box.height * 0.5, { steps: 3 });
+    await page.mouse.up();
+    const row = page.locator('rf-region-table tbody tr', { hasText: name });
+    await row.waitFor();
+    const meanHu = Number((await row.locator('td').nth(1).innerText()).trim());
+    check(Number.isFinite(meanHu), `region mean ${meanHu}`);
+    await page.locator('#material-hu').fill(String(meanHu));
+    await page.locator('#measure-mu-water').click();
+    await page.locator('rf-hu-calibration .sub', { hasText: `measured in “${name}”` }).waitFor({ timeout: 30_000 });
+    const want = Number(reference.fbp.keys['rimfill.muWater']);
+    const got = Number(await page.locator('#mu-water').innerText());
+    // The mean is shown to 0.1 HU: mu_water within 1e-4 of the simulated one, relative.
+    near(got, want, 1e-4 * want, 'mu_water measured from the marked region (1/mm)');
+    await page.locator('#mu-water-input').fill('5');
+    await page.locator('#set-mu-water').click();
+    const err = page.locator('#calibration-error');
+    await err.waitFor({ timeout: 30_000 });
+    check(/expected the attenuation of water in 1\/mm/.test(await err.innerText()), `message: ${await err.innerText()}`);
+    check(Number(await page.locator('#mu-water').innerText()) === got, 'a refused value changes nothing');
+    await shot(page, '7c-calibration');
+  });
+
   await h.step(`${mode}: the cone-beam demo on request; FDK with water extension in the workers agrees with the command line`, async () => {
     check(reference?.cone, 'the command-line cone-beam reference ran');
     check(!(await page.locator('rf-scan-library li').filter({ hasText: 'cone-beam' }).count()), 'no cone-beam demo before it is asked for');

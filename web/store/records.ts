@@ -17,6 +17,20 @@ export const SCHEMA_VERSION = 1;
 /** Where a scan came from. */
 export type ScanSource = { type: 'file'; fileNames: string[] } | { type: 'demo'; description: string };
 
+/** How a scan's mu_water was set in the page (absent: it came with the data or the simulation). */
+export type ScanCalibration =
+  | { method: 'hand'; at: number }
+  | {
+      method: 'region'; at: number; resultId: string; resultName: string;
+      /** The marked circle, mm. */
+      region: { cx: number; cy: number; radius: number };
+      /** HU of the marked material (0 for water). */
+      materialHu: number;
+      pixels: number;
+      /** Standard deviation in the region, HU. */
+      stdHu: number;
+    };
+
 /** A stored scan's description (small; listed without loading projections). */
 export interface ScanMeta {
   schema: typeof SCHEMA_VERSION;
@@ -28,6 +42,8 @@ export interface ScanMeta {
   geometry: Geometry;
   /** mu of water, 1/mm, when known. */
   muWater?: number;
+  /** How muWater was set in the page, when it was. */
+  calibration?: ScanCalibration;
   notes?: Record<string, string>;
   source: ScanSource;
   /** Bytes of projections plus reference image. */

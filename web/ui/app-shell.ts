@@ -48,7 +48,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
-    importing: { state: true }, importError: { state: true }, imageImport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -67,6 +67,8 @@ export class AppShell extends LitElement {
   declare importError: string;
   /** An image file being added to the chosen scan (Images tab). */
   declare imageImport: ImageImportState;
+  /** A HU calibration of the chosen scan being stored (Images tab). */
+  declare calibrating: ImageImportState;
   declare demoBusy: boolean;
   declare demoFraction: number;
   declare coneDemoBusy: boolean;
@@ -114,6 +116,7 @@ export class AppShell extends LitElement {
     this.importing = false;
     this.importError = '';
     this.imageImport = { busy: false, error: '' };
+    this.calibrating = { busy: false, error: '' };
     this.demoBusy = false;
     this.demoFraction = 0;
     this.coneDemoBusy = false;
@@ -224,6 +227,29 @@ export class AppShell extends LitElement {
       this.imageImport = { busy: false, error: '' };
     } catch (err) {
       this.imageImport = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The image could not be added: ${message(err)}` };
+    }
+  }
+
+  /** Sets the scan's mu_water (by hand or from a drawn region); its results' images and figures follow. */
+  private async calibrate(scanId: string, detail: { muWater: number } | { resultId: string; region: { cx: number; cy: number; radius: number }; materialHu: number }) {
+    this.calibrating = { busy: true, error: '' };
+    try {
+      await this.client.calibrate({ scanId, ...detail });
+      await this.refreshLibrary();
+      // Loaded images carry the old mu_water: load them again, and the comparisons with them.
+      const mine = new Set(this.results.filter((r) => r.scanId === scanId).map((r) => r.id));
+      this.images = new Map([...this.images].filter(([id]) => !mine.has(id)));
+      this.comparisons = new Map();
+      if (this.selectedScanId === scanId) {
+        // A reference without its own mu_water follows the scan's.
+        const { reference } = await loadScan(scanId);
+        if (this.loaded?.id === scanId) this.loaded = { ...this.loaded, truth: reference };
+        await this.loadImages(this.compareIds);
+        await this.updateComparisons();
+      }
+      this.calibrating = { busy: false, error: '' };
+    } catch (err) {
+      this.calibrating = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The calibration failed: ${message(err)}` };
     }
   }
 
@@ -400,6 +426,9 @@ export class AppShell extends LitElement {
       .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)} ?cone=${scan.geometry.kind === 'cone'} .imageImport=${this.imageImport}
       @image-files-chosen=${(e: CustomEvent) => this.importImage(scan.id, e.detail.files, e.detail.slice)}
       @image-import-error-dismiss=${() => (this.imageImport = { ...this.imageImport, error: '' })}
+      .muWater=${scan.muWater} .calibration=${scan.calibration} .calibrating=${this.calibrating}
+      @calibrate=${(e: CustomEvent) => this.calibrate(scan.id, e.detail)}
+      @calibrate-error-dismiss=${() => (this.calibrating = { ...this.calibrating, error: '' })}
       @result-toggle=${(e: CustomEvent) => this.toggleResult(e.detail.id)}
       @result-delete=${(e: CustomEvent) => this.storeAction(async () => {
         await deleteResult(e.detail.id);

@@ -14,6 +14,9 @@ import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
 import { autoWindow, type DisplayWindow } from './logic/window-level';
 import type { MetricsRow } from './metrics-table';
 import type { ImageImportState } from './result-list';
+import type { CalibrationRegion } from './hu-calibration';
+import type { ScanCalibration } from '../store/records';
+import './hu-calibration';
 import type { PlotSeries } from './line-plot';
 import { SERIES_COLOURS, theme } from './theme';
 import './image-viewer';
@@ -47,7 +50,7 @@ export class ResultsView extends LitElement {
   static properties = {
     results: { attribute: false }, selected: { attribute: false }, images: { attribute: false }, truth: { attribute: false },
     referenceId: { type: String }, comparisons: { attribute: false }, scanName: { type: String }, scanSummary: { type: String },
-    cone: { type: Boolean }, imageImport: { attribute: false },
+    cone: { type: Boolean }, imageImport: { attribute: false }, muWater: { type: Number }, calibration: { attribute: false }, calibrating: { attribute: false },
     window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
     line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
     exportError: { state: true },
@@ -70,6 +73,11 @@ export class ResultsView extends LitElement {
   declare cone: boolean;
   /** An image file being added to the scan. */
   declare imageImport: ImageImportState;
+  /** The scan's mu_water (undefined: unknown) and how it was set. */
+  declare muWater: number | undefined;
+  declare calibration: ScanCalibration | undefined;
+  /** A calibration being stored, and why the last one was refused. */
+  declare calibrating: ImageImportState;
   declare window: DisplayWindow | undefined;
   declare diffWindow: DisplayWindow;
   declare view: ViewState;
@@ -88,6 +96,7 @@ export class ResultsView extends LitElement {
     :host { display: grid; grid-template-columns: 280px minmax(0, 1fr); gap: 14px; align-items: start; }
     @media (max-width: 1000px) { :host { grid-template-columns: 1fr; } }
     .main { display: grid; gap: 14px; min-width: 0; }
+    .side { display: grid; gap: 14px; align-content: start; }
     .panels { display: grid; gap: 10px; }
     .panels.n1 { grid-template-columns: minmax(0, 640px); }
     .panels.n2 { grid-template-columns: repeat(2, minmax(0, 1fr)); }
@@ -109,6 +118,9 @@ export class ResultsView extends LitElement {
     this.scanSummary = '';
     this.cone = false;
     this.imageImport = { busy: false, error: '' };
+    this.muWater = undefined;
+    this.calibration = undefined;
+    this.calibrating = { busy: false, error: '' };
     this.diffWindow = { width: 500, level: 0 };
     this.view = INITIAL_VIEW;
     this.cursor = null;
@@ -244,6 +256,12 @@ export class ResultsView extends LitElement {
     return this.comparisons.get(meta.id);
   }
 
+  /** The drawn region on the highlighted stored result (the ground truth cannot calibrate its own scan). */
+  private calibrationRegion(active: Panel | undefined): CalibrationRegion | undefined {
+    if (!active?.meta || !this.region) return undefined;
+    return { resultId: active.meta.id, label: active.label, region: { cx: this.region.centre.x, cy: this.region.centre.y, radius: this.region.radius } };
+  }
+
   private convergence(panels: Panel[]) {
     return panels.filter((p) => p.meta).map((p) => {
       const series: PlotSeries[] = convergenceHistories(p.meta!.report).map((hst, i) => ({
@@ -267,8 +285,12 @@ export class ResultsView extends LitElement {
     const active = shown.find((p) => p.key === this.activeKey);
     const differenceShown = shown !== panels;
     return html`
-      <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}
-        ?cone=${this.cone} .imageImport=${this.imageImport}></rf-result-list>
+      <div class="side">
+        <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}
+          ?cone=${this.cone} .imageImport=${this.imageImport}></rf-result-list>
+        <rf-hu-calibration .muWater=${this.muWater} .calibration=${this.calibration} .regionSource=${this.calibrationRegion(active)}
+          ?busy=${this.calibrating.busy} .error=${this.calibrating.error}></rf-hu-calibration>
+      </div>
       <div class="main">
         ${!panels.length ? html`<div class="card empty">${this.results.length ? 'Tick one to four results on the left to view and compare them.' : 'No results for this scan yet: run a recipe from the Reconstruct tab.'}</div>` : html`
         <div class="card">

@@ -3,11 +3,12 @@
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
 import type { Comparison } from '../core/compare';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
+import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 4;
+export const APP_PROTOCOL_VERSION = 5;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -20,6 +21,7 @@ export type AppRequest =
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
   | { op: 'import-image'; scanId: string; files: File[]; slice?: number }
+  | { op: 'calibrate'; request: CalibrationRequest }
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
   | { op: 'prior-check'; request: PriorCheckRequest };
@@ -33,6 +35,7 @@ export interface AppReplies {
   compare: Comparison;
   info: EngineInfo;
   'import-image': ResultMeta;
+  calibrate: CalibrationOutcome;
   'import-model': ModelMeta;
   'network-prior': NetworkPriorOutcome;
   'prior-check': PriorCheckOutcome;

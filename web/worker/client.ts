@@ -6,6 +6,7 @@
 import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
+import type { CalibrationRequest } from './calibrate-job';
 import type { NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckRequest } from './prior-check-job';
 
@@ -101,6 +102,11 @@ export class EngineClient {
   /** Adds an image file to a stored scan as a result (checked against its data and reference). */
   importImage(scanId: string, files: File[], slice?: number, options: CallOptions = {}): Promise<AppReplies['import-image']> {
     return this.call({ op: 'import-image', scanId, files, ...(slice !== undefined ? { slice } : {}) }, options);
+  }
+
+  /** Sets a scan's mu_water (by hand or from a marked region) and updates its results' HU figures. */
+  calibrate(request: CalibrationRequest, options: CallOptions = {}): Promise<AppReplies['calibrate']> {
+    return this.call({ op: 'calibrate', request }, options);
   }
 
   /** Checks a network (its .onnx file and .json description) in the runtime and stores it. */

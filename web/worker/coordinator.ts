@@ -30,6 +30,7 @@ import { readScanFiles, type InputFile } from './import-scan';
 import { readImageFiles, readVolumeFiles } from './read-image-files';
 import { runNetworkPriorJob } from './network-prior-job';
 import { runPriorCheckJob } from './prior-check-job';
+import { calibrateScan } from './calibrate-job';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -68,6 +69,8 @@ export class Coordinator {
         return (await this.info()) as AppReplies[K];
       case 'import-image':
         return (await this.exclusive(() => this.importImage(r.scanId, r.files, r.slice, hooks))) as AppReplies[K];
+      case 'calibrate':
+        return (await this.exclusive(() => calibrateScan(this.store, r.request, hooks))) as AppReplies[K];
       case 'import-model':
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
