@@ -3,6 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Comparison } from '../../web/core/compare';
 import { buildReport } from '../../web/ui/export/report';
+import { huScaleText } from '../../web/ui/hu-calibration';
 import { fileName } from '../../web/ui/export/download';
 
 const comparison: Comparison = {
@@ -23,6 +24,7 @@ const report = () => buildReport({
   title: 'Reconstructions of <b>scan</b>',
   scanName: 'a & b',
   scanSummary: 'Fan beam',
+  huScale: huScaleText(0.02059, { method: 'region', at: 0, resultId: 'r', resultName: 'FBP <water>', region: { cx: 1, cy: -2, radius: 15 }, materialHu: 0, pixels: 700, stdHu: 4.2 }),
   referenceLabel: 'the ground truth',
   window: { width: 400, level: 40 },
   unit: 'HU',
@@ -47,6 +49,9 @@ describe('report', () => {
     expect(html).toContain('Reconstructions of &lt;b&gt;scan&lt;/b&gt;');
     expect(html).toContain('FBP &quot;sharp&quot;');
     expect(html).toContain('a &amp; b');
+    // The HU scale and how it was measured (the marked circle, its material and uniformity).
+    expect(html).toMatch(/HU scale: mu of water 0\.020590 \/mm, measured in “FBP &lt;water&gt;”, .*: circle of 15\.0 mm at \(1\.0, -2\.0\) mm marked as 0 HU; SD 4\.2 HU over 700 pixels/);
+    expect(huScaleText(undefined, undefined)).toBe('mu of water unknown: values in mu (1/mm)');
     expect(html).toContain('<td>12.3</td><td>30.0</td><td>0.988</td>');
     expect(html).toContain('<td>5.5</td><td>35.0</td><td>0.990</td><td>–</td>');
     expect(html).toContain('{&quot;method&quot;:&quot;fbp&quot;}');

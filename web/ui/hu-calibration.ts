@@ -15,6 +15,11 @@ const NOT_UNIFORM_HU = 20;
 
 const emit = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
 
+/** The HU scale in words, for the page and the report: mu_water and where it came from. */
+export function huScaleText(muWater: number | undefined, c: ScanCalibration | undefined): string {
+  return muWater ? `mu of water ${muWater.toPrecision(5)} /mm, ${provenance(c)}` : 'mu of water unknown: values in mu (1/mm)';
+}
+
 /** "measured in “FBP…” (circle of 15 mm at 0, 0 marked as 0 HU; SD 4 HU over 700 pixels)". */
 function provenance(c: ScanCalibration | undefined): string {
   if (!c) return 'as it came with the scan';

@@ -14,7 +14,7 @@ import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
 import { autoWindow, type DisplayWindow } from './logic/window-level';
 import type { MetricsRow } from './metrics-table';
 import type { ImageImportState } from './result-list';
-import type { CalibrationRegion } from './hu-calibration';
+import { huScaleText, type CalibrationRegion } from './hu-calibration';
 import type { ScanCalibration } from '../store/records';
 import './hu-calibration';
 import type { PlotSeries } from './line-plot';
@@ -228,6 +228,7 @@ export class ResultsView extends LitElement {
       title: `Reconstructions of ${this.scanName}`,
       scanName: this.scanName,
       scanSummary: this.scanSummary,
+      huScale: huScaleText(this.muWater, this.calibration),
       referenceLabel: this.referenceLabel(),
       window: w,
       unit: shown[0]?.display.unit ?? 'HU',

@@ -21,6 +21,8 @@ export interface ReportInput {
   title: string;
   scanName: string;
   scanSummary: string;
+  /** Where the HU scale comes from (mu_water and how it was set), in words. */
+  huScale?: string;
   referenceLabel: string;
   window: { width: number; level: number };
   unit: string;
@@ -74,7 +76,7 @@ export function buildReport(r: ReportInput): string {
 </style></head><body>
 <p class="caution">${CAUTION}</p>
 <h1>${esc(r.title)}</h1>
-<p class="meta">Scan: ${esc(r.scanName)} — ${esc(r.scanSummary)}<br>Made with Rimfill on ${esc(r.createdAt.toISOString().slice(0, 16).replace('T', ' '))} (UTC). Images at window ${f(r.window.width, 0)} / level ${f(r.window.level, 0)} ${esc(r.unit)}; the dashed circle in the page marks the measured field of view.</p>
+<p class="meta">Scan: ${esc(r.scanName)} — ${esc(r.scanSummary)}<br>${r.huScale ? `HU scale: ${esc(r.huScale)}<br>` : ''}Made with Rimfill on ${esc(r.createdAt.toISOString().slice(0, 16).replace('T', ' '))} (UTC). Images at window ${f(r.window.width, 0)} / level ${f(r.window.level, 0)} ${esc(r.unit)}; the dashed circle in the page marks the measured field of view.</p>
 <h2>Images</h2>
 <div class="images">${r.images.map((i) => `<figure><img alt="${esc(i.label)}" src="${i.png}"><figcaption><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</figcaption></figure>`).join('')}</div>
 ${rows ? `<h2>Agreement with ${esc(r.referenceLabel)} (${esc(unit)})</h2>
