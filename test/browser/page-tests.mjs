@@ -39,6 +39,15 @@ async function queueAndWait(page, count) {
   await page.locator('rf-run-queue li').nth(count - 1).waitFor();
 }
 
+/** Queues the recipe as the form stands and waits until its job is done (`what` names it in a failure). */
+async function queueAndFinish(page, what) {
+  const before = await page.locator('rf-run-queue li').count();
+  await queueAndWait(page, before + 1);
+  const job = page.locator('rf-run-queue li').nth(before);
+  await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
+  check((await job.getAttribute('data-state')) === 'done', `${what}: ${await job.innerText()}`);
+}
+
 export async function pageTests(h, { context, mode, url, origin, artifacts, reference }) {
   const shot = (page, name) => page.screenshot({ path: join(artifacts, `${mode}-${name}.png`), fullPage: true });
   const requests = [];
@@ -320,12 +329,8 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await page.locator('#field-iterations').fill('2');
     await page.locator('rf-recipe-form input[value="reference"]').check();
     check(/prior: “FBP/.test(await page.locator('rf-recipe-form .summary').innerText()), 'the summary names the stored result');
-    const before = await page.locator('rf-run-queue li').count();
     const results = await resultCount(page);
-    await queueAndWait(page, before + 1);
-    const job = page.locator('rf-run-queue li').nth(before);
-    await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
-    check((await job.getAttribute('data-state')) === 'done', `prior job: ${await job.innerText()}`);
+    await queueAndFinish(page, 'prior job');
     await page.locator('#tab-images').click();
     check((await resultCount(page)) === results + 1, 'the result is stored');
   });
@@ -402,11 +407,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await page.locator('#field-method').selectOption('fbp');
     await page.locator('#field-extend').selectOption('water');
     await page.locator('rf-recipe-form input[value="reference"]').check();
-    const before = await page.locator('rf-run-queue li').count();
-    await queueAndWait(page, before + 1);
-    const job = page.locator('rf-run-queue li').nth(before);
-    await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
-    check((await job.getAttribute('data-state')) === 'done', `cone job: ${await job.innerText()}`);
+    await queueAndFinish(page, 'cone job');
     await page.locator('#tab-images').click();
     const choice = page.locator('rf-volume-view #volume-choice');
     await choice.waitFor();
@@ -495,11 +496,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await page.locator('rf-recipe-form input[name="volumeSlices"]').fill('20');
     await page.locator('rf-recipe-form input[name="volumeSpacing"]').fill('6');
     check(/20 slices × 6 mm/.test(await page.locator('rf-recipe-form .summary').innerText()), 'the summary names the slices');
-    const before = await page.locator('rf-run-queue li').count();
-    await queueAndWait(page, before + 1);
-    const job = page.locator('rf-run-queue li').nth(before);
-    await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
-    check((await job.getAttribute('data-state')) === 'done', `cone job: ${await job.innerText()}`);
+    await queueAndFinish(page, 'cone job');
     await page.locator('#tab-images').click();
     const view = page.locator('rf-volume-view');
     const choice = view.locator('#volume-choice');

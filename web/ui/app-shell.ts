@@ -240,10 +240,8 @@ export class AppShell extends LitElement {
       const mine = new Set(this.results.filter((r) => r.scanId === scanId).map((r) => r.id));
       this.images = new Map([...this.images].filter(([id]) => !mine.has(id)));
       this.comparisons = new Map();
+      // (A stored reference carries its own mu_water: it stays as it is.)
       if (this.selectedScanId === scanId) {
-        // A reference without its own mu_water follows the scan's.
-        const { reference } = await loadScan(scanId);
-        if (this.loaded?.id === scanId) this.loaded = { ...this.loaded, truth: reference };
         await this.loadImages(this.compareIds);
         await this.updateComparisons();
       }
