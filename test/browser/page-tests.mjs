@@ -2,6 +2,7 @@
 // what a user does and what must follow; screenshots go to test-artifacts/<mode>-*.png.
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { check, near } from './harness.mjs';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
 
@@ -9,10 +10,10 @@ import { parseFloatNrrd, pngHeader } from './files.mjs';
 const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
 const JOB_TIMEOUT = 10 * 60_000;
 
-/** Text of every cell of the metrics table row for `label`, by column metric and region. */
-/** pydicom's CT test image (Debian python3-pydicom, installed by .ci/run). */
-const CT_SMALL = '/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm';
+/** pydicom's CT test image, a committed fixture (test/fixtures/MANIFEST.json). */
+const CT_SMALL = fileURLToPath(new URL('../fixtures/dicom/CT_small.dcm', import.meta.url));
 
+/** Text of every cell of the metrics table row for `label`, by column metric and region. */
 async function metricsRow(page, label) {
   const row = page.locator(`rf-metrics-table tr[data-label="${label}"]`);
   const cells = await row.locator('td[data-metric]').allTextContents();
@@ -356,7 +357,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const got = await metricsRow(page, name);
     for (const region of ['image', 'insideFov', 'outsideFov']) check(got[region].rmse < 0.1, `${region} RMSE ${got[region].rmse} HU against the ground truth`);
     check(Number.isFinite(got.residual) && got.residual > 0, `data residual ${got.residual}%`);
-    // A DICOM CT image (pydicom's test file CT_small.dcm, Debian python3-pydicom) is read in the
+    // A DICOM CT image (pydicom's test file CT_small.dcm, a committed fixture) is read in the
     // page too: HU by its rescale, converted with the scan's mu_water.
     await picker.setInputFiles(CT_SMALL);
     await page.locator('rf-result-list li', { hasText: 'Image file: CT_small.dcm' }).waitFor({ timeout: 60_000 });

@@ -8,7 +8,7 @@ import { readScanFile } from '../../web/core/formats/read-scan';
 import { sheppLogan3d } from '../../web/core/phantoms/shepp-logan-3d';
 import { sliceAt } from '../../web/core/volume';
 import { readVolumeFile } from '../helpers/cone';
-import { runPython } from '../helpers/python';
+import { fixtureF32, fixtureFolder } from '../helpers/fixtures';
 import { regionMeans3d } from '../helpers/regions';
 
 /** Runs the CLI in-process; returns the exit code and what it printed. */
@@ -73,49 +73,14 @@ describe('rimfill CLI with cone-beam scans', () => {
   });
 
   it('simulates a DICOM series phantom as it simulates the same volume in NRRD', async () => {
-    // pydicom writes 12 axial CT slices of 24 x 20 pixels (2 mm, slices 2.5 mm apart, stored =
-    // HU + 1024): air with a water ball and a bone block. numpy writes the HU it stored, in
-    // Rimfill's orientation (y anterior: rows reversed), as the reference.
-    const py = runPython(`
-import numpy as np, pydicom
-from pydicom.dataset import FileDataset, FileMetaDataset
-from pydicom.uid import ExplicitVRLittleEndian, generate_uid
-series = generate_uid()
-x = (np.arange(24) - 11.5) * 2.0
-y = (np.arange(20) - 9.5) * 2.0
-ref = []
-for k in range(12):
-    z = -13.75 + 2.5 * k
-    hu = np.full((20, 24), -1000.0)
-    X, Y = np.meshgrid(x, y)
-    hu[X**2 + Y**2 + z**2 < 14.0**2] = 0.0
-    hu[(np.abs(X - 10) < 5) & (np.abs(Y + 6) < 3) & (np.abs(z) < 6)] = 1000.0
-    meta = FileMetaDataset()
-    meta.MediaStorageSOPClassUID = '1.2.840.10008.5.1.4.1.1.2'
-    meta.MediaStorageSOPInstanceUID = generate_uid()
-    meta.TransferSyntaxUID = ExplicitVRLittleEndian
-    ds = FileDataset(f'ct{k:02d}.dcm', {}, file_meta=meta, preamble=b'\\0' * 128)
-    ds.is_little_endian, ds.is_implicit_VR = True, False
-    ds.Modality = 'CT'
-    ds.SOPClassUID, ds.SOPInstanceUID, ds.SeriesInstanceUID = meta.MediaStorageSOPClassUID, meta.MediaStorageSOPInstanceUID, series
-    ds.Rows, ds.Columns = 20, 24
-    ds.PixelSpacing = [2.0, 2.0]
-    ds.ImageOrientationPatient = [1, 0, 0, 0, 1, 0]
-    ds.ImagePositionPatient = [float(x[0]), float(-y[-1]), z]
-    ds.SamplesPerPixel, ds.PhotometricInterpretation = 1, 'MONOCHROME2'
-    ds.BitsAllocated, ds.BitsStored, ds.HighBit, ds.PixelRepresentation = 16, 16, 15, 0
-    ds.RescaleSlope, ds.RescaleIntercept = 1, -1024
-    ds.InstanceNumber = k + 1
-    ds.PixelData = (hu + 1024).astype(np.uint16).tobytes()
-    ds.save_as(f'ct{k:02d}.dcm', write_like_original=False)
-    ref.append(hu[::-1, :])
-np.stack(ref).astype('<f4').tofile('ref.f32')
-`, ['pydicom', 'numpy']);
+    // 12 axial CT slices of 24 x 20 pixels written by pydicom (2 mm, slices 2.5 mm apart, stored =
+    // HU + 1024): air with a water ball and a bone block, and the HU it stored in Rimfill's
+    // orientation (y anterior: rows reversed) as the reference; committed fixtures made by
+    // scripts/reference/dicom_files.py.
     const series = f('series');
     mkdirSync(series);
-    for (const [name, bytes] of Object.entries(py.files)) if (name.endsWith('.dcm')) writeFileSync(join(series, name), bytes);
-    const ref = py.files['ref.f32'];
-    const hu = new Float32Array(ref.buffer.slice(ref.byteOffset, ref.byteOffset + ref.byteLength));
+    for (const { name, bytes } of fixtureFolder('dicom/phantom-series')) writeFileSync(join(series, name), bytes);
+    const hu = fixtureF32('dicom/phantom-series.f32');
     const mu = 0.02;
     writeFileSync(f('same.nrrd'), await writeVolumeNrrd({ grid: { nx: 24, ny: 20, nz: 12, dx: 2, dy: 2, dz: 2.5, cx: 0, cy: 0, cz: 0 }, data: hu, quantity: 'hu', muWater: mu }));
     const common = ['--geometry', f('cone.json'), '--mu-water', String(mu), '--json'];
