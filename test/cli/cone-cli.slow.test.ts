@@ -45,7 +45,7 @@ describe('rimfill CLI with truncated cone-beam scans', () => {
       rmse[extend] = c.regions.insideFov.rmse;
       residual[extend] = c.residual.relative;
     }
-    // Issue 7: water extension at least halves the inside-FOV RMSE (measured 151 -> 47). Its
+    // The project's acceptance bar, against the analytic truth: water extension at least halves the inside-FOV RMSE (measured 151 -> 47). Its
     // volume also agrees better with the measured data (relative residual 0.95 -> 0.39; the
     // 120 mm volume misses the head's top and bottom, which the outer rows still see).
     expect(rmse.water).toBeLessThan(0.5 * rmse.none);
@@ -61,8 +61,8 @@ describe('rimfill CLI with truncated cone-beam scans', () => {
   it('takes a prior volume file for the prior-guided method on a truncated cone-beam scan (after the test above)', async () => {
     // The prior is the truth volume itself (3 mm voxels, resampled onto the 64 x 64 x 56 voxels
     // of 3.4 mm, which hold the whole head). The data-consistent result keeps the prior beyond
-    // the FOV, so there its RMSE must fall far below FDK with water extension (issue 4: "at
-    // least 3x lower than the best extrapolation + FBP" with a prior that is correct outside the
+    // the FOV, so there its RMSE must fall far below FDK with water extension (the
+    // project's acceptance bar: at least 3x lower than the best extrapolation + FBP, with a prior that is correct outside the
     // FOV); inside, the data keep it close to the truth. Measured: outside 13 HU against 320,
     // inside 26 HU against 60.
     const grid = ['--size', '64', '--pixel', '3.4', '--slices', '56', '--slice-spacing', '3.4'];

@@ -91,7 +91,7 @@ describe('rimfill CLI with cone-beam scans', () => {
     const truth = await readVolumeFile(f('dicom-truth.nrrd'));
     expect(truth.grid).toMatchObject({ nx: 24, ny: 20, nz: 12, dx: 2, dy: 2, dz: 2.5 });
     expect(truth.grid.cz).toBeCloseTo(0, 9);
-    // HU = 1000 (mu - mu_water) / mu_water (references.md 6b).
+    // HU = 1000 (mu - mu_water) / mu_water (REFERENCES.md [hu-definition]).
     let worst = 0;
     for (let i = 0; i < hu.length; i++) worst = Math.max(worst, Math.abs(truth.data[i] - mu * (1 + hu[i] / 1000)));
     expect(worst).toBeLessThan(1e-8);

@@ -49,7 +49,7 @@ describe('Joseph forward projector', () => {
     expect(views.length).toBeGreaterThan(0);
   });
 
-  it('parallel projection of Shepp-Logan matches the tabulated values (references.md 1c)', async () => {
+  it('parallel projection of Shepp-Logan matches the tabulated values (REFERENCES.md [ellipse-projection])', async () => {
     // P_0(0) = 1.974260, P_90(0) = 1.450712 for the original phantom on [-1,1]^2 (table units).
     const ws = await localWorkspace();
     const g = { ...parallel(201, 1, 2, 180) };

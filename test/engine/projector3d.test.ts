@@ -10,7 +10,7 @@ import { localWorkspace } from '../helpers/engine';
 import { cone, project } from '../helpers/cone';
 
 describe('3D Joseph forward projector', () => {
-  // references.md 1d: the line integral through a uniform ellipsoid is density x chord, with the
+  // REFERENCES.md [ellipsoid-chord]: the line integral through a uniform ellipsoid is density x chord, with the
   // chord from the ray-quadric intersection. Interior rays (whose neighbours 4 mm away at the
   // isocentre also cross the ellipsoid) must agree within 1%. The error is the voxelization of
   // the surface (first order in the voxel size: 1.6% with 1 mm voxels, 0.8% with 0.5 mm).

@@ -5,8 +5,7 @@
 // method must recover the outside region (from the prior's projections on the unmeasured
 // channels) far better than FBP of the truncated scan, and inside the FOV the measured data
 // must overrule the prior: a false bright disk or added noise in the prior must not survive.
-// Sources: the method as summarized in references.md section 5 ("Data-consistent
-// reconstruction with a prior image"); thorax attenuation from NIST SRD 126 (materials.ts).
+// Sources: the method as summarized in REFERENCES.md [dc-prior]; thorax attenuation from NIST SRD 126 (materials.ts).
 import { beforeAll, describe, expect, it } from 'vitest';
 import { circleMask } from '../../web/core/metrics';
 import { seededRandom } from '../../web/core/simulate/noise';

@@ -4,8 +4,7 @@
 // method must recover the outside region (from the prior's projections on the unmeasured
 // channels) far better than FBP of the truncated scan, and inside the FOV the measured data
 // must overrule the prior: a false bright disk or added noise in the prior must not survive.
-// Sources: the method as summarized in references.md section 5 ("Data-consistent
-// reconstruction with a prior image"); thorax attenuation from NIST SRD 126 (materials.ts).
+// Sources: the method as summarized in REFERENCES.md [dc-prior]; thorax attenuation from NIST SRD 126 (materials.ts).
 import { beforeAll, describe, expect, it } from 'vitest';
 import { rmse } from '../../web/core/metrics';
 import { validateRecipe } from '../../web/core/recipe/recipe';
@@ -34,7 +33,8 @@ describe('prior-guided data-consistent reconstruction', () => {
     }
     const outside = rmse(base.image.data, truth, outsideFov);
     expect(outside * 3, `best FBP: ${best.recipe}, ${hu(best.rmse).toFixed(0)} HU`).toBeLessThan(best.rmse);
-    // Measured: outside 19 HU; the best extrapolation + FBP (cosine taper, Hann) 340 HU.
+    // Regression pin (60 HU) over the measured 19 HU outside; the best extrapolation + FBP
+    // (cosine taper, Hann) gives 340 HU.
     expect(hu(outside)).toBeLessThan(60);
     // Inside, the data replaced the prior's water by the thorax.
     const inside = rmse(base.image.data, truth, insideFov);

@@ -11,7 +11,7 @@ import { geometrySummary } from '../../web/ui/logic/describe';
 import { presetGeometry } from '../../web/core/geometry/presets';
 
 describe('window and level', () => {
-  it('maps L - W/2 to black and L + W/2 to white, linearly (references.md 6d)', () => {
+  it('maps L - W/2 to black and L + W/2 to white, linearly (REFERENCES.md [window-presets])', () => {
     const soft = WINDOW_PRESETS.find((p) => p.name === 'Soft tissue')!;
     expect(windowBounds(soft)).toEqual({ lower: -160, upper: 240 });
     expect(greyOf(-160, soft)).toBe(0);
@@ -22,7 +22,7 @@ describe('window and level', () => {
     expect(greyOf(NaN, soft)).toBe(0);
   });
 
-  it('presets are the teaching values of references.md 6d', () => {
+  it('presets are the teaching values of REFERENCES.md [window-presets]', () => {
     expect(WINDOW_PRESETS.map((p) => [p.name, p.width, p.level])).toEqual([
       ['Soft tissue', 400, 40], ['Lung', 1500, -600], ['Bone', 2000, 500],
     ]);

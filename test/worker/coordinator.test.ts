@@ -154,7 +154,7 @@ describe('an image file added to a scan', () => {
     const { scan, truth } = smallScan();
     const grid = squareGrid(64, 1.25);
     const s = await saveScan({ name: 'phantom', scan, source: { type: 'file', fileNames: [] }, reference: { grid, data: truth, muWater: 0.02 } }, store);
-    // The truth in HU: the rescale rule HU = 1000 (mu - mu_w) / mu_w (references.md), mu_water from the scan.
+    // The truth in HU: the rescale rule HU = 1000 (mu - mu_w) / mu_w (REFERENCES.md [hu-definition]), mu_water from the scan.
     const hu = truth.map((v) => (1000 * (v - 0.02)) / 0.02);
     const file = new File([(await writeImageNrrd({ grid, data: hu, quantity: 'hu' })) as BlobPart], 'earlier.nrrd');
     const r = await c.importImage(s.id, [file], undefined, {});

@@ -28,7 +28,7 @@ export function rmse(a: Float32Array, b: Float32Array, mask?: Uint8Array): numbe
   return n ? Math.sqrt(s / n) : NaN;
 }
 
-/** PSNR in dB: 10 log10(L^2 / MSE), L the data range (references.md section 7). */
+/** PSNR in dB: 10 log10(L^2 / MSE), L the data range (REFERENCES.md [psnr]). */
 export function psnr(a: Float32Array, b: Float32Array, dataRange: number, mask?: Uint8Array): number {
   const e = rmse(a, b, mask);
   return 10 * Math.log10((dataRange * dataRange) / (e * e));

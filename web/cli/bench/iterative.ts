@@ -1,6 +1,6 @@
 // Bench section "iterative": 20 iterations of OS-SART + reweighted TV on a 512 x 512 extended
 // grid, 360 views of a truncated fan-beam scan of the thorax phantom, with one and two workers.
-// Targets (issue 4): under 10 s with 2 workers, speed-up >= 1.7x, peak memory under 600 MB
+// Targets (the project's own speed goals): under 10 s with 2 workers, speed-up >= 1.7x, peak memory under 600 MB
 // (bench.ts reports each section's peak). Process CPU time is reported beside wall time: on a
 // machine shared with other work, wall time alone understates what two workers achieve.
 import { availableParallelism } from 'node:os';

@@ -44,7 +44,7 @@ export function checkWindow(w: DisplayWindow): DisplayWindow {
 }
 
 /**
- * Grey levels 0..255 of an image at a window (linear, references.md 6d: lower = L - W/2,
+ * Grey levels 0..255 of an image at a window (linear, REFERENCES.md [window-presets]: lower = L - W/2,
  * upper = L + W/2), rows written top to bottom as j = ny - 1 ... 0 so +y points up on screen.
  * Non-finite pixels are drawn black and counted.
  */

@@ -1,7 +1,7 @@
 // Phantoms made of uniform solids (ellipsoids and finite elliptic cylinders along z): exact line
 // integrals, point tests and voxelization.
 //
-// Ray through an ellipsoid (references.md 1d): with the ray x(t) = s + t d (|d| = 1) and the
+// Ray through an ellipsoid (REFERENCES.md [ellipsoid-chord]): with the ray x(t) = s + t d (|d| = 1) and the
 // ellipsoid (x - c)^T M (x - c) <= 1, alpha = d^T M d, beta = d^T M (s - c),
 // gamma = (s - c)^T M (s - c) - 1, the chord is 2 sqrt(beta^2 - alpha gamma) / alpha.
 // A finite elliptic cylinder is the same quadratic in x and y, intersected with the slab

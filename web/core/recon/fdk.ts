@@ -1,6 +1,6 @@
 // FDK reconstruction of circular cone-beam scans with a flat detector (L. A. Feldkamp,
 // L. C. Davis, J. W. Kress, "Practical cone-beam algorithm", J. Opt. Soc. Am. A 1(6):612-619,
-// 1984; references.md 3e): cosine pre-weighting, row-wise ramp filtering (the 2D engine's
+// 1984; REFERENCES.md [fdk-1984]): cosine pre-weighting, row-wise ramp filtering (the 2D engine's
 // windows), Parker weights for short scans, voxel-driven backprojection with bilinear detector
 // interpolation, split over z slabs across the workers.
 //

@@ -1,6 +1,6 @@
 // Water cylinder extrapolation (J. Hsieh, E. Chao, J. Thibault, B. Grekowicz, A. Horst,
 // S. McOlash, T. J. Myers, "A novel reconstruction algorithm to extend the CT scan
-// field-of-view", Med. Phys. 31(9):2385-2391, 2004; maths in references.md section 4a).
+// field-of-view", Med. Phys. 31(9):2385-2391, 2004; maths in REFERENCES.md [hsieh-2004]).
 //
 // Beyond a truncated edge the missing projection is modelled as the projection of a water
 // cylinder that matches the measured edge value p_e and outward slope g. In the outward
