@@ -109,6 +109,21 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     check(/source 600 mm \/ detector 1000 mm/.test(await page.locator('rf-scan-library li').first().innerText()), 'stored geometry unchanged');
   });
 
+  await h.step(`${mode}: a library edit the coordinator refuses is reported in the page, and nothing changes`, async () => {
+    const item = page.locator('rf-scan-library li[aria-selected="true"]');
+    const before = await item.locator('.name').innerText();
+    await item.locator('button', { hasText: 'Rename' }).click();
+    const input = page.locator('rf-scan-library input.rename');
+    await input.fill('x'.repeat(250));
+    await input.press('Enter');
+    const alert = page.locator('#page-alert');
+    await alert.waitFor({ timeout: 30_000 });
+    const text = await alert.innerText();
+    check(/name: got "x{250}", expected 1 to 200 characters/.test(text), `alert: ${text.slice(0, 120)}`);
+    check((await item.locator('.name').innerText()) === before, 'the stored name is unchanged');
+    await alert.locator('button', { hasText: 'Dismiss' }).click();
+  });
+
   await h.step(`${mode}: (f) a malformed file is refused with the reason and nothing is stored`, async () => {
     const broken = Buffer.from('NRRD0004\ntype: float\ndimension: 3\nsizes: 10 1 5\nendian: little\nencoding: raw\nrimfill.geometry:={"kind":"parallel","detector":{"channels":10,"pitch":1},"anglesDeg":{"start":0,"step":36,"count":5}}\n\nonly a few bytes');
     await page.locator('rf-scan-library rf-file-drop input[type="file"]').setInputFiles({ name: 'broken.nrrd', mimeType: 'application/octet-stream', buffer: broken });

@@ -43,9 +43,14 @@ export function slabKey(owner: VolumeOwner, id: string, index: number): string {
   return `${PREFIX[owner]}/${id}/${String(index).padStart(5, '0')}`;
 }
 
+/** The key prefix of every slab of a volume. */
+export function slabPrefix(owner: VolumeOwner, id: string): string {
+  return `${PREFIX[owner]}/${id}/`;
+}
+
 /** Keys of every stored slab of a volume. */
 export function slabKeys(owner: VolumeOwner, id: string, store: UseStore = pageStore()): Promise<string[]> {
-  return keysWithPrefix(`${PREFIX[owner]}/${id}/`, store);
+  return keysWithPrefix(slabPrefix(owner, id), store);
 }
 
 /** The description and slab records of a volume, ready for putAll with its owner's record. */

@@ -11,7 +11,8 @@ import { chooseGrid } from '../core/recipe/grid';
 import type { GridChoice } from '../core/recipe/recipe';
 import { runRecipe } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
-import { putAll, type UseStore } from '../store/db';
+import type { UseStore } from '../store/db';
+import { putResultEntries } from '../store/transact';
 import { loadModel } from '../store/models';
 import type { ResultMeta } from '../store/records';
 import { loadScan } from '../store/scans';
@@ -95,7 +96,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
     entries.push(...rec.entries);
     consistent = rec.meta;
   }
-  await putAll(entries, store);
+  await putResultEntries(req.scanId, entries, store);
   hooks.onProgress?.(1, 'storing');
   return { network: netRecords.meta, consistent };
 }
