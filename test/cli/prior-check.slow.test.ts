@@ -5,7 +5,7 @@ import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd } from '../helpers/read-nrrd';
 import { parseNrrd } from '../../web/core/formats/nrrd';
 import { rimfill } from '../helpers/cli';
 import { writePriorCheckFiles } from '../helpers/prior-check-files';

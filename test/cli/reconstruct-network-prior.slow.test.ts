@@ -7,7 +7,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'no
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd } from '../helpers/read-nrrd';
 import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
 import { squareGrid } from '../../web/core/image';
 import { validateModelInfo } from '../../web/core/model/description';

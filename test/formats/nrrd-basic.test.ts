@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { readImageNrrd, writeImageNrrd } from '../../web/core/formats/image-nrrd';
-import { readScanNrrd, writeScanNrrd } from '../../web/core/formats/scan-nrrd';
+import { writeImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd } from '../helpers/read-nrrd';
+import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
+import { readScanNrrd } from '../helpers/read-nrrd';
 import { presetGeometry } from '../../web/core/geometry/presets';
 
 describe('scan and image NRRD files (design.md "Scan file")', () => {

@@ -4,7 +4,8 @@
 // by direct summation of Kak & Slaney's discrete kernel (eq. 61) on a very fine detector
 // sampling (no FFT, no detector interpolation: the row is sampled on a grid through u*), and
 // the distance weight (R / (R - s))^2. Full circular scan, redundancy 1/2, f64 throughout.
-import { solidLineIntegral, type SolidPhantom } from '../../web/core/phantoms/solid';
+import type { SolidPhantom } from '../../web/core/phantoms/solid';
+import { solidLineIntegral } from './solid-line';
 
 export function fdkAtPoint(
   p: SolidPhantom, R: number, D: number, point: [number, number, number],

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { smoothAcrossViews } from '../../web/core/truncation/edges';
-import { constrainedCylinder, cylinderWithLength, fitCylinder, tailArea, tailLength, tailValue } from '../../web/core/truncation/water-fit';
+import { tailValue } from '../helpers/water-tail';
+import { constrainedCylinder, cylinderWithLength, fitCylinder, tailArea, tailLength } from '../../web/core/truncation/water-fit';
 
 describe('water cylinder fit (Hsieh et al. 2004)', () => {
   // REFERENCES.md [hsieh-2004], worked example [D]: mu = 0.02/mm, R = 120 mm, x_c = -30 mm,

@@ -11,11 +11,6 @@ export function circleMask(grid: ImageGrid, radius: number): Uint8Array {
   return m;
 }
 
-/** Complement of a mask, optionally restricted to another mask. */
-export function invertMask(m: Uint8Array, within?: Uint8Array): Uint8Array {
-  return m.map((v, i) => (v || (within && !within[i]) ? 0 : 1));
-}
-
 /** Root-mean-square difference over the mask (all pixels when absent); NaN for an empty mask. */
 export function rmse(a: Float32Array, b: Float32Array, mask?: Uint8Array): number {
   let s = 0, n = 0;

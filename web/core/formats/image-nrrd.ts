@@ -7,7 +7,7 @@ import type { ReadLimits } from './limits';
 import type { NamedBytes } from './named-file';
 import { parseNrrd, writeNrrd, type WrittenType } from './nrrd';
 import { positiveKey } from './projections';
-import { flipAxes, imageAsMu, volumeSlice, type ImageVolume, type VolumeQuantity } from './volume';
+import { flipAxes, type ImageVolume, type VolumeQuantity } from './volume';
 
 function vectors(text: string | undefined): number[][] {
   if (!text) return [];
@@ -58,13 +58,6 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
     muWater: positiveKey(n.keys['rimfill.muWater'], 'image rimfill.muWater', 'mu of water in 1/mm'), fovRadius: fov, fovHalfHeight, format: 'NRRD',
   };
   return flipAxes(volume, signs[0] < 0, signs[1] < 0, signs[2] < 0);
-}
-
-/** Reads a 2D image as mu (1/mm); HU files need mu_water (in the file or given). */
-export async function readImageNrrd(bytes: Uint8Array, muWater?: number, limits?: ReadLimits): Promise<Image2D> {
-  const v = await volumeFromNrrd([{ name: 'image.nrrd', bytes }], limits);
-  if (v.nz !== 1) throw new InputError(`image: got ${v.nz} slices, expected a 2D image (one slice)`);
-  return imageAsMu(volumeSlice(v, 0), muWater);
 }
 
 /** Writes a 2D image (values as stored in `image`), float32 or int16 (rounded, clamped). */

@@ -23,11 +23,3 @@ export function writeVolumeNrrd(volume: Volume, compress = false): Promise<Uint8
     kinds: 'domain domain domain',
   }, keys, compress);
 }
-
-/** True when NRRD bytes hold a 3-axis array with more than one slice (a volume, not an image). */
-export function isVolumeNrrd(bytes: Uint8Array): boolean {
-  const head = new TextDecoder().decode(bytes.subarray(0, Math.min(bytes.length, 4096)));
-  const m = /^sizes:\s*([^\n]*)$/m.exec(head);
-  const sizes = m ? m[1].trim().split(/\s+/).map(Number) : [];
-  return sizes.length === 3 && sizes[2] > 1;
-}

@@ -96,13 +96,6 @@ export function solidChord(e: Solid, p: readonly number[], d: readonly number[])
   );
 }
 
-/** Exact line integral of the phantom along a ray (unit direction). */
-export function solidLineIntegral(p: SolidPhantom, origin: readonly number[], d: readonly number[]): number {
-  let sum = 0;
-  for (const e of p.solids) sum += e.value * solidChord(e, origin, d);
-  return sum;
-}
-
 /** True when point (x, y, z) lies inside solid e. */
 export function insideSolid(e: Solid, x: number, y: number, z: number): boolean {
   const phi = (e.phiDeg * Math.PI) / 180;

@@ -64,13 +64,6 @@ export function constrainedCylinder(pe: number, outwardSlope: number, mu: number
   return length > maxLength ? cylinderWithLength(pe, maxLength, mu) : { mu, radius, inset, stretch: 1 };
 }
 
-/** Tail value at outward distance delta (mm). */
-export function tailValue(t: CylinderTail, delta: number): number {
-  const q = t.inset + delta / t.stretch;
-  const r2 = t.radius * t.radius - q * q;
-  return r2 > 0 && delta >= 0 ? 2 * t.mu * Math.sqrt(r2) : 0;
-}
-
 /**
  * Area under the tail, mm (line integral x mm): a times the circular segment integral
  * int_d^R 2 mu sqrt(R^2 - x^2) dx = mu (R^2 (pi/2 - asin(d/R)) - d sqrt(R^2 - d^2)).
