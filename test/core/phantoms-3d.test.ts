@@ -4,8 +4,8 @@ import { firstChannelU, firstRowV, viewVectors } from '../../web/core/geometry/v
 import { inside, valueAt } from '../../web/core/phantoms/ellipse';
 import { sheppLogan } from '../../web/core/phantoms/shepp-logan';
 import { sheppLogan3d } from '../../web/core/phantoms/shepp-logan-3d';
-import { solidLineIntegral } from '../helpers/solid-line';
-import { insideSolid, solidChord, solidValueAt, voxelize, type Solid, type SolidPhantom } from '../../web/core/phantoms/solid';
+import { solidChord, solidLineIntegral } from '../helpers/solid-line';
+import { insideSolid, solidValueAt, voxelize, type Solid, type SolidPhantom } from '../../web/core/phantoms/solid';
 import { thorax } from '../../web/core/phantoms/thorax';
 import { thorax3d } from '../../web/core/phantoms/thorax-3d';
 import { analyticConeProjections } from '../../web/core/simulate/analytic-cone';

@@ -85,17 +85,6 @@ export function scaledChord(shape: Solid['shape'], qx: number, qy: number, qz: n
   return t1 > t0 ? t1 - t0 : 0;
 }
 
-/** Length (mm) of the part of the ray p + t d (|d| = 1) inside solid e. */
-export function solidChord(e: Solid, p: readonly number[], d: readonly number[]): number {
-  const { co, si } = solidFrame(e);
-  const rx = p[0] - e.cx, ry = p[1] - e.cy;
-  return scaledChord(
-    e.shape,
-    (co * rx + si * ry) / e.a, (-si * rx + co * ry) / e.b, (p[2] - e.cz) / e.c,
-    (co * d[0] + si * d[1]) / e.a, (-si * d[0] + co * d[1]) / e.b, d[2] / e.c,
-  );
-}
-
 /** True when point (x, y, z) lies inside solid e. */
 export function insideSolid(e: Solid, x: number, y: number, z: number): boolean {
   const phi = (e.phiDeg * Math.PI) / 180;
