@@ -19,7 +19,7 @@ async function metricsRow(page, label) {
   const cells = await row.locator('td[data-metric]').allTextContents();
   const regions = ['image', 'insideFov', 'outsideFov'];
   const out = {};
-  regions.forEach((r, i) => (out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }));
+  regions.forEach((r, i) => { out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }; });
   // Cupping and data residual are shown as percentages.
   out.cupping = Number(cells[9].replace('%', ''));
   out.residual = Number(cells[10].replace('%', ''));
@@ -529,7 +529,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
   });
 
   await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {
-    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
+    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(`${origin}/`) : u === url);
     const outside = requests.filter((u) => !own(u));
     check(requests.length > 0, 'requests were recorded');
     check(outside.length === 0, `requests outside the page: ${outside.slice(0, 5).join(', ')}`);

@@ -189,7 +189,7 @@ export async function priorTests(h, { context, mode, url, origin, artifacts, pri
   });
 
   await h.step(`${mode}: (priors) no request left the page's own origin, and no script error`, async () => {
-    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
+    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(`${origin}/`) : u === url);
     const outside = requests.filter((u) => !own(u));
     check(requests.length > 0, 'requests were recorded');
     check(outside.length === 0, `requests outside the page: ${outside.slice(0, 5).join(', ')}`);

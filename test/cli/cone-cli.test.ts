@@ -14,8 +14,14 @@ import { regionMeans3d } from '../helpers/regions';
 /** Runs the CLI in-process; returns the exit code and what it printed. */
 async function rimfill(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
   let out = '', err = '';
-  const so = vi.spyOn(process.stdout, 'write').mockImplementation((s) => ((out += String(s)), true));
-  const se = vi.spyOn(process.stderr, 'write').mockImplementation((s) => ((err += String(s)), true));
+  const so = vi.spyOn(process.stdout, 'write').mockImplementation((s) => {
+    out += String(s);
+    return true;
+  });
+  const se = vi.spyOn(process.stderr, 'write').mockImplementation((s) => {
+    err += String(s);
+    return true;
+  });
   try {
     return { code: await main(argv), out, err };
   } finally {

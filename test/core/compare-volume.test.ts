@@ -38,7 +38,7 @@ describe('volume comparison', () => {
     expect(meanSsim).toBeLessThan(0.95);
     expect(Math.abs(all.ssim - meanSsim)).toBeLessThan(1e-3);
     expect(mine.slices).toHaveLength(nz);
-    mine.slices!.forEach((s, k) => expect(Math.abs(s.regions.volume!.ssim - ref.ssim[k]), `slice ${k}`).toBeLessThan(1e-3));
+    mine.slices!.forEach((s, k) => { expect(Math.abs(s.regions.volume!.ssim - ref.ssim[k]), `slice ${k}`).toBeLessThan(1e-3); });
     expect(mine.regions.insideFov).toBeNull();
   });
 

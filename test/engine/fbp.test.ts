@@ -39,7 +39,7 @@ describe('FBP of complete data has no cupping', () => {
 });
 
 describe('FBP places objects where the geometry says', () => {
-  // design.md conventions: pixel (i, j) centre x = (i - (nx-1)/2) dx + cx. A small off-centre
+  // DEVELOPERS.md, "Geometry" conventions: pixel (i, j) centre x = (i - (nx-1)/2) dx + cx. A small off-centre
   // disk must reconstruct with its peak on the pixel containing its centre, in every geometry,
   // with and without a detector offset.
   const offsetFan = validateGeometry({

@@ -75,7 +75,7 @@ describe('ramp filter', () => {
     ['hamming', [0, 0.108159, 0.135, 0.080524, 0.04]],
     ['hann', [0, 0.106694, 0.125, 0.054917, 0]],
   ])('%s window matches the tabulated |f| W(f)', (w, expected) => {
-    [0, 0.25, 0.5, 0.75, 1].forEach((r, i) => expect(0.5 * r * windowGain(w, r)).toBeCloseTo(expected[i], 5));
+    [0, 0.25, 0.5, 0.75, 1].forEach((r, i) => { expect(0.5 * r * windowGain(w, r)).toBeCloseTo(expected[i], 5); });
   });
 
   it('windows apply symmetrically in FFT order', () => {

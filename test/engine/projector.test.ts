@@ -95,7 +95,7 @@ describe('adjoint', () => {
 });
 
 describe('geometry conventions', () => {
-  // design.md: source at (R cos b, R sin b), u along (-sin b, cos b); a point object at (x, y)
+  // DEVELOPERS.md, "Geometry": source at (R cos b, R sin b), u along (-sin b, cos b); a point object at (x, y)
   // projects to the channel whose ray passes through it, in every geometry.
   it.each(geometries)('%s: an off-centre point lands on the channel its ray predicts', async (_, g) => {
     const ws = await localWorkspace();

@@ -107,7 +107,7 @@ describe('3D adjoint', () => {
 });
 
 describe('cone-beam geometry conventions', () => {
-  // design.md: source at (R cos b, R sin b, 0), u along (-sin b, cos b, 0), v along +z, detector
+  // DEVELOPERS.md, "Geometry": source at (R cos b, R sin b, 0), u along (-sin b, cos b, 0), v along +z, detector
   // offsets shift channel and row coordinates. A single voxel off the axis and off the central
   // plane must project onto the cell the geometry predicts (projectPoint), within one cell.
   it('a voxel lands on the detector cell its ray predicts, with offsets in u and v', async () => {
@@ -129,9 +129,9 @@ describe('cone-beam geometry conventions', () => {
       expect(Math.abs(Math.floor(best / 90) - rc), `view ${v} row`).toBeLessThanOrEqual(1);
       expect(got[v * 6300 + best]).toBeGreaterThan(0.1);
     }
-    // The view vectors themselves, from design.md's formulas at b = 23 degrees.
+    // The view vectors themselves, from the formulas of DEVELOPERS.md, "Geometry" at b = 23 degrees.
     const [c, s] = [Math.cos((23 * Math.PI) / 180), Math.sin((23 * Math.PI) / 180)];
     const design = [300 * c, 300 * s, 0, -240 * c, -240 * s, 0, -s, c, 0, 0, 0, 1];
-    design.forEach((x, n) => expect(views[n]).toBeCloseTo(x, 4));
+    design.forEach((x, n) => { expect(views[n]).toBeCloseTo(x, 4); });
   });
 });

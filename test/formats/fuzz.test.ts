@@ -105,7 +105,8 @@ describe('fuzzed files', () => {
     const rand = seededRandom(20240611);
     const outcomes: Record<string, { read: number; rejected: number }> = {};
     for (const s of seeds) {
-      const o = (outcomes[s.label] = { read: 0, rejected: 0 });
+      const o = { read: 0, rejected: 0 };
+      outcomes[s.label] = o;
       for (let k = 0; k < CASES_PER_SEED; k++) {
         const files = s.files.map((f, i) => (i === 0 || rand() < 0.3 ? { name: f.name, bytes: mutate(f.bytes, rand) } : f));
         const t0 = performance.now();

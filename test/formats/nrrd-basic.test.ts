@@ -5,7 +5,7 @@ import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
 import { readScanNrrd } from '../helpers/read-nrrd';
 import { presetGeometry } from '../../web/core/geometry/presets';
 
-describe('scan and image NRRD files (design.md "Scan file")', () => {
+describe('scan and image NRRD files (README, "Files")', () => {
   it('a scan round-trips: data, geometry and mu_water', async () => {
     const g = presetGeometry('demo-parallel')!;
     const data = Float32Array.from({ length: g.detector.channels * 360 }, (_, i) => Math.sin(i));

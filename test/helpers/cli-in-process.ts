@@ -6,8 +6,14 @@ import type { CliRun } from './cli';
 
 export async function rimfillHere(args: string[], cwd?: string): Promise<CliRun> {
   let stdout = '', stderr = '';
-  const so = vi.spyOn(process.stdout, 'write').mockImplementation((s) => ((stdout += String(s)), true));
-  const se = vi.spyOn(process.stderr, 'write').mockImplementation((s) => ((stderr += String(s)), true));
+  const so = vi.spyOn(process.stdout, 'write').mockImplementation((s) => {
+    stdout += String(s);
+    return true;
+  });
+  const se = vi.spyOn(process.stderr, 'write').mockImplementation((s) => {
+    stderr += String(s);
+    return true;
+  });
   const before = process.cwd();
   try {
     if (cwd) process.chdir(cwd);

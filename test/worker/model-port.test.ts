@@ -64,7 +64,10 @@ describe('model worker plumbing', () => {
     // A runtime whose run waits until released, standing for a long inference.
     const slowOpen: NetworkOpener = async (bytes) => {
       const inner = await openNetworkNode(bytes);
-      return { signature: inner.signature, dispose: () => inner.dispose(), run: async (...a) => (await held, inner.run(...a)) };
+      return { signature: inner.signature, dispose: () => inner.dispose(), run: async (...a) => {
+        await held;
+        return inner.run(...a);
+      } };
     };
     let stopped = 0;
     const net = await openNetworkOverPort(connect(slowOpen), identityModel(), { onCancel: () => stopped++ });

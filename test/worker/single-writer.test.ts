@@ -43,7 +43,7 @@ describe('one writer per stored record', () => {
     const outcome = await c.handle({ op: 'calibrate', request: { scanId, muWater: 0.021 } }, {
       // While the calibration recomputes its results' figures, the page edits the library.
       onProgress: (_, stage) => {
-        if (stage !== 'updating the results' || edits) return;
+        if (stage !== 'updating the results' || edits !== undefined) return;
         edits = Promise.all([
           c.handle({ op: 'rename-scan', scanId, name: 'renamed during calibration' }),
           c.handle({ op: 'set-geometry', scanId, geometry: edited }),

@@ -195,7 +195,7 @@ export class AppShell extends LitElement {
     if (!missing.length) return;
     const loaded = await Promise.all(missing.map((id) => loadResultImage(id)));
     const next = new Map(this.images);
-    loaded.forEach((l) => next.set(l.meta.id, l.image));
+    loaded.forEach((l) => { next.set(l.meta.id, l.image); });
     this.images = next;
   }
 

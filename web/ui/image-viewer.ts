@@ -110,7 +110,7 @@ export class ImageViewer extends LitElement {
       this.resize.observe(panel);
       this.observed = panel;
     }
-    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = this.colour));
+    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => { d.style.background = this.colour; });
     this.renderRoot.querySelector<HTMLElement>('.panel')?.style.setProperty('--swatch', this.colour);
     this.draw();
   }

@@ -62,7 +62,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
 
   hooks.onProgress?.(0, 'loading the network');
   const runner = await ctx.open(onnx, hooks.signal);
-  let net;
+  let net: Awaited<ReturnType<typeof networkPrior>>;
   try {
     net = await networkPrior(scan, model.info, runner, grid, (recipe, h) => runRecipe(ws, scan, recipe, h), stage(hooks, 0.02, 0.45));
   } finally {

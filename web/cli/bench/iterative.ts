@@ -95,7 +95,7 @@ export function iterativeLines(b: IterativeBench): string[] {
   return [
     `iterative: ${b.problem}`,
     ...b.rows.map((r) => `${r.method === 'wtv' ? 'OS-SART + wTV' : 'prior-guided (wTV)'}, ${r.iterations} iterations, ${String(r.extendedChannels).padStart(4)} channels  ${String(r.workers).padStart(2)} worker(s)  ${r.seconds.toFixed(2).padStart(7)} s  (process CPU ${r.cpuSeconds.toFixed(1)} s)`),
-    `speed-up 1 -> 2 workers (OS-SART + wTV): ${b.speedup ? b.speedup.toFixed(2) + 'x' : 'n/a (one core)'} (target >= ${b.targets.speedup}x; target under ${b.targets.secondsWith2Workers} s with 2 workers; both need the cores free of other work)`,
+    `speed-up 1 -> 2 workers (OS-SART + wTV): ${b.speedup ? `${b.speedup.toFixed(2)}x` : 'n/a (one core)'} (target >= ${b.targets.speedup}x; target under ${b.targets.secondsWith2Workers} s with 2 workers; both need the cores free of other work)`,
     `target for peak resident memory: under ${b.targets.peakRssMb} MB`,
   ];
 }

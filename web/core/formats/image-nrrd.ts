@@ -1,5 +1,5 @@
 // Images as NRRD with "space directions" and "space origin" (mm, origin = centre of the first
-// pixel) and rimfill.quantity mu | hu (design.md); 2D images or 3D volumes. Axis-aligned
+// pixel) and rimfill.quantity mu | hu (DEVELOPERS.md, "Geometry"); 2D images or 3D volumes. Axis-aligned
 // directions only; a negative direction is turned positive by flipping the data along that axis.
 import { InputError } from '../errors';
 import type { Image2D } from '../image';
@@ -43,7 +43,7 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
       signs[axis] = Math.sign(d[axis]);
     });
   } else if (n.fields.spacings) {
-    n.fields.spacings.split(/\s+/).map(Number).slice(0, 3).forEach((s, axis) => (spacing[axis] = s));
+    n.fields.spacings.split(/\s+/).map(Number).slice(0, 3).forEach((s, axis) => { spacing[axis] = s; });
   }
   if (spacing.some((s) => !(s > 0) || !Number.isFinite(s))) throw new InputError(`image spacing: got ${spacing.join(' ')}, expected positive pixel sizes in mm`);
   const origin = vectors(n.fields['space origin'])[0];

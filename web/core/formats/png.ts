@@ -64,7 +64,7 @@ export function windowToGrey(image: Image2D, window: DisplayWindow): { grey: Uin
         continue;
       }
       const g = Math.round((v - lo) * scale);
-      grey[j * nx + i] = g < 0 ? 0 : g > 255 ? 255 : g;
+      grey[j * nx + i] = g < 0 ? 0 : Math.min(g, 255);
     }
   }
   return { grey, nonFinite };

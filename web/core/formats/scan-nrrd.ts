@@ -1,4 +1,4 @@
-// Rimfill's scan file (design.md "Scan file"): NRRD float32, sizes <channels> <rows> <views>,
+// Rimfill's scan file (README, "Files"): NRRD float32, sizes <channels> <rows> <views>,
 // with rimfill.geometry (JSON), rimfill.quantity (line-integral | intensity), rimfill.i0 and
 // optional rimfill.muWater.
 import { InputError } from '../errors';

@@ -1,4 +1,4 @@
-// Writing volumes as NRRD float32 (design.md): sizes <nx> <ny> <nz>, "space directions" (one
+// Writing volumes as NRRD float32 (DEVELOPERS.md, "Geometry"): sizes <nx> <ny> <nz>, "space directions" (one
 // vector per axis, mm) and "space origin" (centre of the first voxel, mm), rimfill.quantity
 // mu | hu, and the optional rimfill.muWater, rimfill.fovRadius, rimfill.fovHalfHeight.
 // NRRD format: http://teem.sourceforge.net/nrrd/format.html ("space directions", "space origin").

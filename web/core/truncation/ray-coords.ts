@@ -54,7 +54,7 @@ export function rayCoordinates(g: Geometry): RayCoordinates {
       const x = Math.max(-0.999999, Math.min(0.999999, s / R));
       return (D * x) / Math.sqrt(1 - x * x);
     },
-    dsdu: (u) => (R * D * D) / Math.pow(D * D + u * u, 1.5),
+    dsdu: (u) => (R * D * D) / (D * D + u * u) ** 1.5,
     gamma: (u) => Math.atan(u / D),
   };
 }
