@@ -31,6 +31,7 @@ import { readImageFiles, readVolumeFiles } from './read-image-files';
 import { runNetworkPriorJob } from './network-prior-job';
 import { runPriorCheckJob } from './prior-check-job';
 import { calibrateScan } from './calibrate-job';
+import { isLibraryRequest, libraryOp } from './library-ops';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -54,6 +55,8 @@ export class Coordinator {
   /** Answers one request. */
   async handle<K extends AppRequest['op']>(req: Extract<AppRequest, { op: K }>, hooks: RunHooks = {}): Promise<AppReplies[K]> {
     const r = req as AppRequest;
+    // Library edits and reads never wait for a run (each is one transaction of its own).
+    if (isLibraryRequest(r)) return (await libraryOp(this.store, r)) as AppReplies[K];
     switch (r.op) {
       case 'import':
         return (await this.importScan(r.files, r.name, hooks)) as AppReplies[K];
