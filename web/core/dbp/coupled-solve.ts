@@ -49,7 +49,8 @@ interface Ties {
 function acrossTies(f: ChordFamily, offsets: Int32Array, strength: number): Ties {
   const a: number[] = [], b: number[] = [], w: number[] = [];
   const dPsi = Math.PI / f.count;
-  for (let m = 0; m < f.count; m++) {
+  // A single chord has no neighbour (the last chord meets the first reversed only in a family).
+  for (let m = 0; f.count > 1 && m < f.count; m++) {
     const next = (m + 1) % f.count, flip = m + 1 === f.count ? -1 : 1;
     const c = f.chords[m], d = f.chords[next];
     for (let j = c.inside0; j < c.inside1; j++) {

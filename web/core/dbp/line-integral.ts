@@ -67,7 +67,11 @@ export function chordLineIntegral(s: SinogramView, px: number, py: number, ex: n
   for (let v = 0; v < n; v++) {
     const w = (v + 1) % n;
     if (w === v || gap(v, w) > maxGap) continue;
-    const a = side(v), b = side(w);
+    // A parallel scan's last view may face the first one's opposite way (a half turn apart):
+    // the same lines, with the side of the chord flipped.
+    const bv = v * VIEW_STRIDE, bw = w * VIEW_STRIDE;
+    const opposite = s.kind === KernelKind.parallel && s.views[bv] * s.views[bw] + s.views[bv + 1] * s.views[bw + 1] < 0;
+    const a = side(v), b = opposite ? -side(w) : side(w);
     if (!(a === 0 || a * b < 0)) continue;
     const f = a === 0 ? 0 : a / (a - b);
     const sa = sampleView(s, v, detectorCoordinate(s.views, s.kind, v, px, py));

@@ -40,7 +40,7 @@ const LINE_WEIGHT = 0.3;
 const SMOOTH_OUTSIDE = 0.01;
 /** Default coupling; `edge` is a share of mu_water (25 HU). */
 export const DEFAULT_COUPLING: Omit<CouplingOptions, 'edge'> & { edgeHu: number } = {
-  across: 0.01, along: 0.01, edgeHu: 25, passes: 3, tolerance: 1e-5, maxIterations: 300,
+  across: 0.01, along: 0.1, edgeHu: 25, passes: 3, tolerance: 1e-5, maxIterations: 300,
 };
 /** Margin of the estimated object's reach when no outline is given. */
 const REACH_MARGIN = 1.1;
@@ -102,7 +102,7 @@ export async function runDbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: R
   const sino = sinogramView(scan.data, viewVectors(g), kernelKind(g), g);
   const determined = new Uint8Array(family.count);
   const sampleStart = new Int32Array(family.count + 1);
-  family.chords.forEach((c, m) => (sampleStart[m + 1] = sampleStart[m] + c.at.length));
+  for (let m = 0; m < family.count; m++) sampleStart[m + 1] = sampleStart[m] + family.chords[m].at.length;
   const problemOf = (m: number): ChordProblem => {
     const c = family.chords[m];
     const equations = knownMeans(family, c, placed.regions, grid);
