@@ -8,7 +8,10 @@ import { localWorkspace } from '../helpers/engine';
 /** Deterministic pseudo-random numbers in [-1, 1) (a linear congruential generator, common practice). */
 function lcg(seed: number): () => number {
   let s = seed >>> 0;
-  return () => ((s = (Math.imul(s, 1664525) + 1013904223) >>> 0) / 2 ** 31) - 1;
+  return () => {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    return s / 2 ** 31 - 1;
+  };
 }
 
 const sizes = [7, 12, 3, 20, 9];

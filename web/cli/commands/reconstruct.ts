@@ -14,6 +14,8 @@ import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load
 import { openWorkspace } from '../engine-node';
 import { progressLine } from '../progress';
 import type { CommandResult } from './types';
+import { checkDbpOptions, DBP_HELP, DBP_OPTIONS } from '../dbp-options';
+import { writeUndeterminedNrrd } from '../../core/dbp/undetermined-nrrd';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
     [--extend ${EXTEND_METHODS.join('|')}] [--filter ram-lak|shepp-logan|cosine|hamming|hann]
@@ -28,7 +30,8 @@ ${SCAN_INPUT_HELP}
   field of view or the estimated object) and --slices slices of --slice-spacing mm (default:
   cubic voxels covering the measured height); --extend works row by row on cone-beam scans, and
   the iterative methods reconstruct the volume with the 3D projector (6-neighbour TV).
-${ITERATIVE_HELP}`;
+${ITERATIVE_HELP}
+${DBP_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
 const FIELD_OPTIONS: Record<string, string> = {
@@ -49,6 +52,7 @@ function asOptionError(err: unknown): unknown {
 export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe> {
   const o = a.options;
   const raw: Record<string, unknown> = { method: requireString(a, 'method') };
+  checkDbpOptions(a, raw.method as string);
   if (o.filter !== undefined) raw.filter = o.filter;
   if (o.cutoff !== undefined) raw.cutoff = o.cutoff;
   if (o.extend !== undefined) raw.extend = o.extend;
@@ -71,7 +75,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     method: 'string', out: 'string', filter: 'string', cutoff: 'number', extend: 'string', size: 'int', pixel: 'number',
-    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS,
+    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS, ...DBP_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
@@ -106,10 +110,12 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
+    const maskOut = a.options.undetermined as string | undefined;
+    if (maskOut && r.undetermined) writes.add(maskOut, await writeUndeterminedNrrd(image.grid, r.undetermined));
     writes.commit();
     const g = image.grid;
     return {
-      json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
+      json: { out, ...(maskOut ? { undetermined: maskOut } : {}), recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
       text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
