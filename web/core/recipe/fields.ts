@@ -61,6 +61,7 @@ const CHOICE_LABELS: Record<string, string> = {
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
   prior: 'Prior-guided, data-consistent (iterative)',
+  dbp: 'Differentiated backprojection (DBP, field of view only)',
   'ram-lak': 'Ramp (sharpest)',
   'shepp-logan': 'Shepp-Logan',
   cosine: 'Cosine',
