@@ -6,7 +6,7 @@ import { check, near } from './harness.mjs';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
 
 /** The page's default FBP recipe on the ground-truth grid: the CLI reference runs the same. */
-const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
+const FBP_NAME = 'FBP, ramp, 576 px × 1 mm';
 const JOB_TIMEOUT = 10 * 60_000;
 
 /** Text of every cell of the metrics table row for `label`, by column metric and region. */

@@ -4,6 +4,7 @@ import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
 import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
+import { FILTER_WINDOWS } from '../../core/recon/filter-design';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
@@ -16,14 +17,17 @@ import { progressLine } from '../progress';
 import type { CommandResult } from './types';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
-    [--extend ${EXTEND_METHODS.join('|')}] [--filter ram-lak|shepp-logan|cosine|hamming|hann]
-    [--cutoff 0..1] [--size N] [--pixel mm] [--slices N --slice-spacing mm] [--hu] [--workers N] [--json]
+    [--extend ${EXTEND_METHODS.join('|')}] [--filter ${FILTER_WINDOWS.join('|')}]
+    [--band-limit lp/cm] [--size N] [--pixel mm] [--slices N --slice-spacing mm] [--hu] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
   512 pixels covering the measured field of view or, when larger, the object as estimated from
   the truncated edges). --extend extends the detector before filtering to correct truncation:
   edge (constant + roll-off), mirror (Ohnesorge 2000), water (Hsieh 2004), cosine (taper), each
-  as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).
+  as far as the object is estimated to reach. --filter windows the ramp filter, sharpest
+  first (default ramp); --band-limit ends the window at that spatial frequency, in line pairs
+  per cm at the isocentre (default: the detector's Nyquist frequency there, the full band).
+  --hu writes HU (needs mu_water in the scan).
   A cone-beam scan gives a volume (FDK for --method fbp): N x N voxels (default 256 across the
   field of view or the estimated object) and --slices slices of --slice-spacing mm (default:
   cubic voxels covering the measured height); --extend works row by row on cone-beam scans, and
@@ -32,7 +36,7 @@ ${ITERATIVE_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
 const FIELD_OPTIONS: Record<string, string> = {
-  method: 'method', filter: 'filter', cutoff: 'cutoff', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel',
+  method: 'method', filter: 'filter', bandLimit: 'band-limit', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel',
   'volume.slices': 'slices', 'volume.spacing': 'slice-spacing',
   ...Object.fromEntries(Object.entries(ITERATIVE_FIELD_OPTIONS).map(([option, field]) => [field, option])),
   nonNegative: 'allow-negative',
@@ -50,7 +54,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
   const o = a.options;
   const raw: Record<string, unknown> = { method: requireString(a, 'method') };
   if (o.filter !== undefined) raw.filter = o.filter;
-  if (o.cutoff !== undefined) raw.cutoff = o.cutoff;
+  if (o['band-limit'] !== undefined) raw.bandLimit = o['band-limit'];
   if (o.extend !== undefined) raw.extend = o.extend;
   if (o.size !== undefined || o.pixel !== undefined) {
     if (o.size === undefined || o.pixel === undefined) throw new InputError('options --size and --pixel go together (pixels and mm per pixel)');
@@ -70,7 +74,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
-    method: 'string', out: 'string', filter: 'string', cutoff: 'number', extend: 'string', size: 'int', pixel: 'number',
+    method: 'string', out: 'string', filter: 'string', 'band-limit': 'number', extend: 'string', size: 'int', pixel: 'number',
     hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS,
   }, 1);
   const path = a.positional[0];

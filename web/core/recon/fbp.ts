@@ -9,7 +9,7 @@ import { checkGrid, gridOrigin, type Image2D, type ImageGrid } from '../image';
 import type { Scan } from '../scan';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
-import { prepareFilter } from './filter-response';
+import { bandEdge, prepareFilter } from './filter-response';
 import { require2d, requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 import type { RunHooks } from '../run-hooks';
@@ -19,8 +19,8 @@ import { runExtension } from '../truncation/extend-scan';
 export interface FbpParams {
   grid: ImageGrid;
   filter?: FilterWindow;
-  /** Frequency scaling of the window, (0, 1]. */
-  cutoff?: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
   /**
    * Detector extension applied before filtering (truncation/extension-plan.ts planExtension).
    * Absent: zero channels where a displaced detector needs them (zeroExtension), else none.
@@ -43,7 +43,8 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   require2d(g);
   const grid = checkGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
-  const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
+  const window = checkFilter(params.filter ?? 'ramp', params.bandLimit);
+  const band = bandEdge(g, params.bandLimit);
   const ext = params.extension ?? zeroExtension(scan);
   // With an extension, filtering and backprojection see the extended detector.
   const ge = ext ? extendDetector(g, ext.left, ext.right) : g;
@@ -71,7 +72,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   // nPad - extended channels, where both the ramp kernel and the tapered data are small
   // (cf. Ohnesorge et al. 2000: extrapolate without lengthening the convolution).
   const padFor = ext ? Math.max(ext.left, ext.right) + g.detector.channels : nCh;
-  const filter = await prepareFilter(ws, ge, padFor, window, params.cutoff ?? 1);
+  const filter = await prepareFilter(ws, ge, padFor, window, band.edge);
   const res = ws.allocPerWorker('fftRe', filter.nPad);
   const ims = ws.allocPerWorker('fftIm', filter.nPad);
   await ws.write(views, table);
@@ -123,7 +124,7 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const t3 = now();
   return {
     image: { grid, data, quantity: 'mu', muWater: scan.muWater },
-    warnings,
+    warnings: band.warning ? [...warnings, band.warning] : warnings,
     timings: { weights: t1 - t0, filter: t2 - t1 - tExtend, backproject: t3 - t2, ...(ext ? { extend: tExtend } : {}) },
   };
 }

@@ -20,7 +20,7 @@ import type { Scan } from '../scan';
 import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type Volume, type VolumeGrid } from '../volume';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
-import { prepareFilter } from './filter-response';
+import { bandEdge, prepareFilter } from './filter-response';
 import { requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 
@@ -45,8 +45,8 @@ export interface RowExtension {
 export interface FdkParams {
   grid: VolumeGrid;
   filter?: FilterWindow;
-  /** Frequency scaling of the window, (0, 1]. */
-  cutoff?: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
   extension?: RowExtension;
   /** Engine memory for one chunk of filtered views, bytes (default 32 MiB). */
   chunkBytes?: number;
@@ -77,7 +77,8 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   requireCone(g);
   const grid = checkVolumeGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
-  const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
+  const window = checkFilter(params.filter ?? 'ramp', params.bandLimit);
+  const band = bandEdge(g, params.bandLimit);
   const ext = params.extension;
   const gf = ext ? extendDetector(g, ext.left, ext.right) : g; // the detector the filter sees
   const table = viewVectors(g);
@@ -110,7 +111,7 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
     };
   });
   // Zero padding as in fbp2d: the measured channels filtered exactly (linear convolution).
-  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, window, params.cutoff ?? 1);
+  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, window, band.edge);
   const res = ws.allocPerWorker('fftRe', filter.nPad);
   const ims = ws.allocPerWorker('fftIm', filter.nPad);
   await ext?.prepare?.(ws, scan);
@@ -155,7 +156,7 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   for (let r = 0; r < grid.ny * grid.nz; r++) data.set(padded.subarray(r * nxs, r * nxs + grid.nx), r * grid.nx);
   return {
     volume: { grid, data, quantity: 'mu', muWater: scan.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
-    warnings,
+    warnings: band.warning ? [...warnings, band.warning] : warnings,
     scanType,
     timings,
   };
