@@ -15,6 +15,7 @@ const comparison: Comparison = {
     outsideFov: null,
   },
   resampled: false,
+  overlap: 1,
   fovRadiusMm: 100,
   notes: [],
   cupping: null,
