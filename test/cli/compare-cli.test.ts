@@ -4,6 +4,7 @@
 import { mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { writeImageNrrd } from '../../web/core/formats/image-nrrd';
 import type { Image2D } from '../../web/core/image';
@@ -42,6 +43,16 @@ describe('rimfill compare', () => {
     // RMSE = sqrt(mean((a - b)^2)) (definition): a quarter of the pixels differ by 12 HU.
     expect(c.regions.image.rmse).toBeCloseTo(Math.sqrt((12 * 12) / 4), 3);
     expect(r.stderr).toMatch(/both images hold HU and neither records mu_water: compared in HU as they are/);
+  });
+
+  it('a NRRD in a named patient frame compares with the DICOM it came from at under 0.5 HU (test/fixtures/frames)', () => {
+    const frames = fileURLToPath(new URL('../fixtures/frames/', import.meta.url));
+    const r = rimfill(['compare', 'ct-small-lps.nrrd', '--reference', 'ct-small.dcm', '--json'], frames);
+    expect(r.code, r.stderr).toBe(0);
+    const c = JSON.parse(r.stdout);
+    expect(c.overlap).toBeCloseTo(1, 9);
+    expect(c.resampled).toBe(false);
+    expect(c.regions.image.rmse).toBeLessThan(0.5);
   });
 
   it('reports a reference that covers less than 90% of the image, with the share', async () => {

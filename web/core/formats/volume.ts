@@ -76,6 +76,16 @@ export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean, flipZ =
 }
 
 /**
+ * The data and first-voxel centre of a volume in the LPS frame (patient-frame.ts) with every
+ * axis running the positive way: rows reversed (Rimfill's y is anterior), origin (x, -y, z) of
+ * the most anterior row.
+ */
+export function toLps(v: ImageVolume): { data: Float32Array; origin: [number, number, number] } {
+  const f = flipAxes(v, false, true);
+  return { data: f.data, origin: [v.origin[0], -(v.origin[1] + (v.ny - 1) * v.spacing[1]), v.origin[2]] };
+}
+
+/**
  * The volume as the engine's Volume in mu (1/mm), on the grid its voxel centres lie on: the one
  * converter from files (readImageFile: NRRD, MetaImage, raw + JSON, DICOM series, TIFF) to
  * phantoms, priors and references. HU data are converted with mu_water (the one given, else
