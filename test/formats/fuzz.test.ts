@@ -95,13 +95,16 @@ tifffile.imwrite('b.tif', a.astype(np.int16), photometric='minisblack', byteorde
 tifffile.imwrite('t.tif', a, photometric='minisblack', tile=(16, 16))
 `, ['tifffile', 'numpy']);
   for (const name of ['z.tif', 'b.tif', 't.tif']) seeds.push({ label: `TIFF by tifffile (${name})`, files: [{ name, bytes: py.files[name] }], read: asImage });
+  for (const name of ['stack-lzw-predictor-be.tif', 'stack-packbits.tif', 'stack-bigtiff-tiled-lzw-predictor.tif']) {
+    seeds.push({ label: `TIFF fixture ${name}`, files: [{ name, bytes: new Uint8Array(readFileSync(new URL(`../fixtures/tiff/${name}`, import.meta.url))) }], read: asImage });
+  }
   const ct = new Uint8Array(readFileSync('/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm'));
   seeds.push({ label: 'DICOM CT_small.dcm', files: [{ name: 'ct.dcm', bytes: ct }], read: asImage });
 });
 
 describe('fuzzed files', () => {
   it('every seed file reads as it is', async () => {
-    expect(seeds.length).toBe(12); // 8 written by us, 3 by tifffile, pydicom's CT_small
+    expect(seeds.length).toBe(15); // 8 written by us, 3 by tifffile, 3 TIFF fixtures (LZW, PackBits, BigTIFF), pydicom's CT_small
     for (const s of seeds) {
       const r = await s.read(s.files);
       expect(r.length, s.label).toBe(r.expected);

@@ -15,7 +15,7 @@ import { imageAsMu, volumeSlice } from '../../web/core/formats/volume';
 import { rmse } from '../../web/core/metrics';
 
 const fixture = (name: string) => new Uint8Array(readFileSync(new URL(`../fixtures/frames/${name}`, import.meta.url)));
-const read = async (name: string, bytes = fixture(name)) => (await readImageFile([{ name, bytes }])).volume;
+const read = async (name: string, bytes: Uint8Array = fixture(name)) => (await readImageFile([{ name, bytes }])).volume;
 
 function sameGrid(a: ImageVolume, b: ImageVolume): void {
   expect([a.nx, a.ny, a.nz]).toEqual([b.nx, b.ny, b.nz]);
