@@ -6,6 +6,7 @@ import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { FILTER_WINDOWS } from '../../core/recon/filter-design';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
+import { recipeSummary } from '../../core/recipe/fields';
 import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
@@ -95,11 +96,12 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     // The prior-guided method: the prior and the result checked against the measured data.
     const consistency = recipe.method === 'prior' && !r.volume ? await priorConsistency(ws, scan, checkedPrior, r.image, hooks) : undefined;
     const seconds = (performance.now() - t0) / 1000;
-    const image = r.image;
+    const description = recipeSummary(recipe as unknown as Record<string, unknown>);
+    const image = { ...r.image, description };
     const writes = new PendingWrites();
     if (r.volume) {
       const v = r.volume;
-      writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu' } : v));
+      writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu', description } : { ...v, description }));
       writes.commit();
       const vg = v.grid;
       return {

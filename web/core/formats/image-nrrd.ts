@@ -72,6 +72,7 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
   const volume: ImageVolume = {
     nx, ny, nz, spacing, origin: o, data: n.data, quantity: quantity as VolumeQuantity,
     muWater: positiveKey(n.keys['rimfill.muWater'], 'image rimfill.muWater', 'mu of water in 1/mm'), fovRadius: fov, fovHalfHeight, format: 'NRRD',
+    ...(n.keys['rimfill.description'] ? { description: n.keys['rimfill.description'] } : {}),
   };
   return flipAxes(volume, signs[0] < 0, signs[1] < 0, signs[2] < 0);
 }
@@ -89,8 +90,9 @@ export function writeImageNrrd(image: Image2D, compress = false, type: WrittenTy
 }
 
 /** Our keys of an image or volume. */
-export function imageKeys(v: { quantity: string; muWater?: number; fovRadius?: number; fovHalfHeight?: number }): Record<string, string> {
+export function imageKeys(v: { quantity: string; muWater?: number; fovRadius?: number; fovHalfHeight?: number; description?: string }): Record<string, string> {
   const keys: Record<string, string> = { 'rimfill.quantity': v.quantity };
+  if (v.description) keys['rimfill.description'] = v.description.replace(/[\r\n]+/g, ' ');
   if (v.muWater !== undefined) keys['rimfill.muWater'] = String(v.muWater);
   if (v.fovRadius !== undefined) keys['rimfill.fovRadius'] = String(v.fovRadius);
   if (v.fovHalfHeight !== undefined) keys['rimfill.fovHalfHeight'] = String(v.fovHalfHeight);

@@ -13,7 +13,7 @@ import type { ImageVolume } from './volume';
 export function writeVolumeNrrd(volume: Volume, compress = false): Promise<Uint8Array> {
   const g = volume.grid;
   const { x0, y0, z0 } = volumeOrigin(g);
-  const v: ImageVolume = { nx: g.nx, ny: g.ny, nz: g.nz, spacing: [g.dx, g.dy, g.dz], origin: [x0, y0, z0], data: volume.data, quantity: volume.quantity, format: 'NRRD' };
+  const v: ImageVolume = { nx: g.nx, ny: g.ny, nz: g.nz, spacing: [g.dx, g.dy, g.dz], origin: [x0, y0, z0], data: volume.data, quantity: volume.quantity, format: 'NRRD', description: volume.description };
   return writePlacedNrrd(v, 3, imageKeys(volume), compress);
 }
 
