@@ -1,14 +1,16 @@
 // Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
 // id; the coordinator answers with progress messages and then exactly one done or error.
-// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
+// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB, and
+// exported files come back as Blobs for the download.
 import type { Comparison } from '../core/compare';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
+import type { DicomExportOutcome } from './export-dicom-job';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 5;
+export const APP_PROTOCOL_VERSION = 6;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -24,7 +26,8 @@ export type AppRequest =
   | { op: 'calibrate'; request: CalibrationRequest }
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
-  | { op: 'prior-check'; request: PriorCheckRequest };
+  | { op: 'prior-check'; request: PriorCheckRequest }
+  | { op: 'export-dicom'; resultId: string };
 
 /** What each request resolves to. */
 export interface AppReplies {
@@ -39,6 +42,7 @@ export interface AppReplies {
   'import-model': ModelMeta;
   'network-prior': NetworkPriorOutcome;
   'prior-check': PriorCheckOutcome;
+  'export-dicom': DicomExportOutcome;
 }
 
 export interface EngineInfo {
