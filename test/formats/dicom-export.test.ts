@@ -48,8 +48,9 @@ describe('DICOM CT export', () => {
 
   it('a volume: one instance per slice, positions in LPS, HU within half the rescale step', () => {
     const v = volume();
-    const out = writeDicomSeries({ volume: v, description: 'FDK' });
+    const out = writeDicomSeries({ volume: v, description: 'FDK, 1 known region', derivation: 'FDK, 1 known region; knowledge: known region 1 (circle at 0, 0 mm, r 5 mm, 0 HU)' });
     expect(out.files).toHaveLength(3);
+    expect(parse(out.files[0].bytes).string('x00082111')).toBe('Rimfill reconstruction: FDK, 1 known region; knowledge: known region 1 (circle at 0, 0 mm, r 5 mm, 0 HU)');
     expect(out.rescale).toEqual({ slope: 1, intercept: 0 });
     const back = readDicomSeries([...out.files].reverse()).volume; // sorted by position, not by name
     expect([back.nx, back.ny, back.nz]).toEqual([6, 5, 3]);

@@ -8,6 +8,7 @@ import { InputError } from '../core/errors';
 import { writeDicomSeries } from '../core/formats/dicom-write';
 import type { ImageVolume } from '../core/formats/volume';
 import { muToHu } from '../core/image';
+import { describeResult } from '../core/recipe/describe-result';
 import type { RunHooks } from '../core/run-hooks';
 import { volumeOrigin } from '../core/volume';
 import type { UseStore } from '../store/db';
@@ -25,20 +26,22 @@ export interface DicomExportOutcome {
 }
 
 /** The stored result as an image volume in HU (one slice for 2D results). */
-async function resultInHu(resultId: string, store: UseStore): Promise<{ name: string; volume: ImageVolume }> {
+async function resultInHu(resultId: string, store: UseStore): Promise<{ name: string; derivation: string; volume: ImageVolume }> {
   const meta = await getResultMeta(resultId, store);
+  // A run's knowledge at length; a result added from a file is known by its name.
+  const derivation = meta.recipe.method === 'imported' ? meta.name : describeResult(meta.recipe).detail;
   const mw = meta.muWater;
   if (!(mw && mw > 0)) throw new InputError(`result "${meta.name}": mu_water is unknown, so its values cannot be written in HU; set it for the scan (HU calibration) first`);
   if (meta.volume) {
     const { volume } = await loadResultVolume(resultId, store);
     const g = volume.grid;
     const { x0, y0, z0 } = volumeOrigin(g);
-    return { name: meta.name, volume: { nx: g.nx, ny: g.ny, nz: g.nz, spacing: [g.dx, g.dy, g.dz], origin: [x0, y0, z0], data: muToHu(volume.data, mw), quantity: 'hu', format: 'result' } };
+    return { name: meta.name, derivation, volume: { nx: g.nx, ny: g.ny, nz: g.nz, spacing: [g.dx, g.dy, g.dz], origin: [x0, y0, z0], data: muToHu(volume.data, mw), quantity: 'hu', format: 'result' } };
   }
   const { image } = await loadResultImage(resultId, store);
   const g = image.grid;
   const origin: [number, number, number] = [g.cx - ((g.nx - 1) / 2) * g.dx, g.cy - ((g.ny - 1) / 2) * g.dy, 0];
-  return { name: meta.name, volume: { nx: g.nx, ny: g.ny, nz: 1, spacing: [g.dx, g.dy, 1], origin, data: muToHu(image.data, mw), quantity: 'hu', format: 'result' } };
+  return { name: meta.name, derivation, volume: { nx: g.nx, ny: g.ny, nz: 1, spacing: [g.dx, g.dy, 1], origin, data: muToHu(image.data, mw), quantity: 'hu', format: 'result' } };
 }
 
 /** A folder name of safe characters. */
@@ -48,9 +51,9 @@ function folderName(name: string): string {
 
 export async function exportDicomJob(store: UseStore, resultId: string, hooks: RunHooks = {}): Promise<DicomExportOutcome> {
   hooks.onProgress?.(0, 'reading the result');
-  const { name, volume } = await resultInHu(resultId, store);
+  const { name, derivation, volume } = await resultInHu(resultId, store);
   hooks.onProgress?.(0.3, 'encoding DICOM');
-  const series = writeDicomSeries({ volume, description: name });
+  const series = writeDicomSeries({ volume, description: name, derivation });
   const common = { name, slices: series.files.length, rescale: series.rescale, warnings: series.warnings };
   if (series.files.length === 1) return { ...common, kind: 'dcm', blob: new Blob([series.files[0].bytes as BlobPart], { type: 'application/dicom' }) };
   hooks.onProgress?.(0.8, 'packing the series');

@@ -6,7 +6,7 @@ import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { FILTER_WINDOWS } from '../../core/recon/filter-design';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
-import { recipeSummary } from '../../core/recipe/fields';
+import { describeResult } from '../../core/recipe/describe-result';
 import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
@@ -96,7 +96,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     // The prior-guided method: the prior and the result checked against the measured data.
     const consistency = recipe.method === 'prior' && !r.volume ? await priorConsistency(ws, scan, checkedPrior, r.image, hooks) : undefined;
     const seconds = (performance.now() - t0) / 1000;
-    const description = recipeSummary(recipe as unknown as Record<string, unknown>);
+    const description = describeResult(recipe as unknown as Record<string, unknown>).detail;
     const image = { ...r.image, description };
     const writes = new PendingWrites();
     if (r.volume) {

@@ -19,8 +19,10 @@ const SERIES_NUMBER = '9001';
 export interface DicomExport {
   /** The image (one slice) or volume, in HU, in Rimfill's frame. */
   volume: ImageVolume;
-  /** The method and its knowledge in words (a recipe label): SeriesDescription (64 characters) and DerivationDescription; default the volume's own. */
+  /** The method and its knowledge in words (a recipe label): SeriesDescription (64 characters); default the volume's own. */
   description?: string;
+  /** The same at length (every known region spelt out): DerivationDescription; default the description. */
+  derivation?: string;
   /** When the instances are made (default now). */
   now?: Date;
   /** Random bytes for UIDs (tests). */
@@ -95,14 +97,16 @@ export function writeDicomSeries(x: DicomExport): DicomSeries {
   const [dx, dy, dz] = v.spacing;
   const n = v.nx * v.ny;
   // Text in the default repertoire (ASCII; PS3.5 6.1.2.1): "×" as "x", anything else beyond it as "?".
-  const description = (x.description ?? v.description ?? '').replace(/×/g, 'x').replace(/[\\\r\n]+/g, ' ').replace(/[^\x20-\x7e]/g, '?').trim() || 'image';
+  const ascii = (text: string) => text.replace(/×/g, 'x').replace(/[\\\r\n]+/g, ' ').replace(/[^\x20-\x7e]/g, '?').trim();
+  const description = ascii(x.description ?? v.description ?? '') || 'image';
+  const derivation = ascii(x.derivation ?? '') || description;
   const common = {
     ImageType: ['DERIVED', 'SECONDARY', 'AXIAL'],
     InstanceCreationDate: dicomDate(now), InstanceCreationTime: dicomTime(now),
     SOPClassUID: CT_IMAGE_STORAGE,
     SeriesDate: dicomDate(now), SeriesTime: dicomTime(now), ContentDate: dicomDate(now), ContentTime: dicomTime(now),
     Modality: 'CT', Manufacturer: 'Rimfill', ManufacturerModelName: 'Rimfill', SoftwareVersions: '0.1.0',
-    SeriesDescription: description.slice(0, 64), DerivationDescription: `Rimfill reconstruction: ${description}`.slice(0, 1024),
+    SeriesDescription: description.slice(0, 64), DerivationDescription: `Rimfill reconstruction: ${derivation}`.slice(0, 1024),
     ...carried(ctx),
     SliceThickness: v.nz > 1 ? ds(dz) : '', KVP: '',
     ...(v.nz > 1 ? { SpacingBetweenSlices: ds(dz) } : {}),
