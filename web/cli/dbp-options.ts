@@ -18,7 +18,7 @@ export const DBP_HELP = `    dbp: [--undetermined mask.nrrd]
 export function checkDbpOptions(a: ParsedArgs, method: string): void {
   const o = a.options;
   if (method === 'dbp') {
-    for (const name of ['extend', 'filter', 'cutoff']) {
+    for (const name of ['extend', 'filter', 'band-limit']) {
       if (o[name] !== undefined) throw new InputError(`option --${name}: not for --method dbp (it differentiates the data and needs neither a ramp filter nor a detector extension)`);
     }
   } else if (o.undetermined !== undefined) {
