@@ -40,7 +40,7 @@ const LINE_WEIGHT = 0.3;
 const SMOOTH_OUTSIDE = 0.01;
 /** Default coupling; `edge` is a share of mu_water (25 HU). */
 export const DEFAULT_COUPLING: Omit<CouplingOptions, 'edge'> & { edgeHu: number } = {
-  across: 0.01, along: 0.1, edgeHu: 25, passes: 3, tolerance: 1e-5, maxIterations: 300,
+  across: 0.01, along: 0.1, edgeHu: 25, passes: 3, tolerance: 1e-4, maxIterations: 300,
 };
 /** Margin of the estimated object's reach when no outline is given. */
 const REACH_MARGIN = 1.1;

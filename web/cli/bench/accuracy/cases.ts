@@ -5,7 +5,7 @@
 // Each case also carries the knowledge a user would have: an outline ellipse fitted to the body
 // (its second moments, not its exact contour) and the most uniform 20 mm soft-tissue disk inside
 // the field of view with its value rounded to 10 HU. Tests and `rimfill bench` share these cases.
-import { readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { Workspace } from '../../../core/engine/workspace';
 import { readImage2D } from '../../../core/formats/read-image';
@@ -139,11 +139,18 @@ function buildCase(name: string, about: string, truth: Image2D, o: CaseOptions, 
   }));
 }
 
-const FIXTURES = new URL('../../../../test/fixtures/ct/', import.meta.url);
+/** test/fixtures/ct of the repository: found upwards from this module (the source tree, or build/ for the CLI bundle). */
+function fixturesDir(): URL {
+  for (let up = '../'; up.length <= 5 * 3; up += '../') {
+    const dir = new URL(`${up}test/fixtures/ct/`, import.meta.url);
+    if (existsSync(fileURLToPath(dir))) return dir;
+  }
+  throw new Error('test/fixtures/ct not found above the bench module');
+}
 
 /** A real CT slice from test/fixtures/ct as mu (HU below -1000, the scanner's padding included, become air). */
 export async function realSlice(file: string, muWater = MU_WATER_SLICES): Promise<Image2D> {
-  const bytes = new Uint8Array(readFileSync(fileURLToPath(new URL(file, FIXTURES))));
+  const bytes = new Uint8Array(readFileSync(fileURLToPath(new URL(file, fixturesDir()))));
   const { image } = await readImage2D([{ name: file, bytes }], { muWater });
   const data = image.data.map((v) => Math.max(0, v));
   return { ...image, data, muWater, quantity: 'mu' };
