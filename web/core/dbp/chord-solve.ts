@@ -38,7 +38,7 @@ export interface ChordProblem {
 /**
  * Fills `row` with the Hilbert transform at t, (1/pi) p.v. int f(s) / (t - s) ds, of the
  * profile per node value. A linear piece L on [p, q] gives L(t) ln|(t - p)/(t - q)| - (L(q) -
- * L(p)) (write L(s) = L(t) - slope (t - s); elementary integrals). t must not be a node.
+ * L(p)) (write L(s) = L(t) - slope (t - s); REFERENCES.md [hilbert-interval]). t must not be a node.
  */
 export function hilbertRow(nodes: Float64Array, t: number, row: Float64Array): void {
   row.fill(0);

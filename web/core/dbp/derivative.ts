@@ -1,7 +1,7 @@
 // The first step of differentiated backprojection (DBP): per measured ray, the derivative of
 // the data across parallel lines, weighted so that backprojecting it (dbp-points.ts) gives the
 // Hilbert transform of the object along chosen lines (Noo, Clackdoyle & Pack 2004, Phys Med Biol
-// 49:3903, "A two-step Hilbert transform method for 2D image reconstruction").
+// 49:3903, "A two-step Hilbert transform method for 2D image reconstruction"; REFERENCES.md [noo2004]).
 //
 // Parallel beam, detector axis U (the Radon normal theta) and coordinate u = x.U:
 //   H_e f(x) = -(1/2pi) sum_v dphi_v w_v sgn(U_v.e) dp/du(v, x.U_v)
