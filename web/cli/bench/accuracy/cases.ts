@@ -44,6 +44,8 @@ export interface CaseOptions {
   fovFraction?: number;
   /** Detector pitch, mm. */
   pitch?: number;
+  /** Pixel size of the thorax phantom's truth image, mm (default 0.8; the image covers the arms). */
+  truthPixel?: number;
 }
 
 const R = 750, D = 1200;
@@ -78,7 +80,30 @@ function bodyMask(img: Image2D, muWater: number): Uint8Array {
     if (j > 0) stack.push(q - g.nx);
     if (j < g.ny - 1) stack.push(q + g.nx);
   }
-  return mask;
+  return fillHoles(mask, g.nx, g.ny);
+}
+
+/**
+ * The mask with its holes filled (lungs, airways, bowel gas): every pixel that cannot be
+ * reached from the image border without crossing the mask. A user's outline goes around the
+ * body, not around its tissue.
+ */
+function fillHoles(mask: Uint8Array, nx: number, ny: number): Uint8Array {
+  const outside = new Uint8Array(mask.length);
+  const stack: number[] = [];
+  for (let i = 0; i < nx; i++) stack.push(i, (ny - 1) * nx + i);
+  for (let j = 0; j < ny; j++) stack.push(j * nx, j * nx + nx - 1);
+  while (stack.length) {
+    const q = stack.pop()!;
+    if (outside[q] || mask[q]) continue;
+    outside[q] = 1;
+    const i = q % nx, j = (q - i) / nx;
+    if (i > 0) stack.push(q - 1);
+    if (i < nx - 1) stack.push(q + 1);
+    if (j > 0) stack.push(q - nx);
+    if (j < ny - 1) stack.push(q + nx);
+  }
+  return Uint8Array.from(outside, (o) => 1 - o);
 }
 
 /** The ellipse with the mask's centroid and second moments (a uniform ellipse has variance a^2 / 4 along its axis). */
@@ -149,9 +174,20 @@ export async function realSlice(file: string, muWater = MU_WATER_SLICES): Promis
   return { ...image, data, muWater, quantity: 'mu' };
 }
 
+/**
+ * The slice with the air around the body made air: pixels outside the body mask below -500 HU
+ * (lossy-compression haze of about -950 HU in the head slice) become 0; objects outside the body
+ * (a head holder, the table) stay.
+ */
+function clearAir(img: Image2D): Image2D {
+  const body = bodyMask(img, img.muWater!);
+  const limit = 0.5 * img.muWater!;
+  return { ...img, data: img.data.map((v, q) => (body[q] || v > limit ? v : 0)) };
+}
+
 /** A case from a real CT slice, projected by Joseph's method on the slice's own grid. */
 export async function realSliceCase(ws: Workspace, file: 'nema-ct1-thorax.nrrd' | 'pydicom-head.nrrd', o: CaseOptions = {}): Promise<SevereCase> {
-  const truth = await realSlice(file);
+  const truth = clearAir(await realSlice(file));
   const about = file.startsWith('nema') ? 'real CT thorax slice (NEMA WG-04 CT1)' : 'real CT head slice (pydicom 693_J2KI)';
   return buildCase(file.replace('.nrrd', ''), about, truth, o, async (geometry) => {
     const proj = await Projector2d.create(ws, truth.grid, geometry);
@@ -165,10 +201,12 @@ export async function realSliceCase(ws: Workspace, file: 'nema-ct1-thorax.nrrd' 
   });
 }
 
-/** The thorax phantom with arms (analytic projections, 4 rays per channel). */
+/** The thorax phantom with arms (analytic projections, 4 rays per channel); the truth image covers the arms. */
 export function thoraxCase(o: CaseOptions = {}): Promise<SevereCase> {
   const p = thorax();
-  const truth: Image2D = { grid: { nx: 512, ny: 512, dx: 0.8, dy: 0.8, cx: 0, cy: 0 }, data: new Float32Array(0), quantity: 'mu', muWater: p.muWater };
+  const pixel = o.truthPixel ?? 0.8;
+  const n = 2 * Math.ceil((1.02 * p.radius) / pixel);
+  const truth: Image2D = { grid: { nx: n, ny: n, dx: pixel, dy: pixel, cx: 0, cy: 0 }, data: new Float32Array(0), quantity: 'mu', muWater: p.muWater };
   truth.data = rasterize(p, truth.grid, 4);
   return buildCase('thorax-phantom', 'thorax phantom with arms (analytic projections)', truth, o, async (g) => analyticSinogram(p, g, 4));
 }
