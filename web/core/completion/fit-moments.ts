@@ -23,6 +23,8 @@ type Evaluate = (o: ObjectMoments) => Promise<number[]>;
 export const CENTROID_REGIONS = 3;
 
 const MASS_PRIOR = 0.25;
+/** The fitted mass stays within these factors of the prior's (the tails' stretch is capped as well). */
+const MASS_RANGE = [0.25, 4];
 const CENTROID_PRIOR_MM = 15;
 const MAX_ITERATIONS = 8;
 
@@ -50,14 +52,15 @@ function solveSmall(A: number[][], b: number[]): number[] {
 
 /**
  * Moments whose tails make the regions read `targets` (mu, 1/mm), starting from `prior`.
- * `muWater` sets the value scale (1 HU = muWater / 1000).
+ * `muWater` sets the value scale (1 HU = muWater / 1000); `centroid` fits the centroid too
+ * (default: with CENTROID_REGIONS regions or more).
  */
-export async function fitMomentsToRegions(evaluate: Evaluate, targets: number[], prior: ObjectMoments, muWater: number, signal?: AbortSignal): Promise<MomentFit> {
-  const withCentroid = targets.length >= CENTROID_REGIONS;
+export async function fitMomentsToRegions(evaluate: Evaluate, targets: number[], prior: ObjectMoments, muWater: number, signal?: AbortSignal, centroid = targets.length >= CENTROID_REGIONS): Promise<MomentFit> {
+  const withCentroid = centroid;
   const hu = muWater / 1000;
   // Parameters: mass relative to the prior's, centroid in mm.
   const toMoments = (p: number[]): ObjectMoments => ({
-    mass: prior.mass * Math.min(2, Math.max(0.5, p[0])),
+    mass: prior.mass * Math.min(MASS_RANGE[1], Math.max(MASS_RANGE[0], p[0])),
     cx: withCentroid ? p[1] : prior.cx,
     cy: withCentroid ? p[2] : prior.cy,
   });
@@ -83,7 +86,7 @@ export async function fitMomentsToRegions(evaluate: Evaluate, targets: number[],
     const g = Array.from({ length: n }, (_, a) => -(J[a].reduce((s, _v, i) => s + J[a][i] * r[i], 0) + (p[a] - priorP[a]) / priorSd[a] ** 2));
     const d = solveSmall(A, g);
     p = p.map((x, k) => x + d[k]);
-    p[0] = Math.min(2, Math.max(0.5, p[0]));
+    p[0] = Math.min(MASS_RANGE[1], Math.max(MASS_RANGE[0], p[0]));
     values = await evaluate(toMoments(p));
     const moved = d.reduce((m, x, k) => Math.max(m, Math.abs(x) / steps[k]), 0);
     if (moved < 0.05) { iterations++; break; }

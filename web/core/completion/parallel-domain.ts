@@ -103,9 +103,9 @@ function lineValue(r: ScanRays, data: Float32Array, theta: number, s: number): n
 /**
  * Rebins a 2D scan (parallel or fan, flat or curved detector, full turn or short scan) to
  * parallel views over a full turn, with as many views per turn as the scan has per its angular
- * step, and s spaced like the scan's central channels.
+ * step (or `viewsPerTurn`), and s spaced like the scan's central channels (or `spacing` mm).
  */
-export function rebinToParallelDomain(scan: Scan): ParallelDomain {
+export function rebinToParallelDomain(scan: Scan, spacing?: number, viewsPerTurn?: number): ParallelDomain {
   const g = scan.geometry;
   if (g.kind === 'cone' || g.detector.rows !== 1) throw new InputError('knowledge in FBP: the scan must be a 2D (single-row) scan here; cone-beam rows are handled one by one');
   const fov = fovRadius(g);
@@ -115,8 +115,8 @@ export function rebinToParallelDomain(scan: Scan): ParallelDomain {
   const span = Math.abs(r.beta[r.beta.length - 1] - r.beta[0]);
   const step = span / Math.max(1, r.beta.length - 1);
   if (!(step > 0)) throw new InputError('knowledge in FBP: the scan needs views at more than one angle');
-  const nViews = Math.max(8, Math.round((2 * Math.PI) / step));
-  const ds = Math.abs(r.rays.dsdu(0)) * r.pitch;
+  const nViews = viewsPerTurn ?? Math.max(8, Math.round((2 * Math.PI) / step));
+  const ds = spacing ?? Math.abs(r.rays.dsdu(0)) * r.pitch;
   // The measured range reaches the outermost channel centres (the FOV radius counts the channels' outer halves).
   const sFirst = Math.abs(r.rays.s(r.u0)), sLast = Math.abs(r.rays.s(r.u0 + (r.nCh - 1) * r.pitch));
   const reach = Math.min(fov, fullTurn ? Math.max(sFirst, sLast) : Math.min(sFirst, sLast));

@@ -2,7 +2,7 @@
 // pixels of the reconstruction grid the region covers. Only the region's bounding box of the
 // grid is backprojected, so a fit can try many extensions for the cost of their filtering.
 import type { Workspace } from '../engine/workspace';
-import { checkGrid, gridOrigin, type Image2D, type ImageGrid } from '../image';
+import { checkGrid, gridOrigin, type ImageGrid } from '../image';
 import type { PlacedRegion } from '../knowledge';
 import type { FilterWindow } from '../recon/filter-design';
 import { fbp2d } from '../recon/fbp';
@@ -38,16 +38,6 @@ export function regionWindow(region: PlacedRegion, g: ImageGrid): RegionWindow {
     }
   }
   return { grid, coverage, total };
-}
-
-/** Coverage-weighted mean of an image over a region (the image on the full grid the coverage was made for). */
-export function regionMean(image: Image2D, coverage: Float32Array): number {
-  let s = 0, w = 0;
-  for (let q = 0; q < coverage.length; q++) {
-    const c = coverage[q];
-    if (c > 0) { s += c * image.data[q]; w += c; }
-  }
-  return w > 0 ? s / w : NaN;
 }
 
 export interface FbpSettings {

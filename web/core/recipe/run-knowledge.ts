@@ -3,10 +3,9 @@
 // each region's value with the base extension alone and with the knowledge, and the residual
 // against the measured data of both images (a correction that invents structure the data do not
 // hold shows there).
-import { planKnowledgeExtension, type CompletionReport } from '../completion/knowledge-extension';
-import { regionMean } from '../completion/region-values';
-import { suggestedOutline, type SuggestedOutline } from '../completion/suggested-outline';
-import { dataResidual, type DataResidual } from '../data-residual';
+import { planKnowledgeExtension } from '../completion/knowledge-extension';
+import { suggestedOutline } from '../completion/suggested-outline';
+import { dataResidual } from '../data-residual';
 import type { Workspace } from '../engine/workspace';
 import { InputError } from '../errors';
 import { fovRadius } from '../geometry/view-vectors';
@@ -19,35 +18,9 @@ import { analyseEdges, objectRadius } from '../truncation/edges';
 import { planExtension } from '../truncation/extension-plan';
 import type { RecipeInputs } from '../iterative/run';
 import { chooseGrid } from './grid';
+import { knowledgeWarnings, regionReports, residualFigures, type KnowledgeReport } from './knowledge-report';
 import type { Recipe } from './recipe';
 import type { RecipeResult } from './run';
-
-/** Per known region: its value, what the base extension gives it and what the knowledge gives it, HU. */
-export interface RegionReport {
-  name: string;
-  knownHu: number;
-  beforeHu: number;
-  afterHu: number;
-}
-
-export interface KnowledgeReport {
-  /** What was used, in words ("known region 1 (circle at ...)", "outline (ellipse ...)"). */
-  used: string[];
-  regions: RegionReport[];
-  /** ||A f - p|| over the measured rays with the base extension alone and with the knowledge. */
-  residual: { before: ResidualFigures; after: ResidualFigures };
-  completion: CompletionReport;
-  /** The outline the data suggest (water cylinder reach), for the user to compare and correct. */
-  suggestedOutline: SuggestedOutline | null;
-}
-
-type ResidualFigures = Pick<DataResidual, 'rms' | 'relative' | 'bias'>;
-
-const hu = (mu: number, muWater: number) => (1000 * (mu - muWater)) / muWater;
-
-function residualFigures(r: DataResidual): ResidualFigures {
-  return { rms: r.rms, relative: r.relative, bias: r.bias };
-}
 
 /** Reconstructs a 2D scan by FBP with the recipe's knowledge. */
 export async function runKnowledgeFbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks, inputs: RecipeInputs): Promise<RecipeResult> {
@@ -77,26 +50,16 @@ export async function runKnowledgeFbp(ws: Workspace, scan: Scan, recipe: Recipe,
   const resBefore = await dataResidual(ws, before.image, scan, hooks);
   const resAfter = await dataResidual(ws, image, scan, hooks);
   hooks.onProgress?.(1, 'done');
-  const regions: RegionReport[] = placed.regions.map((r) => ({
-    name: r.name, knownHu: r.region.hu, beforeHu: hu(regionMean(before.image, r.coverage), muWater), afterHu: hu(regionMean(image, r.coverage), muWater),
-  }));
-  const warnings = [...after.warnings];
-  for (const r of regions) {
-    if (Math.abs(r.afterHu - r.knownHu) > 10) warnings.push(`${r.name} reads ${r.afterHu.toFixed(0)} HU after the correction, not ${r.knownHu} HU: the tails could not reach it (check the region and its value)`);
-  }
-  if (resAfter.rms > 1.05 * resBefore.rms) {
-    warnings.push(`the residual against the measured data grew from ${resBefore.rms.toPrecision(3)} to ${resAfter.rms.toPrecision(3)} with the knowledge: check that the regions and the outline are right`);
-  }
   const knowledgeReport: KnowledgeReport = {
     used: [...placed.regions.map((r) => r.name), ...(knowledge.outline ? [describeOutline(knowledge.outline)] : [])],
-    regions,
+    regions: regionReports(placed.regions, before.image.data, image.data, muWater),
     residual: { before: residualFigures(resBefore), after: residualFigures(resAfter) },
     completion,
     suggestedOutline: suggestedOutline(analysis),
   };
   return {
     image,
-    warnings,
+    warnings: [...after.warnings, ...knowledgeWarnings(knowledgeReport)],
     report: {
       timings: { plan: (t1 - t0) / 1000, fbp: (t2 - t1) / 1000, residual: (performance.now() - t2) / 1000 },
       extension: { ...basePlan.summary, ...(extend === 'outline' ? { method: 'outline' } : {}) },

@@ -75,7 +75,7 @@ export async function runExtension(ws: Workspace, ext: DetectorExtension, measur
 }
 
 /** The scan on the plan's extended detector (resets the workspace's layout). */
-export async function extendScan(ws: Workspace, scan: Scan, plan: ExtensionPlan): Promise<Scan> {
+export async function extendScan(ws: Workspace, scan: Scan, plan: DetectorExtension & Pick<ExtensionPlan, 'geometry'>): Promise<Scan> {
   const nCh = scan.geometry.detector.channels;
   const nViews = scan.data.length / nCh;
   const nExt = plan.geometry.detector.channels;

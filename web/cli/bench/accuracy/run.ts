@@ -1,0 +1,125 @@
+// The accuracy bench: every row of rows.ts on every severe-truncation case (cases.ts) with each
+// kind of knowledge; inside- and outside-FOV RMSE against the case's truth (HU), the residual
+// against the measured data, and the time. Beside them, FBP of the complete (untruncated) data:
+// the floor that the grid, the view count and the truth image's sharp edges leave to any method.
+// Robustness: the same on noisy, short-scan and off-centre variants, and with wrong knowledge.
+import { compareImages } from '../../../core/compare';
+import { dataResidual } from '../../../core/data-residual';
+import type { Workspace } from '../../../core/engine/workspace';
+import type { Knowledge } from '../../../core/knowledge';
+import { validateRecipe } from '../../../core/recipe/recipe';
+import { runRecipe } from '../../../core/recipe/run';
+import { chooseGrid } from '../../../core/recipe/grid';
+import { completeGeometry, realSliceCase, thoraxCase, type CaseOptions, type SevereCase } from './cases';
+import { ACCURACY_ROWS, knowledgeFor, WRONG_KNOWLEDGE, type AccuracyRow, type KnowledgeKind, type WrongKnowledge } from './rows';
+
+export interface AccuracyFigure {
+  case: string;
+  variant: string;
+  method: string;
+  knowledge: KnowledgeKind | WrongKnowledge | 'complete data';
+  insideHu: number;
+  outsideHu: number;
+  /** RMS of (A f - p) over the measured rays. */
+  residual: number;
+  seconds: number;
+}
+
+export interface CaseSummary {
+  case: string;
+  variant: string;
+  about: string;
+  fovRadiusMm: number;
+  bodyHalfWidthMm: number;
+  views: number;
+  arcDeg: number;
+}
+
+type CaseMaker = (ws: Workspace, o: CaseOptions) => Promise<SevereCase>;
+
+const CASES: Array<[string, CaseMaker]> = [
+  ['nema-ct1-thorax', (ws, o) => realSliceCase(ws, 'nema-ct1-thorax.nrrd', o)],
+  ['pydicom-head', (ws, o) => realSliceCase(ws, 'pydicom-head.nrrd', o)],
+  ['thorax-phantom', (_ws, o) => thoraxCase(o)],
+];
+
+/** Scan variants for robustness: photon noise, a C-arm short scan, a field of view off the body's centre. */
+export const VARIANTS: Array<[string, CaseOptions]> = [
+  ['noise (2e5 photons)', { photons: 2e5, seed: 7 }],
+  ['short scan (200 degrees)', { arcDeg: 200 }],
+  ['off-centre field (body moved by 0.24, 0.15 of its half-width)', { shift: [0.24, 0.15] }],
+];
+
+async function measure(ws: Workspace, c: SevereCase, variant: string, method: string, kind: AccuracyFigure['knowledge'], recipe: unknown): Promise<AccuracyFigure> {
+  const t0 = performance.now();
+  const r = await runRecipe(ws, c.scan, validateRecipe(recipe));
+  const seconds = (performance.now() - t0) / 1000;
+  const cmp = compareImages(r.image, c.truth, c.fovRadius);
+  const residual = await dataResidual(ws, r.image, c.scan);
+  return { case: c.name, variant, method, knowledge: kind, insideHu: cmp.regions.insideFov!.rmse, outsideHu: cmp.regions.outsideFov?.rmse ?? NaN, residual: residual.rms, seconds };
+}
+
+/** FBP of the complete data on the same grid as the truncated scan's default: the floor. */
+async function floor(ws: Workspace, c: SevereCase, variant: string): Promise<AccuracyFigure> {
+  const grid = chooseGrid(c.scan);
+  const geometry = completeGeometry(c, (grid.nx * grid.dx) / 2);
+  const full = { ...c.scan, geometry, data: await c.project(geometry) };
+  const t0 = performance.now();
+  const r = await runRecipe(ws, full, validateRecipe({ method: 'fbp', grid: { size: grid.nx, pixel: grid.dx } }));
+  const cmp = compareImages(r.image, c.truth, c.fovRadius);
+  return { case: c.name, variant, method: 'FBP of the complete data (floor)', knowledge: 'complete data', insideHu: cmp.regions.insideFov!.rmse, outsideHu: cmp.regions.outsideFov?.rmse ?? NaN, residual: NaN, seconds: (performance.now() - t0) / 1000 };
+}
+
+async function runRows(ws: Workspace, c: SevereCase, variant: string, rows: AccuracyRow[], kinds: (row: AccuracyRow) => readonly (KnowledgeKind | WrongKnowledge)[], progress: (line: string) => void): Promise<AccuracyFigure[]> {
+  const out: AccuracyFigure[] = [];
+  for (const row of rows) {
+    for (const kind of kinds(row)) {
+      const k: Knowledge | undefined = knowledgeFor(c, kind);
+      const f = await measure(ws, c, variant, row.label, kind, row.recipe(k));
+      progress(`${c.name} [${variant}] ${row.label} (${kind}): ${f.insideHu.toFixed(1)} HU inside, ${f.seconds.toFixed(1)} s`);
+      out.push(f);
+    }
+  }
+  return out;
+}
+
+/** Runs the bench; `progress` receives one line per run. */
+export async function benchAccuracy(ws: Workspace, progress: (line: string) => void = () => {}): Promise<{ cases: CaseSummary[]; figures: AccuracyFigure[] }> {
+  const cases: CaseSummary[] = [];
+  const figures: AccuracyFigure[] = [];
+  const robust = ACCURACY_ROWS.filter((r) => r.robustness);
+  for (const [, make] of CASES) {
+    for (const [variant, options] of [['as built', {}] as [string, CaseOptions], ...VARIANTS]) {
+      const c = await make(ws, options);
+      const g = c.scan.geometry;
+      const angles = g.anglesDeg && !Array.isArray(g.anglesDeg) ? g.anglesDeg : { step: 1, count: 360 };
+      cases.push({ case: c.name, variant, about: c.about, fovRadiusMm: c.fovRadius, bodyHalfWidthMm: c.bodyHalfWidth, views: angles.count, arcDeg: angles.step * angles.count });
+      figures.push(await floor(ws, c, variant));
+      if (variant === 'as built') {
+        figures.push(...await runRows(ws, c, variant, ACCURACY_ROWS, (row) => row.kinds, progress));
+        // Wrong knowledge: the rows that take knowledge, each with the wrong kinds that apply.
+        figures.push(...await runRows(ws, c, 'wrong knowledge', robust.filter((r) => r.kinds.some((k) => k !== 'none')), (row) =>
+          WRONG_KNOWLEDGE.filter((w) => row.kinds.includes(w.startsWith('region') ? 'region' : 'outline')), progress));
+      } else {
+        figures.push(...await runRows(ws, c, variant, robust, (row) => row.kinds, progress));
+      }
+    }
+  }
+  return { cases, figures };
+}
+
+const cell = (v: number, width: number, digits = 0) => (Number.isFinite(v) ? v.toFixed(digits) : '-').padStart(width);
+
+/** The report's lines: one table per case and variant. */
+export function accuracyLines(r: { cases: CaseSummary[]; figures: AccuracyFigure[] }): string[] {
+  const lines = ['inside / outside: RMSE against the truth inside / outside the measured field of view (HU); residual: RMS of the re-projection minus the measured data'];
+  for (const c of r.cases) {
+    lines.push('', `${c.case} [${c.variant}]: ${c.about}; FOV radius ${c.fovRadiusMm.toFixed(0)} mm = ${(c.fovRadiusMm / c.bodyHalfWidthMm).toFixed(2)} of the half-width ${c.bodyHalfWidthMm.toFixed(0)} mm; ${c.views} views over ${c.arcDeg.toFixed(0)} degrees`);
+    lines.push(`  ${'method'.padEnd(34)} ${'knowledge'.padEnd(15)} ${'inside'.padStart(7)} ${'outside'.padStart(8)} ${'residual'.padStart(9)} ${'time'.padStart(7)}`);
+    const rows = r.figures.filter((f) => f.case === c.case && (f.variant === c.variant || (c.variant === 'as built' && f.variant === 'wrong knowledge')));
+    for (const f of rows) {
+      lines.push(`  ${f.method.padEnd(34)} ${f.knowledge.padEnd(15)} ${cell(f.insideHu, 7)} ${cell(f.outsideHu, 8)} ${cell(f.residual, 9, 3)} ${cell(f.seconds, 6, 1)}s`);
+    }
+  }
+  return lines;
+}
