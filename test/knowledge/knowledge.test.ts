@@ -27,6 +27,16 @@ describe('knowledge on a grid', () => {
     expect(Math.abs(sum(p) - Math.abs(polygonArea(points))) / Math.abs(polygonArea(points))).toBeLessThan(0.01);
   });
 
+  it('a concave polygon (an L) covers its shoelace area, and points in its notch stay outside', () => {
+    const points: [number, number][] = [[-50, -50], [50, -50], [50, -10], [-10, -10], [-10, 60], [-50, 60]];
+    const m = outlineMask({ shape: 'polygon', points }, grid);
+    expect(Math.abs(sum(m) - Math.abs(polygonArea(points))) / Math.abs(polygonArea(points))).toBeLessThan(0.01);
+    const at = (x: number, y: number) => m[Math.round(y + 127.5) * 256 + Math.round(x + 127.5)];
+    expect(at(20, 20)).toBe(0);
+    expect(at(-30, 20)).toBe(1);
+    expect(at(20, -30)).toBe(1);
+  });
+
   it('a cylinder over a z slab covers only the slices inside it', () => {
     const vg = cubicGrid(32, 2, 10, 3); // slice centres at z = -13.5 ... 13.5 mm
     const c = regionCoverage({ shape: 'circle', x: 0, y: 0, r: 6, hu: 0, z: [-5, 5] }, vg);

@@ -34,6 +34,8 @@ export interface SevereCase {
   bodyHalfWidth: number;
   /** What a user would draw: the ellipse with the body's area and second moments. */
   outline: Outline;
+  /** An outline that holds everything in the slice (arms, a head holder, the table): the convex hull of the object, a polygon. */
+  hull: Outline;
   /** What a user would know: a uniform 20 mm soft-tissue disk in the field of view, its HU rounded to 10. */
   known: KnownCircle;
   /** Exact line integrals of the object for any 2D geometry (the complete data a wider detector would measure). */
@@ -189,7 +191,7 @@ async function buildCase(name: string, about: string, truth: Image2D, o: CaseOpt
   if (o.photons) addPhotonNoise(data, o.photons, o.seed ?? 1);
   const notes: Record<string, string> = { phantom: name, ...(o.photons ? { photons: String(o.photons) } : {}) };
   return {
-    name, about, truth, fovRadius: fov, bodyHalfWidth: halfWidth, outline, known: uniformDisk(truth, fov, muWater),
+    name, about, truth, fovRadius: fov, bodyHalfWidth: halfWidth, outline, hull: convexHull(truth, muWater), known: uniformDisk(truth, fov, muWater),
     scan: { geometry, data, muWater, notes }, project,
   };
 }
@@ -197,6 +199,33 @@ async function buildCase(name: string, about: string, truth: Image2D, o: CaseOpt
 /** Half of the width along x of the body in an image, mm. */
 function halfWidthOf(img: Image2D): number {
   return momentEllipse(bodyMask(img, img.muWater!), img).halfWidth;
+}
+
+/** The convex hull (a polygon, counter-clockwise) of every pixel above -500 HU, by Andrew's monotone chain (common practice). */
+function convexHull(img: Image2D, muWater: number): Outline {
+  const g = img.grid;
+  const { x0, y0 } = gridOrigin(g);
+  const pts: [number, number][] = [];
+  for (let j = 0; j < g.ny; j++) {
+    // The leftmost and rightmost object pixels of each row carry the hull (their outer corners).
+    let first = -1, last = -1;
+    for (let i = 0; i < g.nx; i++) if (img.data[j * g.nx + i] > 0.5 * muWater) { if (first < 0) first = i; last = i; }
+    if (first < 0) continue;
+    const y = y0 + j * g.dy;
+    pts.push([x0 + (first - 0.5) * g.dx, y - g.dy / 2], [x0 + (first - 0.5) * g.dx, y + g.dy / 2], [x0 + (last + 0.5) * g.dx, y - g.dy / 2], [x0 + (last + 0.5) * g.dx, y + g.dy / 2]);
+  }
+  pts.sort((a, b) => a[0] - b[0] || a[1] - b[1]);
+  const cross = (o: number[], a: number[], b: number[]) => (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0]);
+  const half = (list: [number, number][]) => {
+    const h: [number, number][] = [];
+    for (const p of list) {
+      while (h.length >= 2 && cross(h[h.length - 2], h[h.length - 1], p) <= 0) h.pop();
+      h.push(p);
+    }
+    h.pop();
+    return h;
+  };
+  return { shape: 'polygon', points: [...half(pts), ...half([...pts].reverse())] };
 }
 
 /** The image moved by `shift` (fractions of the body's half-width). */

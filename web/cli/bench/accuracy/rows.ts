@@ -9,8 +9,11 @@ import type { SevereCase } from './cases';
 export const KNOWLEDGE_KINDS = ['none', 'region', 'outline', 'both'] as const;
 export type KnowledgeKind = (typeof KNOWLEDGE_KINDS)[number];
 
-/** Deliberately wrong knowledge, to show how robust each method is to it. */
-export const WRONG_KNOWLEDGE = ['region +20 HU', 'region -20 HU', 'outline +10 mm'] as const;
+/**
+ * Deliberately wrong or different knowledge, to show how robust each method is to it, and the
+ * outline that holds everything in the slice (the convex hull of the object) beside the ellipse.
+ */
+export const WRONG_KNOWLEDGE = ['region +20 HU', 'region -20 HU', 'outline +10 mm', 'outline: hull'] as const;
 export type WrongKnowledge = (typeof WRONG_KNOWLEDGE)[number];
 
 export interface AccuracyRow {
@@ -43,5 +46,6 @@ export function knowledgeFor(c: SevereCase, kind: KnowledgeKind | WrongKnowledge
     case 'region +20 HU': return { known: [{ ...c.known, hu: c.known.hu + 20 }] };
     case 'region -20 HU': return { known: [{ ...c.known, hu: c.known.hu - 20 }] };
     case 'outline +10 mm': return o.shape === 'ellipse' ? { outline: { ...o, a: o.a + 10, b: o.b + 10 } } : { outline: o };
+    case 'outline: hull': return { outline: c.hull };
   }
 }

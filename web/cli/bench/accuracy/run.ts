@@ -10,6 +10,7 @@ import type { Knowledge } from '../../../core/knowledge';
 import { validateRecipe } from '../../../core/recipe/recipe';
 import { runRecipe } from '../../../core/recipe/run';
 import { chooseGrid } from '../../../core/recipe/grid';
+import { addPhotonNoise } from '../../../core/simulate/noise';
 import { completeGeometry, realSliceCase, thoraxCase, type CaseOptions, type SevereCase } from './cases';
 import { ACCURACY_ROWS, knowledgeFor, WRONG_KNOWLEDGE, type AccuracyRow, type KnowledgeKind, type WrongKnowledge } from './rows';
 
@@ -43,40 +44,49 @@ const CASES: Array<[string, CaseMaker]> = [
   ['thorax-phantom', (_ws, o) => thoraxCase(o)],
 ];
 
-/** Scan variants for robustness: photon noise, a C-arm short scan, a field of view off the body's centre. */
-export const VARIANTS: Array<[string, CaseOptions]> = [
-  ['noise (2e5 photons)', { photons: 2e5, seed: 7 }],
-  ['short scan (200 degrees)', { arcDeg: 200 }],
-  ['off-centre field (body moved by 0.24, 0.15 of its half-width)', { shift: [0.24, 0.15] }],
+/** A scan variant for robustness, and recipe fields every method uses on it. */
+interface Variant {
+  name: string;
+  options: CaseOptions;
+  recipe?: Record<string, unknown>;
+}
+
+/** Photon noise (with the Hann window a user would choose for it), a C-arm short scan, a field of view off the body's centre. */
+export const VARIANTS: Variant[] = [
+  { name: 'noise (2e5 photons, Hann window)', options: { photons: 2e5, seed: 7 }, recipe: { filter: 'hann' } },
+  { name: 'short scan (200 degrees)', options: { arcDeg: 200 } },
+  { name: 'off-centre field (body moved by 0.24, 0.15 of its half-width)', options: { shift: [0.24, 0.15] } },
 ];
 
-async function measure(ws: Workspace, c: SevereCase, variant: string, method: string, kind: AccuracyFigure['knowledge'], recipe: unknown): Promise<AccuracyFigure> {
+async function measure(ws: Workspace, c: SevereCase, v: Variant, method: string, kind: AccuracyFigure['knowledge'], recipe: unknown): Promise<AccuracyFigure> {
   const t0 = performance.now();
-  const r = await runRecipe(ws, c.scan, validateRecipe(recipe));
+  const r = await runRecipe(ws, c.scan, validateRecipe({ ...(recipe as object), ...v.recipe }));
   const seconds = (performance.now() - t0) / 1000;
   const cmp = compareImages(r.image, c.truth, c.fovRadius);
   const residual = await dataResidual(ws, r.image, c.scan);
-  return { case: c.name, variant, method, knowledge: kind, insideHu: cmp.regions.insideFov!.rmse, outsideHu: cmp.regions.outsideFov?.rmse ?? NaN, residual: residual.rms, seconds };
+  return { case: c.name, variant: v.name, method, knowledge: kind, insideHu: cmp.regions.insideFov!.rmse, outsideHu: cmp.regions.outsideFov?.rmse ?? NaN, residual: residual.rms, seconds };
 }
 
-/** FBP of the complete data on the same grid as the truncated scan's default: the floor. */
-async function floor(ws: Workspace, c: SevereCase, variant: string): Promise<AccuracyFigure> {
+/** FBP of the complete data (with the variant's noise) on the same grid as the truncated scan's default: the floor. */
+async function floor(ws: Workspace, c: SevereCase, v: Variant): Promise<AccuracyFigure> {
   const grid = chooseGrid(c.scan);
   const geometry = completeGeometry(c, (grid.nx * grid.dx) / 2);
-  const full = { ...c.scan, geometry, data: await c.project(geometry) };
+  const data = await c.project(geometry);
+  if (v.options.photons) addPhotonNoise(data, v.options.photons, v.options.seed ?? 1);
+  const full = { ...c.scan, geometry, data };
   const t0 = performance.now();
-  const r = await runRecipe(ws, full, validateRecipe({ method: 'fbp', grid: { size: grid.nx, pixel: grid.dx } }));
+  const r = await runRecipe(ws, full, validateRecipe({ method: 'fbp', grid: { size: grid.nx, pixel: grid.dx }, ...v.recipe }));
   const cmp = compareImages(r.image, c.truth, c.fovRadius);
-  return { case: c.name, variant, method: 'FBP of the complete data (floor)', knowledge: 'complete data', insideHu: cmp.regions.insideFov!.rmse, outsideHu: cmp.regions.outsideFov?.rmse ?? NaN, residual: NaN, seconds: (performance.now() - t0) / 1000 };
+  return { case: c.name, variant: v.name, method: 'FBP of the complete data (floor)', knowledge: 'complete data', insideHu: cmp.regions.insideFov!.rmse, outsideHu: cmp.regions.outsideFov?.rmse ?? NaN, residual: NaN, seconds: (performance.now() - t0) / 1000 };
 }
 
-async function runRows(ws: Workspace, c: SevereCase, variant: string, rows: AccuracyRow[], kinds: (row: AccuracyRow) => readonly (KnowledgeKind | WrongKnowledge)[], progress: (line: string) => void): Promise<AccuracyFigure[]> {
+async function runRows(ws: Workspace, c: SevereCase, v: Variant, rows: AccuracyRow[], kinds: (row: AccuracyRow) => readonly (KnowledgeKind | WrongKnowledge)[], progress: (line: string) => void): Promise<AccuracyFigure[]> {
   const out: AccuracyFigure[] = [];
   for (const row of rows) {
     for (const kind of kinds(row)) {
       const k: Knowledge | undefined = knowledgeFor(c, kind);
-      const f = await measure(ws, c, variant, row.label, kind, row.recipe(k));
-      progress(`${c.name} [${variant}] ${row.label} (${kind}): ${f.insideHu.toFixed(1)} HU inside, ${f.seconds.toFixed(1)} s`);
+      const f = await measure(ws, c, v, row.label, kind, row.recipe(k));
+      progress(`${c.name} [${v.name}] ${row.label} (${kind}): ${f.insideHu.toFixed(1)} HU inside, ${f.seconds.toFixed(1)} s`);
       out.push(f);
     }
   }
@@ -89,19 +99,19 @@ export async function benchAccuracy(ws: Workspace, progress: (line: string) => v
   const figures: AccuracyFigure[] = [];
   const robust = ACCURACY_ROWS.filter((r) => r.robustness);
   for (const [, make] of CASES) {
-    for (const [variant, options] of [['as built', {}] as [string, CaseOptions], ...VARIANTS]) {
-      const c = await make(ws, options);
+    for (const v of [{ name: 'as built', options: {} } as Variant, ...VARIANTS]) {
+      const c = await make(ws, v.options);
       const g = c.scan.geometry;
       const angles = g.anglesDeg && !Array.isArray(g.anglesDeg) ? g.anglesDeg : { step: 1, count: 360 };
-      cases.push({ case: c.name, variant, about: c.about, fovRadiusMm: c.fovRadius, bodyHalfWidthMm: c.bodyHalfWidth, views: angles.count, arcDeg: angles.step * angles.count });
-      figures.push(await floor(ws, c, variant));
-      if (variant === 'as built') {
-        figures.push(...await runRows(ws, c, variant, ACCURACY_ROWS, (row) => row.kinds, progress));
+      cases.push({ case: c.name, variant: v.name, about: c.about, fovRadiusMm: c.fovRadius, bodyHalfWidthMm: c.bodyHalfWidth, views: angles.count, arcDeg: angles.step * angles.count });
+      figures.push(await floor(ws, c, v));
+      if (v.name === 'as built') {
+        figures.push(...await runRows(ws, c, v, ACCURACY_ROWS, (row) => row.kinds, progress));
         // Wrong knowledge: the rows that take knowledge, each with the wrong kinds that apply.
-        figures.push(...await runRows(ws, c, 'wrong knowledge', robust.filter((r) => r.kinds.some((k) => k !== 'none')), (row) =>
+        figures.push(...await runRows(ws, c, { ...v, name: 'wrong knowledge' }, robust.filter((r) => r.kinds.some((k) => k !== 'none')), (row) =>
           WRONG_KNOWLEDGE.filter((w) => row.kinds.includes(w.startsWith('region') ? 'region' : 'outline')), progress));
       } else {
-        figures.push(...await runRows(ws, c, variant, robust, (row) => row.kinds, progress));
+        figures.push(...await runRows(ws, c, v, robust, (row) => row.kinds, progress));
       }
     }
   }
