@@ -6,7 +6,7 @@
 // row's tilt makes its line integrals longer by its secant, which the fits already carry). The
 // knowledge sets M_r:
 //   - an outline (the same cross-section in every slice): the measured mass plus the outline
-//     beyond each strip filled with water (times the row's secant);
+//     beyond each strip filled with water (times the row's secant), as in 2D (outline-moments.ts);
 //   - known regions (circles over a z slab, or masks): M_r is fitted on a few rows whose slices
 //     the regions cover, from the region values of the row's fan-beam FBP (divided by the
 //     secant: the slice as FDK sees it); the other rows take the fitted rows' ratio to the prior
@@ -32,7 +32,8 @@ import { extendedLayout, maxTailChannels, type DetectorExtension } from '../trun
 import { rayCoordinates } from '../truncation/ray-coords';
 import { volumeOrigin, type VolumeGrid } from '../volume';
 import { fitMomentsToRegions } from './fit-moments';
-import { outlineBeyondStrip, outlineRaster } from './outline-moments';
+import { outlineBeyondStrip, outlineRaster, upperMass } from './outline-moments';
+import { MIN_STRETCH } from './stretch';
 import { rebinToParallelDomain, type ParallelDomain } from './parallel-domain';
 import { regionValues, regionWindow, type FbpSettings } from './region-values';
 
@@ -135,7 +136,7 @@ async function prepareRow(ws: Workspace, scan: Scan, plan: ConeExtensionPlan, ro
 function viewFactors(r: RowState, mass: number): Float64Array {
   return Float64Array.from(r.m0, (m, j) => {
     const A = r.area[0][j] + r.area[1][j];
-    return A > 0 ? Math.max(0, (mass - m) / A) : 0;
+    return A > 0 ? Math.max(MIN_STRETCH, (mass - m) / A) : 0;
   });
 }
 
@@ -193,7 +194,7 @@ export async function planConeKnowledge(ws: Workspace, scan: Scan, base: ConeExt
     let prior: number;
     if (raster) {
       const beyond = outlineBeyondStrip(s.domain, raster);
-      prior = s.m0.reduce((acc, m, j) => acc + m + input.muWater * s.secant * beyond.area[j], 0) / s.m0.length;
+      prior = upperMass(s.m0.map((m, j) => m + input.muWater * s.secant * beyond.area[j]));
     } else {
       prior = median(Array.from(s.m0, (m, j) => m + s.area[0][j] + s.area[1][j]));
     }

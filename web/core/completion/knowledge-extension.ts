@@ -1,5 +1,6 @@
 // Detector extension from what the user knows (REFERENCES.md [kudo2008], [helgason-ludwig],
-// [kolditz2011]). Tails of a base extension (water cylinders by default, joined to each edge's
+// [kolditz2011]; mass and centroid from consistency as in [prince1993], a few smooth parameters
+// fixed by a known subregion as in [paleo2017]). Tails of a base extension (water cylinders by default, joined to each edge's
 // value and slope) are stretched view by view so that every completed parallel view carries the
 // same mass, the zeroth Helgason-Ludwig condition. With no complete view the mass itself is
 // unknown; inside the field of view it decides the smooth offset that truncated data cannot tell
@@ -8,7 +9,8 @@
 //     the centroid then shares each view's missing mass between its two tails through the
 //     first-order condition) that make the regions read their values (fit-moments.ts);
 //   - an outline alone: the mass of an object whose part outside each measured strip is the
-//     outline filled with water-equivalent material (outline-moments.ts).
+//     outline filled with water-equivalent material (outline-moments.ts; the upper end of the
+//     views' estimates, since an outline that leaves something out is short in most views).
 // Without a centroid each view keeps its base tails' sharing between left and right. The tails
 // are designed in the parallel domain (parallel-domain.ts) and sampled back onto the scan's
 // extended detector as a table (fan-tails.ts), so FBP itself is unchanged.
@@ -25,7 +27,7 @@ import { baseTails, tailReach, type DomainTails } from './domain-tails';
 import { channelsForTails, tableExtension } from './fan-tails';
 import { CENTROID_REGIONS, fitMomentsToRegions } from './fit-moments';
 import { hlDeparture, measuredMoments, objectMomentsFrom, type MeasuredMoments, type ObjectMoments } from './moments';
-import { outlineBeyondStrip, outlineMoments, outlineRaster } from './outline-moments';
+import { outlineBeyondStrip, outlineMoments, outlineRaster, outlineSpread } from './outline-moments';
 import { rebinToParallelDomain, type ParallelDomain } from './parallel-domain';
 import { regionValues, regionWindow, type FbpSettings } from './region-values';
 import { completedMoments, stretchToMass, stretchToMoments } from './stretch';
@@ -39,6 +41,12 @@ export interface CompletionReport {
   prior: ObjectMoments;
   moments: ObjectMoments;
   fit?: { fitted: 'mass' | 'mass and centroid'; iterations: number };
+  /**
+   * With an outline: (max - min) / median of the mass each view implies if the outline held
+   * water outside its strip. Near 0 when the outline and water agree with the data; large when
+   * the outline leaves material out or the object is far from water (lungs, a skull).
+   */
+  outlineSpread?: number;
   /** Relative RMS departure from the Helgason-Ludwig conditions (order 0, 1) of the base tails and of the stretched tails. */
   consistency: { base: { order0: number; order1: number }; completed: { order0: number; order1: number } };
   stretch: { mean: number; min: number; max: number };
@@ -96,9 +104,8 @@ export async function planKnowledgeExtension(ws: Workspace, scan: Scan, input: K
   throwIfCancelled(hooks.signal);
   const measured = measuredMoments(pd);
   const base = completedMoments(pd, tails, measured);
-  const prior = input.outline
-    ? outlineMoments(pd, measured, outlineBeyondStrip(pd, outlineRaster(input.outline, input.masks)), input.muWater)
-    : baseTailMoments(pd, tails, measured);
+  const beyond = input.outline ? outlineBeyondStrip(pd, outlineRaster(input.outline, input.masks)) : undefined;
+  const prior = beyond ? outlineMoments(pd, measured, beyond, input.muWater) : baseTailMoments(pd, tails, measured);
   const caps = stretchCaps(tails, pd, reachBound(scan, pd));
   // The centroid sets how a view's missing mass is shared between its tails; only three or more
   // regions determine it (fit-moments.ts). Otherwise each view keeps its base tails' sharing.
@@ -132,6 +139,7 @@ export async function planKnowledgeExtension(ws: Workspace, scan: Scan, input: K
       base: tails.summary,
       momentsFrom: input.regions.length ? 'known regions' : 'outline',
       prior, moments, ...(fit ? { fit } : {}),
+      ...(beyond ? { outlineSpread: outlineSpread(pd, measured, beyond, input.muWater) } : {}),
       consistency: { base: hlDeparture(pd.angles, base.m0, base.m1), completed: hlDeparture(pd.angles, completed.m0, completed.m1) },
       stretch: stretchStats(tails),
       channelsAdded: { left: extension.left, right: extension.right },

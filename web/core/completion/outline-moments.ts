@@ -49,9 +49,28 @@ export function outlineBeyondStrip(pd: ParallelDomain, raster: { grid: ImageGrid
   return { area, first };
 }
 
-/** The object's moments if the outline held water-equivalent material (mu_w) outside each view's strip. */
+/** Share of views whose estimate may exceed the one taken (robust to a few outlying views). */
+const UPPER_SHARE = 0.05;
+
+/**
+ * The mass from the views' estimates: their 95th percentile, not their mean. An outline drawn
+ * round the body often leaves out the arms, the table or a holder; a view sees them only when
+ * they lie in its measured strip, so the views that see most are the least short of the truth.
+ */
+export function upperMass(perView: Float64Array): number {
+  const sorted = Array.from(perView).sort((a, b) => a - b);
+  return sorted[Math.min(sorted.length - 1, Math.floor((1 - UPPER_SHARE) * sorted.length))];
+}
+
+/** Spread of the views' mass estimates, (max - min) / median: how far the outline filled with water is from agreeing with the data. */
+export function outlineSpread(pd: ParallelDomain, measured: MeasuredMoments, beyond: { area: Float64Array }, muWater: number): number {
+  const m0 = Array.from(measured.m0, (m, j) => m + muWater * beyond.area[j]).sort((a, b) => a - b);
+  return (m0[m0.length - 1] - m0[0]) / m0[m0.length >> 1];
+}
+
+/** The object's moments if the outline held water-equivalent material (mu_w) outside each view's strip (mass: upperMass). */
 export function outlineMoments(pd: ParallelDomain, measured: MeasuredMoments, beyond: { area: Float64Array; first: Float64Array }, muWater: number): ObjectMoments {
   const m0 = measured.m0.map((m, j) => m + muWater * beyond.area[j]);
   const m1 = measured.m1.map((m, j) => m + muWater * beyond.first[j]);
-  return objectMomentsFrom(pd.angles, m0, m1);
+  return objectMomentsFrom(pd.angles, m0, m1, upperMass(m0));
 }

@@ -13,6 +13,13 @@ import type { DomainTails } from './domain-tails';
 import { firstMomentAt, type MeasuredMoments, type ObjectMoments } from './moments';
 import type { ParallelDomain } from './parallel-domain';
 
+/**
+ * Shortest stretch of a tail: a base tail already meets its edge's value and slope, and one
+ * squeezed towards nothing would bring back the jump at the edge that extension removes
+ * (the bright rim). A view whose conditions ask for less keeps a quarter of its base tail.
+ */
+export const MIN_STRETCH = 0.25;
+
 function solveView(S: number, D0: number, D1: number, AL: number, AR: number, FL: number, FR: number): [number, number] {
   if (!(D0 > 0)) return [0, 0];
   if (!(AL > 0) && !(AR > 0)) return [0, 0];
@@ -50,8 +57,8 @@ export function stretchToMoments(pd: ParallelDomain, t: DomainTails, measured: M
     const [aL, aR] = solveView(S, D0, D1, t.area[2 * j], t.area[2 * j + 1], t.moment[2 * j], t.moment[2 * j + 1]);
     const capL = typeof maxStretch === 'number' ? maxStretch : maxStretch[2 * j];
     const capR = typeof maxStretch === 'number' ? maxStretch : maxStretch[2 * j + 1];
-    t.stretch[2 * j] = Math.min(aL, capL);
-    t.stretch[2 * j + 1] = Math.min(aR, capR);
+    t.stretch[2 * j] = Math.min(Math.max(aL, MIN_STRETCH), capL);
+    t.stretch[2 * j + 1] = Math.min(Math.max(aR, MIN_STRETCH), capR);
   }
 }
 
@@ -74,7 +81,7 @@ export function completedMoments(pd: ParallelDomain, t: DomainTails, measured: M
 export function stretchToMass(pd: ParallelDomain, t: DomainTails, measured: MeasuredMoments, mass: number, maxStretch: Float64Array): void {
   for (let j = 0; j < pd.nViews; j++) {
     const A = t.area[2 * j] + t.area[2 * j + 1];
-    const a = A > 0 ? Math.max(0, (mass - measured.m0[j]) / A) : 0;
+    const a = A > 0 ? Math.max(MIN_STRETCH, (mass - measured.m0[j]) / A) : 0;
     t.stretch[2 * j] = Math.min(a, maxStretch[2 * j]);
     t.stretch[2 * j + 1] = Math.min(a, maxStretch[2 * j + 1]);
   }

@@ -10,6 +10,7 @@ import { fileURLToPath } from 'node:url';
 import type { Workspace } from '../../../core/engine/workspace';
 import { readImage2D } from '../../../core/formats/read-image';
 import type { Geometry } from '../../../core/geometry/types';
+import { cropDetector, presetGeometry } from '../../../core/geometry/presets';
 import { validateGeometry } from '../../../core/geometry/validate';
 import { fovRadius } from '../../../core/geometry/view-vectors';
 import { gridOrigin, type Image2D } from '../../../core/image';
@@ -53,6 +54,8 @@ export interface CaseOptions {
   truthPixel?: number;
   /** Arc of the scan, degrees (default 360; a C-arm short scan is about 200). */
   arcDeg?: number;
+  /** A geometry of its own instead of the C-arm-like fan (views, arc and FOV fraction are then its own). */
+  geometry?: Geometry;
   /** Incident photons per detector element (Poisson noise, seeded); absent: exact line integrals. */
   photons?: number;
   seed?: number;
@@ -80,9 +83,10 @@ export function cArmFan(fov: number, views: number, pitch: number, arcDeg = 360)
 /** The case's geometry with the detector widened to cover the whole object (reach mm from the isocentre). */
 export function completeGeometry(c: SevereCase, reach: number): Geometry {
   const g = c.scan.geometry;
-  const uMax = D * Math.tan(Math.asin(Math.min(0.95, reach / R)));
+  const r = g.sourceIsocenter ?? R, d = g.sourceDetector ?? D;
+  const uMax = d * Math.tan(Math.asin(Math.min(0.95, reach / r)));
   const pitch = g.detector.pitch[0];
-  return validateGeometry({ ...g, detector: { ...g.detector, channels: 2 * Math.ceil(uMax / pitch) } });
+  return validateGeometry({ ...g, detector: { ...g.detector, channels: 2 * Math.ceil(uMax / pitch), offset: [0, g.detector.offset[1]] } });
 }
 
 /** The body: the largest 4-connected set of pixels above -500 HU, its holes filled. */
@@ -185,7 +189,7 @@ async function buildCase(name: string, about: string, truth: Image2D, o: CaseOpt
   const body = bodyMask(truth, muWater);
   const { outline, halfWidth } = momentEllipse(body, truth);
   const fov0 = (o.fovFraction ?? 0.42) * halfWidth;
-  const geometry = cArmFan(fov0, o.views ?? 360, o.pitch ?? 0.8, o.arcDeg);
+  const geometry = o.geometry ?? cArmFan(fov0, o.views ?? 360, o.pitch ?? 0.8, o.arcDeg);
   const fov = fovRadius(geometry);
   const data = await project(geometry);
   if (o.photons) addPhotonNoise(data, o.photons, o.seed ?? 1);
@@ -289,6 +293,16 @@ export function thoraxCase(o: CaseOptions = {}): Promise<SevereCase> {
   const truth: Image2D = { grid: { nx: n, ny: n, dx: pixel, dy: pixel, cx: 0, cy: 0 }, data: new Float32Array(0), quantity: 'mu', muWater: p.muWater };
   truth.data = rasterize(p, truth.grid, 4);
   return buildCase('thorax-phantom', 'thorax phantom with arms (analytic projections)', truth, o, async (g) => analyticSinogram(p, g, 4));
+}
+
+/**
+ * The scan the page and `rimfill demo` make: the thorax phantom in the 'demo' fan geometry
+ * (R 600, D 1000 mm, 720 views) with the detector cut to 345 of 1100 channels, so the field of
+ * view (radius about 102 mm) covers about 60% of the body's width: moderate truncation.
+ */
+export function demoCase(o: CaseOptions = {}): Promise<SevereCase> {
+  const geometry = cropDetector(presetGeometry('demo')!, 345).geometry;
+  return thoraxCase({ ...o, geometry }).then((c) => ({ ...c, name: 'demo-scan', about: 'the page\'s demo scan (thorax phantom, demo fan, 345 of 1100 channels)' }));
 }
 
 /** The phantom with every ellipse moved by `shift` mm. */
