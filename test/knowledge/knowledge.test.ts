@@ -73,6 +73,15 @@ describe('knowledge checked against the field of view', () => {
     expect(placeKnowledge({ outline: { shape: 'ellipse', cx: 0, cy: 0, a: 100, b: 70 } }, ctx).outline).toBeDefined();
   });
 
+  it('with a reconstruction, an outline may leave out air in the field of view but not the object', () => {
+    // A disc of water 50 mm across centred at (20, 0) in a field of view of radius 60 mm: an
+    // outline round the disc leaves out only air; one that cuts the disc is refused.
+    const image = new Float32Array(256 * 256).map((_, q) => (Math.hypot((q % 256) - 127.5 - 20, Math.floor(q / 256) - 127.5) <= 50 ? 0.02 : 0));
+    expect(placeKnowledge({ outline: { shape: 'ellipse', cx: 20, cy: 0, a: 55, b: 55 } }, { ...ctx, image }).outline).toBeDefined();
+    expect(() => placeKnowledge({ outline: { shape: 'ellipse', cx: 20, cy: 0, a: 55, b: 55 } }, ctx)).toThrow(/must enclose the measured field/);
+    expect(() => placeKnowledge({ outline: { shape: 'ellipse', cx: 20, cy: 0, a: 55, b: 30 } }, { ...ctx, image })).toThrow(/outline \(ellipse .*where the data show the object.*must enclose the object/);
+  });
+
   it('refuses a mask that was not given', () => {
     expect(() => placeKnowledge({ known: [{ shape: 'mask', input: 'air.nrrd', hu: -1000 }] }, ctx)).toThrow(/mask "air.nrrd" was not given/);
   });

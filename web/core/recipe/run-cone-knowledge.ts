@@ -33,14 +33,15 @@ export async function runConeKnowledge(ws: Workspace, scan: Scan, recipe: Recipe
   const part = (from: number, to: number): RunHooks => ({ signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(from + (to - from) * f, s) });
   const base = await planConeExtension(scan, 'water', part(0, 0.05));
   const grid = chooseVolumeGrid(scan, recipe.grid, recipe.volume, base.objectRadius);
-  const placed = placeKnowledge(knowledge, { grid, fovRadius: fovRadius(scan.geometry), muWater, masks: inputs.masks });
   const fbp = { filter: recipe.filter, cutoff: recipe.cutoff };
+  const channels = scan.geometry.detector.channels;
+  // The base extension's volume first: the outline is checked against what it shows in the field.
+  const before = await fdk3d(ws, scan, { grid, ...fbp, extension: coneRowExtension(base, channels) }, part(0.05, 0.3));
+  const placed = placeKnowledge(knowledge, { grid, fovRadius: fovRadius(scan.geometry), muWater, masks: inputs.masks, image: before.volume.data });
   const { plan, report: completion } = await planConeKnowledge(ws, scan, base, {
     regions: placed.regions, outline: knowledge.outline, masks: inputs.masks, grid, fbp, muWater,
-  }, part(0.05, 0.3));
+  }, part(0.3, 0.55));
   const t1 = performance.now();
-  const channels = scan.geometry.detector.channels;
-  const before = await fdk3d(ws, scan, { grid, ...fbp, extension: coneRowExtension(base, channels) }, part(0.3, 0.55));
   const after = await fdk3d(ws, scan, { grid, ...fbp, extension: coneRowExtension(plan, channels) }, part(0.55, 0.8));
   const t2 = performance.now();
   const resBefore = await volumeDataResidual(ws, before.volume, scan, part(0.8, 0.9));

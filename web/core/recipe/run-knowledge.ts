@@ -36,14 +36,15 @@ export async function runKnowledgeFbp(ws: Workspace, scan: Scan, recipe: Recipe,
   const analysis = analyseEdges(scan);
   const grid = chooseGrid(scan, recipe.grid, objectRadius(analysis));
   const fov = fovRadius(scan.geometry);
-  const placed = placeKnowledge(knowledge, { grid, fovRadius: fov, muWater, masks: inputs.masks });
   const basePlan = planExtension(scan, method, analysis);
   const fbp = { filter: recipe.filter, cutoff: recipe.cutoff };
+  // The base extension's image first: the outline is checked against what it shows in the field.
+  const before = await fbp2d(ws, scan, { grid, ...fbp, extension: basePlan }, { signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(0.2 * f, s) });
+  const placed = placeKnowledge(knowledge, { grid, fovRadius: fov, muWater, masks: inputs.masks, image: before.image.data });
   const { extension, report: completion } = await planKnowledgeExtension(ws, scan, {
     method, regions: placed.regions, outline: knowledge.outline, masks: inputs.masks, grid, fbp, muWater,
-  }, { signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(0.3 * f, s) });
+  }, { signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(0.2 + 0.3 * f, s) });
   const t1 = performance.now();
-  const before = await fbp2d(ws, scan, { grid, ...fbp, extension: basePlan }, { signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(0.3 + 0.2 * f, s) });
   const after = await fbp2d(ws, scan, { grid, ...fbp, extension }, { signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(0.5 + 0.2 * f, s) });
   const t2 = performance.now();
   const image: Image2D = { ...after.image, fovRadius: fov };
