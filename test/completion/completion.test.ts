@@ -1,5 +1,5 @@
 // Projection completion with knowledge, piece by piece, against analytic projections of
-// ellipses (Kak & Slaney 1988 ch. 3, references in REFERENCES.md [kak-slaney]), the
+// ellipses (Kak & Slaney 1988 ch. 3, REFERENCES.md [ellipse-projection]), the
 // Helgason-Ludwig conditions on exact data ([helgason-ludwig]) and elementary geometry.
 import { describe, expect, it } from 'vitest';
 import { baseTails } from '../../web/core/completion/domain-tails';

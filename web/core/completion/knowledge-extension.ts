@@ -139,7 +139,7 @@ export async function planKnowledgeExtension(ws: Workspace, scan: Scan, input: K
       base: tails.summary,
       momentsFrom: input.regions.length ? 'known regions' : 'outline',
       prior, moments, ...(fit ? { fit } : {}),
-      ...(beyond ? { outlineSpread: outlineSpread(pd, measured, beyond, input.muWater) } : {}),
+      ...(beyond ? { outlineSpread: outlineSpread(measured, beyond, input.muWater) } : {}),
       consistency: { base: hlDeparture(pd.angles, base.m0, base.m1), completed: hlDeparture(pd.angles, completed.m0, completed.m1) },
       stretch: stretchStats(tails),
       channelsAdded: { left: extension.left, right: extension.right },

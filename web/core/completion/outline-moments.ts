@@ -63,7 +63,7 @@ export function upperMass(perView: Float64Array): number {
 }
 
 /** Spread of the views' mass estimates, (max - min) / median: how far the outline filled with water is from agreeing with the data. */
-export function outlineSpread(pd: ParallelDomain, measured: MeasuredMoments, beyond: { area: Float64Array }, muWater: number): number {
+export function outlineSpread(measured: MeasuredMoments, beyond: { area: Float64Array }, muWater: number): number {
   const m0 = Array.from(measured.m0, (m, j) => m + muWater * beyond.area[j]).sort((a, b) => a - b);
   return (m0[m0.length - 1] - m0[0]) / m0[m0.length >> 1];
 }

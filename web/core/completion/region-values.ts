@@ -42,14 +42,15 @@ export function regionWindow(region: PlacedRegion, g: ImageGrid): RegionWindow {
 
 export interface FbpSettings {
   filter: FilterWindow;
-  cutoff: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
 }
 
 /** Mean of FBP with extension `ext` over each region window, mu in 1/mm. */
 export async function regionValues(ws: Workspace, scan: Scan, ext: DetectorExtension, windows: RegionWindow[], f: FbpSettings): Promise<number[]> {
   const out: number[] = [];
   for (const w of windows) {
-    const r = await fbp2d(ws, scan, { grid: w.grid, filter: f.filter, cutoff: f.cutoff, extension: ext });
+    const r = await fbp2d(ws, scan, { grid: w.grid, filter: f.filter, bandLimit: f.bandLimit, extension: ext });
     let s = 0;
     for (let q = 0; q < w.coverage.length; q++) s += w.coverage[q] * r.image.data[q];
     out.push(s / w.total);

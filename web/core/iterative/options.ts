@@ -6,8 +6,8 @@ import type { Recipe } from '../recipe/recipe';
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
 export type IterativeMethod = (typeof ITERATIVE_METHODS)[number];
 
-export const SUPPORTS = ['circle', 'grid', 'image'] as const;
-/** circle: the disk inscribed in the grid; grid: every pixel; image: a mask image given with the run. */
+export const SUPPORTS = ['disk', 'grid', 'image'] as const;
+/** disk: the disk inscribed in the grid (a cylinder for volumes); grid: every pixel; image: a mask image given with the run. */
 export type SupportShape = (typeof SUPPORTS)[number];
 
 /**
@@ -48,7 +48,7 @@ export type IterativeOptions = Required<Omit<IterativeFields, 'prior'>>;
 
 /**
  * Defaults. N_grad = 20 and the step-control constants follow Sidky & Pan 2008 (from memory,
- * references.md section 5). Their alpha = 0.2 suits a ray-by-ray ART data step; with OS-SART
+ * REFERENCES.md [sidky-pan-2008]). Their alpha = 0.2 suits a ray-by-ray ART data step; with OS-SART
  * and our step scale (solve.ts) the TV phase needs far less: tuned on the test phantoms
  * (test/iterative), 0.002 for TV and 0.005 for reweighted TV, whose weights shrink the steps
  * at edges. Relaxation 0.5 keeps OS-SART's subset noise down on noisy data (common practice).
@@ -63,7 +63,7 @@ export const ITERATIVE_DEFAULTS: IterativeOptions = {
   tvEps: 0.0005,
   priorWeight: 1,
   nonNegative: true,
-  support: 'circle',
+  support: 'disk',
 };
 
 /** Plain TV smooths edges too, so it takes a smaller default TV step than reweighted TV. */

@@ -9,8 +9,8 @@
 import type { Knowledge } from '../knowledge';
 import { validateRecipe, type Recipe } from './recipe';
 
-/** Fields of the FBP recipe the caller may set (grid, filter, cutoff). */
-export type FbpChoices = Partial<Pick<Recipe, 'grid' | 'filter' | 'cutoff'>>;
+/** Fields of the FBP recipe the caller may set (grid, filter, band limit). */
+export type FbpChoices = Partial<Pick<Recipe, 'grid' | 'filter' | 'bandLimit'>>;
 
 /** The FBP recipe for `knowledge` (validated; throws InputError for malformed knowledge). */
 export function fbpRecipeForKnowledge(knowledge?: Knowledge, choices: FbpChoices = {}): Recipe {

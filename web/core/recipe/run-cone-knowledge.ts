@@ -33,7 +33,7 @@ export async function runConeKnowledge(ws: Workspace, scan: Scan, recipe: Recipe
   const part = (from: number, to: number): RunHooks => ({ signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(from + (to - from) * f, s) });
   const base = await planConeExtension(scan, 'water', part(0, 0.05));
   const grid = chooseVolumeGrid(scan, recipe.grid, recipe.volume, base.objectRadius);
-  const fbp = { filter: recipe.filter, cutoff: recipe.cutoff };
+  const fbp = { filter: recipe.filter, bandLimit: recipe.bandLimit };
   const channels = scan.geometry.detector.channels;
   // The base extension's volume first: the outline is checked against what it shows in the field.
   const before = await fdk3d(ws, scan, { grid, ...fbp, extension: coneRowExtension(base, channels) }, part(0.05, 0.3));

@@ -37,7 +37,7 @@ export async function runKnowledgeFbp(ws: Workspace, scan: Scan, recipe: Recipe,
   const grid = chooseGrid(scan, recipe.grid, objectRadius(analysis));
   const fov = fovRadius(scan.geometry);
   const basePlan = planExtension(scan, method, analysis);
-  const fbp = { filter: recipe.filter, cutoff: recipe.cutoff };
+  const fbp = { filter: recipe.filter, bandLimit: recipe.bandLimit };
   // The base extension's image first: the outline is checked against what it shows in the field.
   const before = await fbp2d(ws, scan, { grid, ...fbp, extension: basePlan }, { signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(0.2 * f, s) });
   const placed = placeKnowledge(knowledge, { grid, fovRadius: fov, muWater, masks: inputs.masks, image: before.image.data });

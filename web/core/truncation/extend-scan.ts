@@ -4,8 +4,8 @@
 // itself (iterative and prior-guided reconstruction).
 import type { Buf, Workspace } from '../engine/workspace';
 import { splitRange } from '../recon/split';
-import type { Scan } from '../scan';
 import { EXTEND_PARAMS } from './extend-methods';
+import type { Scan } from '../scan';
 import type { DetectorExtension, ExtensionPlan } from './extension-plan';
 
 /** An extension's tables in engine memory. */
