@@ -70,7 +70,7 @@ describe('rimfill reconstruct: bad knowledge is refused with one line, exit 2, n
     ['a region outside the measured field', ['--known', '80,0,10:0'], /known region 1 \(circle at 80, 0 mm.*outside the measured field of view/],
     ['a region outside the grid', ['--known', '900,0,10:0'], /known region 1 .*covers no pixel of the reconstruction grid/],
     ['a region over no data (an empty mask)', ['--known', 'EMPTY:0'], /known region 1 \(mask .*empty\.nrrd.*covers no pixel/],
-    ['an outline smaller than the measured field', ['--outline', 'ellipse:0,0,30,20'], /outline \(ellipse .*must enclose the measured field/],
+    ['an outline smaller than the measured field', ['--outline', 'ellipse:0,0,30,20'], /outline \(ellipse .*of the measured field of view lies outside it where the data show the object.*must enclose the object/],
     ['contradictory regions', ['--known', '0,0,10:0', '--known', '5,0,10:60'], /known region 1 .* and known region 2 .* contradict each other/],
     ['a malformed region', ['--known', '0,0:10'], /--known "0,0:10": got "0,0", expected 3 or 5 numbers/],
     ['extend outline without an outline', ['--extend', 'outline', '--known', '0,0,5:0'], /option --extend: got "outline".*give the outline too/],

@@ -20,13 +20,14 @@ const insideRmse = async (c: SevereCase, recipe: unknown) => {
 
 describe('FBP with knowledge on the real CT thorax slice (NEMA WG-04 CT1)', () => {
   let c: SevereCase;
+  let water: { rmse: number };
   const grid = { size: 256, pixel: 1.9 };
   beforeAll(async () => {
     c = await realSliceCase(await localWorkspace(2), 'nema-ct1-thorax.nrrd', { views: 180 });
+    water = await insideRmse(c, { method: 'fbp', extend: 'water', grid });
   });
 
   it('one known 20 mm disc: the disc reads its value, the error inside the field drops below a third of FBP + water, the residual does not grow', async () => {
-    const water = await insideRmse(c, { method: 'fbp', extend: 'water', grid });
     const known = await insideRmse(c, { method: 'fbp', extend: 'water', grid, knowledge: { known: [c.known] } });
     const r = known.report.regions[0];
     expect(r.knownHu).toBe(c.known.hu);
@@ -44,7 +45,6 @@ describe('FBP with knowledge on the real CT thorax slice (NEMA WG-04 CT1)', () =
   });
 
   it('the outline alone: below half of FBP + water; the report names it', async () => {
-    const water = await insideRmse(c, { method: 'fbp', extend: 'water', grid });
     const outline = await insideRmse(c, { method: 'fbp', extend: 'outline', grid, knowledge: { outline: c.outline } });
     expect(outline.rmse).toBeLessThan(water.rmse / 2);
     expect(outline.report.used[0]).toMatch(/^outline \(ellipse/);
@@ -55,7 +55,7 @@ describe('FBP with knowledge on the real CT thorax slice (NEMA WG-04 CT1)', () =
 
 describe('FBP with knowledge on the thorax phantom with arms', () => {
   it('a known disc fits the mass; a deliberately wrong value (+20 HU) moves the result by no more than about that', async () => {
-    const c = await thoraxCase({ views: 180, truthPixel: 1.6 });
+    const c = await thoraxCase({ views: 120, truthPixel: 2 });
     const grid = { size: 256, pixel: 2 };
     const water = await insideRmse(c, { method: 'fbp', extend: 'water', grid });
     const right = await insideRmse(c, { method: 'fbp', extend: 'water', grid, knowledge: { known: [c.known] } });
