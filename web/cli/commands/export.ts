@@ -9,7 +9,7 @@ import { formatFromName, writeImageFile } from '../../core/formats/write-image';
 import { checkMuWater } from '../../core/preprocess/hu-calibration';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { gatherFiles } from '../gather';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { loadScanWithReport, memoryLimit, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { dirname, join } from 'node:path';
 import type { CommandResult } from './types';
@@ -28,7 +28,7 @@ async function exportScan(path: string, out: string, a: ParsedArgs): Promise<Com
   const r = await loadScanWithReport(path, a);
   const writes = new PendingWrites();
   writes.add(out, await writeScanNrrd(r.scan, Boolean(a.options.compress)));
-  writes.commit();
+  r.warnings.push(...replacedWarnings(writes.commit()));
   const d = r.scan.geometry.detector;
   const views = r.scan.data.length / (d.channels * d.rows);
   return {
@@ -46,6 +46,7 @@ export async function exportCommand(argv: string[]): Promise<CommandResult> {
   const path = a.positional[0];
   if (!path) throw new InputError('export: give the input, e.g. rimfill export image.dcm --to image.png --window 400 --level 40');
   const out = requireString(a, 'to');
+  checkOutputs([['to', out]]);
   if (a.options.scan) return exportScan(path, out, a);
   for (const k of ['geometry', 'flat', 'dark', 'i0']) if (a.options[k] !== undefined) throw new InputError(`option --${k} applies to scans: add --scan`);
   if (a.options.hu && a.options.mu) throw new InputError('options --hu and --mu exclude each other');
@@ -65,11 +66,11 @@ export async function exportCommand(argv: string[]): Promise<CommandResult> {
   const writes = new PendingWrites();
   const names = w.files.map((f) => join(dirname(out), f.name));
   w.files.forEach((f, i) => writes.add(names[i], f.bytes));
-  writes.commit();
+  const replaced = replacedWarnings(writes.commit());
   const g = image.grid;
   return {
     json: { written: names, from: volume.format, nx: g.nx, ny: g.ny, pixelMm: [g.dx, g.dy], clamped: w.clamped },
     text: `wrote ${names.join(' and ')}: ${g.nx} x ${g.ny} pixels from ${volume.format}`,
-    warnings: [...warnings, ...w.warnings],
+    warnings: [...warnings, ...w.warnings, ...replaced],
   };
 }

@@ -8,7 +8,7 @@ import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { priorConsistency } from '../prior-consistency';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { openWorkspace } from '../engine-node';
@@ -75,8 +75,9 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
-  const recipe = recipeFromArgs(a);
   const out = requireString(a, 'out');
+  checkOutputs([['out', out]]);
+  const recipe = recipeFromArgs(a);
   const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
   if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
@@ -96,7 +97,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     if (r.volume) {
       const v = r.volume;
       writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu' } : v));
-      writes.commit();
+      readWarnings.push(...replacedWarnings(writes.commit()));
       const vg = v.grid;
       return {
         json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
@@ -106,7 +107,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
-    writes.commit();
+    readWarnings.push(...replacedWarnings(writes.commit()));
     const g = image.grid;
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },

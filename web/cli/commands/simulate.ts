@@ -3,19 +3,22 @@
 import { existsSync } from 'node:fs';
 import { InputError } from '../../core/errors';
 import { cropDetector } from '../../core/geometry/presets';
+import { viewCount } from '../../core/geometry/types';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
-import { squareGrid, type Image2D } from '../../core/image';
+import { squareGrid, type Image2D, type ImageGrid } from '../../core/image';
 import { namedPhantom, PHANTOM_NAMES } from '../../core/phantoms';
 import { rasterize } from '../../core/phantoms/ellipse';
 import { Projector2d } from '../../core/recon/projector';
+import { chooseGrid, DEFAULT_GRID_SIZE } from '../../core/recipe/grid';
 import type { Scan } from '../../core/scan';
 import { analyticSinogram } from '../../core/simulate/analytic';
 import { collimatedChannels } from '../../core/simulate/collimate';
 import { addPhotonNoise } from '../../core/simulate/noise';
-import { parseArgs, positiveNumber, requireString } from '../args';
-import { PendingWrites } from '../io';
+import { parseArgs, positiveNumber, requireString, type ParsedArgs } from '../args';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
+import { largeOutputWarning, stderrWarning, writtenLines, type PlannedFile } from '../output-report';
 import { loadGeometry, loadImage } from '../load';
 import { openWorkspace } from '../engine-node';
 import { simulateCone } from './simulate-cone';
@@ -28,22 +31,53 @@ export const simulateHelp = `rimfill simulate --phantom <name|image file> --geom
   keeps the channels whose rays pass within a centred region of that diameter (mm at the
   isocentre); --offset shifts the kept channels by that many mm along the detector (one side
   truncated more than the other). --complete also writes the untruncated scan of the same
-  object; --truth writes the object on a grid (--size x --size pixels of --pixel mm, default:
-  covering the object). An image phantom may be NRRD, MetaImage, raw + JSON, DICOM (file or
+  object; --truth writes the object on a grid: by default the grid that reconstruct uses for
+  this scan when given none (so compare needs no resampling); --size x --size pixels of
+  --pixel mm (with --pixel alone: covering the object). Every file written is listed with its
+  size; more than 200 MB is announced before the work starts. An image phantom may be NRRD, MetaImage, raw + JSON, DICOM (file or
   series folder; HU need --mu-water) or TIFF; --slice picks one slice of a volume.
   Cone-beam geometries (e.g. --geometry demo-cone) simulate 3D phantoms or volumes (any of the
   image formats above, e.g. a DICOM series folder; HU need --mu-water); the truth is then a
   volume of --slices slices (default: the measured height).`;
 
-export async function simulate(argv: string[]): Promise<CommandResult> {
+/** Seams for tests: the size above which a warning is given, and where it goes. */
+export interface SimulateOptions {
+  warnAboveBytes?: number;
+  warn?: (text: string) => void;
+}
+
+/** What simulate writes: the scan, and the truth and complete scan when asked for. */
+export interface SimulateOutputs {
+  out: string;
+  truth?: string;
+  complete?: string;
+  /** Existing files that will be replaced. */
+  replaced: string[];
+}
+
+/** The outputs of simulate, checked before any work (io.ts checkOutputs). */
+export function simulateOutputs(a: ParsedArgs): SimulateOutputs {
+  const out = requireString(a, 'out');
+  const truth = a.options.truth as string | undefined, complete = a.options.complete as string | undefined;
+  return { out, truth, complete, replaced: checkOutputs([['out', out], ['truth', truth], ['complete', complete]]) };
+}
+
+/** Warns (before the work) when the planned files exceed the limit. */
+export function announceLargeOutput(files: PlannedFile[], o: SimulateOptions, command = 'simulate'): void {
+  const w = largeOutputWarning(files, o.warnAboveBytes);
+  if (w) (o.warn ?? stderrWarning(command))(w);
+}
+
+export async function simulate(argv: string[], options: SimulateOptions = {}): Promise<CommandResult> {
   const a = parseArgs(argv, {
     phantom: 'string', geometry: 'string', channels: 'int', offset: 'number', photons: 'number', seed: 'int',
     out: 'string', truth: 'string', complete: 'string', size: 'int', pixel: 'number', subsamples: 'int', json: 'flag', workers: 'int',
     slice: 'int', 'mu-water': 'number', collimate: 'number', slices: 'int',
   }, 0);
-  const out = requireString(a, 'out');
+  const outputs = simulateOutputs(a);
+  const { out } = outputs;
   const full = loadGeometry(requireString(a, 'geometry'));
-  if (full.kind === 'cone') return simulateCone(a, full);
+  if (full.kind === 'cone') return simulateCone(a, full, outputs, options);
   if (a.options.slices !== undefined) throw new InputError('option --slices: only for cone-beam geometries (the truth of a 2D scan is one slice)');
   const phantomArg = requireString(a, 'phantom');
   const photons = positiveNumber(a, 'photons');
@@ -58,31 +92,25 @@ export async function simulate(argv: string[]): Promise<CommandResult> {
     : undefined;
 
   let data: Float32Array;
-  let truth: Image2D;
+  let truth: Image2D | undefined;
   let muWater: number | undefined;
+  const views = viewCount(full);
+  const planned: PlannedFile[] = [{ path: out, bytes: views * (crop?.geometry ?? full).detector.channels * 4, smaller: 'a geometry with fewer views or channels' }];
+  if (outputs.complete) planned.push({ path: outputs.complete, bytes: views * full.detector.channels * 4, smaller: 'leave out --complete' });
   const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
   if (isFile) {
     truth = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
     muWater = truth.muWater;
-    const ws = await openWorkspace((a.options.workers as number | undefined) ?? undefined);
-    try {
-      const proj = await Projector2d.create(ws, truth.grid, full);
-      const img = ws.alloc('phantom', truth.data.length);
-      const sino = ws.alloc('sino', proj.nViews * proj.nCh);
-      await ws.write(img, truth.data);
-      await proj.forward(img, sino);
-      data = await ws.read(sino);
-    } finally {
-      ws.dispose();
-    }
+    if (outputs.truth) planned.push({ path: outputs.truth, bytes: truth.data.byteLength, smaller: 'a smaller phantom image' });
+    announceLargeOutput(planned, options);
+    data = await projectImage(truth, full, a.options.workers as number | undefined);
   } else {
     const p = namedPhantom(phantomArg);
     muWater = p.muWater;
+    const size = truthSize(a, p.radius);
+    if (outputs.truth) planned.push({ path: outputs.truth, bytes: size * size * 4, smaller: '--size N --pixel mm (fewer, larger pixels)' });
+    announceLargeOutput(planned, options);
     data = analyticSinogram(p, full, subsamples);
-    const pixel = positiveNumber(a, 'pixel', 1)!;
-    const size = (a.options.size as number | undefined) ?? Math.ceil((2 * p.radius) / pixel / 4) * 4 + 8;
-    truth = { grid: squareGrid(size, pixel), data: new Float32Array(0), quantity: 'mu', muWater };
-    if (a.options.truth) truth.data = rasterize(p, truth.grid, 4);
   }
   let zeroCounts = 0;
   if (photons) zeroCounts = addPhotonNoise(data, photons, seed).zeroCounts;
@@ -92,24 +120,68 @@ export async function simulate(argv: string[]): Promise<CommandResult> {
   let scan = completeScan;
   if (crop) {
     const n = crop.geometry.detector.channels, nFull = full.detector.channels;
-    const nViews = data.length / nFull;
-    const cut = new Float32Array(nViews * n);
-    for (let v = 0; v < nViews; v++) cut.set(data.subarray(v * nFull + crop.first, v * nFull + crop.first + n), v * n);
+    const cut = new Float32Array(views * n);
+    for (let v = 0; v < views; v++) cut.set(data.subarray(v * nFull + crop.first, v * nFull + crop.first + n), v * n);
     scan = { geometry: crop.geometry, data: cut, muWater, notes: { ...notes, truncatedFrom: `${nFull} channels` } };
   }
+  if (!truth && outputs.truth) {
+    // The built-in phantom on the truth grid: by default the one reconstruct picks for this scan.
+    const p = namedPhantom(phantomArg);
+    const grid = truthGrid(a, p.radius, scan);
+    truth = { grid, data: rasterize(p, grid, 4), quantity: 'mu', muWater };
+  }
   const writes = new PendingWrites();
+  const what: Record<string, string> = {};
+  const fov = fovRadius(scan.geometry);
   writes.add(out, await writeScanNrrd(scan));
-  if (a.options.complete) writes.add(a.options.complete as string, await writeScanNrrd(completeScan));
-  if (a.options.truth) writes.add(a.options.truth as string, await writeImageNrrd({ ...truth, fovRadius: fovRadius(scan.geometry) }));
-  writes.commit();
+  what[out] = `scan, ${views} views x ${scan.geometry.detector.channels} channels, FOV radius ${fov.toFixed(1)} mm`;
+  if (outputs.complete) {
+    writes.add(outputs.complete, await writeScanNrrd(completeScan));
+    what[outputs.complete] = `complete scan, ${views} views x ${full.detector.channels} channels`;
+  }
+  if (outputs.truth && truth) {
+    writes.add(outputs.truth, await writeImageNrrd({ ...truth, fovRadius: fov }));
+    what[outputs.truth] = `ground truth, ${truth.grid.nx} x ${truth.grid.ny} pixels of ${Number(truth.grid.dx.toPrecision(6))} mm`;
+  }
+  const written = writes.commit();
   const summary = {
     out,
-    views: data.length / full.detector.channels,
+    views,
     channels: scan.geometry.detector.channels,
-    fovRadiusMm: fovRadius(scan.geometry),
+    fovRadiusMm: fov,
     photons: photons ?? null,
     zeroCountReadings: zeroCounts,
+    files: written.map((w) => ({ path: w.path, bytes: w.bytes, replaced: w.replaced })),
+    ...(outputs.truth && truth ? { truthGrid: truth.grid } : {}),
   };
-  const warnings = zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : [];
-  return { json: summary, text: `wrote ${out}: ${summary.views} views x ${summary.channels} channels, FOV radius ${summary.fovRadiusMm.toFixed(1)} mm`, warnings };
+  const warnings = [...(zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : []), ...replacedWarnings(written)];
+  return { json: summary, text: writtenLines(written, what).join('\n'), warnings };
+}
+
+/** Forward projection of an image phantom in the geometry. */
+async function projectImage(truth: Image2D, g: Scan['geometry'], workers: number | undefined): Promise<Float32Array> {
+  const ws = await openWorkspace(workers ?? undefined);
+  try {
+    const proj = await Projector2d.create(ws, truth.grid, g);
+    const img = ws.alloc('phantom', truth.data.length);
+    const sino = ws.alloc('sino', proj.nViews * proj.nCh);
+    await ws.write(img, truth.data);
+    await proj.forward(img, sino);
+    return await ws.read(sino);
+  } finally {
+    ws.dispose();
+  }
+}
+
+/** Pixels along each side of the truth grid (--size; with --pixel alone, covering the phantom; else the default grid's). */
+function truthSize(a: ParsedArgs, phantomRadius: number): number {
+  if (a.options.size !== undefined) return a.options.size as number;
+  if (a.options.pixel !== undefined) return Math.ceil((2 * phantomRadius) / positiveNumber(a, 'pixel')! / 4) * 4 + 8;
+  return DEFAULT_GRID_SIZE;
+}
+
+/** The truth grid: --size/--pixel as given, or the grid a reconstruction of `scan` takes when it names none. */
+function truthGrid(a: ParsedArgs, phantomRadius: number, scan: Scan): ImageGrid {
+  if (a.options.size === undefined && a.options.pixel === undefined) return chooseGrid(scan);
+  return squareGrid(truthSize(a, phantomRadius), positiveNumber(a, 'pixel', 1)!);
 }
