@@ -18,7 +18,9 @@ export const exportHelp = `rimfill export <image file or folder> --to out.nrrd|o
     [--hu | --mu] [--int16] [--window W --level L] [--mu-water X] [--slice k] [--compress] [--json]
   Writes an image (NRRD, MetaImage, raw + JSON, DICOM file or series folder, TIFF) as NRRD or
   MetaImage (float32 mu, float32 HU, or --int16 HU) or as an 8-bit PNG shown at a window
-  (--window width, --level centre, in the written units). HU <-> mu needs mu_water.
+  (--window width, --level centre, in HU: an image in mu is converted with its mu_water or
+  --mu-water; with --mu the window is in 1/mm). A window that misses the image is refused.
+  HU <-> mu needs mu_water.
 rimfill export <scan file or folder> --scan --to scan.nrrd [--compress] [--json]
 ${SCAN_INPUT_HELP}
   Writes projections (any readable format, intensities converted) as a Rimfill scan file.`;
