@@ -2,7 +2,8 @@ import { html, LitElement, css, nothing } from 'lit';
 import { CancelledError, InputError } from '../core/errors';
 import type { Comparison } from '../core/compare';
 import type { Image2D, ImageGrid } from '../core/image';
-import { detectTruncation, type TruncationReport } from '../core/truncation/detect';
+import type { TruncationReport } from '../core/truncation/detect';
+import type { CorrectionAdvice } from '../core/truncation/recommend';
 import { requestPersistence, StorageFullError, storageUse, type StorageUse } from '../store/quota';
 import type { ResultMeta, ScanMeta } from '../store/records';
 import { deleteResult, listResults, loadResultImage } from '../store/results';
@@ -11,6 +12,7 @@ import { loadSettings } from '../store/settings';
 import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
 import { geometrySummary } from './logic/describe';
+import { scanDefaults } from './logic/scan-defaults';
 import { remainingMs } from './logic/time-left';
 import { MAX_COMPARED, type ImageImportState } from './result-list';
 import { TRUTH } from './results-view';
@@ -30,9 +32,13 @@ type Tab = 'scan' | 'reconstruct' | 'images' | 'prior';
 
 interface LoadedScan {
   id: string;
-  /** One detector row (the middle one), [view][channel]. */
+  /** One detector row (the central one), [view][channel]. */
   projections: Float32Array;
   report: TruncationReport;
+  /** The correction the report suggests (the recipe form starts with it). */
+  advice: CorrectionAdvice;
+  /** The grid a recipe without one gets, in words. */
+  gridText: string;
   truth?: Image2D;
   referenceGrid?: ImageGrid;
 }
@@ -181,14 +187,9 @@ export class AppShell extends LitElement {
     const mine = this.results.filter((r) => r.scanId === id);
     this.compareIds = mine.length ? [mine[mine.length - 1].id] : [];
     this.comparisons = new Map();
-    const { meta, scan, reference } = await loadScan(id);
+    const { scan, reference } = await loadScan(id);
     if (this.selectedScanId !== id) return;
-    const d = meta.geometry.detector;
-    const views = scan.data.length / (d.channels * d.rows);
-    const mid = Math.floor(d.rows / 2);
-    const row = d.rows === 1 ? scan.data : Float32Array.from({ length: views * d.channels }, (_, k) => scan.data[(Math.floor(k / d.channels) * d.rows + mid) * d.channels + (k % d.channels)]);
-    const report = detectTruncation({ geometry: { ...meta.geometry, detector: { ...d, rows: 1 } }, data: row, muWater: meta.muWater });
-    this.loaded = { id, projections: row, report, truth: reference, referenceGrid: reference?.grid };
+    this.loaded = { id, ...scanDefaults(scan), truth: reference, referenceGrid: reference?.grid };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);
   }
@@ -384,7 +385,8 @@ export class AppShell extends LitElement {
 
   private scanTab(scan: ScanMeta) {
     return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
-        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .geometryError=${this.geometryError}
+        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined}
+        .geometryError=${this.geometryError}
         @geometry-apply=${(e: CustomEvent) => this.applyGeometry(e.detail.geometry)}></rf-scan-view>`;
   }
 
@@ -400,6 +402,7 @@ export class AppShell extends LitElement {
     return html`<div class="reconstruct">
         <div class="card"><h2>Recipe for “${scan.name}”</h2>
           <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?cone=${scan.geometry.kind === 'cone'}
+            .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined} .defaultGrid=${this.loaded?.id === scan.id ? this.loaded.gridText : ''}
             .priorResults=${this.priorChoices(scan)}
             @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
         <div class="card"><h2>Queue</h2>

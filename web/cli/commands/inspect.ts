@@ -4,6 +4,7 @@ import { coneFovHalfHeight } from '../../core/geometry/cone';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { centralRowScan } from '../../core/truncation/central-row';
 import { detectTruncation, type TruncationReport } from '../../core/truncation/detect';
+import { recommendCorrection, type CorrectionAdvice } from '../../core/truncation/recommend';
 import { parseArgs } from '../args';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import type { CommandResult } from './types';
@@ -13,7 +14,8 @@ ${SCAN_INPUT_HELP}
   Reports, per view and per detector side, whether the projection is cut off (edge value
   against a noise-aware threshold), the edge value and outward slope, how far the object
   reaches beyond the edge (water cylinder fit, smoothed across views), the mass each view
-  misses (mass consistency), and a summary. --views lists every view; --json gives it all.
+  misses (mass consistency), a summary, and the correction it suggests for reconstruct
+  (--extend) with the reason. --views lists every view; --json gives it all.
   --mu-water sets mu of water for the fits when the scan records none.`;
 
 const pct = (x: number) => `${(100 * x).toFixed(1)}%`;
@@ -38,6 +40,8 @@ function summaryLines(r: TruncationReport): string[] {
     lines.push(`mass consistency (${form}): ${total}; cut-off views miss up to ${pct(m.maxMissingFraction)} (mean ${pct(m.meanMissingFraction)})`);
   }
   lines.push(`edge threshold ${r.threshold.toPrecision(3)} (noise sigma ${r.noiseSigma.toPrecision(3)}); water fits with mu ${r.muWater} /mm${r.muAssumed ? ' (assumed: the scan records no mu_water)' : ''}`);
+  const advice = recommendCorrection(s);
+  lines.push(`suggested correction: ${advice.label} (--extend ${advice.extend}): ${advice.reason}`);
   return lines;
 }
 
@@ -64,5 +68,6 @@ export async function inspect(argv: string[]): Promise<CommandResult> {
     ...summaryLines(r),
     ...(a.options.views ? viewLines(r) : []),
   ].join('\n');
-  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...r }, text, warnings };
+  const recommendation: CorrectionAdvice = recommendCorrection(r.summary);
+  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...r, recommendation }, text, warnings };
 }
