@@ -2,7 +2,8 @@
 // offers is a choice, every default field is described, and the summary reads the recipe.
 import { describe, expect, it } from 'vitest';
 import { FILTER_WINDOWS } from '../../web/core/recon/filter-design';
-import { describeRecipeFields, recipeSummary, RECIPE_FIELDS, type ChoiceField } from '../../web/core/recipe/fields';
+import { describeRecipeFields, RECIPE_FIELDS, type ChoiceField } from '../../web/core/recipe/fields';
+import { methodAndCorrection, recipeLabel } from '../../web/core/recipe/label';
 import { DEFAULT_RECIPE, METHODS, validateRecipe } from '../../web/core/recipe/recipe';
 
 describe('recipe fields', () => {
@@ -25,11 +26,17 @@ describe('recipe fields', () => {
     }
   });
 
-  it('summarize a recipe in one line', () => {
-    expect(recipeSummary({ method: 'fbp', filter: 'hann', cutoff: 0.8 })).toBe('FBP, hann, cutoff 0.8, automatic grid');
-    expect(recipeSummary({ method: 'fbp', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, ram-lak, cutoff 1, 576 px × 1 mm');
-    expect(recipeSummary({ method: 'fbp', filter: 'ram-lak', cutoff: 1, volume: { slices: 20, spacing: 6 } })).toBe('FBP, ram-lak, cutoff 1, automatic grid, 20 slices × 6 mm');
-    expect(recipeSummary({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('PRIOR, automatic grid, prior: “earlier scan”');
+  it('label a result in one line: the method, its truncation correction in words, then the other choices', () => {
+    expect(recipeLabel({ method: 'fbp', filter: 'hann', cutoff: 0.8 })).toBe('FBP, no correction, hann, cutoff 0.8, automatic grid');
+    expect(recipeLabel({ method: 'fbp', extend: 'none', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, no correction, ram-lak, cutoff 1, 576 px × 1 mm');
+    expect(recipeLabel({ method: 'fbp', extend: 'water', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, water cylinder, ram-lak, cutoff 1, 576 px × 1 mm');
+    expect(recipeLabel({ method: 'fbp', filter: 'ram-lak', cutoff: 1, volume: { slices: 20, spacing: 6 } })).toBe('FBP, no correction, ram-lak, cutoff 1, automatic grid, 20 slices × 6 mm');
+    expect(recipeLabel({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('Prior-guided, prior: “earlier scan”, automatic grid');
+    expect(recipeLabel({ method: 'sart', iterations: 5 })).toBe('SART, measured rays only, automatic grid, iterations 5');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'cosine' })).toBe('FBP, cosine taper');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');
+    expect(methodAndCorrection({ method: 'prior' })).toBe('Prior-guided, prior: FBP with water cylinder extension');
   });
 });
 

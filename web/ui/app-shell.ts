@@ -14,7 +14,8 @@ import type { EngineClient } from '../worker/client';
 import { geometrySummary } from './logic/describe';
 import { scanDefaults } from './logic/scan-defaults';
 import { remainingMs } from './logic/time-left';
-import { MAX_COMPARED, type ImageImportState } from './result-list';
+import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
+import type { ImageImportState } from './result-list';
 import { TRUTH } from './results-view';
 import type { QueueJob } from './run-queue';
 import { theme } from './theme';
@@ -53,7 +54,7 @@ export class AppShell extends LitElement {
   static properties = {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
-    compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
+    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
     importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
@@ -65,6 +66,8 @@ export class AppShell extends LitElement {
   declare loaded: LoadedScan | undefined;
   declare tab: Tab;
   declare compareIds: string[];
+  /** A result waiting for a place in the full comparison ('' when none): the user chooses which image leaves. */
+  declare waitingId: string;
   declare images: Map<string, Image2D>;
   declare referenceId: string;
   declare comparisons: Map<string, Comparison | string>;
@@ -115,6 +118,7 @@ export class AppShell extends LitElement {
     this.loaded = undefined;
     this.tab = 'scan';
     this.compareIds = [];
+    this.waitingId = '';
     this.images = new Map();
     this.referenceId = '';
     this.comparisons = new Map();
@@ -186,6 +190,7 @@ export class AppShell extends LitElement {
     this.geometryError = '';
     const mine = this.results.filter((r) => r.scanId === id);
     this.compareIds = mine.length ? [mine[mine.length - 1].id] : [];
+    this.waitingId = '';
     this.comparisons = new Map();
     const { scan, reference } = await loadScan(id);
     if (this.selectedScanId !== id) return;
@@ -323,12 +328,7 @@ export class AppShell extends LitElement {
   private async jobDone(key: number, result: ResultMeta) {
     this.patchJob(key, { state: 'done', fraction: 1, seconds: result.seconds, resultId: result.id });
     this.results = await listResults();
-    if (result.scanId === this.selectedScanId) {
-      const ids = [...this.compareIds, result.id];
-      this.compareIds = ids.slice(Math.max(0, ids.length - MAX_COMPARED));
-      await this.loadImages(this.compareIds);
-      await this.updateComparisons();
-    }
+    if (result.scanId === this.selectedScanId) await this.offerResult(result.id);
   }
 
   private cancelJob(key: number) {
@@ -340,9 +340,27 @@ export class AppShell extends LitElement {
   // Comparison choices.
 
   private async toggleResult(id: string) {
-    this.compareIds = this.compareIds.includes(id) ? this.compareIds.filter((x) => x !== id) : [...this.compareIds, id].slice(-MAX_COMPARED);
+    if (this.compareIds.includes(id)) this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, id));
+    else await this.offerResult(id);
+  }
+
+  /** A result joins the comparison, or waits for the user to choose which image leaves when it is full. */
+  private async offerResult(id: string) {
+    this.setCompared(offer({ ids: this.compareIds, waiting: this.waitingId }, id));
     await this.loadImages(this.compareIds);
     await this.updateComparisons();
+  }
+
+  /** The waiting result takes the place of `leave`. */
+  private async replaceCompared(leave: string) {
+    this.setCompared(replace({ ids: this.compareIds, waiting: this.waitingId }, leave));
+    await this.loadImages(this.compareIds);
+    await this.updateComparisons();
+  }
+
+  private setCompared(set: { ids: string[]; waiting?: string }) {
+    this.compareIds = set.ids;
+    this.waitingId = set.waiting ?? '';
   }
 
   private async setReference(id: string) {
@@ -430,10 +448,13 @@ export class AppShell extends LitElement {
       .muWater=${scan.muWater} .calibration=${scan.calibration} .calibrating=${this.calibrating}
       @calibrate=${(e: CustomEvent) => this.calibrate(scan.id, e.detail)}
       @calibrate-error-dismiss=${() => (this.calibrating = { ...this.calibrating, error: '' })}
+      .waitingId=${this.waitingId} .baselineId=${baselineOf(this.results.filter((r) => r.scanId === scan.id)) ?? ''}
       @result-toggle=${(e: CustomEvent) => this.toggleResult(e.detail.id)}
+      @compare-replace=${(e: CustomEvent) => this.replaceCompared(e.detail.leave)}
+      @compare-dismiss=${() => (this.waitingId = '')}
       @result-delete=${(e: CustomEvent) => this.storeAction(async () => {
         await deleteResult(e.detail.id);
-        this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
+        this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, e.detail.id));
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       })}
       @reference-change=${(e: CustomEvent) => this.setReference(e.detail.id)}></rf-results-view>

@@ -2,7 +2,8 @@ import { html, LitElement, css, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
 import { InputError } from '../core/errors';
 import type { ImageGrid } from '../core/image';
-import { describeRecipeFields, recipeSummary, type RecipeField } from '../core/recipe/fields';
+import { describeRecipeFields, type RecipeField } from '../core/recipe/fields';
+import { recipeLabel } from '../core/recipe/label';
 import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
 import { DEFAULT_VOLUME_SIZE } from '../core/recipe/volume-grid';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
@@ -164,7 +165,7 @@ export class RecipeForm extends LitElement {
     try {
       const recipe = validateRecipe(this.recipe());
       this.error = '';
-      const name = recipeSummary(recipe as unknown as Record<string, unknown>);
+      const name = recipeLabel(recipe as unknown as Record<string, unknown>);
       this.dispatchEvent(new CustomEvent('recipe-queue', { detail: { recipe, name }, bubbles: true, composed: true }));
     } catch (err) {
       if (!(err instanceof InputError)) throw err;
@@ -184,7 +185,7 @@ export class RecipeForm extends LitElement {
       </form>
       <div class="actions">
         <button class="primary" id="queue-recipe" ?disabled=${this.disabled} @click=${this.queue}>Add to queue</button>
-        <span class="summary">${recipeSummary(this.recipe())}</span>
+        <span class="summary">${recipeLabel(this.recipe())}</span>
       </div>
       ${this.error ? html`<div class="error" role="alert">Not queued: ${this.error}</div>` : nothing}`;
   }

@@ -10,7 +10,7 @@ import { axialSlice, sliceAt, type Volume } from '../core/volume';
 import { coneFovHalfHeight } from '../core/geometry/cone';
 import { fovRadius } from '../core/geometry/view-vectors';
 import type { Scan } from '../core/scan';
-import { recipeSummary } from '../core/recipe/fields';
+import { recipeLabel } from '../core/recipe/label';
 import { validateRecipe, type Recipe } from '../core/recipe/recipe';
 import { runRecipe, type RecipeInputs } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
@@ -146,7 +146,7 @@ export class Coordinator {
     const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) }, inputs);
     throwIfCancelled(hooks.signal);
     return this.checkAndStore(ws, { scanId, scanMeta, scan, reference }, out, {
-      name: name ?? recipeSummary(recipe as unknown as Record<string, unknown>),
+      name: name ?? recipeLabel(recipe as unknown as Record<string, unknown>),
       recipe: recipe as unknown as Record<string, unknown>,
       t0,
     }, hooks);

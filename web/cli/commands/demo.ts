@@ -6,6 +6,7 @@ import { InputError } from '../../core/errors';
 import { join } from 'node:path';
 import type { Comparison } from '../../core/compare';
 import type { DataResidual } from '../../core/data-residual';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { parseArgs } from '../args';
 import { simulate } from './simulate';
@@ -71,11 +72,11 @@ export async function demo(argv: string[]): Promise<CommandResult> {
   log.push((await inspect([f('scan.nrrd')])).text);
   const rows: Row[] = [];
   const jobs: Array<[string, string, string[]]> = [
-    ...EXTEND_METHODS.map((m) => [`truncated, extend ${m}`, 'scan.nrrd', ['--extend', m]] as [string, string, string[]]),
-    ['complete scan', 'scan-complete.nrrd', []],
+    ...EXTEND_METHODS.map((m) => [`truncated scan: ${methodAndCorrection({ method: 'fbp', extend: m })}`, 'scan.nrrd', ['--extend', m]] as [string, string, string[]]),
+    [`complete scan: ${methodAndCorrection({ method: 'fbp' })}`, 'scan-complete.nrrd', []],
   ];
   for (const [name, scan, extra] of jobs) {
-    const out = f(`fbp-${name.replace(/[^a-z]+/g, '-')}.nrrd`);
+    const out = f(`fbp-${scan === 'scan.nrrd' ? `extend-${extra[1]}` : 'complete'}.nrrd`);
     log.push((await reconstruct([f(scan), '--method', 'fbp', '--filter', 'shepp-logan', ...extra, ...grid, '--out', out, '--json'])).text);
     // Every image is judged inside the truncated scan's FOV, and against the data it came from.
     const c = await compare([out, '--reference', f('truth.nrrd'), '--scan', f(scan), '--fov-radius', fov, '--json']);

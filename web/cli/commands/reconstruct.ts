@@ -6,6 +6,7 @@ import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { runRecipe } from '../../core/recipe/run';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
@@ -101,7 +102,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
       const vg = v.grid;
       return {
         json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
+        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>).replace(/^FBP/, 'FDK')} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
         warnings: [...readWarnings, ...r.warnings],
       };
     }
@@ -111,7 +112,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     const g = image.grid;
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
+      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };
