@@ -88,7 +88,9 @@ export async function writeImageFile(image: Image2D, name: string, o: ImageWrite
   const png = o.format === 'png';
   const out = inQuantity(image, o.quantity ?? (png ? 'hu' : image.quantity), png);
   const type = o.sampleType ?? 'float32';
-  if (type === 'int16' && out.quantity !== 'hu') throw new InputError('int16 output holds whole HU: write HU (--hu) or float32');
+  if (type === 'int16' && out.quantity !== 'hu') {
+    throw new InputError('int16 output holds whole HU', { remedy: { cli: 'write HU (--hu) or float32', page: 'write HU, or float32' } });
+  }
   const warnings: string[] = [];
   const clamped = type === 'int16' ? countInt16Overflow(out.data) : 0;
   if (clamped) warnings.push(`${clamped} pixels lie outside the int16 range (or are not finite) and were clamped`);
