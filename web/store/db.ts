@@ -17,11 +17,16 @@ export function pageStore(): UseStore {
   return defaultStore;
 }
 
+/** A record changed in place: read, changed and written back in the writing transaction (undefined: left as it is). */
+export type RecordUpdate = [key: string, change: (old: unknown) => unknown];
+
 /**
- * Writes every entry in one read-write transaction. If any write fails (a value that cannot be
- * stored, a full quota) the transaction is aborted and nothing is written.
+ * Writes every entry, and applies every update (read, change, write back), in one read-write
+ * transaction. If any write or change fails (a value that cannot be stored, a record the change
+ * refuses, a full quota) the transaction is aborted and nothing is written.
  */
-export async function putAll(entries: Array<[string, unknown]>, store: UseStore): Promise<void> {
+export async function putAll(entries: Array<[string, unknown]>, store: UseStore, updates: RecordUpdate[] = []): Promise<void> {
+  let refused: unknown;
   try {
     await store('readwrite', (s) => {
       try {
@@ -30,9 +35,22 @@ export async function putAll(entries: Array<[string, unknown]>, store: UseStore)
         s.transaction.abort();
         throw err;
       }
+      for (const [k, change] of updates) {
+        const read = s.get(k);
+        read.onsuccess = () => {
+          try {
+            const next = change(read.result);
+            if (next !== undefined) s.put(next, k);
+          } catch (err) {
+            refused ??= err;
+            s.transaction.abort();
+          }
+        };
+      }
       return promisifyRequest(s.transaction);
     });
   } catch (err) {
+    if (refused !== undefined) throw refused;
     throw await toStorageError(err, store);
   }
 }

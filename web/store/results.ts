@@ -2,7 +2,7 @@
 import { get, getMany, update, type UseStore } from 'idb-keyval';
 import type { Image2D } from '../core/image';
 import type { Volume } from '../core/volume';
-import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
+import { deleteAll, keysWithPrefix, pageStore, putAll, type RecordUpdate } from './db';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
 import { checkName, newId } from './scans';
 import { loadVolume, slabKeys, volumeEntries } from './volumes';
@@ -10,12 +10,15 @@ import { loadVolume, slabKeys, volumeEntries } from './volumes';
 export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius' | 'volume'>;
 
 /**
- * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction;
+ * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction,
+ * with the updates `along` makes from its description (e.g. its queue job marked done);
  * returns its description.
  */
-export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume): Promise<ResultMeta> {
+export async function saveResult(
+  input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume, along: (meta: ResultMeta) => RecordUpdate[] = () => [],
+): Promise<ResultMeta> {
   const { meta, entries } = resultRecords(input, image, {}, volume);
-  await putAll(entries, store);
+  await putAll(entries, store, along(meta));
   return meta;
 }
 

@@ -1,5 +1,5 @@
 import { html, LitElement, css, nothing } from 'lit';
-import { CancelledError, InputError } from '../core/errors';
+import { InputError } from '../core/errors';
 import type { Comparison } from '../core/compare';
 import type { Image2D, ImageGrid } from '../core/image';
 import type { TruncationReport } from '../core/truncation/detect';
@@ -13,11 +13,10 @@ import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
 import { geometrySummary } from './logic/describe';
 import { scanDefaults } from './logic/scan-defaults';
-import { remainingMs } from './logic/time-left';
 import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
 import type { ImageImportState } from './result-list';
 import { TRUTH } from './results-view';
-import type { QueueJob } from './run-queue';
+import { QueueKeeper } from './queue-keeper';
 import { theme } from './theme';
 import './caution-banner';
 import './prior-workbench';
@@ -54,7 +53,7 @@ export class AppShell extends LitElement {
   static properties = {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
-    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
+    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
     importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
@@ -71,7 +70,6 @@ export class AppShell extends LitElement {
   declare images: Map<string, Image2D>;
   declare referenceId: string;
   declare comparisons: Map<string, Comparison | string>;
-  declare jobs: QueueJob[];
   declare importing: boolean;
   declare importError: string;
   /** An image file being added to the chosen scan (Images tab). */
@@ -87,8 +85,12 @@ export class AppShell extends LitElement {
   declare alert: string;
   declare geometryError: string;
   declare ready: boolean;
-  private nextJobKey = 1;
-  private controllers = new Map<number, AbortController>();
+  /** The reconstruction queue (stored, so a reload loses no job). */
+  private readonly queue = new QueueKeeper(this, () => this.client, {
+    done: (result) => this.jobDone(result),
+    ended: () => this.storageUseRefresh(),
+    problem: (text) => (this.alert = text),
+  });
 
   static styles = [theme, css`
     :host { min-height: 100vh; background: var(--bg); display: flex; flex-direction: column; }
@@ -122,7 +124,6 @@ export class AppShell extends LitElement {
     this.images = new Map();
     this.referenceId = '';
     this.comparisons = new Map();
-    this.jobs = [];
     this.importing = false;
     this.importError = '';
     this.imageImport = { busy: false, error: '' };
@@ -141,6 +142,7 @@ export class AppShell extends LitElement {
   async firstUpdated() {
     try {
       await this.refreshLibrary();
+      await this.queue.load();
       const settings = await loadSettings();
       if (!this.scans.length && !settings.demoCreated) await this.createDemo();
       if (!this.selectedScanId && this.scans.length) await this.selectScan(this.scans[0].id);
@@ -267,7 +269,7 @@ export class AppShell extends LitElement {
   }
 
   private async deleteScan(id: string) {
-    for (const j of this.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.cancelJob(j.key);
+    for (const j of this.queue.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.queue.cancel(j.key);
     await this.storeAction(() => deleteScan(id));
     if (this.selectedScanId === id) {
       this.loaded = undefined;
@@ -287,54 +289,13 @@ export class AppShell extends LitElement {
     }
   }
 
-  // The queue: one run at a time, in order.
-
-  private queueRecipe(recipe: Record<string, unknown>, name: string) {
-    const scan = this.scans.find((s) => s.id === this.selectedScanId);
-    if (!scan) return;
-    this.jobs = [...this.jobs, { key: this.nextJobKey++, scanId: scan.id, scanName: scan.name, name, recipe, state: 'waiting', fraction: 0, stage: '' }];
-    this.pump();
-  }
-
-  private patchJob(key: number, change: Partial<QueueJob>) {
-    this.jobs = this.jobs.map((j) => (j.key === key ? { ...j, ...change } : j));
-  }
-
-  private pump() {
-    if (this.jobs.some((j) => j.state === 'running')) return;
-    const next = this.jobs.find((j) => j.state === 'waiting');
-    if (!next) return;
-    const controller = new AbortController();
-    this.controllers.set(next.key, controller);
-    this.patchJob(next.key, { state: 'running' });
-    this.client.run(next.scanId, next.recipe, {
-      name: next.name,
-      signal: controller.signal,
-      onProgress: (p) => this.patchJob(next.key, { fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
-    }).then(
-      (result) => this.jobDone(next.key, result),
-      (err) => this.patchJob(next.key, err instanceof CancelledError ? { state: 'cancelled' } : { state: 'failed', error: message(err) }),
-    ).finally(() => {
-      this.controllers.delete(next.key);
-      this.storageUseRefresh();
-      this.pump();
-    });
-  }
-
   private async storageUseRefresh() {
     this.storage = await storageUse();
   }
 
-  private async jobDone(key: number, result: ResultMeta) {
-    this.patchJob(key, { state: 'done', fraction: 1, seconds: result.seconds, resultId: result.id });
+  private async jobDone(result: ResultMeta) {
     this.results = await listResults();
     if (result.scanId === this.selectedScanId) await this.offerResult(result.id);
-  }
-
-  private cancelJob(key: number) {
-    const job = this.jobs.find((j) => j.key === key);
-    if (job?.state === 'waiting') this.patchJob(key, { state: 'cancelled' });
-    else this.controllers.get(key)?.abort();
   }
 
   // Comparison choices.
@@ -422,14 +383,15 @@ export class AppShell extends LitElement {
           <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?cone=${scan.geometry.kind === 'cone'}
             .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined} .defaultGrid=${this.loaded?.id === scan.id ? this.loaded.gridText : ''}
             .priorResults=${this.priorChoices(scan)}
-            @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
+            @recipe-queue=${(e: CustomEvent) => this.queue.add(scan, e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
         <div class="card"><h2>Queue</h2>
-          <rf-run-queue .jobs=${this.jobs}
-            @job-cancel=${(e: CustomEvent) => this.cancelJob(e.detail.key)}
-            @job-remove=${(e: CustomEvent) => (this.jobs = this.jobs.filter((j) => j.key !== e.detail.key))}
-            @queue-clear=${() => (this.jobs = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting'))}
+          <rf-run-queue .jobs=${this.queue.jobs}
+            @job-cancel=${(e: CustomEvent) => this.queue.cancel(e.detail.key)}
+            @job-rerun=${(e: CustomEvent) => this.queue.rerun(e.detail.key)}
+            @job-remove=${(e: CustomEvent) => this.queue.forget([e.detail.key])}
+            @queue-clear=${() => this.queue.forget(this.queue.jobs.map((j) => j.key))}
             @job-show=${async (e: CustomEvent) => {
-              const job = this.jobs.find((j) => j.key === e.detail.key);
+              const job = this.queue.jobs.find((j) => j.key === e.detail.key);
               if (job?.resultId) {
                 if (job.scanId !== this.selectedScanId) await this.selectScan(job.scanId);
                 if (!this.compareIds.includes(job.resultId)) await this.toggleResult(job.resultId);
@@ -468,7 +430,7 @@ export class AppShell extends LitElement {
   }
 
   render() {
-    const running = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting').length;
+    const running = this.queue.pending;
     const resultCount = this.results.filter((r) => r.scanId === this.selectedScanId).length;
     const tabs: Array<[Tab, string, unknown]> = [
       ['scan', 'Projections', nothing],

@@ -2,13 +2,14 @@
 // id; the coordinator answers with progress messages and then exactly one done or error.
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
 import type { Comparison } from '../core/compare';
-import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
+import type { NewJob } from '../store/jobs';
+import type { JobRecord, ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 5;
+export const APP_PROTOCOL_VERSION = 6;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -17,7 +18,11 @@ export type AppRequest =
   | { op: 'import'; files: File[]; name?: string }
   | { op: 'demo' }
   | { op: 'demo-cone' }
-  | { op: 'run'; scanId: string; recipe: unknown; name?: string }
+  | { op: 'run'; scanId: string; recipe: unknown; name?: string; jobId?: string }
+  | { op: 'queue-add'; job: NewJob }
+  | { op: 'queue-settle'; id: string; state: 'failed' | 'cancelled'; error?: string }
+  | { op: 'queue-requeue'; id: string; session: string }
+  | { op: 'queue-forget'; ids: string[] }
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
   | { op: 'import-image'; scanId: string; files: File[]; slice?: number }
@@ -32,6 +37,10 @@ export interface AppReplies {
   demo: ScanMeta;
   'demo-cone': ScanMeta;
   run: ResultMeta;
+  'queue-add': JobRecord;
+  'queue-settle': void;
+  'queue-requeue': void;
+  'queue-forget': void;
   compare: Comparison;
   info: EngineInfo;
   'import-image': ResultMeta;
