@@ -68,7 +68,7 @@ describe('the stored queue', () => {
     expect(await listResults(undefined, store)).toEqual([]);
     await c.handle({ op: 'queue-add', job: job('fine', 'p', s.id) });
     await c.handle({ op: 'run', scanId: s.id, recipe, jobId: 'fine' });
-    await c.handle({ op: 'queue-settle', id: 'fine', state: 'cancelled' });
+    await c.handle({ op: 'queue-settle', jobId: 'fine', state: 'cancelled' });
     expect((await listJobs(store)).find((j) => j.id === 'fine')!.state).toBe('done');
   });
 
@@ -85,7 +85,7 @@ describe('the stored queue', () => {
     expect(shown.map((j) => [j.key, j.state, j.was])).toEqual([['w', 'interrupted', 'waiting'], ['r', 'interrupted', 'running'], ['d', 'done', undefined]]);
     // With its recipe and name, for one click to run again.
     expect(shown[1]).toMatchObject({ recipe, name: 'FBP, water cylinder', scanId: s.id });
-    await c.handle({ op: 'queue-requeue', id: 'r', session: 'reloaded-page' });
+    await c.handle({ op: 'queue-requeue', jobId: 'r', session: 'reloaded-page' });
     const again = queueFromRecords(await listJobs(store), 'reloaded-page', new Set(['open-tab', 'reloaded-page']));
     expect(again.find((j) => j.key === 'r')!.state).toBe('waiting');
     await c.handle({ op: 'queue-forget', ids: ['w', 'd'] });

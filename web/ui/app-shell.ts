@@ -99,7 +99,10 @@ export class AppShell extends LitElement {
     .tagline { color: #a9b6c4; font-size: 13px; }
     .engine { margin-left: auto; font-size: 12px; color: #a9b6c4; }
     .body { display: grid; grid-template-columns: 300px minmax(0, 1fr); gap: 16px; padding: 16px 18px; align-items: start; flex: 1; }
+    @media (max-width: 1440px) { .body { grid-template-columns: 260px minmax(0, 1fr); } }
     @media (max-width: 900px) { .body { grid-template-columns: 1fr; } }
+    /* A grid item is as wide as its content unless told otherwise: keep wide tables inside the screen. */
+    main { min-width: 0; }
     nav { display: flex; gap: 2px; border-bottom: 1px solid var(--border); margin-bottom: 14px; }
     nav button { border: none; border-bottom: 2px solid transparent; border-radius: 0; background: none; padding: 8px 14px; font-size: 14px; color: var(--muted); }
     nav button[aria-selected='true'] { color: var(--accent); border-bottom-color: var(--accent); font-weight: 600; }

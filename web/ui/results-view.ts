@@ -101,8 +101,10 @@ export class ResultsView extends LitElement {
 
   static styles = [theme, css`
     :host { display: grid; grid-template-columns: 280px minmax(0, 1fr); gap: 14px; align-items: start; }
+    @media (max-width: 1440px) { :host { grid-template-columns: 240px minmax(0, 1fr); } }
     @media (max-width: 1000px) { :host { grid-template-columns: 1fr; } }
-    .main { display: grid; gap: 14px; min-width: 0; }
+    /* One column that may shrink below its content's width (a wide table scrolls inside its card). */
+    .main { display: grid; grid-template-columns: minmax(0, 1fr); gap: 14px; min-width: 0; }
     .side { display: grid; gap: 14px; align-content: start; }
     .panels { display: grid; gap: 10px; }
     .panels.n1 { grid-template-columns: minmax(0, 640px); }

@@ -73,8 +73,8 @@ export class ScanView extends LitElement {
                 <dt>Edge threshold</dt><dd class="num">${r.threshold.toFixed(3)} (noise σ ≈ ${r.noiseSigma.toFixed(4)})</dd>
                 ${r.summary.worstSide !== 'none' ? html`<dt>Reach beyond the edges</dt><dd id="truncation-reach">left up to ${r.summary.maxExtentMm.left.toFixed(0)} mm, right up to ${r.summary.maxExtentMm.right.toFixed(0)} mm (water cylinder fits${r.muAssumed ? ', µ of water assumed' : ''})</dd>` : nothing}
                 <dt>Estimated object</dt><dd id="truncation-object">${r.summary.objectDiameterMm.toFixed(0)} mm across, against a ${r.summary.fovDiameterMm.toFixed(0)} mm field of view</dd>
-                ${this.advice ? html`<dt>Suggested correction</dt><dd id="truncation-advice"><strong>${this.advice.label}</strong>: ${this.advice.reason}</dd>` : nothing}
-                <dt>Missing mass</dt><dd id="truncation-mass">${'unavailable' in r.mass ? r.mass.unavailable : html`cut-off views miss up to ${pct(r.mass.maxMissingFraction)} of the object (mean ${pct(r.mass.meanMissingFraction)}; mass consistency${r.mass.basis === 'complete-views' ? '' : ', lower bound'})`}</dd>` : nothing}
+                <dt>Missing mass</dt><dd id="truncation-mass">${'unavailable' in r.mass ? r.mass.unavailable : html`cut-off views miss up to ${pct(r.mass.maxMissingFraction)} of the object (mean ${pct(r.mass.meanMissingFraction)}; mass consistency${r.mass.basis === 'complete-views' ? '' : ', lower bound'})`}</dd>
+                ${this.advice ? html`<dt>Suggested correction</dt><dd id="truncation-advice"><strong>${this.advice.label}</strong>: ${this.advice.reason}</dd>` : nothing}` : nothing}
               ${m.source.type === 'demo' ? html`<dt>Origin</dt><dd>${m.source.description}</dd>` : html`<dt>Files</dt><dd>${m.source.fileNames.join(', ')}</dd>`}
             </dl>
             ${m.warnings.map((w) => html`<p class="warning">${w}</p>`)}

@@ -1,5 +1,6 @@
 // Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
-// id; the coordinator answers with progress messages and then exactly one done or error.
+// id (so no request names a field "id" of its own); the coordinator answers with progress
+// messages and then exactly one done or error.
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
 import type { Comparison } from '../core/compare';
 import type { NewJob } from '../store/jobs';
@@ -20,8 +21,8 @@ export type AppRequest =
   | { op: 'demo-cone' }
   | { op: 'run'; scanId: string; recipe: unknown; name?: string; jobId?: string }
   | { op: 'queue-add'; job: NewJob }
-  | { op: 'queue-settle'; id: string; state: 'failed' | 'cancelled'; error?: string }
-  | { op: 'queue-requeue'; id: string; session: string }
+  | { op: 'queue-settle'; jobId: string; state: 'failed' | 'cancelled'; error?: string }
+  | { op: 'queue-requeue'; jobId: string; session: string }
   | { op: 'queue-forget'; ids: string[] }
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }

@@ -102,12 +102,12 @@ export class EngineClient {
 
   /** Records that a stored job failed or was cancelled (a job already finished stays as it is). */
   settleJob(id: string, state: 'failed' | 'cancelled', error?: string, options: CallOptions = {}): Promise<void> {
-    return this.call({ op: 'queue-settle', id, state, ...(error !== undefined ? { error } : {}) }, options);
+    return this.call({ op: 'queue-settle', jobId: id, state, ...(error !== undefined ? { error } : {}) }, options);
   }
 
   /** Puts a stored job back in line for this page (an interrupted one run again). */
   requeueJob(id: string, session: string, options: CallOptions = {}): Promise<void> {
-    return this.call({ op: 'queue-requeue', id, session }, options);
+    return this.call({ op: 'queue-requeue', jobId: id, session }, options);
   }
 
   /** Forgets stored jobs (their results stay). */
@@ -188,7 +188,7 @@ export class EngineClient {
         started: performance.now(),
       });
       signal?.addEventListener('abort', onAbort, { once: true });
-      engine.coordinator.postMessage({ id, ...req });
+      engine.coordinator.postMessage({ ...req, id });
     });
   }
 

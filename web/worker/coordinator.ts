@@ -67,9 +67,9 @@ export class Coordinator {
       case 'queue-add':
         return (await addJob(r.job, this.store)) as AppReplies[K];
       case 'queue-settle':
-        return (await updateJob(r.id, { state: r.state, ...(r.error !== undefined ? { error: r.error } : {}) }, this.store)) as AppReplies[K];
+        return (await updateJob(r.jobId, { state: r.state, ...(r.error !== undefined ? { error: r.error } : {}) }, this.store)) as AppReplies[K];
       case 'queue-requeue':
-        return (await updateJob(r.id, { state: 'waiting', session: r.session }, this.store, true)) as AppReplies[K];
+        return (await updateJob(r.jobId, { state: 'waiting', session: r.session }, this.store, true)) as AppReplies[K];
       case 'queue-forget':
         return (await deleteJobs(r.ids, this.store)) as AppReplies[K];
       case 'compare':
