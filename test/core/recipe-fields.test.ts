@@ -37,6 +37,8 @@ describe('recipe fields', () => {
     expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
     expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');
     expect(methodAndCorrection({ method: 'prior' })).toBe('Prior-guided, prior: FBP with water cylinder extension');
+    expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
+      .toBe('SART, measured rays only, knowing 1 region and the outline');
   });
 });
 

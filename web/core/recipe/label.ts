@@ -39,9 +39,17 @@ export function correctionWords(recipe: RecipeLike): string {
   return '';
 }
 
-/** "FBP, water cylinder": the method and its correction (the CLI's short label). */
+/** What the recipe knows beyond the data, in words ("knowing 1 region and the outline"), or ''. */
+export function knowledgeWords(recipe: RecipeLike): string {
+  const k = recipe.knowledge as { known?: unknown[]; outline?: unknown } | undefined;
+  const n = k?.known?.length ?? 0;
+  const parts = [n ? `${n} region${n > 1 ? 's' : ''}` : '', k?.outline ? 'the outline' : ''].filter(Boolean);
+  return parts.length ? `knowing ${parts.join(' and ')}` : '';
+}
+
+/** "FBP, water cylinder": the method and its correction, and what it knows beyond the data (the CLI's short label). */
 export function methodAndCorrection(recipe: RecipeLike): string {
-  return [methodWords(recipe), correctionWords(recipe)].filter(Boolean).join(', ');
+  return [methodWords(recipe), correctionWords(recipe), knowledgeWords(recipe)].filter(Boolean).join(', ');
 }
 
 function formatValue(f: RecipeField, v: unknown): string {
