@@ -7,18 +7,7 @@
 // Screenshots go to test-artifacts/first-hour-*.png.
 import { join } from 'node:path';
 import { check } from './harness.mjs';
-
-const JOB_TIMEOUT = 10 * 60_000;
-
-/** Queues the recipe as the form stands and waits until its job is done. */
-async function queueAndFinish(page, what) {
-  const before = await page.locator('rf-run-queue li').count();
-  await page.locator('#queue-recipe').click();
-  const job = page.locator('rf-run-queue li').nth(before);
-  await job.waitFor();
-  await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
-  check((await job.getAttribute('data-state')) === 'done', `${what}: ${await job.innerText()}`);
-}
+import { queueAndFinish, startLongRun } from './queue-steps.mjs';
 
 /** Labels of the rows of the metrics table, in order. */
 const metricLabels = (page) => page.locator('rf-metrics-table tbody tr').evaluateAll((rows) => rows.map((r) => r.dataset.label));
@@ -148,15 +137,7 @@ export async function firstHourTests(h, { context, mode, url, artifacts }) {
   await h.step(`${mode}: a run interrupted by a reload is shown as interrupted with its recipe, and runs again in one click`, async () => {
     await page.locator('#tab-reconstruct').click();
     await page.locator('#field-extend').selectOption('none');
-    await page.locator('rf-recipe-form input[value="custom"]').check();
-    await page.locator('rf-recipe-form input[name="gridSize"]').fill('3072');
-    await page.locator('rf-recipe-form input[name="gridPixel"]').fill('0.1875');
-    await page.locator('#queue-recipe').click();
-    await page.locator('rf-run-queue li[data-state="running"]').waitFor({ timeout: 30_000 }).catch(async (err) => {
-      const jobs = await page.locator('rf-run-queue li').evaluateAll((ls) => ls.map((l) => `${l.dataset.state}: ${l.innerText.replace(/\s+/g, ' ')}`));
-      const form = await page.locator('rf-recipe-form').innerText().catch(() => '');
-      throw new Error(`no job started: ${jobs.join(' | ')}; form: ${form.slice(-300)} (${err.message.split('\n')[0]})`);
-    });
+    await startLongRun(page);
     await page.reload();
     await page.locator('rf-scan-library li').first().waitFor({ timeout: 60_000 });
     await page.locator('#tab-reconstruct').click();

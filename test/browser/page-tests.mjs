@@ -4,10 +4,10 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { check, near } from './harness.mjs';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
+import { JOB_TIMEOUT, queueAndFinish, queueAndWait, startLongRun } from './queue-steps.mjs';
 
 /** FBP without truncation correction on the ground-truth grid: the CLI reference runs the same. */
 const FBP_NAME = 'FBP, no correction, ram-lak, cutoff 1, 576 px × 1 mm';
-const JOB_TIMEOUT = 10 * 60_000;
 
 /** Text of every cell of the metrics table row for `label`, by column metric and region. */
 /** pydicom's CT test image (Debian python3-pydicom, installed by .ci/run). */
@@ -34,19 +34,6 @@ async function resultCount(page) {
   return page.locator('rf-result-list li').count();
 }
 
-async function queueAndWait(page, count) {
-  await page.locator('#queue-recipe').click();
-  await page.locator('rf-run-queue li').nth(count - 1).waitFor();
-}
-
-/** Queues the recipe as the form stands and waits until its job is done (`what` names it in a failure). */
-async function queueAndFinish(page, what) {
-  const before = await page.locator('rf-run-queue li').count();
-  await queueAndWait(page, before + 1);
-  const job = page.locator('rf-run-queue li').nth(before);
-  await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
-  check((await job.getAttribute('data-state')) === 'done', `${what}: ${await job.innerText()}`);
-}
 
 export async function pageTests(h, { context, mode, url, origin, artifacts, reference }) {
   const shot = (page, name) => page.screenshot({ path: join(artifacts, `${mode}-${name}.png`), fullPage: true });
@@ -301,15 +288,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
   await h.step(`${mode}: (d) reloading, even mid-run, keeps the scan and every finished result`, async () => {
     const results = await resultCount(page);
     await page.locator('#tab-reconstruct').click();
-    await page.locator('#field-method').selectOption('fbp');
-    await page.locator('rf-recipe-form input[value="custom"]').check();
-    await page.locator('rf-recipe-form input[name="gridSize"]').fill('3072');
-    await page.locator('rf-recipe-form input[name="gridPixel"]').fill('0.1875');
-    await page.locator('#queue-recipe').click();
-    await page.locator('rf-run-queue li[data-state="running"]').waitFor({ timeout: 30_000 }).catch(async (err) => {
-      const jobs = await page.locator('rf-run-queue li').evaluateAll((ls) => ls.map((l) => `${l.dataset.state}: ${l.innerText.replace(/\s+/g, ' ')}`));
-      throw new Error(`no job started: ${jobs.join(' | ')} (${err.message.split('\n')[0]})`);
-    });
+    await startLongRun(page);
     await page.reload();
     await page.locator('rf-scan-library li').first().waitFor({ timeout: 60_000 });
     check((await page.locator('rf-scan-library li').count()) === 1, 'one scan after reload (the demo is not made twice)');
