@@ -57,7 +57,7 @@ export class ResultList extends LitElement {
     .empty { font-size: 13px; color: var(--muted); }
     .slice { display: flex; gap: 6px; align-items: center; font-size: 12px; margin-top: 8px; }
     .slice input { width: 70px; }
-    .tag { font-size: 11px; font-weight: 600; color: var(--accent); background: var(--accent-soft); border-radius: 9px; padding: 0 6px; margin-left: 6px; white-space: nowrap; }
+    .tag { font-size: 11px; font-weight: 600; color: var(--accent); background: var(--accent-soft); border-radius: 9px; padding: 0 6px; white-space: nowrap; align-self: flex-start; }
     .back { display: flex; flex-wrap: wrap; gap: 6px; margin: 0 0 8px; }
   `];
 
@@ -100,7 +100,7 @@ export class ResultList extends LitElement {
           const inside = r.metrics?.regions.insideFov;
           return html`<li class=${k >= 0 ? 'on' : ''} data-colour=${k >= 0 ? SERIES_COLOURS[k % 4] : ''} data-result-id=${r.id}>
             <div class="top"><input type="checkbox" id=${`pick-${r.id}`} .checked=${live(k >= 0)}
-              @change=${() => send(this, 'result-toggle', { id: r.id })}><label for=${`pick-${r.id}`}>${r.name}${r.id === this.baselineId ? html`<span class="tag">baseline</span>` : nothing}${r.id === this.referenceId ? html`<span class="tag">reference</span>` : nothing}</label></div>
+              @change=${() => send(this, 'result-toggle', { id: r.id })}><label for=${`pick-${r.id}`}>${r.name}</label>${r.id === this.baselineId ? html`<span class="tag">baseline</span>` : nothing}${r.id === this.referenceId ? html`<span class="tag">reference</span>` : nothing}</div>
             <div class="sub num">${new Date(r.createdAt).toLocaleString()} · ${r.seconds.toFixed(1)} s${inside ? ` · RMSE in field ${inside.rmse.toFixed(0)} ${r.metrics!.unit}` : ''}</div>
             <div class="row">${this.confirming === r.id
               ? html`<button class="small danger" @click=${() => { this.confirming = ''; send(this, 'result-delete', { id: r.id }); }}>Delete</button>
