@@ -55,7 +55,10 @@ async function writeImage(name: string, image: Image2D): Promise<string> {
 async function cli(...argv: string[]): Promise<{ code: number; err: string }> {
   let err = '';
   vi.spyOn(process.stdout, 'write').mockImplementation(() => true);
-  vi.spyOn(process.stderr, 'write').mockImplementation((s) => ((err += String(s)), true));
+  vi.spyOn(process.stderr, 'write').mockImplementation((s) => {
+    err += String(s);
+    return true;
+  });
   const code = await main(argv);
   vi.restoreAllMocks();
   return { code, err };

@@ -34,8 +34,14 @@ const nowhere = join(dir, 'no-such-input.nrrd');
 /** Runs the CLI in-process; returns the exit code and what it printed. */
 async function rimfill(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
   let out = '', err = '';
-  vi.spyOn(process.stdout, 'write').mockImplementation((s) => ((out += String(s)), true));
-  vi.spyOn(process.stderr, 'write').mockImplementation((s) => ((err += String(s)), true));
+  vi.spyOn(process.stdout, 'write').mockImplementation((s) => {
+    out += String(s);
+    return true;
+  });
+  vi.spyOn(process.stderr, 'write').mockImplementation((s) => {
+    err += String(s);
+    return true;
+  });
   try {
     return { code: await main(argv), out, err };
   } finally {

@@ -67,7 +67,7 @@ describe('messages in the page', () => {
         else if (path.endsWith('.ts')) {
           const text = readFileSync(path, 'utf8');
           for (let i = text.indexOf('new InputError('); i >= 0; i = text.indexOf('new InputError(', i + 1)) {
-            const call = text.slice(i, text.indexOf(');', i)).replace(/cli:\s*(['`])(?:(?!\1)[^])*\1/g, '');
+            const call = text.slice(i, text.indexOf(');', i)).replace(/cli:\s*(['`])(?:(?!\1)[\s\S])*\1/g, '');
             if (OPTION.test(call)) offenders.push(`${path.slice(root.length)}: ${call.slice(0, 90)}`);
           }
         }

@@ -10,7 +10,8 @@ import type { Geometry } from '../../web/core/geometry/types';
 import { analyticSinogram } from '../../web/core/simulate/analytic';
 import { sheppLogan } from '../../web/core/phantoms/shepp-logan';
 import { putAll } from '../../web/store/db';
-import { jobUpdate, listJobs } from '../../web/store/jobs';
+import { changeJob, listJobs } from '../../web/store/jobs';
+import { transact } from '../../web/store/transact';
 import { keys, RecordError } from '../../web/store/records';
 import { listResults } from '../../web/store/results';
 import { saveScan } from '../../web/store/scans';
@@ -79,7 +80,10 @@ describe('the stored queue', () => {
       await c.handle({ op: 'queue-add', job: job(id, 'closed-page', s.id) });
       await new Promise((r) => setTimeout(r, 3)); // queued one after another (the queue is in order of queueing)
     }
-    await putAll([], store, [jobUpdate('r', { state: 'running' }), jobUpdate('d', { state: 'done', resultId: 'x', seconds: 2 })]);
+    await transact(store, async (tx) => {
+      await changeJob(tx, 'r', { state: 'running' });
+      await changeJob(tx, 'd', { state: 'done', resultId: 'x', seconds: 2 });
+    });
     await c.handle({ op: 'queue-add', job: job('other', 'open-tab', s.id) });
     const shown = queueFromRecords(await listJobs(store), 'reloaded-page', new Set(['open-tab', 'reloaded-page']));
     expect(shown.map((j) => [j.key, j.state, j.was])).toEqual([['w', 'interrupted', 'waiting'], ['r', 'interrupted', 'running'], ['d', 'done', undefined]]);
@@ -95,7 +99,10 @@ describe('the stored queue', () => {
   it('a change the record refuses writes nothing at all (one transaction)', async () => {
     const { store } = coordinator();
     await putAll([[keys.job('broken'), { kind: 'scan' }]], store);
-    await expect(putAll([['unrelated', 1]], store, [jobUpdate('broken', { state: 'failed' })])).rejects.toThrow(RecordError);
+    await expect(transact(store, async (tx) => {
+      tx.put('unrelated', 1);
+      await changeJob(tx, 'broken', { state: 'failed' });
+    })).rejects.toThrow(RecordError);
     expect(await listResults(undefined, store)).toEqual([]);
     expect(await get('unrelated', store)).toBeUndefined();
   });

@@ -1,6 +1,6 @@
 // File access for the CLI: reads with clear errors, writes all-or-nothing (temporary file, then
 // rename), so a failed command leaves no half-written output.
-import { accessSync, constants, existsSync, readFileSync, renameSync, writeFileSync, unlinkSync, statSync } from 'node:fs';
+import { accessSync, constants, existsSync, type Stats, readFileSync, renameSync, writeFileSync, unlinkSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { InputError } from '../core/errors';
 
@@ -52,7 +52,7 @@ export function checkOutputs(outputs: OutputPath[]): string[] {
     if (other) throw new InputError(`options --${other} and --${option} both name ${path}; give each output its own file`);
     seen.set(full, option);
     const folder = dirname(full);
-    let st;
+    let st: Stats;
     try {
       st = statSync(folder);
     } catch {

@@ -17,16 +17,11 @@ export function pageStore(): UseStore {
   return defaultStore;
 }
 
-/** A record changed in place: read, changed and written back in the writing transaction (undefined: left as it is). */
-export type RecordUpdate = [key: string, change: (old: unknown) => unknown];
-
 /**
- * Writes every entry, and applies every update (read, change, write back), in one read-write
- * transaction. If any write or change fails (a value that cannot be stored, a record the change
- * refuses, a full quota) the transaction is aborted and nothing is written.
+ * Writes every entry in one read-write transaction. If any write fails (a value that cannot be
+ * stored, a full quota) the transaction is aborted and nothing is written.
  */
-export async function putAll(entries: Array<[string, unknown]>, store: UseStore, updates: RecordUpdate[] = []): Promise<void> {
-  let refused: unknown;
+export async function putAll(entries: Array<[string, unknown]>, store: UseStore): Promise<void> {
   try {
     await store('readwrite', (s) => {
       try {
@@ -35,22 +30,9 @@ export async function putAll(entries: Array<[string, unknown]>, store: UseStore,
         s.transaction.abort();
         throw err;
       }
-      for (const [k, change] of updates) {
-        const read = s.get(k);
-        read.onsuccess = () => {
-          try {
-            const next = change(read.result);
-            if (next !== undefined) s.put(next, k);
-          } catch (err) {
-            refused ??= err;
-            s.transaction.abort();
-          }
-        };
-      }
       return promisifyRequest(s.transaction);
     });
   } catch (err) {
-    if (refused !== undefined) throw refused;
     throw await toStorageError(err, store);
   }
 }
@@ -65,6 +47,6 @@ export async function deleteAll(keys: string[], store: UseStore): Promise<void> 
 
 /** All keys that start with `prefix`. */
 export async function keysWithPrefix(prefix: string, store: UseStore): Promise<string[]> {
-  const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, prefix + '\uffff'))));
+  const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, `${prefix}\uffff`))));
   return all.map(String);
 }

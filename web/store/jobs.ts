@@ -1,8 +1,9 @@
 // The page's queue in storage: one record per queued reconstruction, written by the coordinator
-// only, each change a read-modify-write in one transaction (putAll with an update).
+// only, each change a read-modify-write in one transaction (store/transact.ts).
 import { getMany, type UseStore } from 'idb-keyval';
 import { InputError } from '../core/errors';
-import { deleteAll, keysWithPrefix, pageStore, putAll, type RecordUpdate } from './db';
+import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
+import { transact, type Tx } from './transact';
 import { checkRecord, keys, SCHEMA_VERSION, type JobRecord, type JobState } from './records';
 
 /** What the page gives to queue a job. */
@@ -22,26 +23,28 @@ export async function addJob(job: NewJob, store: UseStore = pageStore()): Promis
   return record;
 }
 
+/** What a change may set on a stored job. */
+export type JobChange = Partial<Pick<JobRecord, 'state' | 'session' | 'resultId' | 'seconds' | 'error'>>;
+
 /**
- * The update that moves a stored job on: `change` applies to an unfinished job (a finished one
- * stays as it is, so a late cancel never undoes "done"); `reopen` also applies to a finished one.
- * A job no longer stored (forgotten from another tab) stays forgotten.
+ * Moves a stored job on, in the caller's transaction: `change` applies to an unfinished job (a
+ * finished one stays as it is, so a late cancel never undoes "done"); `reopen` also applies to a
+ * finished one. A job no longer stored (forgotten from another tab) stays forgotten.
  */
-export function jobUpdate(id: string, change: Partial<Pick<JobRecord, 'state' | 'session' | 'resultId' | 'seconds' | 'error'>>, reopen = false): RecordUpdate {
+export async function changeJob(tx: Tx, id: string, change: JobChange, reopen = false): Promise<void> {
   const key = keys.job(id);
-  return [key, (old) => {
-    if (old === undefined) return undefined;
-    const job = checkRecord<JobRecord>(old, 'job', key);
-    if (FINISHED.includes(job.state) && !reopen) return job;
-    const next: JobRecord = { ...job, ...change, updatedAt: Date.now() };
-    if (change.state === 'waiting' || change.state === 'running') delete next.error;
-    return next;
-  }];
+  const old = await tx.get(key);
+  if (old === undefined) return;
+  const job = checkRecord<JobRecord>(old, 'job', key);
+  if (FINISHED.includes(job.state) && !reopen) return;
+  const next: JobRecord = { ...job, ...change, updatedAt: Date.now() };
+  if (change.state === 'waiting' || change.state === 'running') delete next.error;
+  tx.put(key, next);
 }
 
-/** Applies a job update in its own transaction. */
-export async function updateJob(id: string, change: Parameters<typeof jobUpdate>[1], store: UseStore = pageStore(), reopen = false): Promise<void> {
-  await putAll([], store, [jobUpdate(id, change, reopen)]);
+/** Changes a stored job in its own transaction (changeJob). */
+export async function updateJob(id: string, change: JobChange, store: UseStore = pageStore(), reopen = false): Promise<void> {
+  await transact(store, (tx) => changeJob(tx, id, change, reopen));
 }
 
 /** Stored jobs, oldest first. */

@@ -42,7 +42,9 @@ export class CompareChooser extends LitElement {
   }
 
   updated() {
-    this.renderRoot.querySelectorAll<HTMLElement>('.swatch[data-colour]').forEach((s) => s.style.setProperty('background', s.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('.swatch[data-colour]').forEach((s) => {
+      s.style.setProperty('background', s.dataset.colour ?? '');
+    });
   }
 
   render() {

@@ -75,7 +75,7 @@ export class ResultList extends LitElement {
   }
 
   updated() {
-    this.renderRoot.querySelectorAll<HTMLElement>('li[data-colour]').forEach((li) => li.style.setProperty('--swatch', li.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('li[data-colour]').forEach((li) => { li.style.setProperty('--swatch', li.dataset.colour ?? ''); });
   }
 
   /** One-click ways back to the uncorrected baseline and to the ground truth as reference. */

@@ -1,16 +1,21 @@
 // Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
 // id (so no request names a field "id" of its own); the coordinator answers with progress
 // messages and then exactly one done or error.
-// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
+// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB; the
+// page gets only what it draws (a scan's analysed sinogram row, images), transferred.
 import type { Comparison } from '../core/compare';
 import type { NewJob } from '../store/jobs';
 import type { JobRecord, ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
+import type { LibraryReplies, LibraryRequest } from './library-ops';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 6;
+export const APP_PROTOCOL_VERSION = 7;
+
+export type { CalibrationRequest, LibraryRequest, NetworkPriorRequest, PriorCheckRequest };
+export type { ScanOverview } from './library-ops';
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -30,18 +35,19 @@ export type AppRequest =
   | { op: 'calibrate'; request: CalibrationRequest }
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
-  | { op: 'prior-check'; request: PriorCheckRequest };
+  | { op: 'prior-check'; request: PriorCheckRequest }
+  | LibraryRequest;
 
 /** What each request resolves to. */
-export interface AppReplies {
+export interface AppReplies extends LibraryReplies {
   import: ScanMeta;
   demo: ScanMeta;
   'demo-cone': ScanMeta;
   run: ResultMeta;
   'queue-add': JobRecord;
-  'queue-settle': void;
-  'queue-requeue': void;
-  'queue-forget': void;
+  'queue-settle': null;
+  'queue-requeue': null;
+  'queue-forget': null;
   compare: Comparison;
   info: EngineInfo;
   'import-image': ResultMeta;

@@ -22,7 +22,7 @@ import { loadReferenceVolume, loadScan, saveScan } from '../store/scans';
 import { saveSettings } from '../store/settings';
 import type { NetworkRunner } from '../core/model/runner';
 import { saveModel } from '../store/models';
-import { addJob, deleteJobs, jobUpdate, updateJob } from '../store/jobs';
+import { addJob, changeJob, deleteJobs, updateJob } from '../store/jobs';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
 import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
@@ -32,6 +32,7 @@ import { readImageFiles, readVolumeFiles } from './read-image-files';
 import { runNetworkPriorJob } from './network-prior-job';
 import { runPriorCheckJob } from './prior-check-job';
 import { calibrateScan } from './calibrate-job';
+import { isLibraryRequest, libraryOp } from './library-ops';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -55,6 +56,8 @@ export class Coordinator {
   /** Answers one request. */
   async handle<K extends AppRequest['op']>(req: Extract<AppRequest, { op: K }>, hooks: RunHooks = {}): Promise<AppReplies[K]> {
     const r = req as AppRequest;
+    // Library edits and reads never wait for a run (each is one transaction of its own).
+    if (isLibraryRequest(r)) return (await libraryOp(this.store, r)) as AppReplies[K];
     switch (r.op) {
       case 'import':
         return (await this.importScan(r.files, r.name, hooks)) as AppReplies[K];
@@ -67,11 +70,11 @@ export class Coordinator {
       case 'queue-add':
         return (await addJob(r.job, this.store)) as AppReplies[K];
       case 'queue-settle':
-        return (await updateJob(r.jobId, { state: r.state, ...(r.error !== undefined ? { error: r.error } : {}) }, this.store)) as AppReplies[K];
+        return (await updateJob(r.jobId, { state: r.state, ...(r.error !== undefined ? { error: r.error } : {}) }, this.store).then(() => null)) as AppReplies[K];
       case 'queue-requeue':
-        return (await updateJob(r.jobId, { state: 'waiting', session: r.session }, this.store, true)) as AppReplies[K];
+        return (await updateJob(r.jobId, { state: 'waiting', session: r.session }, this.store, true).then(() => null)) as AppReplies[K];
       case 'queue-forget':
-        return (await deleteJobs(r.ids, this.store)) as AppReplies[K];
+        return (await deleteJobs(r.ids, this.store).then(() => null)) as AppReplies[K];
       case 'compare':
         return (await this.compare(r.resultId, r.against)) as AppReplies[K];
       case 'info':
@@ -255,7 +258,7 @@ export class Coordinator {
       residual,
       seconds,
       ...(out.volume ? { volumeMetrics } : {}),
-    }, out.image, this.store, out.volume, (meta) => (job ? [jobUpdate(job, { state: 'done', resultId: meta.id, seconds })] : []));
+    }, out.image, this.store, out.volume, job ? (meta, tx) => changeJob(tx, job, { state: 'done', resultId: meta.id, seconds }) : undefined);
   }
 
   /**

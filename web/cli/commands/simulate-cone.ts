@@ -18,7 +18,7 @@ import { chooseVolumeGrid } from '../../core/recipe/volume-grid';
 import { checkVolumeGrid, type Volume, type VolumeGrid } from '../../core/volume';
 import { viewCount } from '../../core/geometry/types';
 import { positiveNumber, requireString, type ParsedArgs } from '../args';
-import { PendingWrites, replacedWarnings } from '../io';
+import { PendingWrites, replacedWarnings, type WrittenFile } from '../io';
 import { writtenLines, type PlannedFile } from '../output-report';
 import { loadVolume } from '../load';
 import { openWorkspace } from '../engine-node';
@@ -62,31 +62,8 @@ export async function simulateCone(a: ParsedArgs, full: Geometry, outputs: Simul
     : undefined;
   const scanGeometry = crop?.geometry ?? full;
 
-  let data: Float32Array;
-  let truth: Volume | undefined;
-  let muWater: number | undefined;
-  const readWarnings: string[] = [];
-  const views = viewCount(full), rows = full.detector.rows;
-  const planned: PlannedFile[] = [{ path: out, bytes: views * rows * scanGeometry.detector.channels * 4, smaller: 'a geometry with fewer views, rows or channels' }];
-  if (outputs.complete) planned.push({ path: outputs.complete, bytes: views * rows * full.detector.channels * 4, smaller: 'leave out --complete' });
-  if (!(SOLID_PHANTOM_NAMES as readonly string[]).includes(phantomArg)) {
-    // A volume file or folder (NRRD, MetaImage, raw + JSON, DICOM series, TIFF), forward projected.
-    const loaded = await loadVolume(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a);
-    readWarnings.push(...loaded.warnings);
-    truth = loaded.volume;
-    muWater = truth.muWater;
-    if (outputs.truth) planned.push({ path: outputs.truth, bytes: truth.data.byteLength, smaller: 'a smaller phantom volume' });
-    announceLargeOutput(planned, options);
-    data = await projectVolume(truth, full, a.options.workers as number | undefined);
-  } else {
-    const p = namedSolidPhantom(phantomArg);
-    muWater = p.muWater;
-    // Before the work: the default volume is largest when the object is estimated no wider than the FOV.
-    const planGrid = truthVolumeGrid(a, p, { geometry: scanGeometry, data: new Float32Array(0) }, fovRadius(scanGeometry));
-    if (outputs.truth) planned.push({ path: outputs.truth, bytes: planGrid.nx * planGrid.ny * planGrid.nz * 4, smaller: '--size N --pixel mm --slices N (fewer, larger voxels)' });
-    announceLargeOutput(planned, options);
-    data = await analyticConeProjections(p, full, subsamples, { onProgress: a.options.json ? undefined : progressLine('simulate') });
-  }
+  const { data, truth: fileTruth, muWater, readWarnings } = await coneProjections(a, phantomArg, full, scanGeometry, subsamples, outputs, options);
+  let truth = fileTruth;
   let zeroCounts = 0;
   if (photons) zeroCounts = addPhotonNoise(data, photons, seed).zeroCounts;
 
@@ -100,20 +77,8 @@ export async function simulateCone(a: ParsedArgs, full: Geometry, outputs: Simul
     truth = { grid, data: voxelize(p, grid, 3), quantity: 'mu', muWater };
   }
   const d = scanGeometry.detector;
-  const writes = new PendingWrites();
-  const what: Record<string, string> = {};
-  writes.add(out, await writeScanNrrd(scan));
-  what[out] = `scan, ${views} views x ${d.rows} rows x ${d.channels} channels, FOV radius ${fovRadius(scanGeometry).toFixed(1)} mm, half height ${coneFovHalfHeight(scanGeometry).toFixed(1)} mm`;
-  if (outputs.complete) {
-    writes.add(outputs.complete, await writeScanNrrd(completeScan));
-    what[outputs.complete] = `complete scan, ${views} views x ${d.rows} rows x ${full.detector.channels} channels`;
-  }
-  if (outputs.truth && truth) {
-    writes.add(outputs.truth, await writeVolumeNrrd({ ...truth, fovRadius: fovRadius(scanGeometry), fovHalfHeight: coneFovHalfHeight(scanGeometry) }));
-    const g = truth.grid;
-    what[outputs.truth] = `ground truth, ${g.nx} x ${g.ny} x ${g.nz} voxels of ${Number(g.dx.toPrecision(6))} x ${Number(g.dy.toPrecision(6))} x ${Number(g.dz.toPrecision(6))} mm`;
-  }
-  const written = writes.commit();
+  const views = viewCount(full);
+  const { written, what } = await writeConeOutputs(outputs, { scan, completeScan, truth });
   const summary = {
     out,
     views,
@@ -128,6 +93,25 @@ export async function simulateCone(a: ParsedArgs, full: Geometry, outputs: Simul
   };
   const warnings = [...readWarnings, ...(zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : []), ...replacedWarnings(written)];
   return { json: summary, text: writtenLines(written, what).join('\n'), warnings };
+}
+
+/** Writes the scan, and the complete scan and truth when asked for; says what each file holds. */
+async function writeConeOutputs(outputs: SimulateOutputs, f: { scan: Scan; completeScan: Scan; truth: Volume | undefined }): Promise<{ written: WrittenFile[]; what: Record<string, string> }> {
+  const g = f.scan.geometry, d = g.detector, views = viewCount(g);
+  const writes = new PendingWrites();
+  const what: Record<string, string> = {};
+  writes.add(outputs.out, await writeScanNrrd(f.scan));
+  what[outputs.out] = `scan, ${views} views x ${d.rows} rows x ${d.channels} channels, FOV radius ${fovRadius(g).toFixed(1)} mm, half height ${coneFovHalfHeight(g).toFixed(1)} mm`;
+  if (outputs.complete) {
+    writes.add(outputs.complete, await writeScanNrrd(f.completeScan));
+    what[outputs.complete] = `complete scan, ${views} views x ${d.rows} rows x ${f.completeScan.geometry.detector.channels} channels`;
+  }
+  if (outputs.truth && f.truth) {
+    writes.add(outputs.truth, await writeVolumeNrrd({ ...f.truth, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) }));
+    const t = f.truth.grid;
+    what[outputs.truth] = `ground truth, ${t.nx} x ${t.ny} x ${t.nz} voxels of ${Number(t.dx.toPrecision(6))} x ${Number(t.dy.toPrecision(6))} x ${Number(t.dz.toPrecision(6))} mm`;
+  }
+  return { written: writes.commit(), what };
 }
 
 /** The scan as cut to its kept channels (or whole). */
@@ -150,4 +134,31 @@ function truthVolumeGrid(a: ParsedArgs, p: { radius: number; halfHeight: number 
   const height = h > 0 ? Math.min(2 * p.halfHeight + 2 * pixel, 2.2 * h) : 2 * p.halfHeight + 2 * pixel;
   const nz = (o.slices as number | undefined) ?? Math.max(1, Math.ceil(height / pixel));
   return checkVolumeGrid({ nx: size, ny: size, nz, dx: pixel, dy: pixel, dz: pixel, cx: 0, cy: 0, cz: 0 });
+}
+
+/**
+ * Projections of a named 3D phantom (exact) or a volume file (Joseph projector, the file being
+ * the truth); a write larger than the limit is announced first.
+ */
+async function coneProjections(
+  a: ParsedArgs, phantomArg: string, full: Geometry, scanGeometry: Geometry, subsamples: number, outputs: SimulateOutputs, options: SimulateOptions,
+): Promise<{ data: Float32Array; truth: Volume | undefined; muWater: number | undefined; readWarnings: string[] }> {
+  const views = viewCount(full), rows = full.detector.rows;
+  const planned: PlannedFile[] = [{ path: outputs.out, bytes: views * rows * scanGeometry.detector.channels * 4, smaller: 'a geometry with fewer views, rows or channels' }];
+  if (outputs.complete) planned.push({ path: outputs.complete, bytes: views * rows * full.detector.channels * 4, smaller: 'leave out --complete' });
+  if (!(SOLID_PHANTOM_NAMES as readonly string[]).includes(phantomArg)) {
+    // A volume file or folder (NRRD, MetaImage, raw + JSON, DICOM series, TIFF), forward projected.
+    const loaded = await loadVolume(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a);
+    const truth = loaded.volume;
+    if (outputs.truth) planned.push({ path: outputs.truth, bytes: truth.data.byteLength, smaller: 'a smaller phantom volume' });
+    announceLargeOutput(planned, options);
+    return { data: await projectVolume(truth, full, a.options.workers as number | undefined), truth, muWater: truth.muWater, readWarnings: loaded.warnings };
+  }
+  const p = namedSolidPhantom(phantomArg);
+  // Before the work: the default volume is largest when the object is estimated no wider than the FOV.
+  const planGrid = truthVolumeGrid(a, p, { geometry: scanGeometry, data: new Float32Array(0) }, fovRadius(scanGeometry));
+  if (outputs.truth) planned.push({ path: outputs.truth, bytes: planGrid.nx * planGrid.ny * planGrid.nz * 4, smaller: '--size N --pixel mm --slices N (fewer, larger voxels)' });
+  announceLargeOutput(planned, options);
+  const data = await analyticConeProjections(p, full, subsamples, { onProgress: a.options.json ? undefined : progressLine('simulate') });
+  return { data, truth: undefined, muWater: p.muWater, readWarnings: [] };
 }

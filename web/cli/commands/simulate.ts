@@ -3,7 +3,7 @@
 import { existsSync } from 'node:fs';
 import { InputError } from '../../core/errors';
 import { cropDetector } from '../../core/geometry/presets';
-import { viewCount } from '../../core/geometry/types';
+import { viewCount, type Geometry } from '../../core/geometry/types';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
@@ -84,52 +84,20 @@ export async function simulate(argv: string[], options: SimulateOptions = {}): P
   const seed = (a.options.seed as number | undefined) ?? 1;
   const subsamples = (a.options.subsamples as number | undefined) ?? 1;
   if (!Number.isInteger(subsamples) || subsamples < 1 || subsamples > 16) throw new InputError(`option --subsamples: got ${subsamples}, expected 1 to 16`);
-  if (a.options.channels !== undefined && a.options.collimate !== undefined) throw new InputError('options --channels and --collimate both choose the kept channels: give one');
-  const collimate = positiveNumber(a, 'collimate');
-  const channels = collimate !== undefined ? collimatedChannels(full, collimate) : (a.options.channels as number | undefined);
-  const crop = channels !== undefined || a.options.offset !== undefined
-    ? cropDetector(full, channels ?? full.detector.channels, (a.options.offset as number | undefined) ?? 0)
-    : undefined;
-
-  let data: Float32Array;
-  let truth: Image2D | undefined;
-  let muWater: number | undefined;
-  const views = viewCount(full);
-  const planned: PlannedFile[] = [{ path: out, bytes: views * (crop?.geometry ?? full).detector.channels * 4, smaller: 'a geometry with fewer views or channels' }];
-  if (outputs.complete) planned.push({ path: outputs.complete, bytes: views * full.detector.channels * 4, smaller: 'leave out --complete' });
-  const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
-  if (isFile) {
-    truth = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
-    muWater = truth.muWater;
-    if (outputs.truth) planned.push({ path: outputs.truth, bytes: truth.data.byteLength, smaller: 'a smaller phantom image' });
-    announceLargeOutput(planned, options);
-    data = await projectImage(truth, full, a.options.workers as number | undefined);
-  } else {
-    const p = namedPhantom(phantomArg);
-    muWater = p.muWater;
-    const size = truthSize(a, p.radius);
-    if (outputs.truth) planned.push({ path: outputs.truth, bytes: size * size * 4, smaller: '--size N --pixel mm (fewer, larger pixels)' });
-    announceLargeOutput(planned, options);
-    data = analyticSinogram(p, full, subsamples);
-  }
+  const crop = detectorCrop(a, full);
+  const phantom = await loadPhantom(a, phantomArg);
+  announceLargeOutput(plannedFiles(a, outputs, full, crop, phantom), options);
+  const data = await projectPhantom(a, phantom, full, subsamples);
+  const { muWater } = phantom;
   let zeroCounts = 0;
   if (photons) zeroCounts = addPhotonNoise(data, photons, seed).zeroCounts;
 
   const notes: Record<string, string> = { phantom: phantomArg, ...(photons ? { photons: String(photons), seed: String(seed) } : {}) };
   const completeScan: Scan = { geometry: full, data, muWater, notes };
-  let scan = completeScan;
-  if (crop) {
-    const n = crop.geometry.detector.channels, nFull = full.detector.channels;
-    const cut = new Float32Array(views * n);
-    for (let v = 0; v < views; v++) cut.set(data.subarray(v * nFull + crop.first, v * nFull + crop.first + n), v * n);
-    scan = { geometry: crop.geometry, data: cut, muWater, notes: { ...notes, truncatedFrom: `${nFull} channels` } };
-  }
-  if (!truth && outputs.truth) {
-    // The built-in phantom on the truth grid: by default the one reconstruct picks for this scan.
-    const p = namedPhantom(phantomArg);
-    const grid = truthGrid(a, p.radius, scan);
-    truth = { grid, data: rasterize(p, grid, 4), quantity: 'mu', muWater };
-  }
+  const scan = crop ? cropScan(completeScan, crop) : completeScan;
+  // A named phantom goes on its truth grid after the scan exists: by default the grid reconstruct picks for this scan.
+  const truth = outputs.truth ? phantom.image ?? namedTruth(a, phantomArg, scan) : undefined;
+  const views = viewCount(full);
   const writes = new PendingWrites();
   const what: Record<string, string> = {};
   const fov = fovRadius(scan.geometry);
@@ -152,17 +120,72 @@ export async function simulate(argv: string[], options: SimulateOptions = {}): P
     photons: photons ?? null,
     zeroCountReadings: zeroCounts,
     files: written.map((w) => ({ path: w.path, bytes: w.bytes, replaced: w.replaced })),
-    ...(outputs.truth && truth ? { truthGrid: truth.grid } : {}),
+    ...(truth ? { truthGrid: truth.grid } : {}),
   };
   const warnings = [...(zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : []), ...replacedWarnings(written)];
   return { json: summary, text: writtenLines(written, what).join('\n'), warnings };
 }
 
-/** Forward projection of an image phantom in the geometry. */
-async function projectImage(truth: Image2D, g: Scan['geometry'], workers: number | undefined): Promise<Float32Array> {
-  const ws = await openWorkspace(workers ?? undefined);
+/** The kept channels (--channels or --collimate, with --offset), or undefined for the whole detector. */
+function detectorCrop(a: ParsedArgs, full: Geometry): ReturnType<typeof cropDetector> | undefined {
+  if (a.options.channels !== undefined && a.options.collimate !== undefined) throw new InputError('options --channels and --collimate both choose the kept channels: give one');
+  const collimate = positiveNumber(a, 'collimate');
+  const channels = collimate !== undefined ? collimatedChannels(full, collimate) : (a.options.channels as number | undefined);
+  return channels !== undefined || a.options.offset !== undefined
+    ? cropDetector(full, channels ?? full.detector.channels, (a.options.offset as number | undefined) ?? 0)
+    : undefined;
+}
+
+/** The scan on the kept channels only. */
+function cropScan(complete: Scan, crop: ReturnType<typeof cropDetector>): Scan {
+  const { data, muWater, notes } = complete;
+  const n = crop.geometry.detector.channels, nFull = complete.geometry.detector.channels;
+  const nViews = data.length / nFull;
+  const cut = new Float32Array(nViews * n);
+  for (let v = 0; v < nViews; v++) cut.set(data.subarray(v * nFull + crop.first, v * nFull + crop.first + n), v * n);
+  return { geometry: crop.geometry, data: cut, muWater, notes: { ...notes, truncatedFrom: `${nFull} channels` } };
+}
+
+/** The phantom: an image file (its own grid is the truth's), or a named phantom (radius for the truth grid). */
+interface Phantom {
+  image?: Image2D;
+  radius: number;
+  muWater: number | undefined;
+}
+
+async function loadPhantom(a: ParsedArgs, phantomArg: string): Promise<Phantom> {
+  const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
+  if (!isFile) {
+    const p = namedPhantom(phantomArg);
+    return { radius: p.radius, muWater: p.muWater };
+  }
+  const image = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
+  return { image, radius: 0, muWater: image.muWater };
+}
+
+/** What simulate will write, with estimated sizes, before any work (for the large-output warning). */
+function plannedFiles(a: ParsedArgs, outputs: SimulateOutputs, full: Geometry, crop: ReturnType<typeof cropDetector> | undefined, phantom: Phantom): PlannedFile[] {
+  const views = viewCount(full);
+  const planned: PlannedFile[] = [{ path: outputs.out, bytes: views * (crop?.geometry ?? full).detector.channels * 4, smaller: 'a geometry with fewer views or channels' }];
+  if (outputs.complete) planned.push({ path: outputs.complete, bytes: views * full.detector.channels * 4, smaller: 'leave out --complete' });
+  if (outputs.truth) {
+    planned.push(phantom.image
+      ? { path: outputs.truth, bytes: phantom.image.data.byteLength, smaller: 'a smaller phantom image' }
+      : { path: outputs.truth, bytes: truthSize(a, phantom.radius) ** 2 * 4, smaller: '--size N --pixel mm (fewer, larger pixels)' });
+  }
+  return planned;
+}
+
+/**
+ * Projections of the phantom on the whole detector: a named phantom exactly (analytic line
+ * integrals), an image file by the Joseph projector.
+ */
+async function projectPhantom(a: ParsedArgs, phantom: Phantom, full: Geometry, subsamples: number): Promise<Float32Array> {
+  if (!phantom.image) return analyticSinogram(namedPhantom(requireString(a, 'phantom')), full, subsamples);
+  const truth = phantom.image;
+  const ws = await openWorkspace((a.options.workers as number | undefined) ?? undefined);
   try {
-    const proj = await Projector2d.create(ws, truth.grid, g);
+    const proj = await Projector2d.create(ws, truth.grid, full);
     const img = ws.alloc('phantom', truth.data.length);
     const sino = ws.alloc('sino', proj.nViews * proj.nCh);
     await ws.write(img, truth.data);
@@ -171,6 +194,13 @@ async function projectImage(truth: Image2D, g: Scan['geometry'], workers: number
   } finally {
     ws.dispose();
   }
+}
+
+/** A named phantom rasterized on its truth grid (truthGrid). */
+function namedTruth(a: ParsedArgs, phantomArg: string, scan: Scan): Image2D {
+  const p = namedPhantom(phantomArg);
+  const grid = truthGrid(a, p.radius, scan);
+  return { grid, data: rasterize(p, grid, 4), quantity: 'mu', muWater: p.muWater };
 }
 
 /** Pixels along each side of the truth grid (--size; with --pixel alone, covering the phantom; else the default grid's). */

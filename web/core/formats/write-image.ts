@@ -9,7 +9,6 @@ import { checkWindow, writePng, type DisplayWindow } from './png';
 import { MU_WATER_REMEDY } from './volume';
 
 export type ImageFileFormat = 'nrrd' | 'mha' | 'mhd' | 'png';
-export const IMAGE_FILE_FORMATS: readonly ImageFileFormat[] = ['nrrd', 'mha', 'mhd', 'png'];
 
 export interface ImageWriteOptions {
   format: ImageFileFormat;

@@ -19,7 +19,7 @@ function show(v: Json): string {
   if (typeof v === 'number' && !Number.isFinite(v)) return `${v} (not a finite number)`;
   const s = JSON.stringify(v, (_, x) => (typeof x === 'number' && !Number.isFinite(x) ? `${NOT_FINITE}${x}` : x))
     ?.replace(new RegExp(`"${NOT_FINITE}(-?Infinity|NaN)"`, 'g'), '$1 (not a finite number)');
-  return s === undefined ? String(v) : s.length > 60 ? s.slice(0, 57) + '...' : s;
+  return s === undefined ? String(v) : s.length > 60 ? `${s.slice(0, 57)}...` : s;
 }
 
 function fail(field: string, got: Json, expected: string): never {

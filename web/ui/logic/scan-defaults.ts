@@ -1,20 +1,16 @@
-// What the Reconstruct tab starts from for a scan: the truncation report of its (central) row,
-// the correction that report suggests, and the grid a recipe without one gets (the same one the
-// command line picks), all from core functions so that page and CLI agree.
+// What the Reconstruct tab starts from for a scan: the correction its truncation report suggests
+// and the grid a recipe without one gets (the same one the command line picks), from core
+// functions so that page and CLI agree. The report is the coordinator's (truncationOverview).
 import type { Geometry } from '../../core/geometry/types';
 import { chooseGrid } from '../../core/recipe/grid';
 import { chooseVolumeGrid } from '../../core/recipe/volume-grid';
 import type { Scan } from '../../core/scan';
-import { centralRowScan } from '../../core/truncation/central-row';
-import { detectTruncation, type TruncationReport } from '../../core/truncation/detect';
+import type { TruncationReport } from '../../core/truncation/detect';
 import { recommendCorrection, type CorrectionAdvice } from '../../core/truncation/recommend';
 
 export interface ScanDefaults {
-  /** The analysed row's line integrals, [view][channel] (the central row of a cone-beam scan). */
-  projections: Float32Array;
-  report: TruncationReport;
   advice: CorrectionAdvice;
-  /** The default grid in words, e.g. "512 px × 1.29 mm" (or "… × 120 slices" for a volume). */
+  /** The default grid in words, e.g. "512 px × 1.29 mm" (or "…, 120 slices" for a volume). */
   gridText: string;
 }
 
@@ -31,9 +27,7 @@ export function defaultGridText(geometry: Geometry, objectRadiusMm: number): str
   return `${g.nx} px × ${trim(g.dx)} mm`;
 }
 
-/** The report, suggested correction and default grid of a scan. */
-export function scanDefaults(scan: Scan): ScanDefaults {
-  const row = centralRowScan(scan);
-  const report = detectTruncation(row);
-  return { projections: row.data, report, advice: recommendCorrection(report.summary), gridText: defaultGridText(scan.geometry, report.summary.objectRadiusMm) };
+/** The suggested correction and default grid of a scan with this geometry and truncation report. */
+export function scanDefaults(geometry: Geometry, report: TruncationReport): ScanDefaults {
+  return { advice: recommendCorrection(report.summary), gridText: defaultGridText(geometry, report.summary.objectRadiusMm) };
 }
