@@ -16,7 +16,7 @@ import { analyticSinogram } from '../../web/core/simulate/analytic';
 import { detectTruncation } from '../../web/core/truncation/detect';
 import { recommendCorrection } from '../../web/core/truncation/recommend';
 import { truncationOverview } from '../../web/core/truncation/overview';
-import { defaultGridText, scanDefaults } from '../../web/ui/logic/scan-defaults';
+import { defaultGridText } from '../../web/ui/logic/scan-defaults';
 
 // A water cylinder of radius 100 mm (mu 0.02 /mm, common practice for water near 60 keV) in a
 // fan beam whose full detector sees all of it.
@@ -66,10 +66,9 @@ describe("the page's defaults for a scan", () => {
   it('start the recipe with the suggestion and name the grid reconstruct picks when the recipe has none', () => {
     const scan = scanOf(120);
     const o = truncationOverview(scan);
-    const d = scanDefaults(scan.geometry, o.report);
-    expect(d.advice.extend).toBe('water');
+    expect(o.advice).toEqual(recommendCorrection(o.report.summary));
+    expect(o.advice.extend).toBe('water');
     const g = chooseGrid(scan);
-    expect(d.gridText).toBe(`${g.nx} px × ${Number(g.dx.toPrecision(3))} mm`);
-    expect(defaultGridText(scan.geometry, o.report.summary.objectRadiusMm)).toBe(d.gridText);
+    expect(defaultGridText(scan.geometry, o.report.summary.objectRadiusMm)).toBe(`${g.nx} px × ${Number(g.dx.toPrecision(3))} mm`);
   });
 });

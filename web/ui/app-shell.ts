@@ -12,7 +12,7 @@ import { loadSettings } from '../store/settings';
 import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
 import { geometrySummary } from './logic/describe';
-import { scanDefaults } from './logic/scan-defaults';
+import { defaultGridText } from './logic/scan-defaults';
 import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
 import type { ImageImportState } from './result-list';
 import { TRUTH } from './results-view';
@@ -199,9 +199,9 @@ export class AppShell extends LitElement {
     this.comparisons = new Map();
     // The coordinator reads the projections and analyses them (the same row and report as
     // `rimfill inspect`); only the analysed row and the reference image come to the page.
-    const { scan, sinogram, report, reference } = await this.client.scanOverview(id);
+    const { scan, sinogram, report, advice, reference } = await this.client.scanOverview(id);
     if (this.selectedScanId !== id) return;
-    this.loaded = { id, projections: sinogram, report, ...scanDefaults(scan.geometry, report), truth: reference, referenceGrid: reference?.grid };
+    this.loaded = { id, projections: sinogram, report, advice, gridText: defaultGridText(scan.geometry, report.summary.objectRadiusMm), truth: reference, referenceGrid: reference?.grid };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);
   }

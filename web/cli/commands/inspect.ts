@@ -4,7 +4,7 @@ import { coneFovHalfHeight } from '../../core/geometry/cone';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { truncationOverview } from '../../core/truncation/overview';
 import type { TruncationReport } from '../../core/truncation/detect';
-import { recommendCorrection } from '../../core/truncation/recommend';
+import type { CorrectionAdvice } from '../../core/truncation/recommend';
 import { parseArgs } from '../args';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import type { CommandResult } from './types';
@@ -21,7 +21,7 @@ ${SCAN_INPUT_HELP}
 const pct = (x: number) => `${(100 * x).toFixed(1)}%`;
 const mm = (x: number) => `${x.toFixed(1)} mm`;
 
-function summaryLines(r: TruncationReport): string[] {
+function summaryLines(r: TruncationReport, advice: CorrectionAdvice): string[] {
   const s = r.summary;
   const lines = [
     `truncated views: ${pct(s.truncatedFraction)} (left edge ${pct(s.leftFraction)}, right edge ${pct(s.rightFraction)}); worst side: ${s.worstSide}`,
@@ -40,7 +40,6 @@ function summaryLines(r: TruncationReport): string[] {
     lines.push(`mass consistency (${form}): ${total}; cut-off views miss up to ${pct(m.maxMissingFraction)} (mean ${pct(m.meanMissingFraction)})`);
   }
   lines.push(`edge threshold ${r.threshold.toPrecision(3)} (noise sigma ${r.noiseSigma.toPrecision(3)}); water fits with mu ${r.muWater} /mm${r.muAssumed ? ' (assumed: the scan records no mu_water)' : ''}`);
-  const advice = recommendCorrection(s);
   lines.push(`suggested correction: ${advice.label} (--extend ${advice.extend}): ${advice.reason}`);
   return lines;
 }
@@ -60,12 +59,12 @@ export async function inspect(argv: string[]): Promise<CommandResult> {
   const g = scan.geometry;
   const cone = g.kind === 'cone';
   // Cone beams: the row nearest the orbit plane, analysed as a fan-beam scan (the page shows the same).
-  const { row, report: r } = truncationOverview(scan);
+  const { row, report: r, advice } = truncationOverview(scan);
   const text = [
     `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels${cone ? ` x ${g.detector.rows} rows (row ${row} analysed, the nearest to the orbit plane)` : ''}, ${r.views.length} views`,
     `measured field of view: radius ${fovRadius(g).toFixed(1)} mm${cone ? `, half height ${coneFovHalfHeight(g).toFixed(1)} mm on the axis` : ''}`,
-    ...summaryLines(r),
+    ...summaryLines(r, advice),
     ...(a.options.views ? viewLines(r) : []),
   ].join('\n');
-  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...(cone ? { analysedRow: row } : {}), ...r, recommendation: recommendCorrection(r.summary) }, text, warnings };
+  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...(cone ? { analysedRow: row } : {}), ...r, recommendation: advice }, text, warnings };
 }

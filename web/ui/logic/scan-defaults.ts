@@ -1,18 +1,10 @@
-// What the Reconstruct tab starts from for a scan: the correction its truncation report suggests
-// and the grid a recipe without one gets (the same one the command line picks), from core
-// functions so that page and CLI agree. The report is the coordinator's (truncationOverview).
+// The grid a recipe without one gets, in words for the recipe form: the same grid the command line
+// picks (chooseGrid / chooseVolumeGrid), from the object radius of the coordinator's truncation
+// report (truncationOverview, which also gives the suggested correction).
 import type { Geometry } from '../../core/geometry/types';
 import { chooseGrid } from '../../core/recipe/grid';
 import { chooseVolumeGrid } from '../../core/recipe/volume-grid';
 import type { Scan } from '../../core/scan';
-import type { TruncationReport } from '../../core/truncation/detect';
-import { recommendCorrection, type CorrectionAdvice } from '../../core/truncation/recommend';
-
-export interface ScanDefaults {
-  advice: CorrectionAdvice;
-  /** The default grid in words, e.g. "512 px × 1.29 mm" (or "…, 120 slices" for a volume). */
-  gridText: string;
-}
 
 const trim = (v: number) => String(Number(v.toPrecision(3)));
 
@@ -25,9 +17,4 @@ export function defaultGridText(geometry: Geometry, objectRadiusMm: number): str
   }
   const g = chooseGrid(scan, undefined, objectRadiusMm);
   return `${g.nx} px × ${trim(g.dx)} mm`;
-}
-
-/** The suggested correction and default grid of a scan with this geometry and truncation report. */
-export function scanDefaults(geometry: Geometry, report: TruncationReport): ScanDefaults {
-  return { advice: recommendCorrection(report.summary), gridText: defaultGridText(geometry, report.summary.objectRadiusMm) };
 }
