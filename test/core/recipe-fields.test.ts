@@ -27,10 +27,10 @@ describe('recipe fields', () => {
   });
 
   it('label a result in one line: the method, its truncation correction in words, then the other choices', () => {
-    expect(recipeLabel({ method: 'fbp', filter: 'hann', cutoff: 0.8 })).toBe('FBP, no correction, hann, cutoff 0.8, automatic grid');
-    expect(recipeLabel({ method: 'fbp', extend: 'none', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, no correction, ram-lak, cutoff 1, 576 px × 1 mm');
-    expect(recipeLabel({ method: 'fbp', extend: 'water', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, water cylinder, ram-lak, cutoff 1, 576 px × 1 mm');
-    expect(recipeLabel({ method: 'fbp', filter: 'ram-lak', cutoff: 1, volume: { slices: 20, spacing: 6 } })).toBe('FBP, no correction, ram-lak, cutoff 1, automatic grid, 20 slices × 6 mm');
+    expect(recipeLabel({ method: 'fbp', filter: 'hann', bandLimit: 4 })).toBe('FBP, no correction, hann, band limit 4 lp/cm, automatic grid');
+    expect(recipeLabel({ method: 'fbp', extend: 'none', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, no correction, ramp, 576 px × 1 mm');
+    expect(recipeLabel({ method: 'fbp', extend: 'water', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, water cylinder, ramp, 576 px × 1 mm');
+    expect(recipeLabel({ method: 'fbp', filter: 'ramp', volume: { slices: 20, spacing: 6 } })).toBe('FBP, no correction, ramp, automatic grid, 20 slices × 6 mm');
     expect(recipeLabel({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('Prior-guided, prior: “earlier scan”, automatic grid');
     expect(recipeLabel({ method: 'sart', iterations: 5 })).toBe('SART, measured rays only, automatic grid, iterations 5');
     expect(methodAndCorrection({ method: 'fbp', extend: 'cosine' })).toBe('FBP, cosine taper');
@@ -38,7 +38,7 @@ describe('recipe fields', () => {
     expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');
     expect(methodAndCorrection({ method: 'prior' })).toBe('Prior-guided, prior: FBP with water cylinder extension');
     expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
-      .toBe('SART, measured rays only, knowing 1 region and the outline');
+      .toBe('SART, measured rays only, 1 known region + outline');
   });
 });
 

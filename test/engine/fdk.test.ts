@@ -125,7 +125,7 @@ describe('FDK pipeline', () => {
     // A calibrated view whose detector faces away from the isocentre.
     const away = validateGeometry({
       kind: 'cone', detector: { channels: 40, rows: 18, pitch: [2, 2] }, sourceIsocenter: 300, sourceDetector: 540,
-      views: Array.from({ length: 30 }, (_, v) => ({ source: [300, 0, 0], detector: [v === 4 ? 500 : -240, 0, 0], u: [0, 1, 0], v: [0, 0, 1] })),
+      views: Array.from({ length: 30 }, (_, v) => ({ focalSpot: [300, 0, 0], detectorCenter: [v === 4 ? 500 : -240, 0, 0], channelStep: [0, 2, 0], rowStep: [0, 0, 2] })),
     });
     await expect(fdk3d(ws, { geometry: away, data: scan.data }, { grid: smallGrid })).rejects.toThrow(/geometry view 4: the isocentre lies -300.0 mm from the source/);
   });

@@ -7,6 +7,7 @@
 import type { RegionFigures } from './compare';
 import { InputError } from './errors';
 import { ssimBorder, ssimMap } from './metrics';
+import { checkOverlap } from './overlap';
 import { resampleTrilinear, sameVolumeGrid } from './resample-volume';
 import { volumeOrigin, type Volume, type VolumeGrid } from './volume';
 
@@ -25,6 +26,8 @@ export interface VolumeComparison {
   regions: Record<VolumeRegion, RegionFigures | null>;
   /** True when the reference was resampled onto the volume's grid. */
   resampled: boolean;
+  /** Fraction of the volume the reference covers (overlap.ts). */
+  overlap: number;
   fovRadiusMm: number | null;
   fovHalfHeightMm: number | null;
   /** Per axial slice, when asked for. */
@@ -70,6 +73,8 @@ export function compareVolumes(volume: Volume, reference: Volume, options: Volum
   let bad = 0;
   for (const v of volume.data) if (!Number.isFinite(v)) bad++;
   if (bad) throw new InputError(`volume: ${bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
+  const { overlap, note } = checkOverlap(g, reference.grid, 'volume');
+  if (note) notes.push(note);
   const resampled = !sameVolumeGrid(g, reference.grid);
   const ref = resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
   if (resampled) notes.push('reference resampled (trilinear) onto the volume grid');
@@ -95,6 +100,7 @@ export function compareVolumes(volume: Volume, reference: Volume, options: Volum
     unit: muWater ? 'HU' : '1/mm',
     regions: figuresOf(total, c.range),
     resampled,
+    overlap,
     fovRadiusMm: c.fov ?? null,
     fovHalfHeightMm: c.fovH ?? null,
     ...(options.perSlice ? { slices } : {}),

@@ -15,7 +15,8 @@ import { geometrySummary } from './logic/describe';
 import { defaultGridText } from './logic/scan-defaults';
 import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
 import type { ImageImportState } from './result-list';
-import { TRUTH } from './results-view';
+import { TRUTH, type DicomExportState } from './results-view';
+import { fileName, saveFile } from './export/download';
 import { QueueKeeper } from './queue-keeper';
 import { theme } from './theme';
 import './caution-banner';
@@ -54,7 +55,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
-    importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -76,6 +77,7 @@ export class AppShell extends LitElement {
   declare imageImport: ImageImportState;
   /** A HU calibration of the chosen scan being stored (Images tab). */
   declare calibrating: ImageImportState;
+  declare dicomExport: DicomExportState;
   declare demoBusy: boolean;
   declare demoFraction: number;
   declare coneDemoBusy: boolean;
@@ -130,6 +132,7 @@ export class AppShell extends LitElement {
     this.importing = false;
     this.importError = '';
     this.imageImport = { busy: false, error: '' };
+    this.dicomExport = { busy: false, error: '' };
     this.calibrating = { busy: false, error: '' };
     this.demoBusy = false;
     this.demoFraction = 0;
@@ -240,6 +243,18 @@ export class AppShell extends LitElement {
       this.imageImport = { busy: false, error: '' };
     } catch (err) {
       this.imageImport = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The image could not be added: ${message(err)}` };
+    }
+  }
+
+  /** A stored result as a DICOM CT series: encoded in the worker, handed to the download as the Blob it sends back. */
+  private async exportDicom(id: string) {
+    this.dicomExport = { busy: true, error: '' };
+    try {
+      const out = await this.client.exportDicom(id);
+      saveFile(out.blob, fileName(out.name, out.kind), out.blob.type);
+      this.dicomExport = { busy: false, error: '', note: out.warnings.join('; ') || undefined };
+    } catch (err) {
+      this.dicomExport = { busy: false, error: err instanceof InputError ? err.message : `The DICOM export failed: ${message(err)}` };
     }
   }
 
@@ -435,6 +450,7 @@ export class AppShell extends LitElement {
         this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, e.detail.id));
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       }))}
+      .dicomExport=${this.dicomExport} @export-dicom=${(e: CustomEvent) => this.act('The DICOM export failed', () => this.exportDicom(e.detail.id))}
       @reference-change=${(e: CustomEvent) => this.act('The reference could not be loaded', () => this.setReference(e.detail.id))}></rf-results-view>
       ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .load=${volumeLoader(scan.id)}></rf-volume-view>` : nothing}`;
   }

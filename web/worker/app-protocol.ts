@@ -2,11 +2,13 @@
 // id (so no request names a field "id" of its own); the coordinator answers with progress
 // messages and then exactly one done or error.
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB; the
-// page gets only what it draws (a scan's analysed sinogram row, images), transferred.
+// page gets only what it draws (a scan's analysed sinogram row, images), transferred, and
+// exported files come back as Blobs for the download.
 import type { Comparison } from '../core/compare';
 import type { NewJob } from '../store/jobs';
 import type { JobRecord, ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
+import type { DicomExportOutcome } from './export-dicom-job';
 import type { LibraryReplies, LibraryRequest } from './library-ops';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
@@ -36,6 +38,7 @@ export type AppRequest =
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
   | { op: 'prior-check'; request: PriorCheckRequest }
+  | { op: 'export-dicom'; resultId: string }
   | LibraryRequest;
 
 /** What each request resolves to. */
@@ -55,6 +58,7 @@ export interface AppReplies extends LibraryReplies {
   'import-model': ModelMeta;
   'network-prior': NetworkPriorOutcome;
   'prior-check': PriorCheckOutcome;
+  'export-dicom': DicomExportOutcome;
 }
 
 export interface EngineInfo {

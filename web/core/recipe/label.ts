@@ -1,8 +1,9 @@
 // A result's label, built in one place for the page (queue, lists, panels, metrics table), the
 // report and the CLI: the method, then its truncation correction in words ("no correction",
 // "water cylinder", ...), then the other choices, e.g.
-// "FBP, water cylinder, ram-lak, cutoff 1, 576 px × 1 mm".
+// "FBP, water cylinder, ramp, 576 px × 1 mm".
 import { DEFAULT_PRIOR_RECIPE, isIterativeMethod } from '../iterative/options';
+import { knowledgePhrase, type Knowledge } from '../knowledge';
 import { EXTEND_WORDS, type ExtendMethod } from '../truncation/extend-methods';
 import { choiceLabel, describeRecipeFields, type RecipeField } from './fields';
 
@@ -39,21 +40,14 @@ export function correctionWords(recipe: RecipeLike): string {
   return '';
 }
 
-/** What the recipe knows beyond the data, in words ("knowing 1 region and the outline"), or ''. */
-export function knowledgeWords(recipe: RecipeLike): string {
-  const k = recipe.knowledge as { known?: unknown[]; outline?: unknown } | undefined;
-  const n = k?.known?.length ?? 0;
-  const parts = [n ? `${n} region${n > 1 ? 's' : ''}` : '', k?.outline ? 'the outline' : ''].filter(Boolean);
-  return parts.length ? `knowing ${parts.join(' and ')}` : '';
-}
-
 /** "FBP, water cylinder": the method and its correction, and what it knows beyond the data (the CLI's short label). */
 export function methodAndCorrection(recipe: RecipeLike): string {
-  return [methodWords(recipe), correctionWords(recipe), knowledgeWords(recipe)].filter(Boolean).join(', ');
+  return [methodWords(recipe), correctionWords(recipe), knowledgePhrase(recipe.knowledge as Knowledge | undefined)].filter(Boolean).join(', ');
 }
 
 function formatValue(f: RecipeField, v: unknown): string {
   if (f.kind === 'choice') return String(v);
+  if (f.key === 'bandLimit') return `band limit ${String(v)} lp/cm`;
   if (f.kind === 'grid') {
     const g = v as { size: number; pixel: number } | undefined;
     return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
@@ -61,7 +55,7 @@ function formatValue(f: RecipeField, v: unknown): string {
   return `${f.key} ${String(v)}`;
 }
 
-/** The label of a recipe's result, e.g. "FBP, no correction, hann, cutoff 0.8, 576 px × 1 mm". */
+/** The label of a recipe's result, e.g. "FBP, no correction, hann, band limit 4 lp/cm, 576 px × 1 mm". */
 export function recipeLabel(recipe: RecipeLike): string {
   const parts = [methodAndCorrection(recipe)];
   for (const f of describeRecipeFields()) {

@@ -21,7 +21,7 @@ import type { Scan } from '../scan';
 import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type Volume, type VolumeGrid } from '../volume';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
-import { prepareFilter } from './filter-response';
+import { bandEdge, prepareFilter } from './filter-response';
 import { requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 
@@ -46,8 +46,8 @@ export interface RowExtension {
 export interface FdkParams {
   grid: VolumeGrid;
   filter?: FilterWindow;
-  /** Frequency scaling of the window, (0, 1]. */
-  cutoff?: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
   extension?: RowExtension;
   /** Engine memory for one chunk of filtered views, bytes (default 32 MiB). */
   chunkBytes?: number;
@@ -78,7 +78,8 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   requireCone(g);
   const grid = checkVolumeGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
-  const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
+  const window = checkFilter(params.filter ?? 'ramp', params.bandLimit);
+  const band = bandEdge(g, params.bandLimit);
   const ext = params.extension;
   const gf = ext ? extendDetector(g, ext.left, ext.right) : g; // the detector the filter sees
   checkScanData(scan, viewVectors(g).length / VIEW_STRIDE);
@@ -87,7 +88,7 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   const timings = { weights: now() - t0, filter: 0, backproject: 0 };
   throwIfCancelled(hooks.signal);
   ws.reset();
-  const job = await prepareJob(ws, scan, gf, grid, weights, { ...params, filter: window });
+  const job = await prepareJob(ws, scan, gf, grid, weights, { ...params, filter: window }, band.edge);
   const chunks = splitRange(job.nViews, Math.ceil(job.nViews / job.chunk));
   for (let c = 0; c < chunks.length; c++) {
     throwIfCancelled(hooks.signal);
@@ -101,7 +102,7 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   for (let r = 0; r < grid.ny * grid.nz; r++) data.set(padded.subarray(r * job.nxs, r * job.nxs + grid.nx), r * grid.nx);
   return {
     volume: { grid, data, quantity: 'mu', muWater: scan.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
-    warnings,
+    warnings: band.warning ? [...warnings, band.warning] : warnings,
     scanType,
     timings,
   };
@@ -131,7 +132,7 @@ interface FdkJob {
 }
 
 /** Lays out the job's memory, writes the view table and weights, zeroes the volume. */
-async function prepareJob(ws: Workspace, scan: Scan, gf: Geometry, grid: VolumeGrid, weights: Float32Array, params: FdkParams & { filter: FilterWindow }): Promise<FdkJob> {
+async function prepareJob(ws: Workspace, scan: Scan, gf: Geometry, grid: VolumeGrid, weights: Float32Array, params: FdkParams & { filter: FilterWindow }, bandEdgeFraction: number): Promise<FdkJob> {
   const g = scan.geometry;
   const ext = params.extension;
   const table = viewVectors(g);
@@ -155,7 +156,7 @@ async function prepareJob(ws: Workspace, scan: Scan, gf: Geometry, grid: VolumeG
     };
   });
   // Zero padding as in fbp2d: the measured channels filtered exactly (linear convolution).
-  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, params.filter, params.cutoff ?? 1);
+  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, params.filter, bandEdgeFraction);
   const fft = { res: ws.allocPerWorker('fftRe', filter.nPad), ims: ws.allocPerWorker('fftIm', filter.nPad) };
   await ext?.prepare?.(ws, scan);
   await ws.write(buffers.views, table);
