@@ -10,9 +10,10 @@ import { describeResult } from '../../core/recipe/describe-result';
 import type { KnowledgeReport } from '../../core/recipe/knowledge-report';
 import { addKnowledgeFields, KNOWLEDGE_HELP, KNOWLEDGE_OPTIONS, knowledgeLines, knowledgeMasks } from '../knowledge-options';
 import { runRecipe } from '../../core/recipe/run';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { priorConsistency } from '../prior-consistency';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { openWorkspace } from '../engine-node';
@@ -84,8 +85,9 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
-  const recipe = recipeFromArgs(a);
   const out = requireString(a, 'out');
+  checkOutputs([['out', out]]);
+  const recipe = recipeFromArgs(a);
   const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
   if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
@@ -110,21 +112,21 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     if (r.volume) {
       const v = r.volume;
       writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu', description } : { ...v, description }));
-      writes.commit();
+      readWarnings.push(...replacedWarnings(writes.commit()));
       const vg = v.grid;
       return {
         json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}`,
+        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>).replace(/^FBP/, 'FDK')} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}`,
         warnings: [...readWarnings, ...r.warnings],
       };
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
-    writes.commit();
+    readWarnings.push(...replacedWarnings(writes.commit()));
     const g = image.grid;
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
+      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };
