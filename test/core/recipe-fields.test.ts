@@ -39,6 +39,7 @@ describe('recipe fields', () => {
     expect(methodAndCorrection({ method: 'prior' })).toBe('Prior-guided, prior: FBP with water cylinder extension');
     expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
       .toBe('SART, measured rays only, 1 known region + outline');
+    expect(recipeLabel({ method: 'dbp', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }] } })).toBe('DBP, field of view only, 1 known region, automatic grid');
   });
 });
 

@@ -146,7 +146,11 @@ describe('DBP: bad input', () => {
   const run = async (s: Scan, knowledge?: object) => runRecipe(await localWorkspace(1), s, validateRecipe({ method: 'dbp', grid, ...(knowledge ? { knowledge } : {}) }));
   it('a truncated scan and no known region: the interior is not determined', async () => {
     await expect(run(truncated())).rejects.toThrow(InputError);
-    await expect(run(truncated())).rejects.toThrow(/not determined by the data.*known value/);
+    await expect(run(truncated())).rejects.toThrow(/not determined by the data.*known value.*--known/);
+    // The page says it in its own words (no command-line option).
+    const err = await run(truncated()).catch((e: InputError) => e);
+    expect((err as InputError).pageMessage).toMatch(/known value inside the field of view \(draw it/);
+    expect((err as InputError).pageMessage).not.toMatch(/--/);
   });
   it('an outline alone does not determine the interior either, and says so', async () => {
     await expect(run(truncated(), { outline: { shape: 'ellipse', cx: 0, cy: 0, a: 70, b: 55 } })).rejects.toThrow(/outline alone/);

@@ -5,7 +5,8 @@
 // crosses it (the chord of REFERENCES.md [ellipse-projection]), and the Hilbert transform of an
 // interval's indicator is elementary: (1/pi) p.v. int_{t1}^{t2} ds / (t - s) = (1/pi) ln|(t - t1)
 // / (t - t2)| (derived; the same result as the Hilbert transform of a rectangle in tables of
-// Hilbert transforms, sign convention H f(t) = (1/pi) p.v. int f(s) / (t - s) ds). At the point
+// Hilbert transforms, sign convention H f(t) = (1/pi) p.v. int f(s) / (t - s) ds; REFERENCES.md
+// [hilbert-interval]). At the point
 // itself (t = 0) that is (v/pi) ln|t1 / t2|.
 import { inside, type Ellipse, type EllipsePhantom } from '../../web/core/phantoms/ellipse';
 

@@ -3,7 +3,6 @@
 import { availableParallelism } from 'node:os';
 import { accuracyLines, benchAccuracy } from './accuracy/run';
 import { benchExtension, extensionBenchLines } from './extension-overhead';
-import { benchDbp, dbpBenchLines } from './dbp';
 import { benchFdk } from './fdk-bench';
 import { benchFormats, formatFiguresText } from './formats';
 import { benchIterative, iterativeLines } from './iterative';
@@ -34,13 +33,6 @@ export const SECTIONS: BenchSection[] = [
       // Each run takes seconds: best of at most two.
       const b = await benchIterative(Math.min(r, 2));
       return { json: b, lines: iterativeLines(b) };
-    },
-  },
-  {
-    name: 'dbp', about: 'differentiated backprojection on the severe-truncation cases: inside-FOV RMSE and time next to FBP with water extension and OS-SART',
-    run: async () => {
-      const b = await benchDbp(Math.min(2, availableParallelism()), (line) => process.stderr.write(`${line}\n`));
-      return { json: b, lines: dbpBenchLines(b) };
     },
   },
   {

@@ -59,7 +59,10 @@ function decide(placed: PlacedKnowledge, recipe: Recipe, fov: number, reach: num
   if (!regions.length) {
     if (truncatedViews > 0) {
       const outline = recipe.knowledge?.outline ? ' An outline alone does not settle it: it bounds the object, but inside a wider object the data still allow a smooth change of the whole field of view.' : '';
-      throw new InputError(`dbp: ${truncatedViews} views are cut off at the detector edge and no known region was given, so the inside of the field of view is not determined by the data (the interior problem).${outline} Give a region of known value inside the field of view (for example --known x,y,r:HU).`);
+      throw new InputError(`dbp: ${truncatedViews} views are cut off at the detector edge and no known region was given, so the inside of the field of view is not determined by the data (the interior problem).${outline}`, {
+        field: 'knowledge',
+        remedy: { cli: 'give a region of known value inside the field of view (--known x,y,r:HU)', page: 'give a region of known value inside the field of view (draw it in the knowledge panel)' },
+      });
     }
     return { cx: 0, cy: 0, centre: 'the isocentre (no view is truncated: the object lies inside the field of view)', supportFrom: 'field of view', support: diskSupport(0, 0, fov) };
   }
