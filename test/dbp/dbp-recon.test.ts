@@ -152,6 +152,9 @@ describe('DBP: bad input', () => {
     expect((err as InputError).pageMessage).toMatch(/known value inside the field of view \(draw it/);
     expect((err as InputError).pageMessage).not.toMatch(/--/);
   });
+  it('DBP cannot be the prior of the prior-guided method (it leaves the grid outside the field of view undetermined)', () => {
+    expect(() => validateRecipe({ method: 'prior', prior: { source: 'recipe', recipe: { method: 'dbp' } } })).toThrow(/prior\.recipe\.method: got "dbp".*outside the field of view/);
+  });
   it('an outline alone does not determine the interior either, and says so', async () => {
     await expect(run(truncated(), { outline: { shape: 'ellipse', cx: 0, cy: 0, a: 70, b: 55 } })).rejects.toThrow(/outline alone/);
   });

@@ -58,8 +58,8 @@ function decide(placed: PlacedKnowledge, recipe: Recipe, fov: number, reach: num
   const regions = placed.regions;
   if (!regions.length) {
     if (truncatedViews > 0) {
-      const outline = recipe.knowledge?.outline ? ' An outline alone does not settle it: it bounds the object, but inside a wider object the data still allow a smooth change of the whole field of view.' : '';
-      throw new InputError(`dbp: ${truncatedViews} views are cut off at the detector edge and no known region was given, so the inside of the field of view is not determined by the data (the interior problem).${outline}`, {
+      const outline = recipe.knowledge?.outline ? '; an outline alone does not settle it: it bounds the object, but inside a wider object the data still allow a smooth change of the whole field of view' : '';
+      throw new InputError(`dbp: ${truncatedViews} views are cut off at the detector edge and no known region was given, so the inside of the field of view is not determined by the data (the interior problem)${outline}`, {
         field: 'knowledge',
         remedy: { cli: 'give a region of known value inside the field of view (--known x,y,r:HU)', page: 'give a region of known value inside the field of view (draw it in the knowledge panel)' },
       });
