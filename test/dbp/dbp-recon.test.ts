@@ -107,6 +107,24 @@ describe('DBP on a truncated scan', () => {
   });
 });
 
+describe('DBP with the outline where the field of view holds air', () => {
+  it('the outline is checked against what the data show, not against the whole field', async () => {
+    // A field of view (radius about 58 mm) wider than the body is tall (semi-axis 50 mm): it
+    // reaches the air above and below the body, which the outline (the body's own ellipse) leaves out.
+    const ws = await localWorkspace(2);
+    const s = scan(fan(420));
+    const outline = { shape: 'ellipse' as const, cx: 0, cy: 0, a: 67, b: 51 };
+    const dbp = await runRecipe(ws, s, validateRecipe({ method: 'dbp', grid, knowledge: { known: [knownDisk], outline } }));
+    const water = await runRecipe(ws, s, validateRecipe({ method: 'fbp', extend: 'water', grid }));
+    const fov = dbp.image.fovRadius!;
+    expect(fov).toBeGreaterThan(52);
+    // Outside check against the phantom: closer to it inside the field than FBP with water extension.
+    expect(compareImages(dbp.image, truth(), fov).regions.insideFov!.rmse).toBeLessThan(compareImages(water.image, truth(), fov).regions.insideFov!.rmse);
+    // An outline that cuts through what the data show in the field is still refused.
+    await expect(runRecipe(ws, s, validateRecipe({ method: 'dbp', grid, knowledge: { known: [knownDisk], outline: { ...outline, a: 40 } } }))).rejects.toThrow(/must enclose the object/);
+  });
+});
+
 /** A mask of two small disks: the chords through its centroid (between them) mostly miss it. */
 function twoDisks(): Image2D {
   const g = { nx: grid.size, ny: grid.size, dx: grid.pixel, dy: grid.pixel, cx: 0, cy: 0 };

@@ -13,14 +13,16 @@
 import type { Workspace } from '../engine/workspace';
 import { InputError } from '../errors';
 import { fovRadius, kernelKind, viewVectors } from '../geometry/view-vectors';
-import type { Image2D } from '../image';
+import type { Image2D, ImageGrid } from '../image';
 import { placeKnowledge, type MaskInputs, type PlacedKnowledge } from '../knowledge';
 import { chooseGrid } from '../recipe/grid';
 import type { Recipe } from '../recipe/recipe';
+import { fbp2d } from '../recon/fbp';
 import { require2d } from '../recon/projector';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
-import { analyseEdges, objectRadius } from '../truncation/edges';
+import { analyseEdges, objectRadius, type EdgeAnalysis } from '../truncation/edges';
+import { planExtension } from '../truncation/extension-plan';
 import { chordImage } from './chord-image';
 import { centreRegion, knownMeans } from './chord-knowledge';
 import type { ChordProblem } from './chord-solve';
@@ -80,6 +82,16 @@ function scaled(hooks: RunHooks, from: number, to: number): RunHooks {
   return { signal: hooks.signal, onProgress: p ? (f, stage) => p(from + (to - from) * f, stage) : undefined };
 }
 
+/**
+ * FBP with water extension, for checking an outline against what the data show in the field of
+ * view (as FBP with knowledge checks it): the field may hold air beyond the body, which the
+ * outline rightly leaves out.
+ */
+async function fieldImage(ws: Workspace, scan: Scan, grid: ImageGrid, analysis: EdgeAnalysis, hooks: RunHooks): Promise<Float32Array> {
+  const r = await fbp2d(ws, scan, { grid, extension: planExtension(scan, 'water', analysis) }, { signal: hooks.signal });
+  return r.image.data;
+}
+
 /** Reconstructs the field of view of a 2D scan by DBP and finite Hilbert inversion. */
 export async function runDbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}, masks?: MaskInputs): Promise<DbpResult> {
   const t0 = performance.now();
@@ -92,7 +104,8 @@ export async function runDbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: R
   const grid = chooseGrid(scan, recipe.grid, reach);
   let truncatedViews = 0;
   for (let v = 0; v < analysis.nViews; v++) if (analysis.truncated[0][v] || analysis.truncated[1][v]) truncatedViews++;
-  const placed = placeKnowledge(recipe.knowledge, { grid, fovRadius: fov, muWater: scan.muWater, masks });
+  const seen = recipe.knowledge?.outline ? await fieldImage(ws, scan, grid, analysis, hooks) : undefined;
+  const placed = placeKnowledge(recipe.knowledge, { grid, fovRadius: fov, muWater: scan.muWater, masks, image: seen });
   const decision = decide(placed, recipe, fov, reach, truncatedViews, grid);
   const step = Math.max(Math.min(grid.dx, grid.dy), (2 * fov) / MAX_NODES_ACROSS);
   const family = chordFamily(decision.cx, decision.cy, { step, fovRadius: fov, support: decision.support });
