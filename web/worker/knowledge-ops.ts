@@ -13,7 +13,7 @@ import type { UseStore } from '../store/db';
 import { knowledgeOf, maskNamesOf, putScanKnowledge, recipeKnowledgeOf, type NewMask } from '../store/knowledge';
 import type { ScanKnowledge, ScanMeta, StoredMask } from '../store/records';
 import { getScanMeta, newId } from '../store/scans';
-import { demoKnowledge } from './demo-knowledge';
+import { demoKnowledge } from '../core/knowledge/demo';
 import type { InputFile } from './import-scan';
 import { checkScanKnowledge, knowledgeImage, type KnowledgeImage } from './knowledge-check';
 import { readImageFiles } from './read-image-files';

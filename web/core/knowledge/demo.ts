@@ -1,14 +1,20 @@
 // What a user would know about the demo scan's object, to show knowledge at work on it: the
 // value of a small region inside the field of view (a 20 mm disc in the heart, muscle at 60 keV
-// from the phantom's NIST-based materials) and the body's outline as a tape measure gives it
-// (340 mm wide, 240 mm deep: an ellipse, without the arms beside it).
-import type { KnownCircle, Outline } from '../core/knowledge';
-import { mu60, MU_WATER_60KEV } from '../core/phantoms/materials';
-import { THORAX_PARTS } from '../core/phantoms/thorax';
+// from the phantom's NIST-based materials) and the body's outline as a tape measure gives it: an
+// ellipse a little outside the skin (2 mm each way, not the truth's exact contour), without the
+// arms beside it. The page's demo and `rimfill demo` both use it.
+import { mu60, MU_WATER_60KEV } from '../phantoms/materials';
+import { THORAX_PARTS } from '../phantoms/thorax';
+import type { KnownCircle, Outline } from './types';
+
+type EllipseOutline = Extract<Outline, { shape: 'ellipse' }>;
+
+/** How far outside the skin the tape-measure ellipse lies, mm (our own scenario). */
+const TAPE_MARGIN_MM = 2;
 
 export interface DemoKnowledge {
   region: KnownCircle;
-  outline: Outline;
+  outline: EllipseOutline;
   /** Where each came from, in words. */
   regionSource: string;
   outlineSource: string;
@@ -22,8 +28,8 @@ export function demoKnowledge(): DemoKnowledge {
   const hu = Math.round((1000 * (mu60(heart.material) - MU_WATER_60KEV)) / MU_WATER_60KEV);
   return {
     region: { shape: 'circle', x: heart.cx, y: heart.cy, r: 10, hu, label: 'heart' },
-    outline: { shape: 'ellipse', cx: body.cx, cy: body.cy, a: body.a, b: body.b },
+    outline: { shape: 'ellipse', cx: body.cx, cy: body.cy, a: body.a + TAPE_MARGIN_MM, b: body.b + TAPE_MARGIN_MM },
     regionSource: 'demo: the heart is muscle, whose value at 60 keV a physicist knows',
-    outlineSource: `demo: the body measured with a tape, ${2 * body.a} mm wide and ${2 * body.b} mm deep`,
+    outlineSource: `demo: the body measured with a tape, ${2 * (body.a + TAPE_MARGIN_MM)} mm wide and ${2 * (body.b + TAPE_MARGIN_MM)} mm deep`,
   };
 }
