@@ -107,7 +107,7 @@ export function backproject2d(
  * Linear interpolation of a padded filtered row at padded coordinates f (four lanes). The
  * integer part comes from floor + MAGIC (exact for integers below 2^22), not a conversion.
  */
-@inline function sample(row: usize, f: v128, zero: v128, top: v128, magic: v128, magicBits: v128): v128 {
+@inline export function sample(row: usize, f: v128, zero: v128, top: v128, magic: v128, magicBits: v128): v128 {
   const t = clampIndex(f, zero, top);
   const fl = f32x4.floor(t);
   const off = floorOffsets(fl, magic, magicBits);

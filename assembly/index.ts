@@ -7,6 +7,8 @@ export { fftPrepare, fft, realEvenResponse, filterViews } from './fft';
 export { rayTableFloats } from './rays';
 export { josephForward2d, josephAdjoint2d } from './joseph';
 export { backproject2d, atanApprox } from './backproject';
+export { dbpPoints } from './dbp';
+export { chordGram, chordBand, chordFactor, chordSolve, chordMultiply, CHORD_TABLE_STRIDE } from './chord-blocks';
 export { extendViews, EXTEND_ZERO, EXTEND_EDGE, EXTEND_MIRROR, EXTEND_WATER, EXTEND_COSINE, EXTEND_PARAMS } from './extend';
 export { coneFilterViews } from './cone-filter';
 export { backprojectCone } from './cone-backproject';

@@ -141,7 +141,9 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
       await queueAndWait(page, ++queued);
       methods.push({ method: 'fbp', extend: 'water' });
     }
-    for (const m of offered.filter((x) => x !== 'fbp')) {
+    check(offered.includes('dbp'), `DBP offered: ${offered}`);
+    // DBP needs a known region on a truncated scan such as the demo: it is tried on its own below.
+    for (const m of offered.filter((x) => x !== 'fbp' && x !== 'dbp')) {
       await methodSelect.selectOption(m);
       if (extensions.includes('water') && (await extend.count())) await extend.selectOption('water');
       await queueAndWait(page, ++queued);
@@ -156,6 +158,23 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const errors = await page.locator('rf-run-queue .error').allInnerTexts();
     check(states.every((s) => s === 'done'), `job states ${states}; errors: ${errors.join(' | ')}`);
     check(states.length === methods.length, `${states.length} jobs for ${methods.length} recipes`);
+  });
+
+  await h.step(`${mode}: DBP on the truncated demo with nothing known is refused, saying what it needs in the page's words, and stores nothing`, async () => {
+    await page.locator('#tab-reconstruct').click();
+    await page.locator('#field-method').selectOption('dbp');
+    const before = await page.locator('rf-run-queue li').count();
+    await queueAndWait(page, before + 1);
+    const failed = page.locator('rf-run-queue li').nth(before).and(page.locator('[data-state="failed"]'));
+    await failed.waitFor({ timeout: JOB_TIMEOUT });
+    const text = await failed.innerText();
+    // Noo, Clackdoyle & Pack 2004; Kudo et al. 2008 (REFERENCES.md): the interior of a truncated scan is fixed by a known region.
+    check(/not determined by the data/.test(text) && /known value inside the field of view/.test(text), `DBP refusal: ${text}`);
+    check(!/--known/.test(text), `the page's message names no command-line option: ${text}`);
+    await shot(page, '3b-dbp-refused');
+    await page.locator('#tab-images').click();
+    check((await resultCount(page)) === methods.length, `${await resultCount(page)} results stored after the refusal, expected ${methods.length}`);
+    await page.locator('#tab-reconstruct').click();
   });
 
   await h.step(`${mode}: the page stays responsive during a run; cancelling it stops it and stores nothing`, async () => {

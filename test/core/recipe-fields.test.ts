@@ -53,6 +53,7 @@ describe('recipe fields', () => {
     expect(methodAndCorrection({ method: 'fbp', extend: 'water', knowledge: { outline } })).toBe('FBP, water cylinder, outline');
     expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
       .toBe('SART, measured rays only, 1 known region + outline');
+    expect(recipeLabel({ method: 'dbp', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }] } })).toBe('DBP, field of view only, 1 known region, automatic grid');
   });
 });
 

@@ -13,7 +13,7 @@ import { fanFlat } from '../helpers/geometries';
 
 describe('iterative recipe fields', () => {
   it('offers the methods and keeps only the fields given', () => {
-    expect(METHODS).toEqual(['fbp', 'sart', 'tv', 'wtv', 'prior']);
+    expect(METHODS).toEqual(['fbp', 'sart', 'tv', 'wtv', 'prior', 'dbp']);
     const r = validateRecipe({ method: 'sart', iterations: 7, subsets: 3 });
     expect(r).toMatchObject({ method: 'sart', iterations: 7, subsets: 3 });
     expect('relaxation' in r).toBe(false);

@@ -135,8 +135,9 @@ describe('method guidance', () => {
     // Every row of the table appears once, with its own figures (nothing invented).
     const shown = v.choices.flatMap((c) => c.figures.map((f) => `${f.severity}|${c.knowledge}|${c.choose}|${f.measured}|${f.note ?? ''}`));
     expect(shown.sort()).toEqual(GUIDANCE.map((r) => `${r.severity}|${r.knowledge}|${r.choose}|${r.measured}|${r.note ?? ''}`).sort());
-    expect(v.choices.map((c) => c.knowledge)).toEqual(['nothing', 'a known region', 'the outline', 'a known region and the outline']);
-    expect(v.choices.filter((c) => c.yours).map((c) => c.choose)).toEqual(['FBP fitted to the region']);
+    // FBP for each kind of knowledge, then DBP for a region (with and without the outline).
+    expect(v.choices.map((c) => c.knowledge)).toEqual(['nothing', 'a known region', 'the outline', 'a known region and the outline', 'a known region', 'a known region and the outline']);
+    expect(v.choices.filter((c) => c.yours).map((c) => c.choose)).toEqual(['FBP fitted to the region', 'DBP through the region (field of view only)']);
     expect(v.choices.every((c) => c.figures.filter((f) => f.nearest).every((f) => f.severity === 'severe'))).toBe(true);
     expect(v.note).toBeUndefined();
   });
@@ -144,7 +145,7 @@ describe('method guidance', () => {
   it('moderate truncation marks the demo scan figures; mild says water is usually enough; no truncation needs nothing', () => {
     const moderate = guidanceView(summary(204, 340, 1, 1), 'nothing');
     const near = moderate.choices.flatMap((c) => c.figures.filter((f) => f.nearest));
-    expect(near.length).toBe(4);
+    expect(near.length).toBe(6);
     expect(near.every((f) => f.severity === 'moderate' && /^demo scan \d+ \[\d+\]$/.test(f.measured))).toBe(true);
     const mild = guidanceView(summary(300, 340, 1, 0), 'the outline');
     expect(mild.scan).toMatch(/^Mild truncation: .* cut off on one side/);

@@ -66,7 +66,8 @@ export function addIterativeFields(raw: Record<string, unknown>, a: ParsedArgs):
     return;
   }
   const prior = o.prior as string | undefined;
-  const methods: string[] = METHODS.filter((m) => m !== 'prior');
+  // A prior fills the whole grid: DBP (field of view only) cannot be one.
+  const methods: string[] = METHODS.filter((m) => m !== 'prior' && m !== 'dbp');
   if (prior !== undefined && !methods.includes(prior) && !existsSync(prior)) {
     throw new InputError(`option --prior: got "${prior}", expected an image file or folder that exists, or a method (${methods.join(', ')})`);
   }

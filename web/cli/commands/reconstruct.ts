@@ -19,6 +19,8 @@ import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load
 import { openWorkspace } from '../engine-node';
 import { progressLine } from '../progress';
 import type { CommandResult } from './types';
+import { checkDbpOptions, DBP_HELP, DBP_OPTIONS } from '../dbp-options';
+import { writeUndeterminedNrrd } from '../../core/dbp/undetermined-nrrd';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
     [--extend ${RECIPE_EXTENDS.join('|')}] [--filter ${FILTER_WINDOWS.join('|')}]
@@ -37,7 +39,8 @@ ${SCAN_INPUT_HELP}
   cubic voxels covering the measured height); --extend works row by row on cone-beam scans, and
   the iterative methods reconstruct the volume with the 3D projector (6-neighbour TV).
 ${KNOWLEDGE_HELP}
-${ITERATIVE_HELP}`;
+${ITERATIVE_HELP}
+${DBP_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
 const FIELD_OPTIONS: Record<string, string> = {
@@ -58,6 +61,7 @@ function asOptionError(err: unknown): unknown {
 export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe> {
   const o = a.options;
   const raw: Record<string, unknown> = { method: requireString(a, 'method') };
+  checkDbpOptions(a, raw.method as string);
   if (o.filter !== undefined) raw.filter = o.filter;
   if (o['band-limit'] !== undefined) raw.bandLimit = o['band-limit'];
   if (o.extend !== undefined) raw.extend = o.extend;
@@ -81,13 +85,14 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     method: 'string', out: 'string', filter: 'string', 'band-limit': 'number', extend: 'string', size: 'int', pixel: 'number',
-    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS, ...KNOWLEDGE_OPTIONS,
+    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS, ...KNOWLEDGE_OPTIONS, ...DBP_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
   const out = requireString(a, 'out');
-  checkOutputs([['out', out]]);
   const recipe = recipeFromArgs(a);
+  const maskOut = a.options.undetermined as string | undefined;
+  checkOutputs([['out', out], ['undetermined', maskOut]]);
   const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
   if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
@@ -122,10 +127,11 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
+    if (maskOut && r.undetermined) writes.add(maskOut, await writeUndeterminedNrrd(image.grid, r.undetermined));
     readWarnings.push(...replacedWarnings(writes.commit()));
     const g = image.grid;
     return {
-      json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
+      json: { out, ...(maskOut ? { undetermined: maskOut } : {}), recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
       text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],

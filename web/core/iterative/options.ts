@@ -150,6 +150,8 @@ function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): Pr
   if (p.source !== 'recipe') throw new InputError(`recipe prior.source: got ${JSON.stringify(p.source)}, expected "image" or "recipe"`);
   if (!isObject(p.recipe)) throw new InputError('recipe prior.recipe: expected the recipe (an object) whose result is the prior');
   if (p.recipe.method === 'prior') throw new InputError('recipe prior.recipe.method: got "prior", expected a method that needs no prior (e.g. fbp)');
+  // DBP determines the measured field of view only (Noo, Clackdoyle & Pack 2004): nothing to fill the channels beyond the detector with.
+  if (p.recipe.method === 'dbp') throw new InputError('recipe prior.recipe.method: got "dbp", expected a method that fills the whole grid (e.g. fbp): DBP leaves everything outside the field of view undetermined');
   return { source: 'recipe', recipe: validateNested(p.recipe) };
 }
 

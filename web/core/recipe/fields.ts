@@ -63,6 +63,7 @@ const CHOICE_LABELS: Record<string, string> = {
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
   prior: 'Prior-guided, data-consistent (iterative)',
+  dbp: 'Differentiated backprojection (DBP, field of view only)',
   ramp: 'Ramp (sharpest)',
   'shepp-logan': 'Shepp-Logan',
   cosine: 'Cosine',

@@ -10,7 +10,7 @@ import { choiceLabel, describeRecipeFields, type RecipeField } from './fields';
 type RecipeLike = Record<string, unknown>;
 
 /** Short method names for labels. */
-const METHOD_WORDS: Record<string, string> = { fbp: 'FBP', sart: 'SART', tv: 'TV', wtv: 'reweighted TV', prior: 'Prior-guided' };
+const METHOD_WORDS: Record<string, string> = { fbp: 'FBP', sart: 'SART', tv: 'TV', wtv: 'reweighted TV', prior: 'Prior-guided', dbp: 'DBP' };
 
 /** The method in a word or two ("FBP", "reweighted TV"). */
 export function methodWords(recipe: RecipeLike): string {
@@ -29,8 +29,9 @@ function priorWords(v: unknown): string {
 
 /**
  * How the recipe deals with truncation, in words: FBP's detector extension ("no correction",
- * "water cylinder", ...), the prior of the prior-guided method, or for the other iterative
- * methods that they fit the measured rays only.
+ * "water cylinder", ...), the prior of the prior-guided method, for the other iterative
+ * methods that they fit the measured rays only, and for DBP that it reconstructs the field of
+ * view only.
  */
 export function correctionWords(recipe: RecipeLike): string {
   const m = String(recipe.method);
@@ -38,6 +39,7 @@ export function correctionWords(recipe: RecipeLike): string {
   if (m === 'fbp') return EXTEND_WORDS[(recipe.extend ?? 'none') as ExtendMethod] ?? String(recipe.extend);
   if (m === 'prior') return `prior: ${priorWords(recipe.prior)}`;
   if (isIterativeMethod(m)) return 'measured rays only';
+  if (m === 'dbp') return 'field of view only';
   return '';
 }
 

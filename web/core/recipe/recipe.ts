@@ -7,8 +7,8 @@ import { RECIPE_EXTENDS, type RecipeExtend } from '../truncation/extend-methods'
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 import { validateKnowledge, type Knowledge } from '../knowledge';
 
-/** Reconstruction methods available in this build. */
-export const METHODS = ['fbp', ...ITERATIVE_METHODS] as const;
+/** Reconstruction methods available in this build (dbp: differentiated backprojection, web/core/dbp). */
+export const METHODS = ['fbp', ...ITERATIVE_METHODS, 'dbp'] as const;
 export type Method = (typeof METHODS)[number];
 
 export interface GridChoice {

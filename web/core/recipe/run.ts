@@ -15,6 +15,7 @@ import { runConeRecipe } from './run-cone';
 import { runKnowledgeFbp } from './run-knowledge';
 import { isIterativeMethod } from '../iterative/options';
 import { runIterative, type RecipeInputs } from '../iterative/run';
+import { runDbp } from '../dbp/run';
 
 export type { RecipeInputs } from '../iterative/run';
 
@@ -26,6 +27,8 @@ export interface RecipeResult {
   report: Record<string, unknown>;
   /** Cone-beam scans: the whole volume (`image` is then its central slice). */
   volume?: Volume;
+  /** Methods that reconstruct only part of the grid (dbp): 1 where a pixel is not determined. */
+  undetermined?: Uint8Array;
 }
 
 /** Reconstructs `scan` as the recipe says. `inputs` carries images some methods need (a prior). */
@@ -33,6 +36,7 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   if (isIterativeMethod(recipe.method)) {
     return runIterative(ws, scan, recipe, hooks, inputs, (nested, h) => runRecipe(ws, scan, nested, h, inputs));
   }
+  if (recipe.method === 'dbp') return runDbp(ws, scan, recipe, hooks, inputs.masks);
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
   const g = scan.geometry;

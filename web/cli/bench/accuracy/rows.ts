@@ -33,6 +33,8 @@ export const ACCURACY_ROWS: AccuracyRow[] = [
   { label: 'FBP + water cylinder', recipe: () => ({ method: 'fbp', extend: 'water' }), kinds: ['none'], robustness: true },
   { label: 'FBP, best for the knowledge', recipe: (k) => fbpRecipeForKnowledge(k), kinds: ['region', 'outline', 'both'], robustness: true },
   { label: 'OS-SART', recipe: () => ({ method: 'sart', iterations: ITERATIONS }), kinds: ['none'] },
+  // DBP needs a known region on a truncated scan (an outline alone is refused); it reconstructs the field of view only.
+  { label: 'DBP', recipe: (k) => ({ method: 'dbp', knowledge: k }), kinds: ['region', 'both'], robustness: true },
 ];
 
 /** The knowledge of a kind for a case (its known disc and the outline a user would draw). */
