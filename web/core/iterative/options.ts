@@ -1,14 +1,26 @@
 // Recipe fields of the iterative methods (sart, tv, wtv, prior): their types, defaults and
 // validation. recipe.ts calls validateIterativeFields; the solver reads resolved options.
 import { InputError } from '../errors';
+import { validateKnowledge, type Knowledge } from '../knowledge';
 import type { Recipe } from '../recipe/recipe';
 
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
 export type IterativeMethod = (typeof ITERATIVE_METHODS)[number];
 
-export const SUPPORTS = ['circle', 'grid', 'image'] as const;
-/** circle: the disk inscribed in the grid; grid: every pixel; image: a mask image given with the run. */
+export const SUPPORTS = ['circle', 'grid', 'image', 'outline'] as const;
+/**
+ * circle: the disk inscribed in the grid; grid: every pixel; image: a mask image given with the
+ * run; outline: inside the object's outline given as the recipe's knowledge.
+ */
 export type SupportShape = (typeof SUPPORTS)[number];
+
+export const STARTS = ['fbp', 'zero'] as const;
+/**
+ * The image sart, tv and wtv start from: fbp, the best FBP correction for the recipe's knowledge
+ * (start.ts); zero, an empty image. Absent: fbp when the scan is truncated or the recipe knows
+ * something, else zero.
+ */
+export type StartImage = (typeof STARTS)[number];
 
 /**
  * Where the prior of --method prior comes from: an image handed to runRecipe (a file, or the
@@ -37,14 +49,22 @@ export interface IterativeFields {
   priorWeight?: number;
   /** Clip negative attenuation after each update. */
   nonNegative?: boolean;
-  /** Region reconstructed (pixels outside stay 0). */
+  /** Region reconstructed (pixels outside stay 0); default: the outline when the recipe knows one, else circle. */
   support?: SupportShape;
+  /** sart, tv, wtv: the start image. */
+  start?: StartImage;
+  /**
+   * Step inside the measured field of view relative to outside, (0, 1]. Absent: small
+   * (inside-step.ts) when the start was made from the scan's own data and the scan is truncated,
+   * else 1.
+   */
+  insideStep?: number;
   /** --method prior: where the prior image comes from. */
   prior?: PriorSource;
 }
 
-/** Resolved options the solver runs with. */
-export type IterativeOptions = Required<Omit<IterativeFields, 'prior'>>;
+/** Resolved options the solver runs with (start, insideStep: as asked; run.ts resolves absent ones). */
+export type IterativeOptions = Required<Omit<IterativeFields, 'prior' | 'insideStep' | 'start'>> & Pick<IterativeFields, 'insideStep' | 'start'>;
 
 /**
  * Defaults. N_grad = 20 and the step-control constants follow Sidky & Pan 2008 (from memory,
@@ -104,6 +124,7 @@ export function validateIterativeFields(
     tvSteps: wholeNumber(r, 'tvSteps', 1, 1000),
     tvEps: number(r, 'tvEps', (x) => x > 0 && x < 1, 'a small positive number in 1/mm (e.g. 0.0005)'),
     priorWeight: number(r, 'priorWeight', (x) => x > 0 && x <= 1, 'a number in (0, 1]'),
+    insideStep: number(r, 'insideStep', (x) => x > 0 && x <= 1, 'a number in (0, 1]'),
   };
   if (r.nonNegative !== undefined) {
     if (typeof r.nonNegative !== 'boolean') throw new InputError(`recipe nonNegative: got ${JSON.stringify(r.nonNegative)}, expected true or false`);
@@ -113,18 +134,35 @@ export function validateIterativeFields(
     if (!(SUPPORTS as readonly unknown[]).includes(r.support)) throw new InputError(`recipe support: got ${JSON.stringify(r.support)}, expected one of ${SUPPORTS.join(', ')}`);
     out.support = r.support as SupportShape;
   }
+  if (r.start !== undefined) {
+    if (!(STARTS as readonly unknown[]).includes(r.start)) throw new InputError(`recipe start: got ${JSON.stringify(r.start)}, expected one of ${STARTS.join(', ')}`);
+    if (r.method === 'prior') throw new InputError('recipe start: method "prior" starts from its prior; give the prior instead');
+    out.start = r.start as StartImage;
+  }
+  if (out.support === 'outline' && !(isObject(r.knowledge) && r.knowledge.outline !== undefined)) {
+    throw new InputError('recipe support: got "outline", but the recipe knows no outline (give the object\'s outline as knowledge, e.g. --outline ellipse:cx,cy,a,b)');
+  }
   if (isIterativeMethod(r.method as string) && r.extend !== undefined && r.extend !== 'none') {
     throw new InputError(`recipe extend: got "${r.extend}" for method "${r.method}", expected "none" (detector extension belongs to fbp; for method "prior", to the prior's recipe)`);
   }
   if (r.prior !== undefined) out.prior = validatePrior(r.prior, validateNested);
-  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(DEFAULT_PRIOR_RECIPE) };
+  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(bestFbpFields(validateKnowledge(r.knowledge))) };
   if (r.method !== 'prior' && out.prior) throw new InputError(`recipe prior: given for method "${r.method}", only method "prior" uses one`);
   for (const k of Object.keys(out) as Array<keyof IterativeFields>) if (out[k] === undefined) delete out[k];
   return out;
 }
 
-/** The prior when a recipe names none: FBP of the scan with water-cylinder extrapolation. */
+/** The prior when a recipe names none, and the start of sart, tv and wtv: FBP of the scan with water-cylinder extrapolation (with the recipe's knowledge: bestFbpFields). */
 export const DEFAULT_PRIOR_RECIPE = { method: 'fbp', extend: 'water' } as const;
+
+/**
+ * The recipe fields (plain JSON) of the best FBP correction for what the recipe knows: FBP with
+ * water-cylinder extension, and the knowledge (known regions, outline) when there is any, which
+ * the FBP recipe uses to correct the extension.
+ */
+export function bestFbpFields(knowledge?: Knowledge): Record<string, unknown> {
+  return { ...DEFAULT_PRIOR_RECIPE, ...(knowledge ? { knowledge } : {}) };
+}
 
 /**
  * A prior source from JSON: {"source": "image"}, {"source": "recipe", "recipe": {...}}, or the
@@ -153,10 +191,17 @@ function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): Pr
   return { source: 'recipe', recipe: validateNested(p.recipe) };
 }
 
-/** The options a recipe asks for, defaults filled. */
-export function resolveOptions(method: IterativeMethod, fields: IterativeFields): IterativeOptions {
-  const out = { ...ITERATIVE_DEFAULTS, ...(method === 'tv' ? { tvStrength: TV_STRENGTH_PLAIN } : {}) };
-  for (const k of Object.keys(ITERATIVE_DEFAULTS) as Array<keyof IterativeOptions>) {
+/**
+ * The options a recipe asks for, defaults filled. The support defaults to the outline when the
+ * recipe's knowledge has one (the object lies inside it).
+ */
+export function resolveOptions(method: IterativeMethod, fields: IterativeFields & { knowledge?: Knowledge }): IterativeOptions {
+  const out = {
+    ...ITERATIVE_DEFAULTS,
+    ...(method === 'tv' ? { tvStrength: TV_STRENGTH_PLAIN } : {}),
+    ...(fields.knowledge?.outline ? { support: 'outline' as const } : {}),
+  };
+  for (const k of [...Object.keys(ITERATIVE_DEFAULTS), 'insideStep', 'start'] as Array<keyof IterativeOptions>) {
     if (fields[k] !== undefined) (out as Record<string, unknown>)[k] = fields[k];
   }
   return out;
