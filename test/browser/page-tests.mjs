@@ -2,23 +2,25 @@
 // what a user does and what must follow; screenshots go to test-artifacts/<mode>-*.png.
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { check, near } from './harness.mjs';
+import dicomParser from 'dicom-parser';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
 
 /** The page's default FBP recipe on the ground-truth grid: the CLI reference runs the same. */
-const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
+const FBP_NAME = 'FBP, ramp, 576 px × 1 mm';
 const JOB_TIMEOUT = 10 * 60_000;
 
-/** Text of every cell of the metrics table row for `label`, by column metric and region. */
-/** pydicom's CT test image (Debian python3-pydicom, installed by .ci/run). */
-const CT_SMALL = '/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm';
+/** pydicom's CT test image, a committed fixture (test/fixtures/MANIFEST.json). */
+const CT_SMALL = fileURLToPath(new URL('../fixtures/dicom/CT_small.dcm', import.meta.url));
 
+/** Text of every cell of the metrics table row for `label`, by column metric and region. */
 async function metricsRow(page, label) {
   const row = page.locator(`rf-metrics-table tr[data-label="${label}"]`);
   const cells = await row.locator('td[data-metric]').allTextContents();
   const regions = ['image', 'insideFov', 'outsideFov'];
   const out = {};
-  regions.forEach((r, i) => (out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }));
+  regions.forEach((r, i) => { out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }; });
   // Cupping and data residual are shown as percentages.
   out.cupping = Number(cells[9].replace('%', ''));
   out.residual = Number(cells[10].replace('%', ''));
@@ -106,6 +108,21 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await page.locator('rf-geometry-form button', { hasText: 'Undo edits' }).click();
     check((await sdd.inputValue()) === '1000', `after undo: ${await sdd.inputValue()}`);
     check(/source 600 mm \/ detector 1000 mm/.test(await page.locator('rf-scan-library li').first().innerText()), 'stored geometry unchanged');
+  });
+
+  await h.step(`${mode}: a library edit the coordinator refuses is reported in the page, and nothing changes`, async () => {
+    const item = page.locator('rf-scan-library li[aria-selected="true"]');
+    const before = await item.locator('.name').innerText();
+    await item.locator('button', { hasText: 'Rename' }).click();
+    const input = page.locator('rf-scan-library input.rename');
+    await input.fill('x'.repeat(250));
+    await input.press('Enter');
+    const alert = page.locator('#page-alert');
+    await alert.waitFor({ timeout: 30_000 });
+    const text = await alert.innerText();
+    check(/name: got "x{250}", expected 1 to 200 characters/.test(text), `alert: ${text.slice(0, 120)}`);
+    check((await item.locator('.name').innerText()) === before, 'the stored name is unchanged');
+    await alert.locator('button', { hasText: 'Dismiss' }).click();
   });
 
   await h.step(`${mode}: (f) a malformed file is refused with the reason and nothing is stored`, async () => {
@@ -280,12 +297,27 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const img = parseFloatNrrd(nrrd.bytes);
     check(img.sizes.join(' ') === '576 576', `sizes ${img.sizes}`);
     check(img.keys['rimfill.quantity'] === 'hu', `quantity ${img.keys['rimfill.quantity']}`);
-    check(/^\(1,0\) \(0,1\)$/.test(img.fields['space directions']), `space directions ${img.fields['space directions']}`);
+    check(img.fields.space === 'left-posterior-superior' && /^\(1,0,0\) \(0,1,0\)$/.test(img.fields['space directions']), `space ${img.fields.space}, directions ${img.fields['space directions']}`);
     const mw = Number(reference.fbp.keys['rimfill.muWater']);
     let maxDiff = 0;
     for (let i = 0; i < img.data.length; i++) maxDiff = Math.max(maxDiff, Math.abs(img.data[i] - (reference.fbp.data[i] - mw) * (1000 / mw)));
     // Same engine and split: the pixels agree to float32 rounding of values up to a few thousand HU.
     check(maxDiff < 0.05, `largest difference from the command line's image: ${maxDiff} HU`);
+    // DICOM CT, encoded in the worker: read by dicom-parser (not the page's writer), HU = stored x
+    // slope + intercept (DICOM PS3.3 C.11.1.1.2) against the command line's image; both store
+    // rows from anterior to posterior (the LPS frame), so pixels pair up index by index.
+    const dcm = await download(page, () => page.locator('#export-dicom').click());
+    check(/\.dcm$/.test(dcm.name), `DICOM file name ${dcm.name}`);
+    const d = dicomParser.parseDicom(new Uint8Array(dcm.bytes));
+    check(d.string('x00080060') === 'CT' && d.string('x00080008') === 'DERIVED\\SECONDARY\\AXIAL', `modality ${d.string('x00080060')}, type ${d.string('x00080008')}`);
+    check(d.string('x0008103e') === FBP_NAME.replace('×', 'x'), `series description ${d.string('x0008103e')}`);
+    check(d.uint16('x00280010') === 576 && d.uint16('x00280011') === 576, `DICOM ${d.uint16('x00280011')} x ${d.uint16('x00280010')}`);
+    const slope = Number(d.string('x00281053')), intercept = Number(d.string('x00281052'));
+    const px = d.elements.x7fe00010;
+    const stored = new Int16Array(dcm.bytes.buffer.slice(dcm.bytes.byteOffset + px.dataOffset, dcm.bytes.byteOffset + px.dataOffset + 576 * 576 * 2));
+    let dicomDiff = 0;
+    for (let i = 0; i < stored.length; i++) dicomDiff = Math.max(dicomDiff, Math.abs(stored[i] * slope + intercept - (reference.fbp.data[i] - mw) * (1000 / mw)));
+    check(dicomDiff <= 0.5 * slope + 0.01, `largest DICOM difference from the command line's image: ${dicomDiff} HU (rescale step ${slope})`);
     const png = pngHeader((await download(page, () => page.locator('#export-png').click())).bytes);
     check(png.width === 576 && png.height === 576, `PNG ${png.width} x ${png.height}`);
     const report = (await download(page, () => page.locator('#export-report').click())).bytes.toString('utf8');
@@ -356,7 +388,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const got = await metricsRow(page, name);
     for (const region of ['image', 'insideFov', 'outsideFov']) check(got[region].rmse < 0.1, `${region} RMSE ${got[region].rmse} HU against the ground truth`);
     check(Number.isFinite(got.residual) && got.residual > 0, `data residual ${got.residual}%`);
-    // A DICOM CT image (pydicom's test file CT_small.dcm, Debian python3-pydicom) is read in the
+    // A DICOM CT image (pydicom's test file CT_small.dcm, a committed fixture) is read in the
     // page too: HU by its rescale, converted with the scan's mu_water.
     await picker.setInputFiles(CT_SMALL);
     await page.locator('rf-result-list li', { hasText: 'Image file: CT_small.dcm' }).waitFor({ timeout: 60_000 });
@@ -485,7 +517,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const saved = parseFloatNrrd((await download(page, () => view.locator('#export-volume').click())).bytes);
     check(saved.sizes.join(' ') === '196 196 66', `saved volume sizes ${saved.sizes}`);
     check(saved.keys['rimfill.quantity'] === 'mu' && Number(saved.keys['rimfill.fovHalfHeight']) > 89, `saved volume keys ${JSON.stringify(saved.keys)}`);
-    check(/^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space directions ${saved.fields['space directions']}`);
+    check(saved.fields.space === 'left-posterior-superior' && /^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space ${saved.fields.space}, directions ${saved.fields['space directions']}`);
   });
 
   await h.step(`${mode}: a cone-beam recipe with chosen slices gives a volume of those slices`, async () => {
@@ -513,7 +545,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
   });
 
   await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {
-    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
+    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(`${origin}/`) : u === url);
     const outside = requests.filter((u) => !own(u));
     check(requests.length > 0, 'requests were recorded');
     check(outside.length === 0, `requests outside the page: ${outside.slice(0, 5).join(', ')}`);

@@ -1,5 +1,6 @@
-// The rimfill command line (design.md, "Command line"): exit 0 ok, 2 bad input (one line on
+// The rimfill command line (README, "Command line"): exit 0 ok, 2 bad input (one line on
 // stderr, nothing written), 1 internal error.
+import { CAUTION } from '../core/caution';
 import { InputError } from '../core/errors';
 import { bench, benchHelp } from './commands/bench';
 import { calibrate, calibrateHelp } from './commands/calibrate';
@@ -24,7 +25,9 @@ const COMMANDS: Record<string, { run: (argv: string[]) => Promise<CommandResult>
   demo: { run: demo, help: demoHelp },
 };
 
-const USAGE = `rimfill: reconstruction of truncated CT scans (research and quality work, not for diagnosis)
+const USAGE = `rimfill: reconstruction of truncated CT scans
+
+${CAUTION}
 
 ${Object.values(COMMANDS).map((c) => c.help).join('\n\n')}
 
@@ -34,7 +37,7 @@ Exit codes: 0 ok, 2 bad input, 1 internal error.`;
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
   if (!name || name === '--help' || name === 'help' || name === '-h') {
-    process.stdout.write(USAGE + '\n');
+    process.stdout.write(`${USAGE}\n`);
     return name ? 0 : 2;
   }
   const cmd = COMMANDS[name];
@@ -43,13 +46,13 @@ export async function main(argv: string[]): Promise<number> {
     return 2;
   }
   if (rest.includes('--help')) {
-    process.stdout.write(cmd.help + '\n');
+    process.stdout.write(`${cmd.help}\n\n${CAUTION}\n`);
     return 0;
   }
   try {
     const r = await cmd.run(rest);
     for (const w of r.warnings ?? []) process.stderr.write(`rimfill ${name}: warning: ${w}\n`);
-    process.stdout.write(rest.includes('--json') ? JSON.stringify(r.json) + '\n' : r.text + '\n');
+    process.stdout.write(rest.includes('--json') ? `${JSON.stringify(r.json)}\n` : `${r.text}\n`);
     return 0;
   } catch (err) {
     if (err instanceof InputError) {

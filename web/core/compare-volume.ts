@@ -7,8 +7,9 @@
 import type { RegionFigures } from './compare';
 import { InputError } from './errors';
 import { ssimBorder, ssimMap } from './metrics';
+import { checkOverlap } from './overlap';
 import { resampleTrilinear, sameVolumeGrid } from './resample-volume';
-import { volumeOrigin, type Volume } from './volume';
+import { volumeOrigin, type Volume, type VolumeGrid } from './volume';
 
 export type VolumeRegion = 'volume' | 'object' | 'insideFov' | 'outsideFov';
 
@@ -25,6 +26,8 @@ export interface VolumeComparison {
   regions: Record<VolumeRegion, RegionFigures | null>;
   /** True when the reference was resampled onto the volume's grid. */
   resampled: boolean;
+  /** Fraction of the volume the reference covers (overlap.ts). */
+  overlap: number;
   fovRadiusMm: number | null;
   fovHalfHeightMm: number | null;
   /** Per axial slice, when asked for. */
@@ -70,69 +73,91 @@ export function compareVolumes(volume: Volume, reference: Volume, options: Volum
   let bad = 0;
   for (const v of volume.data) if (!Number.isFinite(v)) bad++;
   if (bad) throw new InputError(`volume: ${bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
+  const { overlap, note } = checkOverlap(g, reference.grid, 'volume');
+  if (note) notes.push(note);
   const resampled = !sameVolumeGrid(g, reference.grid);
   const ref = resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
   if (resampled) notes.push('reference resampled (trilinear) onto the volume grid');
   const muWater = volume.muWater ?? reference.muWater;
-  const scale = muWater ? 1000 / muWater : 1, offset = muWater ?? 0;
-  const unit = (x: number) => (x - offset) * scale;
-  let lo = Infinity, hi = -Infinity, refMax = 0;
+  const scale = muWater ? 1000 / muWater : 1;
+  let lo = Infinity, hi = -Infinity;
   for (let i = 0; i < ref.length; i++) {
     lo = Math.min(lo, ref[i]);
     hi = Math.max(hi, ref[i]);
   }
-  refMax = hi;
-  const range = (hi - lo) * scale || 1;
-  const threshold = OBJECT_THRESHOLD * (muWater ?? refMax);
-  const fov = options.fovRadius, fovH = options.fovHalfHeight;
-  if (fov !== undefined && fovH === undefined) notes.push('no FOV half height known: the FOV cylinder spans every slice');
-
-  const { x0, y0, z0 } = volumeOrigin(g);
-  const nxy = g.nx * g.ny, border = ssimBorder();
+  const c: SliceContext = {
+    g, data: volume.data, ref, offset: muWater ?? 0, scale, range: (hi - lo) * scale || 1,
+    threshold: OBJECT_THRESHOLD * (muWater ?? hi), fov: options.fovRadius, fovH: options.fovHalfHeight,
+  };
+  if (c.fov !== undefined && c.fovH === undefined) notes.push('no FOV half height known: the FOV cylinder spans every slice');
   const total = REGIONS.map(() => new Sums());
   const slices: SliceFigures[] = [];
-  const a = new Float32Array(nxy), b = new Float32Array(nxy);
   for (let k = 0; k < g.nz; k++) {
-    const z = z0 + k * g.dz;
-    const inHeight = fovH === undefined || Math.abs(z) <= fovH;
-    for (let i = 0; i < nxy; i++) {
-      a[i] = unit(volume.data[k * nxy + i]);
-      b[i] = unit(ref[k * nxy + i]);
-    }
-    const map = ssimMap(a, b, g.nx, g.ny, range);
-    const here = REGIONS.map(() => new Sums());
-    for (let j = 0; j < g.ny; j++) {
-      const y = y0 + j * g.dy;
-      for (let i = 0; i < g.nx; i++) {
-        const at = j * g.nx + i;
-        const object = ref[k * nxy + at] > threshold;
-        const inside = fov !== undefined && inHeight && Math.hypot(x0 + i * g.dx, y) <= fov;
-        const edge = i < border || j < border || i >= g.nx - border || j >= g.ny - border;
-        const member = [true, object, object && inside, object && fov !== undefined && !inside];
-        const d = a[at] - b[at];
-        for (let r = 0; r < REGIONS.length; r++) {
-          if (!member[r]) continue;
-          for (const s of [total[r], here[r]]) {
-            s.add(d);
-            if (r > 0 || !edge) {
-              s.ssim += map[at];
-              s.nSsim++;
-            }
+    const here = addSlice(c, k, total);
+    if (options.perSlice) slices.push({ k, z: volumeOrigin(g).z0 + k * g.dz, regions: figuresOf(here, c.range) });
+  }
+  return {
+    unit: muWater ? 'HU' : '1/mm',
+    regions: figuresOf(total, c.range),
+    resampled,
+    overlap,
+    fovRadiusMm: c.fov ?? null,
+    fovHalfHeightMm: c.fovH ?? null,
+    ...(options.perSlice ? { slices } : {}),
+    notes,
+  };
+}
+
+/** What every slice of a comparison shares: volumes (mu), HU scale, data range, object and FOV. */
+interface SliceContext {
+  g: VolumeGrid;
+  data: Float32Array;
+  ref: Float32Array;
+  /** Values shown as (mu - offset) * scale (HU when mu_water is known). */
+  offset: number;
+  scale: number;
+  range: number;
+  /** mu above which a reference voxel belongs to the object. */
+  threshold: number;
+  fov: number | undefined;
+  fovH: number | undefined;
+}
+
+/** Adds axial slice k to the running totals; returns the slice's own sums. */
+function addSlice(c: SliceContext, k: number, total: Sums[]): Sums[] {
+  const { g, fov } = c;
+  const nxy = g.nx * g.ny, border = ssimBorder();
+  const { x0, y0, z0 } = volumeOrigin(g);
+  const inHeight = c.fovH === undefined || Math.abs(z0 + k * g.dz) <= c.fovH;
+  const a = new Float32Array(nxy), b = new Float32Array(nxy);
+  for (let i = 0; i < nxy; i++) {
+    a[i] = (c.data[k * nxy + i] - c.offset) * c.scale;
+    b[i] = (c.ref[k * nxy + i] - c.offset) * c.scale;
+  }
+  const map = ssimMap(a, b, g.nx, g.ny, c.range);
+  const here = REGIONS.map(() => new Sums());
+  for (let j = 0; j < g.ny; j++) {
+    const y = y0 + j * g.dy;
+    for (let i = 0; i < g.nx; i++) {
+      const at = j * g.nx + i;
+      const object = c.ref[k * nxy + at] > c.threshold;
+      const inside = fov !== undefined && inHeight && Math.hypot(x0 + i * g.dx, y) <= fov;
+      const edge = i < border || j < border || i >= g.nx - border || j >= g.ny - border;
+      const member = [true, object, object && inside, object && fov !== undefined && !inside];
+      const d = a[at] - b[at];
+      for (let r = 0; r < REGIONS.length; r++) {
+        if (!member[r]) continue;
+        for (const s of [total[r], here[r]]) {
+          s.add(d);
+          if (r > 0 || !edge) {
+            s.ssim += map[at];
+            s.nSsim++;
           }
         }
       }
     }
-    if (options.perSlice) slices.push({ k, z, regions: figuresOf(here, range) });
   }
-  return {
-    unit: muWater ? 'HU' : '1/mm',
-    regions: figuresOf(total, range),
-    resampled,
-    fovRadiusMm: fov ?? null,
-    fovHalfHeightMm: fovH ?? null,
-    ...(options.perSlice ? { slices } : {}),
-    notes,
-  };
+  return here;
 }
 
 function figuresOf(sums: Sums[], range: number): Record<VolumeRegion, RegionFigures | null> {

@@ -1,4 +1,4 @@
-// Image grids and images (design.md: pixel (i, j) centre x = (i - (nx-1)/2) dx + cx, i fastest).
+// Image grids and images (DEVELOPERS.md, "Geometry": pixel (i, j) centre x = (i - (nx-1)/2) dx + cx, i fastest).
 import { InputError } from './errors';
 
 /** A 2D reconstruction grid, mm. */
@@ -24,6 +24,8 @@ export interface Image2D {
   muWater?: number;
   /** Radius of the scan's measured field of view about the isocentre, mm, when known. */
   fovRadius?: number;
+  /** What made it, in words (the method and its knowledge, e.g. a recipe label), when known. */
+  description?: string;
 }
 
 /** Centre of pixel (0, 0), mm. */

@@ -47,6 +47,6 @@ export async function deleteAll(keys: string[], store: UseStore): Promise<void> 
 
 /** All keys that start with `prefix`. */
 export async function keysWithPrefix(prefix: string, store: UseStore): Promise<string[]> {
-  const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, prefix + '\uffff'))));
+  const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, `${prefix}\uffff`))));
   return all.map(String);
 }

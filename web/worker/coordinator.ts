@@ -31,6 +31,8 @@ import { readImageFiles, readVolumeFiles } from './read-image-files';
 import { runNetworkPriorJob } from './network-prior-job';
 import { runPriorCheckJob } from './prior-check-job';
 import { calibrateScan } from './calibrate-job';
+import { isLibraryRequest, libraryOp } from './library-ops';
+import { exportDicomJob } from './export-dicom-job';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -54,6 +56,8 @@ export class Coordinator {
   /** Answers one request. */
   async handle<K extends AppRequest['op']>(req: Extract<AppRequest, { op: K }>, hooks: RunHooks = {}): Promise<AppReplies[K]> {
     const r = req as AppRequest;
+    // Library edits and reads never wait for a run (each is one transaction of its own).
+    if (isLibraryRequest(r)) return (await libraryOp(this.store, r)) as AppReplies[K];
     switch (r.op) {
       case 'import':
         return (await this.importScan(r.files, r.name, hooks)) as AppReplies[K];
@@ -75,6 +79,8 @@ export class Coordinator {
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
         return (await this.exclusive(async () => runNetworkPriorJob({ ws: await this.openWorkspace(), store: this.store, open: this.modelOpener() }, r.request, hooks))) as AppReplies[K];
+      case 'export-dicom':
+        return (await exportDicomJob(this.store, r.resultId, hooks)) as AppReplies[K];
       case 'prior-check':
         return (await this.exclusive(async () => runPriorCheckJob({ ws: await this.openWorkspace(), store: this.store }, r.request, hooks))) as AppReplies[K];
     }

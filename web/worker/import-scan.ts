@@ -4,6 +4,7 @@ import { InputError } from '../core/errors';
 import type { NamedBytes } from '../core/formats/named-file';
 import { readScanFile } from '../core/formats/read-scan';
 import { validateGeometry } from '../core/geometry/validate';
+import type { Geometry } from '../core/geometry/types';
 import type { Scan } from '../core/scan';
 
 /** A file handed over by the page (File is a Blob with a name). */
@@ -34,7 +35,7 @@ export async function readScanFiles(files: InputFile[]): Promise<{ scan: Scan; w
   const dark = files.filter(isReference('dark'));
   const data = files.filter((f) => !geometryFiles.includes(f) && !flat.includes(f) && !dark.includes(f));
   if (data.length === 0) throw new InputError('import: only geometry or reference files given; expected the projections too');
-  let geometry;
+  let geometry: Geometry | undefined;
   if (geometryFiles.length) {
     const f = geometryFiles[0];
     let parsed: unknown;
@@ -45,7 +46,7 @@ export async function readScanFiles(files: InputFile[]): Promise<{ scan: Scan; w
     }
     geometry = validateGeometry(parsed);
   }
-  let result;
+  let result: Awaited<ReturnType<typeof readScanFile>>;
   try {
     result = await readScanFile(await Promise.all(data.map(read)), {
       geometry,

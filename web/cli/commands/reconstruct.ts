@@ -4,7 +4,9 @@ import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
 import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
+import { FILTER_WINDOWS } from '../../core/recon/filter-design';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
+import { describeResult } from '../../core/recipe/describe-result';
 import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
@@ -16,14 +18,17 @@ import { progressLine } from '../progress';
 import type { CommandResult } from './types';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
-    [--extend ${EXTEND_METHODS.join('|')}] [--filter ram-lak|shepp-logan|cosine|hamming|hann]
-    [--cutoff 0..1] [--size N] [--pixel mm] [--slices N --slice-spacing mm] [--hu] [--workers N] [--json]
+    [--extend ${EXTEND_METHODS.join('|')}] [--filter ${FILTER_WINDOWS.join('|')}]
+    [--band-limit lp/cm] [--size N] [--pixel mm] [--slices N --slice-spacing mm] [--hu] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
   512 pixels covering the measured field of view or, when larger, the object as estimated from
   the truncated edges). --extend extends the detector before filtering to correct truncation:
   edge (constant + roll-off), mirror (Ohnesorge 2000), water (Hsieh 2004), cosine (taper), each
-  as far as the object is estimated to reach. --hu writes HU (needs mu_water in the scan).
+  as far as the object is estimated to reach. --filter windows the ramp filter, sharpest
+  first (default ramp); --band-limit ends the window at that spatial frequency, in line pairs
+  per cm at the isocentre (default: the detector's Nyquist frequency there, the full band).
+  --hu writes HU (needs mu_water in the scan).
   A cone-beam scan gives a volume (FDK for --method fbp): N x N voxels (default 256 across the
   field of view or the estimated object) and --slices slices of --slice-spacing mm (default:
   cubic voxels covering the measured height); --extend works row by row on cone-beam scans, and
@@ -32,7 +37,7 @@ ${ITERATIVE_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
 const FIELD_OPTIONS: Record<string, string> = {
-  method: 'method', filter: 'filter', cutoff: 'cutoff', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel',
+  method: 'method', filter: 'filter', bandLimit: 'band-limit', extend: 'extend', 'grid.size': 'size', 'grid.pixel': 'pixel',
   'volume.slices': 'slices', 'volume.spacing': 'slice-spacing',
   ...Object.fromEntries(Object.entries(ITERATIVE_FIELD_OPTIONS).map(([option, field]) => [field, option])),
   nonNegative: 'allow-negative',
@@ -50,7 +55,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
   const o = a.options;
   const raw: Record<string, unknown> = { method: requireString(a, 'method') };
   if (o.filter !== undefined) raw.filter = o.filter;
-  if (o.cutoff !== undefined) raw.cutoff = o.cutoff;
+  if (o['band-limit'] !== undefined) raw.bandLimit = o['band-limit'];
   if (o.extend !== undefined) raw.extend = o.extend;
   if (o.size !== undefined || o.pixel !== undefined) {
     if (o.size === undefined || o.pixel === undefined) throw new InputError('options --size and --pixel go together (pixels and mm per pixel)');
@@ -70,7 +75,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
-    method: 'string', out: 'string', filter: 'string', cutoff: 'number', extend: 'string', size: 'int', pixel: 'number',
+    method: 'string', out: 'string', filter: 'string', 'band-limit': 'number', extend: 'string', size: 'int', pixel: 'number',
     hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS,
   }, 1);
   const path = a.positional[0];
@@ -91,11 +96,12 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     // The prior-guided method: the prior and the result checked against the measured data.
     const consistency = recipe.method === 'prior' && !r.volume ? await priorConsistency(ws, scan, checkedPrior, r.image, hooks) : undefined;
     const seconds = (performance.now() - t0) / 1000;
-    const image = r.image;
+    const description = describeResult(recipe as unknown as Record<string, unknown>).detail;
+    const image = { ...r.image, description };
     const writes = new PendingWrites();
     if (r.volume) {
       const v = r.volume;
-      writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu' } : v));
+      writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu', description } : { ...v, description }));
       writes.commit();
       const vg = v.grid;
       return {

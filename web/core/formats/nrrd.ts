@@ -160,7 +160,7 @@ export async function writeNrrd(
     if (/[\r\n]/.test(v) || k.includes(':=')) throw new Error(`NRRD key ${k}: values must be one line`);
     lines.push(`${k}:=${v}`);
   }
-  const head = new TextEncoder().encode(lines.join('\n') + '\n\n');
+  const head = new TextEncoder().encode(`${lines.join('\n')}\n\n`);
   let body = encodeSamples(data, type).bytes;
   if (compress) body = await gzip(body);
   const out = new Uint8Array(head.length + body.length);

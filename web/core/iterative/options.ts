@@ -7,10 +7,10 @@ import type { Recipe } from '../recipe/recipe';
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
 export type IterativeMethod = (typeof ITERATIVE_METHODS)[number];
 
-export const SUPPORTS = ['circle', 'grid', 'image', 'outline'] as const;
+export const SUPPORTS = ['disk', 'grid', 'image', 'outline'] as const;
 /**
- * circle: the disk inscribed in the grid; grid: every pixel; image: a mask image given with the
- * run; outline: inside the object's outline given as the recipe's knowledge.
+ * disk: the disk inscribed in the grid (a cylinder for volumes); grid: every pixel; image: a mask
+ * image given with the run; outline: inside the object's outline given as the recipe's knowledge.
  */
 export type SupportShape = (typeof SUPPORTS)[number];
 
@@ -49,7 +49,7 @@ export interface IterativeFields {
   priorWeight?: number;
   /** Clip negative attenuation after each update. */
   nonNegative?: boolean;
-  /** Region reconstructed (pixels outside stay 0); default: the outline when the recipe knows one, else circle. */
+  /** Region reconstructed (pixels outside stay 0). */
   support?: SupportShape;
   /** sart, tv, wtv: the start image. */
   start?: StartImage;
@@ -68,7 +68,7 @@ export type IterativeOptions = Required<Omit<IterativeFields, 'prior' | 'insideS
 
 /**
  * Defaults. N_grad = 20 and the step-control constants follow Sidky & Pan 2008 (from memory,
- * references.md section 5). Their alpha = 0.2 suits a ray-by-ray ART data step; with OS-SART
+ * REFERENCES.md [sidky-pan-2008]). Their alpha = 0.2 suits a ray-by-ray ART data step; with OS-SART
  * and our step scale (solve.ts) the TV phase needs far less: tuned on the test phantoms
  * (test/iterative), 0.002 for TV and 0.005 for reweighted TV, whose weights shrink the steps
  * at edges. Relaxation 0.5 keeps OS-SART's subset noise down on noisy data (common practice).
@@ -83,7 +83,7 @@ export const ITERATIVE_DEFAULTS: IterativeOptions = {
   tvEps: 0.0005,
   priorWeight: 1,
   nonNegative: true,
-  support: 'circle',
+  support: 'disk',
 };
 
 /** Plain TV smooths edges too, so it takes a smaller default TV step than reweighted TV. */
@@ -191,16 +191,9 @@ function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): Pr
   return { source: 'recipe', recipe: validateNested(p.recipe) };
 }
 
-/**
- * The options a recipe asks for, defaults filled. The support defaults to the outline when the
- * recipe's knowledge has one (the object lies inside it).
- */
-export function resolveOptions(method: IterativeMethod, fields: IterativeFields & { knowledge?: Knowledge }): IterativeOptions {
-  const out = {
-    ...ITERATIVE_DEFAULTS,
-    ...(method === 'tv' ? { tvStrength: TV_STRENGTH_PLAIN } : {}),
-    ...(fields.knowledge?.outline ? { support: 'outline' as const } : {}),
-  };
+/** The options a recipe asks for, defaults filled. */
+export function resolveOptions(method: IterativeMethod, fields: IterativeFields): IterativeOptions {
+  const out = { ...ITERATIVE_DEFAULTS, ...(method === 'tv' ? { tvStrength: TV_STRENGTH_PLAIN } : {}) };
   for (const k of [...Object.keys(ITERATIVE_DEFAULTS), 'insideStep', 'start'] as Array<keyof IterativeOptions>) {
     if (fields[k] !== undefined) (out as Record<string, unknown>)[k] = fields[k];
   }

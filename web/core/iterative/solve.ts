@@ -14,7 +14,7 @@ import type { KnownRegions } from './known-regions';
 import { TvDescent } from './tv-descent';
 import { gridBands, gridSize, type ReconGrid } from './space';
 
-/** ASD-POCS step control constants (Sidky & Pan 2008, from memory; references.md section 5). */
+/** ASD-POCS step control constants (Sidky & Pan 2008, from memory; REFERENCES.md [sidky-pan-2008]). */
 export const ASD_POCS = { rMax: 0.95, alphaRed: 0.95, betaRed: 0.995 } as const;
 
 export interface IterationHistory {

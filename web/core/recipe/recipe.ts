@@ -2,7 +2,7 @@
 // options, the page from its form; both run it with runRecipe (run.ts). Plain JSON, so it can
 // be stored with the result and shown in reports.
 import { InputError } from '../errors';
-import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
+import { FILTER_WINDOWS, MAX_BAND_LIMIT, type FilterWindow } from '../recon/filter-design';
 import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 import { validateKnowledge, type Knowledge } from '../knowledge';
@@ -23,9 +23,10 @@ export interface Recipe extends IterativeFields {
   method: Method;
   /** Reconstruction grid; absent: chosen from the scan (grid.ts). */
   grid?: GridChoice;
+  /** Window of the ramp filter (FILTER_WINDOWS, sharpest first). */
   filter: FilterWindow;
-  /** Frequency scaling of the filter window, (0, 1]. */
-  cutoff: number;
+  /** Where the filter window ends: line pairs per cm at the isocentre; absent: the full band (Nyquist). */
+  bandLimit?: number;
   /** Detector extension before filtering (truncation correction); absent means 'none'. */
   extend?: ExtendMethod;
   /** Slices of a cone-beam volume; absent: chosen from the scan (volume-grid.ts). */
@@ -41,7 +42,7 @@ export interface SliceChoice {
   spacing: number;
 }
 
-export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ram-lak', cutoff: 1, extend: 'none' };
+export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ramp', extend: 'none' };
 
 function isObject(v: unknown): v is Record<string, unknown> {
   return typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -57,8 +58,13 @@ export function validateRecipe(input: unknown): Recipe {
   if (!(FILTER_WINDOWS as readonly string[]).includes(r.filter as string)) {
     throw new InputError(`recipe filter: got "${r.filter}", expected one of ${FILTER_WINDOWS.join(', ')}`);
   }
-  if (typeof r.cutoff !== 'number' || !(r.cutoff > 0 && r.cutoff <= 1)) throw new InputError(`recipe cutoff: got ${r.cutoff}, expected a number in (0, 1]`);
-  const out: Recipe = { method: r.method as Method, filter: r.filter as FilterWindow, cutoff: r.cutoff };
+  const out: Recipe = { method: r.method as Method, filter: r.filter as FilterWindow };
+  if (r.bandLimit !== undefined) {
+    if (typeof r.bandLimit !== 'number' || !(r.bandLimit > 0 && r.bandLimit <= MAX_BAND_LIMIT)) {
+      throw new InputError(`recipe bandLimit: got ${JSON.stringify(r.bandLimit)}, expected line pairs per cm at the isocentre, above 0 and at most ${MAX_BAND_LIMIT}`);
+    }
+    out.bandLimit = r.bandLimit;
+  }
   if (r.extend !== undefined) {
     if (!(EXTEND_METHODS as readonly string[]).includes(r.extend as string)) {
       throw new InputError(`recipe extend: got "${r.extend}", expected one of ${EXTEND_METHODS.join(', ')}`);

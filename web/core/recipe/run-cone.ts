@@ -26,7 +26,7 @@ export async function runConeRecipe(ws: Workspace, scan: Scan, recipe: Recipe, h
   const grid = chooseVolumeGrid(scan, recipe.grid, recipe.volume, plan?.objectRadius);
   const planSeconds = (performance.now() - t0) / 1000;
   const extension = plan ? coneRowExtension(plan, scan.geometry.detector.channels) : undefined;
-  const r = await fdk3d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension }, {
+  const r = await fdk3d(ws, scan, { grid, filter: recipe.filter, bandLimit: recipe.bandLimit, extension }, {
     signal: hooks.signal,
     onProgress: (f, stage) => hooks.onProgress?.(plan ? 0.05 + 0.95 * f : f, stage),
   });

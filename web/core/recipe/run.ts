@@ -42,7 +42,7 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
   const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
   const planSeconds = (performance.now() - t0) / 1000;
-  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension: plan }, hooks);
+  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, bandLimit: recipe.bandLimit, extension: plan }, hooks);
   const warnings = [...r.warnings];
   if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {

@@ -1,6 +1,6 @@
 // FDK reconstruction of circular cone-beam scans with a flat detector (L. A. Feldkamp,
 // L. C. Davis, J. W. Kress, "Practical cone-beam algorithm", J. Opt. Soc. Am. A 1(6):612-619,
-// 1984; references.md 3e): cosine pre-weighting, row-wise ramp filtering (the 2D engine's
+// 1984; REFERENCES.md [fdk-1984]): cosine pre-weighting, row-wise ramp filtering (the 2D engine's
 // windows), Parker weights for short scans, voxel-driven backprojection with bilinear detector
 // interpolation, split over z slabs across the workers.
 //
@@ -14,13 +14,14 @@ import type { Buf, Workspace } from '../engine/workspace';
 import { InputError, throwIfCancelled } from '../errors';
 import { coneFovHalfHeight, requireCone } from '../geometry/cone';
 import { extendDetector } from '../geometry/presets';
+import type { Geometry } from '../geometry/types';
 import { firstChannelU, firstRowV, fovRadius, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type Volume, type VolumeGrid } from '../volume';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
-import { prepareFilter } from './filter-response';
+import { bandEdge, prepareFilter } from './filter-response';
 import { requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 
@@ -45,8 +46,8 @@ export interface RowExtension {
 export interface FdkParams {
   grid: VolumeGrid;
   filter?: FilterWindow;
-  /** Frequency scaling of the window, (0, 1]. */
-  cutoff?: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
   extension?: RowExtension;
   /** Engine memory for one chunk of filtered views, bytes (default 32 MiB). */
   chunkBytes?: number;
@@ -77,27 +78,72 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
   requireCone(g);
   const grid = checkVolumeGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
-  const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
+  const window = checkFilter(params.filter ?? 'ramp', params.bandLimit);
+  const band = bandEdge(g, params.bandLimit);
   const ext = params.extension;
   const gf = ext ? extendDetector(g, ext.left, ext.right) : g; // the detector the filter sees
-  const table = viewVectors(g);
-  const nViews = table.length / VIEW_STRIDE;
-  checkScanData(scan, nViews);
-  const { channels: nCh, rows: nRows } = g.detector;
-  const nChF = gf.detector.channels;
-  const [pitchU, pitchV] = g.detector.pitch;
-  const u0 = firstChannelU(gf), v0 = firstRowV(g);
+  checkScanData(scan, viewVectors(g).length / VIEW_STRIDE);
   const t0 = now();
-  const { weights, warnings, scanType } = fbpPreweights(g, nChF, u0); // g: the measured detector, for redundancy weights
+  const { weights, warnings, scanType } = fbpPreweights(g, gf.detector.channels, firstChannelU(gf)); // g: the measured detector, for redundancy weights
   const timings = { weights: now() - t0, filter: 0, backproject: 0 };
   throwIfCancelled(hooks.signal);
-
   ws.reset();
+  const job = await prepareJob(ws, scan, gf, grid, weights, { ...params, filter: window }, band.edge);
+  const chunks = splitRange(job.nViews, Math.ceil(job.nViews / job.chunk));
+  for (let c = 0; c < chunks.length; c++) {
+    throwIfCancelled(hooks.signal);
+    const t = await filterAndBackproject(ws, job, scan, chunks[c], c === chunks.length - 1);
+    timings.filter += t.filter;
+    timings.backproject += t.backproject;
+    hooks.onProgress?.((c + 1) / chunks.length, 'filter + backproject');
+  }
+  const padded = await ws.read(job.vol);
+  const data = new Float32Array(grid.nx * grid.ny * grid.nz);
+  for (let r = 0; r < grid.ny * grid.nz; r++) data.set(padded.subarray(r * job.nxs, r * job.nxs + grid.nx), r * grid.nx);
+  return {
+    volume: { grid, data, quantity: 'mu', muWater: scan.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
+    warnings: band.warning ? [...warnings, band.warning] : warnings,
+    scanType,
+    timings,
+  };
+}
+
+/** Everything a chunk of views needs: sizes, the detector the filter sees, buffers, the filter. */
+interface FdkJob {
+  grid: VolumeGrid;
+  ext: RowExtension | undefined;
+  nViews: number;
+  nCh: number;
+  nRows: number;
+  nChF: number;
+  stride: number;
+  blockFloats: number;
+  chunk: number;
+  nxs: number;
+  u0: number;
+  v0: number;
+  pitchU: number;
+  pitchV: number;
+  buffers: { views: Buf; viewWeights: Buf; raw: Buf; rows: Buf; filtered: Buf; scratch: Buf[] };
+  vol: Buf;
+  filter: Awaited<ReturnType<typeof prepareFilter>>;
+  fft: { res: Buf[]; ims: Buf[] };
+  slabs: Array<[number, number]>;
+}
+
+/** Lays out the job's memory, writes the view table and weights, zeroes the volume. */
+async function prepareJob(ws: Workspace, scan: Scan, gf: Geometry, grid: VolumeGrid, weights: Float32Array, params: FdkParams & { filter: FilterWindow }, bandEdgeFraction: number): Promise<FdkJob> {
+  const g = scan.geometry;
+  const ext = params.extension;
+  const table = viewVectors(g);
+  const nViews = table.length / VIEW_STRIDE;
+  const { channels: nCh, rows: nRows } = g.detector;
+  const nChF = gf.detector.channels;
   const stride = nChF + 3;
   const blockFloats = (nRows + 3) * stride;
   const chunk = Math.max(ws.parallelism, Math.min(nViews, Math.floor((params.chunkBytes ?? 32 * 2 ** 20) / (blockFloats * 4))));
   const nxs = (grid.nx + 3) & ~3;
-  const { views, viewWeights, raw, rows, filtered, vol, scratch } = withVolumeMemory(grid, () => {
+  const { vol, ...buffers } = withVolumeMemory(grid, () => {
     const raw = ws.alloc('projChunk', chunk * nRows * nCh);
     return {
       views: ws.alloc('views', table.length),
@@ -110,53 +156,46 @@ export async function fdk3d(ws: Workspace, scan: Scan, params: FdkParams, hooks:
     };
   });
   // Zero padding as in fbp2d: the measured channels filtered exactly (linear convolution).
-  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, window, params.cutoff ?? 1);
-  const res = ws.allocPerWorker('fftRe', filter.nPad);
-  const ims = ws.allocPerWorker('fftIm', filter.nPad);
+  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, params.filter, bandEdgeFraction);
+  const fft = { res: ws.allocPerWorker('fftRe', filter.nPad), ims: ws.allocPerWorker('fftIm', filter.nPad) };
   await ext?.prepare?.(ws, scan);
-  await ws.write(views, table);
-  await ws.write(viewWeights, weights);
-
+  await ws.write(buffers.views, table);
+  await ws.write(buffers.viewWeights, weights);
   const slabs = splitRange(grid.nz, ws.parallelism);
   const slabFloats = nxs * grid.ny;
   await ws.run(slabs.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [{ ...vol, ptr: vol.ptr + a * slabFloats * 4 }, (b - a) * slabFloats] })));
-  const { x0, y0, z0 } = volumeOrigin(grid);
-  const chunks = splitRange(nViews, Math.ceil(nViews / chunk));
-  for (let c = 0; c < chunks.length; c++) {
-    throwIfCancelled(hooks.signal);
-    const [c0, c1] = chunks[c];
-    const t1 = now();
-    await ws.write(raw, scan.data.subarray(c0 * nRows * nCh, c1 * nRows * nCh));
-    if (ext) await ext.extendRows(ws, raw, rows, c0, c1);
-    await ws.run(
-      splitRange(c1 - c0, ws.parallelism).map(([a, b], i) => ({
-        kernel: 'coneFilterViews' as const,
-        args: [rows, nChF, nRows, c0, c0 + a, c0 + b, views, viewWeights, u0, pitchU, v0, pitchV,
-          filter.response, filter.nPad, filter.twRe, filter.twIm, filter.bitrev, res[i], ims[i], filtered, stride],
-        writes: [{ buf: filtered, start: a * blockFloats, length: (b - a) * blockFloats }],
-      })),
-    );
-    const t2 = now();
-    const last = c === chunks.length - 1;
-    await ws.run(
-      slabs.map(([a, b], i) => ({
-        kernel: 'backprojectCone' as const,
-        args: [vol, nxs, grid.ny, a, b, grid.dx, grid.dy, grid.dz, x0, y0, z0, views, c0, c1, scratch[i],
-          filtered, nRows, stride, nChF, u0, pitchU, v0, pitchV],
-        writes: last ? [{ buf: vol, start: a * slabFloats, length: (b - a) * slabFloats }] : [],
-      })),
-    );
-    timings.filter += t2 - t1;
-    timings.backproject += now() - t2;
-    hooks.onProgress?.((c + 1) / chunks.length, 'filter + backproject');
-  }
-  const padded = await ws.read(vol);
-  const data = new Float32Array(grid.nx * grid.ny * grid.nz);
-  for (let r = 0; r < grid.ny * grid.nz; r++) data.set(padded.subarray(r * nxs, r * nxs + grid.nx), r * grid.nx);
+  const [pitchU, pitchV] = g.detector.pitch;
   return {
-    volume: { grid, data, quantity: 'mu', muWater: scan.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
-    warnings,
-    scanType,
-    timings,
+    grid, ext, nViews, nCh, nRows, nChF, stride, blockFloats, chunk, nxs, u0: firstChannelU(gf), v0: firstRowV(g), pitchU, pitchV,
+    buffers, vol, filter, fft, slabs,
   };
+}
+
+/** Views [c0, c1): write, extend rows (when asked), weight and filter (workers take views), backproject (workers take z slabs). */
+async function filterAndBackproject(ws: Workspace, job: FdkJob, scan: Scan, [c0, c1]: [number, number], last: boolean): Promise<{ filter: number; backproject: number }> {
+  const { grid, nRows, nCh, nChF, stride, blockFloats, nxs, u0, v0, pitchU, pitchV, filter, fft, vol } = job;
+  const { views, viewWeights, raw, rows, filtered, scratch } = job.buffers;
+  const t1 = now();
+  await ws.write(raw, scan.data.subarray(c0 * nRows * nCh, c1 * nRows * nCh));
+  if (job.ext) await job.ext.extendRows(ws, raw, rows, c0, c1);
+  await ws.run(
+    splitRange(c1 - c0, ws.parallelism).map(([a, b], i) => ({
+      kernel: 'coneFilterViews' as const,
+      args: [rows, nChF, nRows, c0, c0 + a, c0 + b, views, viewWeights, u0, pitchU, v0, pitchV,
+        filter.response, filter.nPad, filter.twRe, filter.twIm, filter.bitrev, fft.res[i], fft.ims[i], filtered, stride],
+      writes: [{ buf: filtered, start: a * blockFloats, length: (b - a) * blockFloats }],
+    })),
+  );
+  const t2 = now();
+  const slabFloats = nxs * grid.ny;
+  const { x0, y0, z0 } = volumeOrigin(grid);
+  await ws.run(
+    job.slabs.map(([a, b], i) => ({
+      kernel: 'backprojectCone' as const,
+      args: [vol, nxs, grid.ny, a, b, grid.dx, grid.dy, grid.dz, x0, y0, z0, views, c0, c1, scratch[i],
+        filtered, nRows, stride, nChF, u0, pitchU, v0, pitchV],
+      writes: last ? [{ buf: vol, start: a * slabFloats, length: (b - a) * slabFloats }] : [],
+    })),
+  );
+  return { filter: t2 - t1, backproject: now() - t2 };
 }
