@@ -14,11 +14,11 @@ export const SUPPORTS = ['disk', 'grid', 'image', 'outline'] as const;
  */
 export type SupportShape = (typeof SUPPORTS)[number];
 
-export const STARTS = ['fbp', 'zero'] as const;
+export const STARTS = ['auto', 'fbp', 'zero'] as const;
 /**
  * The image sart, tv and wtv start from: fbp, the best FBP correction for the recipe's knowledge
- * (start.ts); zero, an empty image. Absent: fbp when the scan is truncated or the recipe knows
- * something, else zero.
+ * (start.ts); zero, an empty image; auto (also when absent): fbp when the scan is truncated or
+ * the recipe knows something, else zero.
  */
 export type StartImage = (typeof STARTS)[number];
 

@@ -54,7 +54,7 @@ export async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: 
  * wTV from zero).
  */
 export async function obtainStart(recipe: Recipe, o: IterativeOptions, grid: ReconGrid, truncated: boolean, nested: NestedRun, hooks: RunHooks): Promise<ObtainedStart | undefined> {
-  const start = o.start ?? (truncated || recipe.knowledge ? 'fbp' : 'zero');
+  const start = o.start === undefined || o.start === 'auto' ? (truncated || recipe.knowledge ? 'fbp' : 'zero') : o.start;
   if (start === 'zero') return undefined;
   const fields = bestFbpFields(recipe.knowledge);
   // The same grid as the iterations (square grids centred on the isocentre, recipe/grid.ts).

@@ -5,7 +5,7 @@
 // (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
 import { FILTER_WINDOWS, MAX_BAND_LIMIT } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
-import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, type IterativeOptions } from '../iterative/options';
+import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, STARTS, type IterativeOptions } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
 
 export interface FieldChoice {
@@ -87,6 +87,7 @@ const isIterative = (r: Record<string, unknown>) => isIterativeMethod(String(r.m
 const usesTv = (r: Record<string, unknown>) => r.method === 'tv' || r.method === 'wtv' || r.method === 'prior';
 const isReweighted = (r: Record<string, unknown>) => r.method === 'wtv' || r.method === 'prior';
 const isPrior = (r: Record<string, unknown>) => r.method === 'prior';
+const startsFromImage = (r: Record<string, unknown>) => isIterative(r) && !isPrior(r);
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
@@ -135,7 +136,7 @@ export const RECIPE_FIELDS: RecipeField[] = [
   },
   {
     key: 'priorWeight', label: 'Prior weight', kind: 'number', min: 0.05, max: 1, step: 0.05, appliesTo: isPrior,
-    help: 'Weight of the prior\'s projections beyond the detector, relative to the measured data.',
+    help: 'Weight of the prior\'s projections beyond the detector, relative to the measured data (default 1 for an image; a prior made from the scan itself is not fitted there).',
   },
   {
     key: 'prior', label: 'Prior', kind: 'choice', appliesTo: isPrior,
@@ -143,8 +144,18 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view.',
   },
   {
-    key: 'support', label: 'Support', kind: 'choice', choices: choicesOf(['disk', 'grid'], { disk: 'Disk inscribed in the grid', grid: 'Whole grid' }), appliesTo: isIterative,
-    help: 'Pixels reconstructed; outside they stay zero.',
+    key: 'support', label: 'Support', kind: 'choice', appliesTo: isIterative,
+    choices: choicesOf(['disk', 'grid', 'outline'], { disk: 'Disk inscribed in the grid', grid: 'Whole grid', outline: 'Inside the outline (knowledge)' }),
+    help: 'Pixels reconstructed; outside they stay zero. The outline needs the object\'s outline as knowledge.',
+  },
+  {
+    key: 'start', label: 'Start image', kind: 'choice', appliesTo: startsFromImage,
+    choices: choicesOf(STARTS, { auto: 'Automatic (FBP when truncated or something is known)', fbp: 'Best FBP for what is known', zero: 'Empty image' }),
+    help: 'The image the iterations start from: the data cannot tell a smooth field inside the field of view of a truncated scan, so the start settles it.',
+  },
+  {
+    key: 'insideStep', label: 'Step inside the field', kind: 'number', min: 0.005, max: 1, step: 0.005, appliesTo: isIterative,
+    help: 'Step inside the measured field of view relative to outside; small keeps the start there (default 0.02 for a start made from the scan on a truncated scan, else 1).',
   },
 ];
 
