@@ -12,6 +12,14 @@ describe('recipe fields', () => {
     expect((byKey.filter as ChoiceField).choices.map((c) => c.value)).toEqual([...FILTER_WINDOWS]);
   });
 
+  it('show the filter window and band limit for FBP and for the FBP that sart, tv and wtv start from', () => {
+    const byKey = Object.fromEntries(describeRecipeFields().map((f) => [f.key, f]));
+    for (const key of ['filter', 'bandLimit']) {
+      const shown = METHODS.filter((method) => byKey[key].appliesTo?.({ method }) ?? true);
+      expect(shown, key).toEqual(METHODS.filter((m) => m !== 'prior'));
+    }
+  });
+
   it('describe every field of the default recipe (add a description in fields.ts for a new one)', () => {
     const described = new Set(RECIPE_FIELDS.map((f) => f.key));
     const missing = Object.keys(DEFAULT_RECIPE).filter((k) => !described.has(k));

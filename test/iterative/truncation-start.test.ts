@@ -102,6 +102,11 @@ describe('the start of the iterative methods on a truncated scan', () => {
     expect(hu(fbpWater)).toBeGreaterThan(100);
   });
 
+  it('the start is the FBP with the recipe\'s filter window and band limit', async () => {
+    const r = await runRecipe(ws, scan, validateRecipe({ method: 'sart', grid: GRID, iterations: 1, filter: 'hann', bandLimit: 3 }));
+    expect((r.report as { start: { recipe: { filter: string; bandLimit: number } } }).start.recipe).toMatchObject({ method: 'fbp', extend: 'water', filter: 'hann', bandLimit: 3 });
+  });
+
   it('the prior-guided method is no worse inside than its default prior, and does not fit that prior beyond the detector', async () => {
     const r = await runRecipe(ws, scan, validateRecipe({ method: 'prior', grid: GRID, iterations: 10 }));
     expect(rmse(r.image.data, truth, inside)).toBeLessThanOrEqual(fbpWater);

@@ -56,7 +56,8 @@ export async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: 
 export async function obtainStart(recipe: Recipe, o: IterativeOptions, grid: ReconGrid, truncated: boolean, nested: NestedRun, hooks: RunHooks): Promise<ObtainedStart | undefined> {
   const start = o.start === undefined || o.start === 'auto' ? (truncated || recipe.knowledge ? 'fbp' : 'zero') : o.start;
   if (start === 'zero') return undefined;
-  const fields = bestFbpFields(recipe.knowledge);
+  // The recipe's filter window and band limit are the start's (a smoother window on noisy data).
+  const fields = { ...bestFbpFields(recipe.knowledge), filter: recipe.filter, ...(recipe.bandLimit ? { bandLimit: recipe.bandLimit } : {}) };
   // The same grid as the iterations (square grids centred on the isocentre, recipe/grid.ts).
   const own = isVolumeGrid(grid)
     ? { ...fields, grid: recipe.grid, volume: recipe.volume }

@@ -88,16 +88,18 @@ const usesTv = (r: Record<string, unknown>) => r.method === 'tv' || r.method ===
 const isReweighted = (r: Record<string, unknown>) => r.method === 'wtv' || r.method === 'prior';
 const isPrior = (r: Record<string, unknown>) => r.method === 'prior';
 const startsFromImage = (r: Record<string, unknown>) => isIterative(r) && !isPrior(r);
+/** FBP, and sart, tv and wtv (the FBP they start from). */
+const filtersSomething = (r: Record<string, unknown>) => isFbp(r) || startsFromImage(r);
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
   { key: 'method', label: 'Method', kind: 'choice', choices: choicesOf(METHODS), help: 'How the image is computed from the projections.' },
   {
-    key: 'filter', label: 'Filter window', kind: 'choice', choices: choicesOf(FILTER_WINDOWS), appliesTo: isFbp,
-    help: 'Apodization of the ramp filter, sharpest first: smoother windows trade resolution for less noise.',
+    key: 'filter', label: 'Filter window', kind: 'choice', choices: choicesOf(FILTER_WINDOWS), appliesTo: filtersSomething,
+    help: 'Apodization of the ramp filter, sharpest first: smoother windows trade resolution for less noise (iterative methods: of the FBP they start from).',
   },
   {
-    key: 'bandLimit', label: 'Band limit', kind: 'number', min: 0.5, max: MAX_BAND_LIMIT, step: 0.5, unit: 'lp/cm', appliesTo: isFbp,
+    key: 'bandLimit', label: 'Band limit', kind: 'number', min: 0.5, max: MAX_BAND_LIMIT, step: 0.5, unit: 'lp/cm', appliesTo: filtersSomething,
     defaultOf: () => 'full band',
     help: 'Spatial frequency where the filter window ends, in line pairs per cm at the isocentre (empty: the detector\'s Nyquist frequency).',
   },
