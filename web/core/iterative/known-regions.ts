@@ -2,8 +2,8 @@
 // phase: (1) the regions' offsets from their known values are fitted by a smooth field over the
 // measured field of view (a constant; with three or more regions also a plane), which is added
 // there and faded out beyond it, because what the truncated data leave open inside the field is
-// smooth and a known subregion settles it (Kudo et al. 2008, REFERENCES.md [kudo-2008]; a coarse
-// smooth basis fitted to a known subregion: Paleo et al. 2017, [paleo-2017]); the data sweeps
+// smooth and a known subregion settles it (Kudo et al. 2008, REFERENCES.md [kudo2008]; a coarse
+// smooth basis fitted to a known subregion: Paleo et al. 2017, [paleo2017]); the data sweeps
 // that follow move the outside so the measured rays agree again; (2) each region is then shifted
 // to its known value exactly (its coverage-weighted mean; texture and noise in the region are
 // kept). Regions lie inside the measured field of view (knowledge/check.ts).

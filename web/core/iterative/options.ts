@@ -1,7 +1,8 @@
 // Recipe fields of the iterative methods (sart, tv, wtv, prior): their types, defaults and
 // validation. recipe.ts calls validateIterativeFields; the solver reads resolved options.
 import { InputError } from '../errors';
-import { validateKnowledge, type Knowledge } from '../knowledge';
+import { validateKnowledge } from '../knowledge';
+import { fbpFieldsForKnowledge, type FbpChoices } from '../recipe/best-fbp';
 import type { Recipe } from '../recipe/recipe';
 
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
@@ -146,23 +147,14 @@ export function validateIterativeFields(
     throw new InputError(`recipe extend: got "${r.extend}" for method "${r.method}", expected "none" (detector extension belongs to fbp; for method "prior", to the prior's recipe)`);
   }
   if (r.prior !== undefined) out.prior = validatePrior(r.prior, validateNested);
-  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(bestFbpFields(validateKnowledge(r.knowledge))) };
+  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(defaultPriorFields(r)) };
   if (r.method !== 'prior' && out.prior) throw new InputError(`recipe prior: given for method "${r.method}", only method "prior" uses one`);
   for (const k of Object.keys(out) as Array<keyof IterativeFields>) if (out[k] === undefined) delete out[k];
   return out;
 }
 
-/** The prior when a recipe names none, and the start of sart, tv and wtv: FBP of the scan with water-cylinder extrapolation (with the recipe's knowledge: bestFbpFields). */
+/** The prior of method "prior" when a recipe names none, in words of a prior choice: FBP with water-cylinder extrapolation (with knowledge: best-fbp.ts). */
 export const DEFAULT_PRIOR_RECIPE = { method: 'fbp', extend: 'water' } as const;
-
-/**
- * The recipe fields (plain JSON) of the best FBP correction for what the recipe knows: FBP with
- * water-cylinder extension, and the knowledge (known regions, outline) when there is any, which
- * the FBP recipe uses to correct the extension.
- */
-export function bestFbpFields(knowledge?: Knowledge): Record<string, unknown> {
-  return { ...DEFAULT_PRIOR_RECIPE, ...(knowledge ? { knowledge } : {}) };
-}
 
 /**
  * A prior source from JSON: {"source": "image"}, {"source": "recipe", "recipe": {...}}, or the
@@ -189,6 +181,15 @@ function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): Pr
   if (!isObject(p.recipe)) throw new InputError('recipe prior.recipe: expected the recipe (an object) whose result is the prior');
   if (p.recipe.method === 'prior') throw new InputError('recipe prior.recipe.method: got "prior", expected a method that needs no prior (e.g. fbp)');
   return { source: 'recipe', recipe: validateNested(p.recipe) };
+}
+
+/**
+ * The default prior: the best FBP for the recipe's knowledge, with the recipe's filter window and
+ * band limit (the same start as sart, tv and wtv; start.ts).
+ */
+function defaultPriorFields(r: Record<string, unknown>): Record<string, unknown> {
+  const choices = { ...(r.filter !== undefined ? { filter: r.filter } : {}), ...(r.bandLimit !== undefined ? { bandLimit: r.bandLimit } : {}) } as FbpChoices;
+  return fbpFieldsForKnowledge(validateKnowledge(r.knowledge), choices);
 }
 
 /** The options a recipe asks for, defaults filled. */

@@ -4,7 +4,7 @@
 import type { PlacedRegion } from '../knowledge';
 import type { Recipe } from '../recipe/recipe';
 import { regionMean } from './known-regions';
-import { departureFromPrior } from './prior';
+import { departureFromPrior, type NegativeValues } from './prior';
 import { perViewSquares, type Problem } from './problem';
 import type { IterativeMethod, IterativeOptions } from './options';
 import type { SolveOutcome } from './solve';
@@ -22,6 +22,8 @@ export interface ReportInputs {
   image: Float32Array;
   /** The prior on the grid (prior-guided method). */
   prior?: Float32Array;
+  /** Negative values of the prior, when it has some. */
+  priorNegative?: NegativeValues;
   fov: number;
   muWater?: number;
   /** The start image on the grid (absent: zeros). */
@@ -73,6 +75,7 @@ export function iterativeReport(r: ReportInputs): Record<string, unknown> {
     report.prior = {
       departure: departureFromPrior(r.image, r.prior, grid, support, r.fov, r.muWater),
       unmeasuredPerViewRms: unpermute(away.map((s) => (unmeasured ? Math.sqrt(s / (rows * unmeasured)) : 0)), plan.permutation),
+      negative: r.priorNegative ?? null,
     };
   }
   return report;

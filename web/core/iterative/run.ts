@@ -19,7 +19,7 @@ import { OsSart } from './os-sart';
 import { completeWithPrior } from './completion';
 import { INSIDE_STEP, insideStepScale, scanIsTruncated } from './inside-step';
 import { KnownRegions } from './known-regions';
-import { startOnGrid } from './prior';
+import { negativePriorWarning, startOnGrid } from './prior';
 import { obtainPrior, obtainStart, type ObtainedStart } from './start';
 import { checkScanData, perViewSquares, setUpProblem, supportMask, type Problem } from './problem';
 import { iterativeReport } from './report';
@@ -147,6 +147,7 @@ export async function runIterative(
   const problem = setUpProblem(scan, grid, support, subsets, priorWeight);
   const start = obtained ? startOnGrid(obtained, grid, support, method === 'prior' ? 'prior' : 'start') : undefined;
   if (start) warnings.push(...start.warnings);
+  if (start?.negative && obtained?.given) warnings.push(negativePriorWarning(start.negative, o.nonNegative !== false));
   const reach = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
   if (method === 'prior' && reach < 1.2 * fov) {
     warnings.push(`the grid reaches only ${reach.toFixed(0)} mm from its centre, little beyond the measured FOV (radius ${fov.toFixed(0)} mm): the object outside the FOV is not reconstructed; give a grid (size, pixel) that covers the whole object`);
@@ -172,7 +173,7 @@ export async function runIterative(
   const image = await ws.read(x);
   const report = iterativeReport({
     method, options: { ...o, subsets, insideStep, priorWeight }, problem, outcome, startResidual, finalSino: await ws.read(sart.corr), image,
-    prior: method === 'prior' ? start?.data : undefined, fov, muWater: scan.muWater,
+    prior: method === 'prior' ? start?.data : undefined, priorNegative: method === 'prior' ? start?.negative : undefined, fov, muWater: scan.muWater,
     start: startImage, startRecipe: obtained?.recipe, startReport: obtained?.report, knowledge: knowledge.regions,
     knowledgeUsed: [...knowledge.regions.map((k) => k.name), ...(recipe.knowledge?.outline ? [describeOutline(recipe.knowledge.outline)] : [])],
   });

@@ -1,15 +1,16 @@
 // Where an iterative reconstruction starts. The prior-guided method starts from its prior (an
 // image or volume handed in, or another recipe's result on the scan). sart, tv and wtv start by
-// default from the best FBP correction for what the recipe knows (bestFbpFields), run on their
+// default from the best FBP correction for what the recipe knows (recipe/best-fbp.ts), run on their
 // own grid: their updates lie in the range of A^T over the measured rays, so the part of the
 // start that the truncated data cannot see (their null space: a smooth field inside the field of
 // view) is kept, and a good start matters most (DEVELOPERS.md "Iterative reconstruction").
 import { InputError } from '../errors';
 import type { Image2D } from '../image';
-import { validateRecipe, type Recipe } from '../recipe/recipe';
+import { fbpRecipeForKnowledge } from '../recipe/knowledge-recipe';
+import type { Recipe } from '../recipe/recipe';
 import type { RunHooks } from '../run-hooks';
 import { axialSlice, sliceAt, type Volume } from '../volume';
-import { bestFbpFields, type IterativeOptions } from './options';
+import type { IterativeOptions } from './options';
 import type { NestedRun, RecipeInputs } from './run';
 import { isVolumeGrid, type ReconGrid } from './space';
 
@@ -56,13 +57,13 @@ export async function obtainPrior(recipe: Recipe, inputs: RecipeInputs, nested: 
 export async function obtainStart(recipe: Recipe, o: IterativeOptions, grid: ReconGrid, truncated: boolean, nested: NestedRun, hooks: RunHooks): Promise<ObtainedStart | undefined> {
   const start = o.start === undefined || o.start === 'auto' ? (truncated || recipe.knowledge ? 'fbp' : 'zero') : o.start;
   if (start === 'zero') return undefined;
-  // The recipe's filter window and band limit are the start's (a smoother window on noisy data).
-  const fields = { ...bestFbpFields(recipe.knowledge), filter: recipe.filter, ...(recipe.bandLimit ? { bandLimit: recipe.bandLimit } : {}) };
-  // The same grid as the iterations (square grids centred on the isocentre, recipe/grid.ts).
-  const own = isVolumeGrid(grid)
-    ? { ...fields, grid: recipe.grid, volume: recipe.volume }
-    : { ...fields, grid: { size: grid.nx, pixel: grid.dx } };
-  return runStartRecipe(validateRecipe(own), nested, hooks, 'start');
+  // The recipe's filter window and band limit are the start's (a smoother window on noisy data);
+  // the same grid as the iterations (square grids centred on the isocentre, recipe/grid.ts).
+  const choices = { filter: recipe.filter, ...(recipe.bandLimit ? { bandLimit: recipe.bandLimit } : {}) };
+  const fbp = isVolumeGrid(grid)
+    ? { ...fbpRecipeForKnowledge(recipe.knowledge, choices), ...(recipe.grid ? { grid: recipe.grid } : {}), ...(recipe.volume ? { volume: recipe.volume } : {}) }
+    : fbpRecipeForKnowledge(recipe.knowledge, { ...choices, grid: { size: grid.nx, pixel: grid.dx } });
+  return runStartRecipe(fbp, nested, hooks, 'start');
 }
 
 async function runStartRecipe(recipe: Recipe, nested: NestedRun, hooks: RunHooks, what: 'prior' | 'start'): Promise<ObtainedStart> {

@@ -57,6 +57,7 @@ const CHOICE_LABELS: Record<string, string> = {
   'fbp:mirror': 'FBP with mirror extension',
   'fbp:edge': 'FBP with edge extension',
   'fbp:cosine': 'FBP with cosine taper extension',
+  'fbp:outline': 'FBP with the outline filled with water',
   sart: 'SART (algebraic, iterative)',
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
@@ -88,8 +89,9 @@ const usesTv = (r: Record<string, unknown>) => r.method === 'tv' || r.method ===
 const isReweighted = (r: Record<string, unknown>) => r.method === 'wtv' || r.method === 'prior';
 const isPrior = (r: Record<string, unknown>) => r.method === 'prior';
 const startsFromImage = (r: Record<string, unknown>) => isIterative(r) && !isPrior(r);
-/** FBP, and sart, tv and wtv (the FBP they start from). */
-const filtersSomething = (r: Record<string, unknown>) => isFbp(r) || startsFromImage(r);
+/** FBP, sart, tv and wtv unless they start from an empty image (the FBP they start from), and the prior-guided method's default prior (the same FBP). */
+const filtersSomething = (r: Record<string, unknown>) =>
+  isFbp(r) || (startsFromImage(r) && r.start !== 'zero') || (isPrior(r) && (r.prior === undefined || r.prior === ''));
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
@@ -143,7 +145,7 @@ export const RECIPE_FIELDS: RecipeField[] = [
   {
     key: 'prior', label: 'Prior', kind: 'choice', appliesTo: isPrior,
     choices: choicesOf(EXTEND_METHODS.filter((e) => e !== 'none').map((e) => `fbp:${e}`).concat('fbp')),
-    help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view.',
+    help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view (empty: the best FBP for what is known, with the filter window above).',
   },
   {
     key: 'support', label: 'Support', kind: 'choice', appliesTo: isIterative,
@@ -190,36 +192,4 @@ export function describeRecipeFields(): RecipeField[] {
     }
   }
   return [...RECIPE_FIELDS, ...extra];
-}
-
-function formatValue(f: RecipeField, v: unknown): string {
-  if (f.key === 'extend') return `${String(v)} extension`;
-  if (f.key === 'prior') return `prior: ${priorLabel(v)}`;
-  if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
-  if (f.key === 'bandLimit') return `band limit ${String(v)} lp/cm`;
-  if (f.kind === 'grid') {
-    const g = v as { size: number; pixel: number } | undefined;
-    return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
-  }
-  return `${f.key} ${String(v)}`;
-}
-
-/** A prior source in words: its short form, or the recipe or image it names. */
-function priorLabel(v: unknown): string {
-  if (typeof v === 'string') return choiceLabel(v);
-  const p = v as { source?: string; name?: string; recipe?: { method?: string; extend?: string } } | undefined;
-  if (p?.source === 'recipe' && p.recipe) return choiceLabel(p.recipe.extend && p.recipe.extend !== 'none' ? `${p.recipe.method}:${p.recipe.extend}` : String(p.recipe.method));
-  if (p?.source === 'image') return p.name ? `“${p.name}”` : 'image';
-  return 'default';
-}
-
-/** A one-line description of a recipe, e.g. "FBP, hann, band limit 5 lp/cm, 576 px × 1 mm". */
-export function recipeSummary(recipe: Record<string, unknown>): string {
-  const parts = describeRecipeFields()
-    .filter((f) => (f.appliesTo ? f.appliesTo(recipe) : true) && (recipe[f.key] !== undefined || f.kind === 'grid'))
-    .filter((f) => !(f.key === 'extend' && recipe.extend === 'none'))
-    .map((f) => formatValue(f, recipe[f.key]));
-  const v = recipe.volume as { slices?: number; spacing?: number } | undefined;
-  if (v?.slices !== undefined) parts.push(`${v.slices} slices × ${v.spacing} mm`);
-  return parts.join(', ');
 }

@@ -3,7 +3,7 @@
 // be stored with the result and shown in reports.
 import { InputError } from '../errors';
 import { FILTER_WINDOWS, MAX_BAND_LIMIT, type FilterWindow } from '../recon/filter-design';
-import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
+import { RECIPE_EXTENDS, type RecipeExtend } from '../truncation/extend-methods';
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 import { validateKnowledge, type Knowledge } from '../knowledge';
 
@@ -27,8 +27,8 @@ export interface Recipe extends IterativeFields {
   filter: FilterWindow;
   /** Where the filter window ends: line pairs per cm at the isocentre; absent: the full band (Nyquist). */
   bandLimit?: number;
-  /** Detector extension before filtering (truncation correction); absent means 'none'. */
-  extend?: ExtendMethod;
+  /** Detector extension before filtering (truncation correction); absent means 'none'. 'outline' needs knowledge.outline. */
+  extend?: RecipeExtend;
   /** Slices of a cone-beam volume; absent: chosen from the scan (volume-grid.ts). */
   volume?: SliceChoice;
   /** What the user knows beyond the data (known regions, outline); absent: nothing. */
@@ -66,10 +66,10 @@ export function validateRecipe(input: unknown): Recipe {
     out.bandLimit = r.bandLimit;
   }
   if (r.extend !== undefined) {
-    if (!(EXTEND_METHODS as readonly string[]).includes(r.extend as string)) {
-      throw new InputError(`recipe extend: got "${r.extend}", expected one of ${EXTEND_METHODS.join(', ')}`);
+    if (!(RECIPE_EXTENDS as readonly string[]).includes(r.extend as string)) {
+      throw new InputError(`recipe extend: got "${r.extend}", expected one of ${RECIPE_EXTENDS.join(', ')}`);
     }
-    out.extend = r.extend as ExtendMethod;
+    out.extend = r.extend as RecipeExtend;
   }
   if (r.grid !== undefined) {
     const g = r.grid;
@@ -81,6 +81,7 @@ export function validateRecipe(input: unknown): Recipe {
   if (r.volume !== undefined) out.volume = validateSliceChoice(r.volume);
   const knowledge = validateKnowledge(r.knowledge);
   if (knowledge) out.knowledge = knowledge;
+  if (out.extend === 'outline' && !knowledge?.outline) throw new InputError('recipe extend: got "outline", which extends from the object\'s outline', { field: 'extend', remedy: { cli: 'give the outline too (--outline)', page: 'give the outline too (draw it or give an ellipse in the knowledge panel)' } });
   Object.assign(out, validateIterativeFields(r, validateRecipe));
   return out;
 }

@@ -9,16 +9,18 @@ import { planConeExtension } from '../truncation/cone-extension';
 import { coneRowExtension } from '../truncation/row-extension';
 import { axialSlice, sliceAt } from '../volume';
 import type { Recipe } from './recipe';
-import type { RecipeResult } from './run';
+import type { RecipeInputs, RecipeResult } from './run';
+import { runConeKnowledge } from './run-cone-knowledge';
 import { chooseVolumeGrid } from './volume-grid';
 
 /** Reconstructs a cone-beam scan: FDK for method fbp. The result's image is the central slice. */
-export async function runConeRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}): Promise<RecipeResult> {
+export async function runConeRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}): Promise<RecipeResult> {
   if (recipe.method !== 'fbp') {
     throw new InputError(`recipe method: got "${recipe.method}", expected fbp (FDK) for a cone-beam scan`);
   }
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
+  if (recipe.knowledge || extend === 'outline') return runConeKnowledge(ws, scan, recipe, hooks, inputs);
   // The edge analysis takes the first 5% of the progress bar, FDK the rest.
   const plan = extend !== 'none'
     ? await planConeExtension(scan, extend, { signal: hooks.signal, onProgress: (f, stage) => hooks.onProgress?.(0.05 * f, stage) })

@@ -12,6 +12,7 @@ import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
 import type { Recipe } from './recipe';
 import { runConeRecipe } from './run-cone';
+import { runKnowledgeFbp } from './run-knowledge';
 import { isIterativeMethod } from '../iterative/options';
 import { runIterative, type RecipeInputs } from '../iterative/run';
 
@@ -35,8 +36,10 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
   const g = scan.geometry;
-  if (g.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks);
+  if (g.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks, inputs);
   const is2d = g.detector.rows === 1;
+  if (is2d && (recipe.knowledge || extend === 'outline')) return runKnowledgeFbp(ws, scan, recipe, hooks, inputs);
+  if (recipe.knowledge || extend === 'outline') throw new InputError(`recipe knowledge: known regions and outlines work on 2D and cone-beam scans; this ${g.kind} scan has ${g.detector.rows} rows`);
   if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on single-row and cone-beam scans)`);
   const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));

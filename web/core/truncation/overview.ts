@@ -6,6 +6,7 @@
 import type { Scan } from '../scan';
 import { centralRow, rowScan } from './central-row';
 import { detectTruncation, type TruncationReport } from './detect';
+import { recommendCorrection, type CorrectionAdvice } from './recommend';
 
 export interface TruncationOverview {
   /** The analysed detector row of a cone-beam scan; undefined for 2D scans. */
@@ -13,12 +14,14 @@ export interface TruncationOverview {
   /** The analysed sinogram, [view][channel] (the scan's own data for a 2D scan). */
   sinogram: Float32Array;
   report: TruncationReport;
+  /** The correction the report suggests (the page's recipe default, inspect's last line). */
+  advice: CorrectionAdvice;
 }
 
 /** The analysed row (cone beam) and its truncation report. */
 export function truncationOverview(scan: Scan): TruncationOverview {
-  if (scan.geometry.kind !== 'cone') return { row: undefined, sinogram: scan.data, report: detectTruncation(scan) };
-  const row = centralRow(scan.geometry);
-  const rows = rowScan(scan, row);
-  return { row, sinogram: rows.data, report: detectTruncation(rows) };
+  const row = scan.geometry.kind === 'cone' ? centralRow(scan.geometry) : undefined;
+  const analysed = row === undefined ? scan : rowScan(scan, row);
+  const report = detectTruncation(analysed);
+  return { row, sinogram: analysed.data, report, advice: recommendCorrection(report.summary) };
 }
