@@ -107,6 +107,15 @@ describe('the start of the iterative methods on a truncated scan', () => {
     expect((r.report as { start: { recipe: { filter: string; bandLimit: number } } }).start.recipe).toMatchObject({ method: 'fbp', extend: 'water', filter: 'hann', bandLimit: 3 });
   });
 
+  it('a grid that does not hold the object is reported (the rays cross what it cannot place)', async () => {
+    // The phantom with its arms reaches 280 mm from the isocentre; the data's edges estimate it
+    // at about 250 mm. A 64 x 4 mm grid reaches 128 mm.
+    const small = await runRecipe(ws, scan, validateRecipe({ method: 'sart', grid: { size: 64, pixel: 4 }, iterations: 1 }));
+    expect(small.warnings.join(' ')).toMatch(/the grid reaches only 128 mm from its centre, but the object reaches about 2\d\d mm \(estimated from the data\).*give a grid/);
+    const covering = await runRecipe(ws, scan, validateRecipe({ method: 'sart', grid: GRID, iterations: 1 }));
+    expect(covering.warnings.join(' ')).not.toMatch(/the grid reaches only/);
+  });
+
   it('the prior-guided method is no worse inside than its default prior, and does not fit that prior beyond the detector', async () => {
     const r = await runRecipe(ws, scan, validateRecipe({ method: 'prior', grid: GRID, iterations: 10 }));
     expect(rmse(r.image.data, truth, inside)).toBeLessThanOrEqual(fbpWater);

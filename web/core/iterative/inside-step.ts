@@ -14,7 +14,7 @@
 // structure the data determine is still corrected, more slowly.
 import type { Scan } from '../scan';
 import { centralRowScan } from '../truncation/central-row';
-import { analyseEdges } from '../truncation/edges';
+import { analyseEdges, objectRadius } from '../truncation/edges';
 import { discMask, type ReconGrid } from './space';
 
 /**
@@ -24,10 +24,17 @@ import { discMask, type ReconGrid } from './space';
  */
 export const INSIDE_STEP = 0.02;
 
-/** True when some view is cut off at a detector edge (the central row of a cone-beam scan). */
-export function scanIsTruncated(scan: Scan): boolean {
+/** Whether a scan is truncated, and how far the object reaches (both from its edges: truncation/edges.ts). */
+export interface ScanTruncation {
+  /** Some view is cut off at a detector edge (the central row of a cone-beam scan). */
+  truncated: boolean;
+  /** Radius about the isocentre of a circle holding the estimated object, mm. */
+  objectRadiusMm: number;
+}
+
+export function scanTruncation(scan: Scan): ScanTruncation {
   const a = analyseEdges(scan.geometry.kind === 'cone' ? centralRowScan(scan) : scan);
-  return a.truncated.some((side) => side.some((t) => t === 1));
+  return { truncated: a.truncated.some((side) => side.some((t) => t === 1)), objectRadiusMm: objectRadius(a) };
 }
 
 /** Relative step per pixel: `inside` within the field of view (every slice of a volume), 1 elsewhere. */
