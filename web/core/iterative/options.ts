@@ -141,7 +141,9 @@ export function validateIterativeFields(
     out.start = r.start as StartImage;
   }
   if (out.support === 'outline' && !(isObject(r.knowledge) && r.knowledge.outline !== undefined)) {
-    throw new InputError('recipe support: got "outline", but the recipe knows no outline (give the object\'s outline as knowledge, e.g. --outline ellipse:cx,cy,a,b)');
+    throw new InputError('recipe support: got "outline", but the recipe knows no outline', {
+      field: 'support', remedy: { cli: 'give the outline of the object as knowledge (--outline ellipse:cx,cy,a,b)', page: 'give the outline of the object (draw it or give an ellipse in the knowledge panel)' },
+    });
   }
   if (isIterativeMethod(r.method as string) && r.extend !== undefined && r.extend !== 'none') {
     throw new InputError(`recipe extend: got "${r.extend}" for method "${r.method}", expected "none" (detector extension belongs to fbp; for method "prior", to the prior's recipe)`);
