@@ -34,6 +34,8 @@ import { runPriorCheckJob } from './prior-check-job';
 import { calibrateScan } from './calibrate-job';
 import { isLibraryRequest, libraryOp } from './library-ops';
 import { exportDicomJob } from './export-dicom-job';
+import { changeKnowledge } from './knowledge-ops';
+import { loadMasks, maskNamesOf } from '../store/knowledge';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -48,6 +50,8 @@ export interface CoordinatorOptions {
 export class Coordinator {
   private workspace?: Promise<Workspace>;
   private turn: Promise<unknown> = Promise.resolve();
+  /** Knowledge changes take turns among themselves (never waiting for a run). */
+  private knowledgeTurn: Promise<unknown> = Promise.resolve();
   private readonly store: UseStore;
 
   constructor(private readonly options: CoordinatorOptions) {
@@ -88,6 +92,8 @@ export class Coordinator {
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
         return (await this.exclusive(async () => runNetworkPriorJob({ ws: await this.openWorkspace(), store: this.store, open: this.modelOpener() }, r.request, hooks))) as AppReplies[K];
+      case 'knowledge':
+        return (await this.knowledgeChange(() => changeKnowledge(this.store, r.request, hooks))) as AppReplies[K];
       case 'export-dicom':
         return (await exportDicomJob(this.store, r.resultId, hooks)) as AppReplies[K];
       case 'prior-check':
@@ -172,7 +178,7 @@ export class Coordinator {
     const recipe = validateRecipe(recipeInput);
     const { meta: scanMeta, scan, reference } = await loadScan(scanId, this.store);
     throwIfCancelled(hooks.signal);
-    const inputs = await this.recipeInputs(recipe, scan.geometry.kind === 'cone');
+    const inputs = { ...(await this.recipeInputs(recipe, scan.geometry.kind === 'cone')), masks: await loadMasks(this.store, scanMeta, maskNamesOf(recipe.knowledge)) };
     const ws = await this.openWorkspace();
     // The reconstruction takes the first 95% of the bar; checks and storing the rest.
     const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) }, inputs);
@@ -320,6 +326,13 @@ export class Coordinator {
       if (this.workspace === ws) this.workspace = undefined;
     });
     return ws;
+  }
+
+  /** Runs a knowledge change after the earlier ones (each re-reads the scan it changes). */
+  private knowledgeChange<T>(job: () => Promise<T>): Promise<T> {
+    const next = this.knowledgeTurn.then(job, job);
+    this.knowledgeTurn = next.catch(() => undefined);
+    return next;
   }
 
   /** Runs `job` after every earlier exclusive job has finished (runs share one workspace). */

@@ -11,6 +11,8 @@ import { DEFAULT_RECIPE, METHODS } from './recipe';
 export interface FieldChoice {
   value: string;
   label: string;
+  /** When present, the choice is offered only for recipes where this returns true (e.g. it needs knowledge the recipe has). */
+  when?: (recipe: Record<string, unknown>) => boolean;
 }
 
 interface FieldBase {
@@ -92,6 +94,7 @@ const startsFromImage = (r: Record<string, unknown>) => isIterative(r) && !isPri
 /** FBP, sart, tv and wtv unless they start from an empty image (the FBP they start from), and the prior-guided method's default prior (the same FBP). */
 const filtersSomething = (r: Record<string, unknown>) =>
   isFbp(r) || (startsFromImage(r) && r.start !== 'zero') || (isPrior(r) && (r.prior === undefined || r.prior === ''));
+const hasOutline = (r: Record<string, unknown>) => !!(r.knowledge as { outline?: unknown } | undefined)?.outline;
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
@@ -106,8 +109,9 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'Spatial frequency where the filter window ends, in line pairs per cm at the isocentre (empty: the detector\'s Nyquist frequency).',
   },
   {
-    key: 'extend', label: 'Truncation correction', kind: 'choice', choices: choicesOf(EXTEND_METHODS, { cosine: 'Cosine taper of the edge value' }), appliesTo: isFbp,
-    help: 'How the cut-off projections are continued beyond the detector edges before filtering, as far as the object is estimated to reach.',
+    key: 'extend', label: 'Truncation correction', kind: 'choice', appliesTo: isFbp,
+    choices: [...choicesOf(EXTEND_METHODS, { cosine: 'Cosine taper of the edge value' }), { value: 'outline', label: 'Outline filled with water', when: hasOutline }],
+    help: 'How the cut-off projections are continued beyond the detector edges before filtering, as far as the object is estimated to reach (or, with the outline as knowledge, as far as the outline).',
   },
   { key: 'grid', label: 'Image grid', kind: 'grid', help: 'Pixels along each side and pixel size; automatic covers the measured field of view and the estimated object.' },
   {

@@ -3,9 +3,11 @@
 // plane (centralRow, which follows a vertical detector offset), analysed as a fan-beam scan.
 // Left/right truncation is the same in every row of a circular scan to within the cone's
 // divergence.
+import { suggestedOutline, type SuggestedOutline } from '../completion/suggested-outline';
 import type { Scan } from '../scan';
 import { centralRow, rowScan } from './central-row';
 import { detectTruncation, type TruncationReport } from './detect';
+import { analyseEdges } from './edges';
 import { recommendCorrection, type CorrectionAdvice } from './recommend';
 
 export interface TruncationOverview {
@@ -16,6 +18,8 @@ export interface TruncationOverview {
   report: TruncationReport;
   /** The correction the report suggests (the page's recipe default, inspect's last line). */
   advice: CorrectionAdvice;
+  /** The outline the views' edges suggest (the analysed row of a cone-beam scan), for the user to compare and correct; null when the views do not go round the object. */
+  suggestedOutline: SuggestedOutline | null;
 }
 
 /** The analysed row (cone beam) and its truncation report. */
@@ -23,5 +27,5 @@ export function truncationOverview(scan: Scan): TruncationOverview {
   const row = scan.geometry.kind === 'cone' ? centralRow(scan.geometry) : undefined;
   const analysed = row === undefined ? scan : rowScan(scan, row);
   const report = detectTruncation(analysed);
-  return { row, sinogram: analysed.data, report, advice: recommendCorrection(report.summary) };
+  return { row, sinogram: analysed.data, report, advice: recommendCorrection(report.summary), suggestedOutline: suggestedOutline(analyseEdges(analysed)) };
 }
