@@ -75,8 +75,11 @@ describe('rimfill reconstruct, iterative methods', () => {
     [['--method', 'prior', '--prior', 'prior'], /option --prior: got "prior", expected an image file or folder that exists, or a method \(fbp, sart, tv, wtv\)/],
     [['--method', 'prior', '--prior', 'banana'], /option --prior: got "banana"/],
     [['--method', 'prior', '--model', 'net.onnx'], /needs --prior image.nrrd, or --model net.onnx with --model-info net.json \(both\)/],
-    [['--method', 'tv', '--support', 'oval'], /option --support: got "oval", expected disk, grid or a mask image/],
+    [['--method', 'tv', '--support', 'oval'], /option --support: got "oval", expected disk, grid, outline or a mask image/],
     [['--method', 'wtv', '--tv-eps', '0'], /option --tv-eps: got 0/],
+    [['--method', 'sart', '--start', 'middle'], /option --start: got "middle", expected one of auto, fbp, zero/],
+    [['--method', 'tv', '--inside-step', '2'], /option --inside-step: got 2, expected a number in \(0, 1\]/],
+    [['--method', 'tv', '--support', 'outline'], /option --support: got "outline", but the recipe knows no outline/],
   ])('%j: a clear error and nothing written', async (args, message) => {
     const out = f(`bad-${args.join('-')}.nrrd`);
     await expect(reconstruct([f('scan.nrrd'), ...args, '--size', '48', '--pixel', '4', '--workers', '1', '--out', out])).rejects.toThrow(message);

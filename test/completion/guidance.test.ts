@@ -1,7 +1,9 @@
 // The guidance table and the accuracy bench's rows: every row is a valid recipe for every kind
 // of knowledge it lists, and a truncation report is classed as the README's table describes it.
 import { describe, expect, it } from 'vitest';
-import { ACCURACY_ROWS, knowledgeFor, KNOWLEDGE_KINDS, WRONG_KNOWLEDGE } from '../../web/cli/bench/accuracy/rows';
+import { ACCURACY_ROWS, knowledgeFor, KNOWLEDGE_KINDS, selectRows, WRONG_KNOWLEDGE } from '../../web/cli/bench/accuracy/rows';
+import { bench } from '../../web/cli/commands/bench';
+import { InputError } from '../../web/core/errors';
 import type { SevereCase } from '../../web/cli/bench/accuracy/cases';
 import { classifyTruncation, GUIDANCE, guidanceFor } from '../../web/core/knowledge/guidance';
 import { validateRecipe } from '../../web/core/recipe/recipe';
@@ -26,6 +28,17 @@ describe('the accuracy bench rows', () => {
     expect(knowledgeFor(c, 'outline: hull')!.outline!.shape).toBe('polygon');
     expect(WRONG_KNOWLEDGE.length).toBeGreaterThan(2);
   });
+
+  it('the iterative methods have rows with every kind of knowledge, and --rows picks rows by words of their labels', async () => {
+    for (const method of ['sart', 'tv', 'wtv', 'prior']) {
+      const kinds = ACCURACY_ROWS.filter((r) => (r.recipe(undefined) as { method: string }).method === method).flatMap((r) => r.kinds);
+      expect(new Set(kinds), method).toEqual(new Set(KNOWLEDGE_KINDS));
+    }
+    expect(selectRows().length).toBe(ACCURACY_ROWS.length);
+    expect(selectRows(['os-sart', 'PRIOR']).map((r) => r.label)).toEqual(['OS-SART', 'prior-guided, default prior']);
+    await expect(bench(['--rows', 'nothing-like-this'])).rejects.toThrow(InputError);
+    await expect(bench(['--rows', 'nothing-like-this'])).rejects.toThrow(/option --rows: got "nothing-like-this", expected words from the accuracy rows' labels: FBP, no extension;/);
+  });
 });
 
 describe('the guidance table', () => {
@@ -48,6 +61,10 @@ describe('the guidance table', () => {
       for (const r of rows) expect(r.measured).toMatch(/\d+ \[\d+\]/);
     }
     expect(GUIDANCE.every((r) => r.command.startsWith('--method'))).toBe(true);
+  });
+
+  it('names what TV reached from each choice (the figures of the iterative methods, in the note)', () => {
+    for (const r of GUIDANCE) expect(r.note, `${r.severity} / ${r.knowledge}`).toMatch(/TV from it(, holding the region)?(: | \(--method tv[^)]*\): )\d+/);
   });
 });
 

@@ -14,6 +14,15 @@ describe('recipe fields', () => {
     expect((byKey.filter as ChoiceField).choices.map((c) => c.value)).toEqual([...FILTER_WINDOWS]);
   });
 
+  it('show the filter window and band limit for FBP and for the FBP the iterative methods start from', () => {
+    const byKey = Object.fromEntries(describeRecipeFields().map((f) => [f.key, f]));
+    for (const key of ['filter', 'bandLimit']) {
+      expect(METHODS.filter((method) => byKey[key].appliesTo?.({ method }) ?? true), key).toEqual([...METHODS]);
+      // A prior chosen by the user is made with its own recipe.
+      expect(byKey[key].appliesTo?.({ method: 'prior', prior: 'fbp:water' }), key).toBe(false);
+    }
+  });
+
   it('offer every truncation correction; extending from the outline only to a recipe that knows the outline', () => {
     const extend = describeRecipeFields().find((f) => f.key === 'extend') as ChoiceField;
     expect(extend.choices.map((c) => c.value)).toEqual([...RECIPE_EXTENDS]);
@@ -42,7 +51,10 @@ describe('recipe fields', () => {
     expect(recipeLabel({ method: 'fbp', extend: 'water', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, water cylinder, ramp, 576 px × 1 mm');
     expect(recipeLabel({ method: 'fbp', filter: 'ramp', volume: { slices: 20, spacing: 6 } })).toBe('FBP, no correction, ramp, automatic grid, 20 slices × 6 mm');
     expect(recipeLabel({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('Prior-guided, prior: “earlier scan”, automatic grid');
-    expect(recipeLabel({ method: 'sart', iterations: 5 })).toBe('SART, measured rays only, automatic grid, iterations 5');
+    expect(recipeLabel({ method: 'sart', filter: 'ramp', iterations: 5 })).toBe('SART, from FBP with water cylinder if truncated, ramp, automatic grid, iterations 5');
+    expect(recipeLabel({ method: 'tv', filter: 'ramp', start: 'zero' })).toBe('TV, from an empty image, automatic grid');
+    expect(methodAndCorrection({ method: 'wtv', start: 'fbp' })).toBe('reweighted TV, from FBP with water cylinder');
+    expect(methodAndCorrection({ method: 'sart', knowledge: { outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } })).toBe('SART, from FBP with outline filled with water, outline');
     expect(methodAndCorrection({ method: 'fbp', extend: 'cosine' })).toBe('FBP, cosine taper');
     expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
     expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');
@@ -52,7 +64,7 @@ describe('recipe fields', () => {
     expect(methodAndCorrection({ method: 'fbp', extend: 'outline', knowledge: { outline } })).toBe('FBP, outline filled with water');
     expect(methodAndCorrection({ method: 'fbp', extend: 'water', knowledge: { outline } })).toBe('FBP, water cylinder, outline');
     expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
-      .toBe('SART, measured rays only, 1 known region + outline');
+      .toBe('SART, from FBP with water cylinder, 1 known region + outline');
     expect(recipeLabel({ method: 'dbp', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }] } })).toBe('DBP, field of view only, 1 known region, automatic grid');
   });
 });

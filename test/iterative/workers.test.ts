@@ -40,6 +40,11 @@ const recipes: Array<[string, Recipe]> = [
   ['sart', validateRecipe({ method: 'sart', grid: { size: 96, pixel: 1.4 }, iterations: 4, subsets: 10 })],
   ['wtv', validateRecipe({ method: 'wtv', grid: { size: 96, pixel: 1.4 }, iterations: 6, subsets: 10 })],
   ['prior', validateRecipe({ method: 'prior', prior: { source: 'image' }, grid: { size: 96, pixel: 1.4 }, iterations: 6, subsets: 10 })],
+  // A known region (its mean is a dot product run as one part) and its smooth field over the FOV.
+  ['wtv with a known region', validateRecipe({
+    method: 'wtv', grid: { size: 96, pixel: 1.4 }, iterations: 4, subsets: 10,
+    knowledge: { known: [{ shape: 'circle', x: 0, y: -12, r: 8, hu: 20 }] },
+  })],
 ];
 
 describe('iterative methods on workers', () => {

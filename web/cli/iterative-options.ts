@@ -18,26 +18,38 @@ import { hasPriorOptions, PRIOR_OPTIONS, resolvePrior } from './prior-source';
 export const ITERATIVE_FIELD_OPTIONS: Record<string, string> = {
   iterations: 'iterations', subsets: 'subsets', relaxation: 'relaxation', tolerance: 'tolerance',
   'tv-strength': 'tvStrength', 'tv-steps': 'tvSteps', 'tv-eps': 'tvEps', 'prior-weight': 'priorWeight', support: 'support',
+  start: 'start', 'inside-step': 'insideStep',
 };
 
 export const ITERATIVE_OPTIONS: Record<string, OptionType> = {
   iterations: 'int', subsets: 'int', relaxation: 'number', tolerance: 'number', 'tv-strength': 'number', 'tv-steps': 'int',
-  'tv-eps': 'number', 'prior-weight': 'number', support: 'string', 'allow-negative': 'flag', ...PRIOR_OPTIONS,
+  'tv-eps': 'number', 'prior-weight': 'number', support: 'string', 'allow-negative': 'flag', start: 'string', 'inside-step': 'number',
+  ...PRIOR_OPTIONS,
 };
 
 export const ITERATIVE_HELP = `    iterative methods (${ITERATIVE_METHODS.join(', ')}):
     [--iterations K] [--subsets N] [--relaxation 0..2] [--tolerance fraction]
-    [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support disk|grid|mask.nrrd] [--allow-negative]
+    [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support disk|grid|outline|mask.nrrd]
+    [--allow-negative] [--start auto|fbp|zero] [--inside-step 0..1]
     [--prior FILE|METHOD | --model net.onnx --model-info net.json] [--prior-weight 0..1]
   sart: ordered-subsets SART on the measured channels; tv, wtv: plus (reweighted) total
-  variation (ASD-POCS). prior: the measured channels are fitted to the data, the channels beyond
-  the detector to the projections of the prior, starting from it, with reweighted TV. The prior
-  is an image of the same object (any grid and image format; for a cone-beam scan a volume,
-  resampled), a method whose result on this scan is the prior (e.g. fbp with --extend mirror),
-  or a user's network (--model, 2D scans); without one, FBP (FDK) of the scan with water-
-  cylinder extension. Default grid: the prior's extent (2D image), else as for fbp. --json
-  reports residual and TV per iteration, the residual per view, and how far the result departs
-  from the prior inside and outside the FOV.`;
+  variation (ASD-POCS). They start from the best FBP for what is known (water cylinder
+  extension, corrected by --known regions and the --outline) when the scan is truncated or
+  something is known, else from zero (--start). On a truncated scan whose start came from the
+  scan itself, steps inside the measured field of view are 0.02 of those outside (--inside-step):
+  the data cannot tell the inside's smooth part, so the start's is kept and the correction goes
+  where the start is least reliable. Known regions are held at their values during the
+  iterations; --support outline keeps everything outside the outline at zero.
+  prior: the measured channels are fitted to the data, the channels beyond the detector to the
+  projections of the prior joined to the measured edges, starting from it, with reweighted TV.
+  The prior is an image of the same object (any grid and image format; for a cone-beam scan a
+  volume, resampled), a method whose result on this scan is the prior (e.g. fbp with --extend
+  mirror), or a user's network (--model, 2D scans); without one, the best FBP (FDK) for what is
+  known. A prior made from the scan itself is not fitted beyond the detector unless
+  --prior-weight is given. Default grid: the prior's extent (2D image), else as for fbp. --json
+  reports residual and TV per iteration, the residual per view, how far the result departs from
+  the prior inside and outside the FOV, and each known region's value and the measured-data
+  residual at the start and at the end.`;
 
 /**
  * Sets the iterative fields of `raw` from the options (InputError for options the method does
@@ -55,7 +67,7 @@ export function addIterativeFields(raw: Record<string, unknown>, a: ParsedArgs):
   }
   if (typeof raw.support === 'string') {
     if (/\.nrrd$/i.test(raw.support)) raw.support = 'image';
-    else if (raw.support !== 'disk' && raw.support !== 'grid') throw new InputError(`option --support: got "${raw.support}", expected disk, grid or a mask image (.nrrd)`);
+    else if (!['disk', 'grid', 'outline'].includes(raw.support)) throw new InputError(`option --support: got "${raw.support}", expected disk, grid, outline or a mask image (.nrrd)`);
   }
   if (o['allow-negative']) {
     if (!iterative) throw only('allow-negative');

@@ -1,6 +1,7 @@
 // The bench sections `rimfill bench` runs, each in a fresh process so that its peak memory is
 // its own. A new section: a module returning a SectionResult, and one entry here.
 import { availableParallelism } from 'node:os';
+import { selectRows } from './accuracy/rows';
 import { accuracyLines, benchAccuracy } from './accuracy/run';
 import { benchExtension, extensionBenchLines } from './extension-overhead';
 import { benchFdk } from './fdk-bench';
@@ -11,11 +12,17 @@ import { benchNetwork, networkBenchText } from './network';
 import type { SectionResult } from './section';
 import { openWorkspace } from '../engine-node';
 
+/** Options of `rimfill bench` that some sections read. */
+export interface SectionOptions {
+  /** accuracy: words selecting rows by label (accuracy/rows.ts selectRows). */
+  rows?: string[];
+}
+
 export interface BenchSection {
   name: string;
   /** One line for --help. */
   about: string;
-  run(repeat: number, cliPath: string): Promise<SectionResult>;
+  run(repeat: number, cliPath: string, options?: SectionOptions): Promise<SectionResult>;
 }
 
 export const SECTIONS: BenchSection[] = [
@@ -37,10 +44,10 @@ export const SECTIONS: BenchSection[] = [
   },
   {
     name: 'accuracy', about: 'severe truncation (FOV radius 0.42 of the body half-width, C-arm fan): inside/outside-FOV RMSE, residual and time of each method with each kind of knowledge, on real CT slices and the thorax phantom, with noisy, short-scan, off-centre and wrong-knowledge variants',
-    run: async () => {
+    run: async (_r, _cli, options) => {
       const ws = await openWorkspace(Math.min(2, availableParallelism()));
       try {
-        const r = await benchAccuracy(ws, (line) => process.stderr.write(`${line}\n`));
+        const r = await benchAccuracy(ws, (line) => process.stderr.write(`${line}\n`), selectRows(options?.rows));
         return { json: r, lines: accuracyLines(r) };
       } finally {
         ws.dispose();

@@ -5,12 +5,15 @@ import { spawnSync } from 'node:child_process';
 import { InputError } from '../../core/errors';
 import { parseArgs } from '../args';
 import { measureRead } from '../bench/formats';
+import { ACCURACY_ROWS, selectRows } from '../bench/accuracy/rows';
 import { SECTIONS } from '../bench/sections';
 import type { CommandResult } from './types';
 
-export const benchHelp = `rimfill bench [--only ${SECTIONS.map((s) => s.name).join(',')}] [--repeat K] [--json]
+export const benchHelp = `rimfill bench [--only ${SECTIONS.map((s) => s.name).join(',')}] [--repeat K] [--rows words] [--json]
   Times the engine's parts; each section runs in its own process and reports its peak memory.
-${SECTIONS.map((s) => `    ${s.name.padEnd(10)} ${s.about}`).join('\n')}`;
+${SECTIONS.map((s) => `    ${s.name.padEnd(10)} ${s.about}`).join('\n')}
+  --rows words   accuracy: only the rows whose method label contains one of these comma-separated
+                 words (e.g. --rows sart,tv; default every row)`;
 
 interface SectionOutput {
   name: string;
@@ -27,9 +30,20 @@ function selected(only: unknown): typeof SECTIONS {
   return SECTIONS.filter((s) => names.includes(s.name));
 }
 
+/** The words of --rows, checked against the accuracy rows (undefined: every row). */
+function rowWords(v: unknown): string[] | undefined {
+  if (v === undefined) return undefined;
+  const words = String(v).split(',').map((w) => w.trim()).filter(Boolean);
+  if (!words.length || selectRows(words).length === 0) {
+    throw new InputError(`option --rows: got "${String(v)}", expected words from the accuracy rows' labels: ${ACCURACY_ROWS.map((r) => r.label).join('; ')}`);
+  }
+  return words;
+}
+
 export async function bench(argv: string[]): Promise<CommandResult> {
-  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string', section: 'string', read: 'string' }, 0);
+  const a = parseArgs(argv, { repeat: 'int', json: 'flag', only: 'string', section: 'string', read: 'string', rows: 'string' }, 0);
   const repeat = Math.max(1, (a.options.repeat as number | undefined) ?? 3);
+  const rows = rowWords(a.options.rows);
   const cliPath = process.argv[1];
   if (typeof a.options.read === 'string') {
     // One measured read, run in a child process by the formats section.
@@ -40,7 +54,7 @@ export async function bench(argv: string[]): Promise<CommandResult> {
     // One section in this (fresh) process: the parent collects its JSON.
     const s = SECTIONS.find((x) => x.name === a.options.section);
     if (!s) throw new InputError(`option --section: got "${a.options.section}"`);
-    const r = await s.run(repeat, cliPath);
+    const r = await s.run(repeat, cliPath, { rows });
     const out: SectionOutput = { name: s.name, json: r.json, lines: r.lines, peakRssMb: process.resourceUsage().maxRSS / 1024 };
     return { json: out, text: JSON.stringify(out) };
   }
@@ -48,7 +62,7 @@ export async function bench(argv: string[]): Promise<CommandResult> {
   const text: string[] = [];
   for (const s of selected(a.options.only)) {
     if (!a.options.json) process.stderr.write(`bench: ${s.name}...\n`);
-    const child = spawnSync(process.execPath, [cliPath, 'bench', '--section', s.name, '--repeat', String(repeat), '--json'], {
+    const child = spawnSync(process.execPath, [cliPath, 'bench', '--section', s.name, '--repeat', String(repeat), ...(rows ? ['--rows', rows.join(',')] : []), '--json'], {
       encoding: 'utf8', maxBuffer: 64 * 2 ** 20,
     });
     if (child.status !== 0) throw new Error(`bench section ${s.name} failed: ${child.stderr.trim().split('\n').slice(-3).join(' ')}`);

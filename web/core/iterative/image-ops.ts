@@ -73,6 +73,15 @@ export class BandOps {
     return Math.sqrt(s);
   }
 
+  /** dst *= factor, elementwise. */
+  multiply(dst: Buf, factor: Buf): Promise<number[]> {
+    return this.run((from, to) => ({
+      kernel: 'multiplyArrays',
+      args: [at(dst, from), at(dst, from), at(factor, from), to - from],
+      writes: [{ buf: dst, start: from, length: to - from }],
+    }));
+  }
+
   /** dst += s * src. */
   addScaled(dst: Buf, src: Buf, s: number): Promise<number[]> {
     return this.run((from, to) => ({

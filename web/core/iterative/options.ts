@@ -1,14 +1,27 @@
 // Recipe fields of the iterative methods (sart, tv, wtv, prior): their types, defaults and
 // validation. recipe.ts calls validateIterativeFields; the solver reads resolved options.
 import { InputError } from '../errors';
+import { validateKnowledge } from '../knowledge';
+import { fbpFieldsForKnowledge, type FbpChoices } from '../recipe/best-fbp';
 import type { Recipe } from '../recipe/recipe';
 
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
 export type IterativeMethod = (typeof ITERATIVE_METHODS)[number];
 
-export const SUPPORTS = ['disk', 'grid', 'image'] as const;
-/** disk: the disk inscribed in the grid (a cylinder for volumes); grid: every pixel; image: a mask image given with the run. */
+export const SUPPORTS = ['disk', 'grid', 'image', 'outline'] as const;
+/**
+ * disk: the disk inscribed in the grid (a cylinder for volumes); grid: every pixel; image: a mask
+ * image given with the run; outline: inside the object's outline given as the recipe's knowledge.
+ */
 export type SupportShape = (typeof SUPPORTS)[number];
+
+export const STARTS = ['auto', 'fbp', 'zero'] as const;
+/**
+ * The image sart, tv and wtv start from: fbp, the best FBP correction for the recipe's knowledge
+ * (start.ts); zero, an empty image; auto (also when absent): fbp when the scan is truncated or
+ * the recipe knows something, else zero.
+ */
+export type StartImage = (typeof STARTS)[number];
 
 /**
  * Where the prior of --method prior comes from: an image handed to runRecipe (a file, or the
@@ -39,12 +52,20 @@ export interface IterativeFields {
   nonNegative?: boolean;
   /** Region reconstructed (pixels outside stay 0). */
   support?: SupportShape;
+  /** sart, tv, wtv: the start image. */
+  start?: StartImage;
+  /**
+   * Step inside the measured field of view relative to outside, (0, 1]. Absent: small
+   * (inside-step.ts) when the start was made from the scan's own data and the scan is truncated,
+   * else 1.
+   */
+  insideStep?: number;
   /** --method prior: where the prior image comes from. */
   prior?: PriorSource;
 }
 
-/** Resolved options the solver runs with. */
-export type IterativeOptions = Required<Omit<IterativeFields, 'prior'>>;
+/** Resolved options the solver runs with (start, insideStep: as asked; run.ts resolves absent ones). */
+export type IterativeOptions = Required<Omit<IterativeFields, 'prior' | 'insideStep' | 'start'>> & Pick<IterativeFields, 'insideStep' | 'start'>;
 
 /**
  * Defaults. N_grad = 20 and the step-control constants follow Sidky & Pan 2008 (from memory,
@@ -104,6 +125,7 @@ export function validateIterativeFields(
     tvSteps: wholeNumber(r, 'tvSteps', 1, 1000),
     tvEps: number(r, 'tvEps', (x) => x > 0 && x < 1, 'a small positive number in 1/mm (e.g. 0.0005)'),
     priorWeight: number(r, 'priorWeight', (x) => x > 0 && x <= 1, 'a number in (0, 1]'),
+    insideStep: number(r, 'insideStep', (x) => x > 0 && x <= 1, 'a number in (0, 1]'),
   };
   if (r.nonNegative !== undefined) {
     if (typeof r.nonNegative !== 'boolean') throw new InputError(`recipe nonNegative: got ${JSON.stringify(r.nonNegative)}, expected true or false`);
@@ -113,17 +135,27 @@ export function validateIterativeFields(
     if (!(SUPPORTS as readonly unknown[]).includes(r.support)) throw new InputError(`recipe support: got ${JSON.stringify(r.support)}, expected one of ${SUPPORTS.join(', ')}`);
     out.support = r.support as SupportShape;
   }
+  if (r.start !== undefined) {
+    if (!(STARTS as readonly unknown[]).includes(r.start)) throw new InputError(`recipe start: got ${JSON.stringify(r.start)}, expected one of ${STARTS.join(', ')}`);
+    if (r.method === 'prior') throw new InputError('recipe start: method "prior" starts from its prior; give the prior instead');
+    out.start = r.start as StartImage;
+  }
+  if (out.support === 'outline' && !(isObject(r.knowledge) && r.knowledge.outline !== undefined)) {
+    throw new InputError('recipe support: got "outline", but the recipe knows no outline', {
+      field: 'support', remedy: { cli: 'give the outline of the object as knowledge (--outline ellipse:cx,cy,a,b)', page: 'give the outline of the object (draw it or give an ellipse in the knowledge panel)' },
+    });
+  }
   if (isIterativeMethod(r.method as string) && r.extend !== undefined && r.extend !== 'none') {
     throw new InputError(`recipe extend: got "${r.extend}" for method "${r.method}", expected "none" (detector extension belongs to fbp; for method "prior", to the prior's recipe)`);
   }
   if (r.prior !== undefined) out.prior = validatePrior(r.prior, validateNested);
-  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(DEFAULT_PRIOR_RECIPE) };
+  else if (r.method === 'prior') out.prior = { source: 'recipe', recipe: validateNested(defaultPriorFields(r)) };
   if (r.method !== 'prior' && out.prior) throw new InputError(`recipe prior: given for method "${r.method}", only method "prior" uses one`);
   for (const k of Object.keys(out) as Array<keyof IterativeFields>) if (out[k] === undefined) delete out[k];
   return out;
 }
 
-/** The prior when a recipe names none: FBP of the scan with water-cylinder extrapolation. */
+/** The prior of method "prior" when a recipe names none, in words of a prior choice: FBP with water-cylinder extrapolation (with knowledge: best-fbp.ts). */
 export const DEFAULT_PRIOR_RECIPE = { method: 'fbp', extend: 'water' } as const;
 
 /**
@@ -155,10 +187,19 @@ function validatePrior(p: unknown, validateNested: (raw: unknown) => Recipe): Pr
   return { source: 'recipe', recipe: validateNested(p.recipe) };
 }
 
+/**
+ * The default prior: the best FBP for the recipe's knowledge, with the recipe's filter window and
+ * band limit (the same start as sart, tv and wtv; start.ts).
+ */
+function defaultPriorFields(r: Record<string, unknown>): Record<string, unknown> {
+  const choices = { ...(r.filter !== undefined ? { filter: r.filter } : {}), ...(r.bandLimit !== undefined ? { bandLimit: r.bandLimit } : {}) } as FbpChoices;
+  return fbpFieldsForKnowledge(validateKnowledge(r.knowledge), choices);
+}
+
 /** The options a recipe asks for, defaults filled. */
 export function resolveOptions(method: IterativeMethod, fields: IterativeFields): IterativeOptions {
   const out = { ...ITERATIVE_DEFAULTS, ...(method === 'tv' ? { tvStrength: TV_STRENGTH_PLAIN } : {}) };
-  for (const k of Object.keys(ITERATIVE_DEFAULTS) as Array<keyof IterativeOptions>) {
+  for (const k of [...Object.keys(ITERATIVE_DEFAULTS), 'insideStep', 'start'] as Array<keyof IterativeOptions>) {
     if (fields[k] !== undefined) (out as Record<string, unknown>)[k] = fields[k];
   }
   return out;

@@ -30,6 +30,8 @@ export interface SartInputs {
   measured: [number, number];
   /** Floats the per-subset pixel weights may take (default PIXEL_WEIGHT_BUDGET). */
   pixelWeightBudget?: number;
+  /** Relative step per pixel (default 1 everywhere): scales the pixel weights. */
+  stepScale?: Float32Array;
 }
 
 export class OsSart {
@@ -39,6 +41,8 @@ export class OsSart {
   /** Detector rows per view (1 for 2D scans). */
   readonly rows: number;
   readonly support: Buf;
+  /** support x relative step: the numerator of the pixel weights. */
+  readonly stepScale: Buf;
   readonly target: Buf;
   /** Scratch sinogram: projections, then corrections. */
   readonly corr: Buf;
@@ -61,6 +65,7 @@ export class OsSart {
     const nSino = this.nViews * rows * this.nCh;
     const nPix = gridSize(grid);
     this.support = ws.alloc('support', nPix);
+    this.stepScale = ws.alloc('stepScale', nPix);
     this.back = ws.alloc('back', nPix);
     this.target = ws.alloc('target', nSino);
     this.dataWeight = ws.alloc('dataWeight', nSino);
@@ -78,6 +83,7 @@ export class OsSart {
     const { projector, rows } = await createProjector(ws, inputs.grid, inputs.geometry);
     const s = new OsSart(ws, projector, rows, inputs);
     await ws.write(s.support, inputs.support);
+    await ws.write(s.stepScale, inputs.stepScale ? inputs.support.map((v, i) => v * inputs.stepScale![i]) : inputs.support);
     await ws.write(s.target, inputs.target);
     await ws.write(s.dataWeight, inputs.dataWeight);
     // Row sums A 1 over the support; a ray crossing less than a tenth of a pixel is dropped.
@@ -88,20 +94,30 @@ export class OsSart {
       args: [s.corr, s.dataWeight, s.rayWeight, from, to, minRow],
       writes: [{ buf: s.rayWeight, start: from, length: to - from }],
     }));
-    if (s.pixelWeights.length > 1 || s.subsets === 1) {
-      for (let q = 0; q < s.subsets; q++) {
-        throwIfCancelled(hooks.signal);
-        await s.computePixelWeights(q, s.pixelWeights[q]);
-      }
-    }
+    await s.preparePixelWeights(hooks);
     return s;
+  }
+
+  /** Computes the pixel weights of every subset when they are kept (else each step does). */
+  private async preparePixelWeights(hooks: RunHooks): Promise<void> {
+    if (this.pixelWeights.length === 1 && this.subsets > 1) return;
+    for (let q = 0; q < this.subsets; q++) {
+      throwIfCancelled(hooks.signal);
+      await this.computePixelWeights(q, this.pixelWeights[q]);
+    }
+  }
+
+  /** Changes the relative step per pixel (support x scale); the pixel weights follow. */
+  async setStepScale(scale: Float32Array, hooks: RunHooks = {}): Promise<void> {
+    await this.ws.write(this.stepScale, this.inputs.support.map((v, i) => v * scale[i]));
+    await this.preparePixelWeights(hooks);
   }
 
   get subsets(): number {
     return this.inputs.plan.starts.length - 1;
   }
 
-  /** Pixel weights of subset q: support_j / (A_S^T w)_j. */
+  /** Pixel weights of subset q: support_j step_j / (A_S^T w)_j. */
   private async computePixelWeights(q: number, out: Buf): Promise<void> {
     const { starts } = this.inputs.plan;
     const { dx, dy } = this.inputs.grid;
@@ -109,7 +125,7 @@ export class OsSart {
     const minCol = 1e-3 * Math.min(dx, dy);
     await this.image.run((from, to) => ({
       kernel: 'sartWeights',
-      args: [this.back, this.support, out, from, to, minCol],
+      args: [this.back, this.stepScale, out, from, to, minCol],
       writes: [{ buf: out, start: from, length: to - from }],
     }));
   }

@@ -5,7 +5,7 @@ import { huToMu, type Image2D, type ImageGrid } from '../image';
 import { resampleBilinear, sameGrid } from '../resample';
 import { resampleTrilinear, sameVolumeGrid } from '../resample-volume';
 import type { Volume, VolumeGrid } from '../volume';
-import { discMask, type ReconGrid } from './space';
+import { discMask, isVolumeGrid, type ReconGrid } from './space';
 
 /** Values of a prior below zero, which no material has (noise or artefacts of the prior). */
 export interface NegativeValues {
@@ -57,6 +57,16 @@ export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): PriorOnGrid 
   const g = prior.grid;
   const data = resampleTrilinear(prior.data, g, grid);
   return { data, warnings: [`prior resampled (trilinear) from ${g.nx} x ${g.ny} x ${g.nz} voxels onto the reconstruction volume`], negative: negativeValues(data, 'voxels') };
+}
+
+/**
+ * The start image (or volume) of an iterative run on its grid: the prior of the prior-guided
+ * method, or the FBP start of sart, tv and wtv (`what` names it in messages).
+ */
+export function startOnGrid(start: { image: Image2D; volume?: Volume; recipe?: { method: string } }, grid: ReconGrid, support: Uint8Array, what: 'prior' | 'start'): PriorOnGrid {
+  if (!isVolumeGrid(grid)) return priorOnGrid(start.image, grid, support);
+  if (!start.volume) throw new InputError(`${what}: the recipe "${start.recipe?.method ?? 'image'}" gave no volume for this cone-beam scan`);
+  return priorVolumeOnGrid(start.volume, grid);
 }
 
 /** Negative values above this (1/mm, about -0.05 HU) are float rounding of zero (resampling, HU conversion), not worth a note. */

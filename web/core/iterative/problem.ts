@@ -4,7 +4,7 @@
 import { InputError } from '../errors';
 import type { Geometry } from '../geometry/types';
 import { viewCount } from '../geometry/types';
-import type { Image2D } from '../image';
+import type { Image2D, ImageGrid } from '../image';
 import { resampleBilinear, sameGrid } from '../resample';
 import type { Scan } from '../scan';
 import { extendToCover, maskRadius, type Extension } from './extension';
@@ -34,9 +34,14 @@ export interface Problem {
 
 /**
  * Pixels of the support: the disk inscribed in the grid (in every slice of a volume: the
- * cylinder), the whole grid, or where a mask image (any grid, resampled bilinearly) exceeds 0.5.
+ * cylinder), the whole grid, where a mask image (any grid, resampled bilinearly) exceeds 0.5, or
+ * inside the object's outline (`outline`: the recipe's outline drawn on the grid, knowledge/raster.ts).
  */
-export function supportMask(grid: ReconGrid, shape: SupportShape, mask?: Image2D): Uint8Array {
+export function supportMask(grid: ReconGrid, shape: SupportShape, mask?: Image2D, outline?: Uint8Array): Uint8Array {
+  if (shape === 'outline') {
+    if (!outline) throw new InputError('recipe support: "outline" needs the object\'s outline as knowledge, but the recipe gives none');
+    return outline;
+  }
   if (shape === 'image') {
     if (!mask) throw new InputError('recipe support: "image" needs a mask image, but none was given');
     if (isVolumeGrid(grid)) throw new InputError('recipe support: "image" (a mask image) works on 2D scans; a volume takes "disk" (a cylinder) or "grid"');
@@ -49,6 +54,15 @@ export function supportMask(grid: ReconGrid, shape: SupportShape, mask?: Image2D
   if (shape === 'grid') return new Uint8Array(gridSize(grid)).fill(1);
   const r = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
   return discMask({ ...grid, cx: 0, cy: 0 }, r);
+}
+
+/** The pixels of a plane that are in the support in any slice. */
+function supportFootprint(plane: ImageGrid, support: Uint8Array): Uint8Array {
+  const n = plane.nx * plane.ny;
+  if (support.length === n) return support;
+  const out = new Uint8Array(n);
+  for (let q = 0; q < support.length; q++) if (support[q]) out[q % n] = 1;
+  return out;
 }
 
 /** Throws InputError when the scan holds values that are not finite numbers. */
@@ -69,9 +83,8 @@ export function setUpProblem(scan: Scan, grid: ReconGrid, support: Uint8Array, s
   const nViews = viewCount(g);
   const nMeasured = g.detector.channels;
   const rows = g.detector.rows;
-  // The support is the same in every slice (supportMask): its first slice sets the reach.
   const plane = planeGrid(grid);
-  const extension = unmeasuredWeight > 0 ? extendToCover(g, maskRadius(plane, support.subarray(0, plane.nx * plane.ny))) : { left: 0, right: 0, geometry: g };
+  const extension = unmeasuredWeight > 0 ? extendToCover(g, maskRadius(plane, supportFootprint(plane, support))) : { left: 0, right: 0, geometry: g };
   const plan = planSubsets(nViews, subsets);
   const nCh = extension.geometry.detector.channels;
   const k0 = extension.left;

@@ -1,6 +1,9 @@
 // The report of an iterative run (RecipeResult.report, printed by --json): convergence history,
 // measured-data residual per view, and for the prior-guided method how far the result departs
 // from the prior (image inside / outside the FOV, and projections on the unmeasured channels).
+import type { PlacedRegion } from '../knowledge';
+import type { Recipe } from '../recipe/recipe';
+import { regionMean } from './known-regions';
 import { departureFromPrior, type NegativeValues } from './prior';
 import { perViewSquares, type Problem } from './problem';
 import type { IterativeMethod, IterativeOptions } from './options';
@@ -23,6 +26,15 @@ export interface ReportInputs {
   priorNegative?: NegativeValues;
   fov: number;
   muWater?: number;
+  /** The start image on the grid (absent: zeros). */
+  start?: Float32Array;
+  /** The recipe that made the start (prior or FBP start), and its report. */
+  startRecipe?: Recipe;
+  startReport?: Record<string, unknown>;
+  /** Known regions on the grid. */
+  knowledge?: PlacedRegion[];
+  /** The knowledge used, in words (regions and outline). */
+  knowledgeUsed?: string[];
 }
 
 /** JSON-ready report; per-view figures in the scan's view order. */
@@ -55,6 +67,8 @@ export function iterativeReport(r: ReportInputs): Record<string, unknown> {
       perViewRms: unpermute(perView.map((s) => Math.sqrt(s / (rows * nMeasured))), plan.permutation),
     },
   };
+  report.start = startSummary(r);
+  if (r.knowledgeUsed?.length) report.knowledge = knowledgeSummary(r, Math.sqrt(r.startResidual / measuredRays), Math.sqrt(finalResidual / measuredRays), measuredNorm(problem) / Math.sqrt(measuredRays));
   if (r.prior) {
     const unmeasured = nCh - nMeasured;
     const away = perViewSquares(finalSino, target, nCh, k0, k1, true, rows);
@@ -65,4 +79,41 @@ export function iterativeReport(r: ReportInputs): Record<string, unknown> {
     };
   }
   return report;
+}
+
+/** Where the run started: zeros, the prior, or the best FBP for the knowledge (its recipe and what it reported about the knowledge). */
+function startSummary(r: ReportInputs): Record<string, unknown> {
+  if (!r.startRecipe && !r.start) return { from: 'zero' };
+  const from = r.method === 'prior' ? 'prior' : 'fbp';
+  const own = r.startReport?.knowledge;
+  return { from, ...(r.startRecipe ? { recipe: r.startRecipe } : {}), ...(own ? { knowledge: own } : {}) };
+}
+
+/** RMS of the measured data over the measured rays (line-integral units), for relative residuals. */
+function measuredNorm(problem: Problem): number {
+  const { nCh, target } = problem;
+  const [k0, k1] = problem.measured;
+  let s = 0;
+  for (let line = 0; line < target.length / nCh; line++) for (let k = k0; k < k1; k++) s += target[line * nCh + k] ** 2;
+  return Math.sqrt(s);
+}
+
+/**
+ * The knowledge as the iterations used it: each known region's value in the start image
+ * ("before") and in the result ("after"), and the measured-data residual (RMS over measured rays,
+ * and relative to the data's RMS) of both.
+ */
+function knowledgeSummary(r: ReportInputs, startRms: number, finalRms: number, dataRms: number): Record<string, unknown> {
+  const hu = (mu: number) => (r.muWater ? (1000 * (mu - r.muWater)) / r.muWater : NaN);
+  const regions = (r.knowledge ?? []).map((k) => ({
+    name: k.name, knownHu: k.region.hu,
+    beforeHu: r.start ? hu(regionMean(r.start, k.coverage)) : NaN,
+    afterHu: hu(regionMean(r.image, k.coverage)),
+  }));
+  const residual = (rms: number) => ({ rms, relative: dataRms > 0 ? rms / dataRms : 0 });
+  return {
+    used: r.knowledgeUsed,
+    regions,
+    residual: { before: residual(startRms), after: residual(finalRms) },
+  };
 }

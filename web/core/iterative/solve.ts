@@ -10,6 +10,7 @@ import type { Buf, Workspace } from '../engine/workspace';
 import type { RunHooks } from '../run-hooks';
 import type { IterativeMethod, IterativeOptions } from './options';
 import type { OsSart } from './os-sart';
+import type { KnownRegions } from './known-regions';
 import { TvDescent } from './tv-descent';
 import { gridBands, gridSize, type ReconGrid } from './space';
 
@@ -42,6 +43,10 @@ export interface SolveContext {
   /** Squared measured residual of the start image, and how many measured rays there are. */
   startResidual: number;
   measuredRays: number;
+  /** The TV steps take the data steps' relative step per pixel (a smaller step inside the field of view). */
+  scaledSteps?: boolean;
+  /** Known regions, held at their values after every data sweep and TV phase. */
+  regions?: KnownRegions;
 }
 
 /** Runs the iterations of `method` on ctx.x. Progress per subset step; cancellable between steps. */
@@ -49,7 +54,7 @@ export async function solve(ctx: SolveContext, method: IterativeMethod, o: Itera
   const { ws, grid, sart, x } = ctx;
   const useTv = method !== 'sart';
   const weighted = method === 'wtv' || method === 'prior';
-  const tv = await TvDescent.create(ws, grid, sart.support);
+  const tv = await TvDescent.create(ws, grid, sart.support, ctx.scaledSteps ? sart.stepScale : undefined);
   const rows = gridBands(ws, grid);
   const before = useTv ? ws.alloc('dataStepStart', gridSize(grid)) : undefined;
   const floor = o.nonNegative ? 0 : -3.4e38;
@@ -65,11 +70,13 @@ export async function solve(ctx: SolveContext, method: IterativeMethod, o: Itera
     if (before) await rows.copy(before, x);
     const onStep = (q: number) => hooks.onProgress?.((k + (q + 1) / sart.subsets) / o.iterations, label);
     const res2 = await sart.sweep(x, lambda, floor, hooks, onStep);
+    await ctx.regions?.apply(x);
     const relative = start > 0 ? Math.sqrt(res2) / start : 0;
     if (useTv) {
       const dp = await rows.distance(x, before!);
       if (k === 0) tvStep = o.tvStrength * (await rows.norm(x));
       const dg = await tv.descend(x, o.tvSteps, tvStep, hooks.signal);
+      await ctx.regions?.apply(x);
       history.tvStep.push(tvStep);
       if (dg > ASD_POCS.rMax * dp && relative > o.tolerance) tvStep *= ASD_POCS.alphaRed;
       lambda *= ASD_POCS.betaRed;

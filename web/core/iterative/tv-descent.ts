@@ -44,9 +44,13 @@ export class TvDescent {
     return { kernel, args: [...before, ...this.sizes(), a, b, ...after] };
   }
 
+  /** Relative step per pixel (absent: 1 in the support). */
+  private scale?: Buf;
+
   /** Lays out the buffers; weights start at 1 (plain TV). */
-  static async create(ws: Workspace, grid: ReconGrid, support: Buf): Promise<TvDescent> {
+  static async create(ws: Workspace, grid: ReconGrid, support: Buf, scale?: Buf): Promise<TvDescent> {
     const t = new TvDescent(ws, grid, support);
+    t.scale = scale;
     await ws.write(t.weights, new Float32Array(gridSize(grid)).fill(1));
     return t;
   }
@@ -87,6 +91,7 @@ export class TvDescent {
       throwIfCancelled(signal);
       const norm = await this.gradient(x);
       if (!(norm > 0)) break;
+      if (this.scale) await this.rows.multiply(this.grad, this.scale);
       await this.rows.addScaled(x, this.grad, -stepLength / norm);
     }
     return this.rows.distance(x, this.start);

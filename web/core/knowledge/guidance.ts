@@ -1,7 +1,7 @@
 // Which method to choose for a scan's truncation and what the user knows, with the figures the
 // accuracy bench measured (`rimfill bench --only accuracy`; README "Choosing a method" shows the
-// same table). The page shows it beside the truncation report; methods whose rows are not yet
-// measured say so rather than guess.
+// same table), as data for the page's truncation report; methods whose rows are not yet measured
+// say so rather than guess.
 import type { TruncationSummary } from '../truncation/detect';
 
 /** How much of the object the scan cuts off: FOV radius against the estimated object's half-width. */
@@ -41,31 +41,34 @@ export function classifyTruncation(s: TruncationSummary): TruncationClass {
 }
 
 /**
- * The guidance table (FBP and DBP rows; the iterative rows join when their knowledge is measured).
- * Figures: inside-FOV RMSE (HU) from the accuracy bench at 360 views (the demo scan: 720) on the
- * default grid, each case's floor (FBP of the complete data) in brackets. Where two rows share a
- * cell, their notes say on which cases each is ahead.
+ * The guidance table: for each class and what the user knows, the FBP choice (with, in its note,
+ * what TV (ASD-POCS, 20 iterations, starting from that choice: the best iterative row on most
+ * cases) and the other iterative methods reached on the same data) and the DBP rows (README
+ * "Choosing a method" has every figure). Figures: inside-FOV RMSE (HU) from the accuracy bench
+ * at 360 views (the demo scan: 720) on the default grid, each case's floor (FBP of the complete
+ * data) in brackets. Where two rows share a cell, their notes say on which cases each is ahead.
+ * The iterative methods take 10 to 100 s where FBP takes about 1 s on the bench's 512 x 512 grid.
  */
 export const GUIDANCE: GuidanceRow[] = [
   {
     severity: 'severe', knowledge: 'nothing', choose: 'FBP with water cylinder extension', command: '--method fbp --extend water',
     measured: 'NEMA thorax 151 [14], head 27 [9], thorax phantom 109 [44]',
-    note: 'the smooth offset inside the field is not decided by the data (OS-SART, 20 iterations: 129, 369, 166): give a known region if you have one',
+    note: 'the smooth offset inside the field is not decided by the data: give a known region if you have one. TV from it (--method tv): 147, 26, 101, a few HU better (OS-SART 148, 28, 104; reweighted TV and prior-guided 147, 26, 102)',
   },
   {
     severity: 'severe', knowledge: 'a known region', choose: 'FBP fitted to the region', command: '--method fbp --known x,y,r:HU',
     measured: 'NEMA thorax 29 [14], head 32 [9], thorax phantom 53 [44]',
-    note: 'a value 20 HU off gives 32 to 41, 25 to 51, 52 to 60; with the field off the body\'s centre 38, 38, 96 (water: 96, 39, 81); two or more regions do better',
+    note: 'a value 20 HU off gives 32 to 41, 25 to 51, 52 to 60; with the field off the body\'s centre 38, 38, 96 (water: 96, 39, 81); two or more regions do better. TV from it, holding the region (--method tv --known ...): 27, 25, 47 (OS-SART 28, 27, 53; reweighted TV and prior-guided 27, 25, 49)',
   },
   {
     severity: 'severe', knowledge: 'the outline', choose: 'FBP extended from the outline', command: '--method fbp --outline ellipse:cx,cy,a,b',
     measured: 'NEMA thorax 33 [14], head 95 [9], thorax phantom 78 [44]',
-    note: 'the outline is filled with water: a skull is denser (head), arms left outside the ellipse are missed (thorax phantom); check the report\'s outline spread',
+    note: 'the outline is filled with water: a skull is denser (head), arms left outside the ellipse are missed (thorax phantom); check the report\'s outline spread. TV from it: 32, 90, 73; reweighted TV with the outline as the support (--support outline) 23, 95, 79, only where the outline holds everything in the beam',
   },
   {
     severity: 'severe', knowledge: 'a known region and the outline', choose: 'FBP fitted to the region', command: '--method fbp --known x,y,r:HU --outline ...',
     measured: 'NEMA thorax 29 [14], head 32 [9], thorax phantom 53 [44]',
-    note: 'the region decides; the outline is checked against the field and reported',
+    note: 'the region decides; the outline is checked against the field and reported. TV from it, holding the region: 27, 25, 47; reweighted TV with the outline as the support 24, 27, 46',
   },
   {
     severity: 'severe', knowledge: 'a known region', choose: 'DBP through the region (field of view only)', command: '--method dbp --known x,y,r:HU',
@@ -79,19 +82,19 @@ export const GUIDANCE: GuidanceRow[] = [
   },
   {
     severity: 'moderate', knowledge: 'nothing', choose: 'FBP with water cylinder extension', command: '--method fbp --extend water',
-    measured: 'demo scan 105 [21]', note: 'OS-SART, 20 iterations: 273',
+    measured: 'demo scan 105 [21]', note: 'TV from it: 102 (OS-SART 103, reweighted TV and prior-guided 102)',
   },
   {
     severity: 'moderate', knowledge: 'a known region', choose: 'FBP fitted to the region', command: '--method fbp --known x,y,r:HU',
-    measured: 'demo scan 49 [21]',
+    measured: 'demo scan 49 [21]', note: 'TV from it, holding the region: 48 (OS-SART 50, reweighted TV and prior-guided 48)',
   },
   {
     severity: 'moderate', knowledge: 'the outline', choose: 'FBP extended from the outline', command: '--method fbp --outline ellipse:cx,cy,a,b',
-    measured: 'demo scan 55 [21]',
+    measured: 'demo scan 55 [21]', note: 'TV from it: 53 (OS-SART 55, reweighted TV 53; with the outline as the support 51, though the data disagree with it: the arms lie outside)',
   },
   {
     severity: 'moderate', knowledge: 'a known region and the outline', choose: 'FBP fitted to the region', command: '--method fbp --known x,y,r:HU --outline ...',
-    measured: 'demo scan 49 [21]',
+    measured: 'demo scan 49 [21]', note: 'TV from it, holding the region: 48; reweighted TV with the outline as the support 45, though the data disagree with it',
   },
   {
     severity: 'moderate', knowledge: 'a known region', choose: 'DBP through the region (field of view only)', command: '--method dbp --known x,y,r:HU',

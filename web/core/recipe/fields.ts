@@ -5,7 +5,7 @@
 // (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
 import { FILTER_WINDOWS, MAX_BAND_LIMIT } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
-import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, type IterativeOptions } from '../iterative/options';
+import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, STARTS, type IterativeOptions } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
 
 export interface FieldChoice {
@@ -59,6 +59,7 @@ const CHOICE_LABELS: Record<string, string> = {
   'fbp:mirror': 'FBP with mirror extension',
   'fbp:edge': 'FBP with edge extension',
   'fbp:cosine': 'FBP with cosine taper extension',
+  'fbp:outline': 'FBP with the outline filled with water',
   sart: 'SART (algebraic, iterative)',
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
@@ -90,17 +91,21 @@ const isIterative = (r: Record<string, unknown>) => isIterativeMethod(String(r.m
 const usesTv = (r: Record<string, unknown>) => r.method === 'tv' || r.method === 'wtv' || r.method === 'prior';
 const isReweighted = (r: Record<string, unknown>) => r.method === 'wtv' || r.method === 'prior';
 const isPrior = (r: Record<string, unknown>) => r.method === 'prior';
+const startsFromImage = (r: Record<string, unknown>) => isIterative(r) && !isPrior(r);
+/** FBP, sart, tv and wtv unless they start from an empty image (the FBP they start from), and the prior-guided method's default prior (the same FBP). */
+const filtersSomething = (r: Record<string, unknown>) =>
+  isFbp(r) || (startsFromImage(r) && r.start !== 'zero') || (isPrior(r) && (r.prior === undefined || r.prior === ''));
 const hasOutline = (r: Record<string, unknown>) => !!(r.knowledge as { outline?: unknown } | undefined)?.outline;
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
   { key: 'method', label: 'Method', kind: 'choice', choices: choicesOf(METHODS), help: 'How the image is computed from the projections.' },
   {
-    key: 'filter', label: 'Filter window', kind: 'choice', choices: choicesOf(FILTER_WINDOWS), appliesTo: isFbp,
-    help: 'Apodization of the ramp filter, sharpest first: smoother windows trade resolution for less noise.',
+    key: 'filter', label: 'Filter window', kind: 'choice', choices: choicesOf(FILTER_WINDOWS), appliesTo: filtersSomething,
+    help: 'Apodization of the ramp filter, sharpest first: smoother windows trade resolution for less noise (iterative methods: of the FBP they start from).',
   },
   {
-    key: 'bandLimit', label: 'Band limit', kind: 'number', min: 0.5, max: MAX_BAND_LIMIT, step: 0.5, unit: 'lp/cm', appliesTo: isFbp,
+    key: 'bandLimit', label: 'Band limit', kind: 'number', min: 0.5, max: MAX_BAND_LIMIT, step: 0.5, unit: 'lp/cm', appliesTo: filtersSomething,
     defaultOf: () => 'full band',
     help: 'Spatial frequency where the filter window ends, in line pairs per cm at the isocentre (empty: the detector\'s Nyquist frequency).',
   },
@@ -140,16 +145,26 @@ export const RECIPE_FIELDS: RecipeField[] = [
   },
   {
     key: 'priorWeight', label: 'Prior weight', kind: 'number', min: 0.05, max: 1, step: 0.05, appliesTo: isPrior,
-    help: 'Weight of the prior\'s projections beyond the detector, relative to the measured data.',
+    help: 'Weight of the prior\'s projections beyond the detector, relative to the measured data (default 1 for an image; a prior made from the scan itself is not fitted there).',
   },
   {
     key: 'prior', label: 'Prior', kind: 'choice', appliesTo: isPrior,
     choices: choicesOf(EXTEND_METHODS.filter((e) => e !== 'none').map((e) => `fbp:${e}`).concat('fbp')),
-    help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view.',
+    help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view (empty: the best FBP for what is known, with the filter window above).',
   },
   {
-    key: 'support', label: 'Support', kind: 'choice', choices: choicesOf(['disk', 'grid'], { disk: 'Disk inscribed in the grid', grid: 'Whole grid' }), appliesTo: isIterative,
-    help: 'Pixels reconstructed; outside they stay zero.',
+    key: 'support', label: 'Support', kind: 'choice', appliesTo: isIterative,
+    choices: choicesOf(['disk', 'grid', 'outline'], { disk: 'Disk inscribed in the grid', grid: 'Whole grid', outline: 'Inside the outline (knowledge)' }),
+    help: 'Pixels reconstructed; outside they stay zero. The outline needs the object\'s outline as knowledge.',
+  },
+  {
+    key: 'start', label: 'Start image', kind: 'choice', appliesTo: startsFromImage,
+    choices: choicesOf(STARTS, { auto: 'Automatic (FBP when truncated or something is known)', fbp: 'Best FBP for what is known', zero: 'Empty image' }),
+    help: 'The image the iterations start from: the data cannot tell a smooth field inside the field of view of a truncated scan, so the start settles it.',
+  },
+  {
+    key: 'insideStep', label: 'Step inside the field', kind: 'number', min: 0.005, max: 1, step: 0.005, appliesTo: isIterative,
+    help: 'Step inside the measured field of view relative to outside; small keeps the start there (default 0.02 for a start made from the scan on a truncated scan, else 1).',
   },
 ];
 

@@ -4,6 +4,7 @@
 // "FBP, water cylinder, ramp, 576 px × 1 mm".
 import { DEFAULT_PRIOR_RECIPE, isIterativeMethod } from '../iterative/options';
 import { knowledgePhrase, type Knowledge } from '../knowledge';
+import { fbpFieldsForKnowledge } from './best-fbp';
 import { EXTEND_WORDS, type ExtendMethod } from '../truncation/extend-methods';
 import { choiceLabel, describeRecipeFields, type RecipeField } from './fields';
 
@@ -29,18 +30,27 @@ function priorWords(v: unknown): string {
 
 /**
  * How the recipe deals with truncation, in words: FBP's detector extension ("no correction",
- * "water cylinder", ...), the prior of the prior-guided method, for the other iterative
- * methods that they fit the measured rays only, and for DBP that it reconstructs the field of
- * view only.
+ * "water cylinder", ...), the prior of the prior-guided method, or what sart, tv and wtv start
+ * from (iterative/start.ts: the best FBP for the knowledge, on a truncated scan by default),
+ * and for DBP that it reconstructs the field of view only.
  */
 export function correctionWords(recipe: RecipeLike): string {
   const m = String(recipe.method);
   if (m === 'fbp' && recipe.extend === 'outline') return 'outline filled with water';
   if (m === 'fbp') return EXTEND_WORDS[(recipe.extend ?? 'none') as ExtendMethod] ?? String(recipe.extend);
   if (m === 'prior') return `prior: ${priorWords(recipe.prior)}`;
-  if (isIterativeMethod(m)) return 'measured rays only';
+  if (isIterativeMethod(m)) return startWords(recipe);
   if (m === 'dbp') return 'field of view only';
   return '';
+}
+
+/** "from FBP with water cylinder" (and "if truncated" when the start is automatic and nothing is known), or "from an empty image". */
+function startWords(recipe: RecipeLike): string {
+  const start = recipe.start ?? 'auto';
+  if (start === 'zero') return 'from an empty image';
+  const knowledge = recipe.knowledge as Knowledge | undefined;
+  const words = `from FBP with ${correctionWords(fbpFieldsForKnowledge(knowledge))}`;
+  return start === 'auto' && !knowledge ? `${words} if truncated` : words;
 }
 
 /** "FBP, water cylinder": the method and its correction, and what it knows beyond the data (the CLI's short label). */
@@ -65,7 +75,7 @@ function formatValue(f: RecipeField, v: unknown): string {
 export function recipeLabel(recipe: RecipeLike): string {
   const parts = [methodAndCorrection(recipe)];
   for (const f of describeRecipeFields()) {
-    if (f.key === 'method' || f.key === 'extend' || f.key === 'prior') continue;
+    if (f.key === 'method' || f.key === 'extend' || f.key === 'prior' || f.key === 'start') continue;
     if (f.appliesTo && !f.appliesTo(recipe)) continue;
     if (recipe[f.key] === undefined && f.kind !== 'grid') continue;
     parts.push(formatValue(f, recipe[f.key]));

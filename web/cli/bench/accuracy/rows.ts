@@ -28,14 +28,31 @@ export interface AccuracyRow {
 /** Iterations of the iterative rows: the bench's `iterative` section's count. */
 const ITERATIONS = 20;
 
+/** An iterative method with its defaults (it starts from the best FBP for the knowledge) and `fields`. */
+const iterative = (method: string, fields: Record<string, unknown> = {}) => (k: Knowledge | undefined) =>
+  ({ method, iterations: ITERATIONS, ...fields, ...(k ? { knowledge: k } : {}) });
+
+const ALL_KINDS = ['none', 'region', 'outline', 'both'] as const;
+
 export const ACCURACY_ROWS: AccuracyRow[] = [
   { label: 'FBP, no extension', recipe: () => ({ method: 'fbp' }), kinds: ['none'] },
   { label: 'FBP + water cylinder', recipe: () => ({ method: 'fbp', extend: 'water' }), kinds: ['none'], robustness: true },
   { label: 'FBP, best for the knowledge', recipe: (k) => fbpRecipeForKnowledge(k), kinds: ['region', 'outline', 'both'], robustness: true },
-  { label: 'OS-SART', recipe: () => ({ method: 'sart', iterations: ITERATIONS }), kinds: ['none'] },
+  { label: 'OS-SART', recipe: iterative('sart'), kinds: ALL_KINDS },
+  { label: 'TV (ASD-POCS)', recipe: iterative('tv'), kinds: ALL_KINDS },
+  { label: 'reweighted TV', recipe: iterative('wtv'), kinds: ALL_KINDS },
+  { label: 'prior-guided, default prior', recipe: iterative('prior'), kinds: ALL_KINDS },
+  { label: 'reweighted TV, outline as support', recipe: iterative('wtv', { support: 'outline' }), kinds: ['outline', 'both'] },
   // DBP needs a known region on a truncated scan (an outline alone is refused); it reconstructs the field of view only.
   { label: 'DBP', recipe: (k) => ({ method: 'dbp', knowledge: k }), kinds: ['region', 'both'], robustness: true },
 ];
+
+/** The rows whose label contains one of `words` (case-insensitive); all rows without words. */
+export function selectRows(words?: string[]): AccuracyRow[] {
+  if (!words?.length) return ACCURACY_ROWS;
+  const lower = words.map((w) => w.toLowerCase());
+  return ACCURACY_ROWS.filter((r) => lower.some((w) => r.label.toLowerCase().includes(w)));
+}
 
 /** The knowledge of a kind for a case (its known disc and the outline a user would draw). */
 export function knowledgeFor(c: SevereCase, kind: KnowledgeKind | WrongKnowledge): Knowledge | undefined {

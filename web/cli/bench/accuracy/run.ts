@@ -12,7 +12,7 @@ import { runRecipe } from '../../../core/recipe/run';
 import { chooseGrid } from '../../../core/recipe/grid';
 import { addPhotonNoise } from '../../../core/simulate/noise';
 import { completeGeometry, demoCase, realSliceCase, thoraxCase, type CaseOptions, type SevereCase } from './cases';
-import { ACCURACY_ROWS, knowledgeFor, WRONG_KNOWLEDGE, type AccuracyRow, type KnowledgeKind, type WrongKnowledge } from './rows';
+import { knowledgeFor, selectRows, WRONG_KNOWLEDGE, type AccuracyRow, type KnowledgeKind, type WrongKnowledge } from './rows';
 
 export interface AccuracyFigure {
   case: string;
@@ -95,21 +95,25 @@ async function runRows(ws: Workspace, c: SevereCase, v: Variant, rows: AccuracyR
   return out;
 }
 
-/** Runs the bench; `progress` receives one line per run. */
-export async function benchAccuracy(ws: Workspace, progress: (line: string) => void = () => {}): Promise<{ cases: CaseSummary[]; figures: AccuracyFigure[] }> {
+/**
+ * Runs the bench (`rows`: the rows to run, default all; a variant none of them runs on is left
+ * out); `progress` receives one line per run.
+ */
+export async function benchAccuracy(ws: Workspace, progress: (line: string) => void = () => {}, rows: AccuracyRow[] = selectRows()): Promise<{ cases: CaseSummary[]; figures: AccuracyFigure[] }> {
   const cases: CaseSummary[] = [];
   const figures: AccuracyFigure[] = [];
-  const robust = ACCURACY_ROWS.filter((r) => r.robustness);
+  const robust = rows.filter((r) => r.robustness);
   for (const { make, ownGeometry } of CASES) {
     for (const v of [{ name: 'as built', options: {} } as Variant, ...VARIANTS]) {
       if (ownGeometry && v.options.arcDeg) continue;
+      if (v.name !== 'as built' && robust.length === 0) continue;
       const c = await make(ws, v.options);
       const g = c.scan.geometry;
       const angles = g.anglesDeg && !Array.isArray(g.anglesDeg) ? g.anglesDeg : { step: 1, count: 360 };
       cases.push({ case: c.name, variant: v.name, about: c.about, fovRadiusMm: c.fovRadius, bodyHalfWidthMm: c.bodyHalfWidth, views: angles.count, arcDeg: angles.step * angles.count });
       figures.push(await floor(ws, c, v));
       if (v.name === 'as built') {
-        figures.push(...await runRows(ws, c, v, ACCURACY_ROWS, (row) => row.kinds, progress));
+        figures.push(...await runRows(ws, c, v, rows, (row) => row.kinds, progress));
         // Wrong knowledge: the rows that take knowledge, each with the wrong kinds that apply.
         figures.push(...await runRows(ws, c, { ...v, name: 'wrong knowledge' }, robust.filter((r) => r.kinds.some((k) => k !== 'none')), (row) =>
           WRONG_KNOWLEDGE.filter((w) => row.kinds.includes(w.startsWith('region') ? 'region' : 'outline')), progress));
