@@ -6,6 +6,7 @@ import { benchFdk } from './fdk-bench';
 import { benchFormats, formatFiguresText } from './formats';
 import { benchIterative, iterativeLines } from './iterative';
 import { benchKernels } from './kernels';
+import { benchNativeFdk } from './native-fdk';
 import { benchNetwork, networkBenchText } from './network';
 import type { SectionResult } from './section';
 
@@ -46,6 +47,10 @@ export const SECTIONS: BenchSection[] = [
       const { text, ...json } = await benchFdk((line) => process.stderr.write(`${line}\n`));
       return { json, lines: text.split('\n') };
     },
+  },
+  {
+    name: 'native', about: 'rimfill reconstruct (FDK 256^3) against a straightforward native C build (FFTW, OpenMP), both on 2 cores',
+    run: (_r, cliPath) => benchNativeFdk(cliPath, (line) => process.stderr.write(`${line}\n`)),
   },
   {
     name: 'formats', about: 'read speed and peak memory for a 200 MB NRRD scan and a 200 MB TIFF stack',

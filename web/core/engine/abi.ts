@@ -19,6 +19,7 @@ export type KernelName =
   | 'backproject2d' | 'atanApprox'
   | 'extendViews'
   | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
+  | 'coneFilterPairs' | 'backprojectConeAxial' | 'columnsToSlab'
   | 'josephForwardCone' | 'josephAdjointCone'
   | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
   | 'tvScale' | 'tvGradient' | 'tvWeights'
