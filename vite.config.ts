@@ -24,11 +24,17 @@ export default defineConfig({
   plugins: [ortWasmEmbedded(), viteSingleFile({ removeViteModuleLoader: true }), contentSecurityPolicy()],
   test: {
     root: '.',
-    include: ['test/**/*.test.ts'],
-    exclude: ['test/browser/**', 'node_modules/**'],
     environment: 'node',
     testTimeout: 120_000,
     hookTimeout: 120_000,
     pool: 'forks',
+    // Test tiers (README "Tests"): fast = `npm test` (Node only), slow = `npm run test:slow`
+    // (end-to-end cases), reference = `npm run test:reference` (Python reference libraries run
+    // live). The browser tests run apart (test/browser/run.mjs).
+    projects: [
+      { extends: true, test: { name: 'fast', include: ['test/**/*.test.ts'], exclude: ['test/**/*.slow.test.ts', 'test/**/*.ref.test.ts', 'test/browser/**', 'node_modules/**'] } },
+      { extends: true, test: { name: 'slow', include: ['test/**/*.slow.test.ts'], exclude: ['test/browser/**', 'node_modules/**'] } },
+      { extends: true, test: { name: 'reference', include: ['test/**/*.ref.test.ts'], exclude: ['test/browser/**', 'node_modules/**'] } },
+    ],
   },
 });

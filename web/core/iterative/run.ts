@@ -3,6 +3,7 @@
 // give an image; cone-beam scans a volume (space.ts), whose central slice is the image.
 import type { Buf, Workspace } from '../engine/workspace';
 import { InputError, throwIfCancelled } from '../errors';
+import type { MaskInputs } from '../knowledge';
 import { coneFovHalfHeight } from '../geometry/cone';
 import { fovRadius } from '../geometry/view-vectors';
 import { squareGrid, type Image2D, type ImageGrid } from '../image';
@@ -29,6 +30,8 @@ export interface RecipeInputs {
   priorVolume?: Volume;
   /** The support mask when the recipe's support is "image": > 0.5 inside (any grid; resampled). */
   supportMask?: Image2D;
+  /** Mask images named by the recipe's knowledge (known regions, outline), by name. */
+  masks?: MaskInputs;
 }
 
 /** What runRecipe returns (the same shape as recipe/run.ts RecipeResult). */

@@ -5,6 +5,7 @@ import { InputError } from '../errors';
 import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
 import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
+import { validateKnowledge, type Knowledge } from '../knowledge';
 
 /** Reconstruction methods available in this build. */
 export const METHODS = ['fbp', ...ITERATIVE_METHODS] as const;
@@ -29,6 +30,8 @@ export interface Recipe extends IterativeFields {
   extend?: ExtendMethod;
   /** Slices of a cone-beam volume; absent: chosen from the scan (volume-grid.ts). */
   volume?: SliceChoice;
+  /** What the user knows beyond the data (known regions, outline); absent: nothing. */
+  knowledge?: Knowledge;
 }
 
 export interface SliceChoice {
@@ -70,6 +73,8 @@ export function validateRecipe(input: unknown): Recipe {
     out.grid = { size: g.size as number, pixel: g.pixel };
   }
   if (r.volume !== undefined) out.volume = validateSliceChoice(r.volume);
+  const knowledge = validateKnowledge(r.knowledge);
+  if (knowledge) out.knowledge = knowledge;
   Object.assign(out, validateIterativeFields(r, validateRecipe));
   return out;
 }
