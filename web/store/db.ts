@@ -50,3 +50,71 @@ export async function keysWithPrefix(prefix: string, store: UseStore): Promise<s
   const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, prefix + '\uffff'))));
   return all.map(String);
 }
+
+/** Reads and writes inside a streamed transaction (streamTransaction). */
+export interface StreamTx {
+  put(key: string, value: unknown): Promise<void>;
+  get(key: string): Promise<unknown>;
+}
+
+/** A key no record uses: the streamed transaction's keep-alive reads it. */
+const KEEP_ALIVE_KEY = '\u0000keep-alive';
+
+/**
+ * Runs `body` inside ONE read-write transaction that stays open while `body` awaits other work
+ * (reading a file, running the engine), so that a long import or a large result is stored all
+ * or nothing: when `body` throws, or the page is closed or reloaded before it ends, nothing is
+ * written. A transaction only accepts requests while one of its own requests completes, so
+ * requests are queued and issued from a chain of cheap reads that also keeps the transaction
+ * from committing early. Await each put before producing the next large value: the backend
+ * then holds at most one in flight. The store is locked for other writers (and for readers of
+ * the same store) until the transaction ends.
+ */
+export async function streamTransaction<T>(store: UseStore, body: (tx: StreamTx) => Promise<T>): Promise<T> {
+  let result: T;
+  try {
+    await store('readwrite', (s) => new Promise<void>((resolve, reject) => {
+      const tx = s.transaction;
+      const queue: Array<() => void> = [];
+      let done = false, failure: unknown;
+      const pump = () => {
+        while (queue.length) queue.shift()!();
+        if (done) return; // no more requests: the transaction commits
+        s.get(KEEP_ALIVE_KEY).onsuccess = pump;
+      };
+      const request = <R>(make: () => IDBRequest<R>) => new Promise<R>((ok, fail) => {
+        if (done) throw new Error('streamed transaction: a request after the body finished');
+        queue.push(() => {
+          try {
+            const r = make();
+            r.onsuccess = () => ok(r.result);
+            r.onerror = () => fail(r.error);
+          } catch (err) {
+            fail(err); // e.g. a value that cannot be stored: the body fails, the transaction aborts
+          }
+        });
+      });
+      tx.oncomplete = () => resolve();
+      tx.onabort = () => reject(failure ?? tx.error ?? new Error('the storage transaction was aborted'));
+      pump();
+      body({
+        put: (key, value) => request(() => s.put(value, key)).then(() => undefined),
+        get: (key) => request(() => s.get(key)),
+      }).then((r) => {
+        result = r;
+        done = true;
+      }, (err) => {
+        failure = err;
+        done = true;
+        try {
+          tx.abort();
+        } catch {
+          // already finished: onabort or oncomplete has settled the promise
+        }
+      });
+    }));
+  } catch (err) {
+    throw await toStorageError(err, store);
+  }
+  return result!;
+}

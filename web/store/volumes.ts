@@ -6,7 +6,7 @@
 import { getMany, type UseStore } from 'idb-keyval';
 import type { Volume, VolumeGrid } from '../core/volume';
 import { keysWithPrefix, pageStore } from './db';
-import { checkRecord, RecordError, SCHEMA_VERSION } from './records';
+import { checkRecord, RecordError, SCHEMA_VERSION, type Schema } from './records';
 
 /** Largest slab, in voxels (16 MiB of float32). */
 export const SLAB_VOXELS = 4 * 2 ** 20;
@@ -27,7 +27,7 @@ export interface StoredVolumeInfo {
 
 /** One slab of slices [k0, k0 + slices) of a volume (mu, 1/mm, x fastest). */
 export interface VolumeSlab {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'volume-slab';
   owner: string;
   index: number;
