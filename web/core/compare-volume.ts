@@ -9,6 +9,7 @@ import { InputError } from './errors';
 import { ssimBorder, ssimMap } from './metrics';
 import { resampleTrilinear, sameVolumeGrid } from './resample-volume';
 import { volumeOrigin, type Volume } from './volume';
+import type { VolumeInfo } from './volume-sink';
 
 export type VolumeRegion = 'volume' | 'object' | 'insideFov' | 'outsideFov';
 
@@ -65,54 +66,79 @@ class Sums {
 
 /** Compares `volume` with `reference` (both mu); the reference is resampled (trilinear) onto the volume's grid when they differ. */
 export function compareVolumes(volume: Volume, reference: Volume, options: VolumeCompareOptions = {}): VolumeComparison {
-  const g = volume.grid;
-  const notes: string[] = [];
-  let bad = 0;
-  for (const v of volume.data) if (!Number.isFinite(v)) bad++;
-  if (bad) throw new InputError(`volume: ${bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
-  const resampled = !sameVolumeGrid(g, reference.grid);
-  const ref = resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
-  if (resampled) notes.push('reference resampled (trilinear) onto the volume grid');
-  const muWater = volume.muWater ?? reference.muWater;
-  const scale = muWater ? 1000 / muWater : 1, offset = muWater ?? 0;
-  const unit = (x: number) => (x - offset) * scale;
-  let lo = Infinity, hi = -Infinity, refMax = 0;
-  for (let i = 0; i < ref.length; i++) {
-    lo = Math.min(lo, ref[i]);
-    hi = Math.max(hi, ref[i]);
-  }
-  refMax = hi;
-  const range = (hi - lo) * scale || 1;
-  const threshold = OBJECT_THRESHOLD * (muWater ?? refMax);
-  const fov = options.fovRadius, fovH = options.fovHalfHeight;
-  if (fov !== undefined && fovH === undefined) notes.push('no FOV half height known: the FOV cylinder spans every slice');
+  const c = new VolumeComparer(volume, reference, options);
+  c.addSlices(0, volume.data);
+  return c.result();
+}
 
-  const { x0, y0, z0 } = volumeOrigin(g);
-  const nxy = g.nx * g.ny, border = ssimBorder();
-  const total = REGIONS.map(() => new Sums());
-  const slices: SliceFigures[] = [];
-  const a = new Float32Array(nxy), b = new Float32Array(nxy);
-  for (let k = 0; k < g.nz; k++) {
+/**
+ * compareVolumes for a volume that arrives slab by slab (whole axial slices, in any order, each
+ * once): the reference is held whole (resampled onto the volume's grid), the volume never.
+ */
+export class VolumeComparer {
+  private readonly ref: Float32Array;
+  private readonly notes: string[] = [];
+  private readonly resampled: boolean;
+  private readonly unit: (x: number) => number;
+  private readonly range: number;
+  private readonly threshold: number;
+  private readonly total = REGIONS.map(() => new Sums());
+  private readonly slices: SliceFigures[] = [];
+  private bad = 0;
+  private readonly muWater?: number;
+
+  constructor(private readonly volume: VolumeInfo, reference: Volume, private readonly options: VolumeCompareOptions = {}) {
+    const g = volume.grid;
+    this.resampled = !sameVolumeGrid(g, reference.grid);
+    this.ref = this.resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
+    if (this.resampled) this.notes.push('reference resampled (trilinear) onto the volume grid');
+    this.muWater = volume.muWater ?? reference.muWater;
+    const scale = this.muWater ? 1000 / this.muWater : 1, offset = this.muWater ?? 0;
+    this.unit = (x: number) => (x - offset) * scale;
+    let lo = Infinity, hi = -Infinity;
+    for (let i = 0; i < this.ref.length; i++) {
+      lo = Math.min(lo, this.ref[i]);
+      hi = Math.max(hi, this.ref[i]);
+    }
+    this.range = (hi - lo) * scale || 1;
+    this.threshold = OBJECT_THRESHOLD * (this.muWater ?? hi);
+    if (options.fovRadius !== undefined && options.fovHalfHeight === undefined) this.notes.push('no FOV half height known: the FOV cylinder spans every slice');
+  }
+
+  /** Adds slices [k0, k0 + slab.length / (nx ny)). */
+  addSlices(k0: number, slab: Float32Array): void {
+    const g = this.volume.grid, nxy = g.nx * g.ny;
+    for (let i = 0; i < slab.length; i++) if (!Number.isFinite(slab[i])) this.bad++;
+    if (this.bad) return;
+    for (let k = k0; k < k0 + slab.length / nxy; k++) this.addSlice(k, slab.subarray((k - k0) * nxy, (k - k0 + 1) * nxy));
+  }
+
+  private addSlice(k: number, slice: Float32Array): void {
+    const g = this.volume.grid, nxy = g.nx * g.ny, border = ssimBorder();
+    const { x0, y0, z0 } = volumeOrigin(g);
+    const fov = this.options.fovRadius, fovH = this.options.fovHalfHeight;
     const z = z0 + k * g.dz;
     const inHeight = fovH === undefined || Math.abs(z) <= fovH;
+    const ref = this.ref.subarray(k * nxy, (k + 1) * nxy);
+    const a = new Float32Array(nxy), b = new Float32Array(nxy);
     for (let i = 0; i < nxy; i++) {
-      a[i] = unit(volume.data[k * nxy + i]);
-      b[i] = unit(ref[k * nxy + i]);
+      a[i] = this.unit(slice[i]);
+      b[i] = this.unit(ref[i]);
     }
-    const map = ssimMap(a, b, g.nx, g.ny, range);
+    const map = ssimMap(a, b, g.nx, g.ny, this.range);
     const here = REGIONS.map(() => new Sums());
     for (let j = 0; j < g.ny; j++) {
       const y = y0 + j * g.dy;
       for (let i = 0; i < g.nx; i++) {
         const at = j * g.nx + i;
-        const object = ref[k * nxy + at] > threshold;
+        const object = ref[at] > this.threshold;
         const inside = fov !== undefined && inHeight && Math.hypot(x0 + i * g.dx, y) <= fov;
         const edge = i < border || j < border || i >= g.nx - border || j >= g.ny - border;
         const member = [true, object, object && inside, object && fov !== undefined && !inside];
         const d = a[at] - b[at];
         for (let r = 0; r < REGIONS.length; r++) {
           if (!member[r]) continue;
-          for (const s of [total[r], here[r]]) {
+          for (const s of [this.total[r], here[r]]) {
             s.add(d);
             if (r > 0 || !edge) {
               s.ssim += map[at];
@@ -122,17 +148,22 @@ export function compareVolumes(volume: Volume, reference: Volume, options: Volum
         }
       }
     }
-    if (options.perSlice) slices.push({ k, z, regions: figuresOf(here, range) });
+    if (this.options.perSlice) this.slices.push({ k, z, regions: figuresOf(here, this.range) });
   }
-  return {
-    unit: muWater ? 'HU' : '1/mm',
-    regions: figuresOf(total, range),
-    resampled,
-    fovRadiusMm: fov ?? null,
-    fovHalfHeightMm: fovH ?? null,
-    ...(options.perSlice ? { slices } : {}),
-    notes,
-  };
+
+  /** The figures; throws InputError when a voxel was not a finite number. */
+  result(): VolumeComparison {
+    if (this.bad) throw new InputError(`volume: ${this.bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
+    return {
+      unit: this.muWater ? 'HU' : '1/mm',
+      regions: figuresOf(this.total, this.range),
+      resampled: this.resampled,
+      fovRadiusMm: this.options.fovRadius ?? null,
+      fovHalfHeightMm: this.options.fovHalfHeight ?? null,
+      ...(this.options.perSlice ? { slices: [...this.slices].sort((p, q) => p.k - q.k) } : {}),
+      notes: this.notes,
+    };
+  }
 }
 
 function figuresOf(sums: Sums[], range: number): Record<VolumeRegion, RegionFigures | null> {

@@ -9,7 +9,7 @@ import { InputError } from '../core/errors';
 import { viewCount, type Geometry } from '../core/geometry/types';
 import type { ProjectionSource } from '../core/projection-source';
 import { viewSize } from '../core/projection-source';
-import { centralRow } from '../core/truncation/central-row';
+import { RowCollector } from '../core/truncation/central-row';
 import { pageStore } from './db';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ProjectionChunk, type ScanData, type ScanMeta, type ScanPreview, type StoredProjections } from './records';
 
@@ -37,30 +37,10 @@ export function chunkRecord(id: string, index: number, v0: number, views: number
   return { schema: SCHEMA_VERSION, kind: 'projection-chunk', owner: id, index, v0, views, data };
 }
 
-/**
- * Collects the preview row (centralRow of the geometry) from chunks of views as they pass, into
- * a views x channels array.
- */
-export class PreviewRow {
-  readonly row: number;
-  readonly data: Float32Array;
-  private readonly nCh: number;
-  private readonly nRows: number;
-
+/** Collects the preview row (the row nearest the orbit plane) from chunks of views as they pass. */
+export class PreviewRow extends RowCollector {
   constructor(g: Geometry) {
-    this.row = g.kind === 'cone' ? centralRow(g) : 0;
-    this.nCh = g.detector.channels;
-    this.nRows = g.detector.rows;
-    this.data = new Float32Array(viewCount(g) * this.nCh);
-  }
-
-  /** Takes the row from views [v0, v0 + n) in `chunk`. */
-  add(v0: number, chunk: Float32Array): void {
-    const frame = this.nCh * this.nRows, n = chunk.length / frame;
-    for (let v = 0; v < n; v++) {
-      const from = v * frame + this.row * this.nCh;
-      this.data.set(chunk.subarray(from, from + this.nCh), (v0 + v) * this.nCh);
-    }
+    super(g, viewCount(g));
   }
 
   record(id: string): ScanPreview {
