@@ -4,6 +4,7 @@
 import { InputError } from '../errors';
 import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
 import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
+import { checkReduction, isIdentity, type Reduction } from '../reduction';
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 import { validateKnowledge, type Knowledge } from '../knowledge';
 
@@ -32,6 +33,8 @@ export interface Recipe extends IterativeFields {
   volume?: SliceChoice;
   /** What the user knows beyond the data (known regions, outline); absent: nothing. */
   knowledge?: Knowledge;
+  /** Detector binning, a view step and a row range applied to the scan before this run (reduction.ts). */
+  reduce?: Reduction;
 }
 
 export interface SliceChoice {
@@ -73,6 +76,10 @@ export function validateRecipe(input: unknown): Recipe {
     out.grid = { size: g.size as number, pixel: g.pixel };
   }
   if (r.volume !== undefined) out.volume = validateSliceChoice(r.volume);
+  if (r.reduce !== undefined) {
+    const reduce = checkReduction(r.reduce, undefined, 'recipe reduce');
+    if (!isIdentity(reduce)) out.reduce = reduce;
+  }
   const knowledge = validateKnowledge(r.knowledge);
   if (knowledge) out.knowledge = knowledge;
   Object.assign(out, validateIterativeFields(r, validateRecipe));
