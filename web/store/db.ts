@@ -118,3 +118,51 @@ export async function streamTransaction<T>(store: UseStore, body: (tx: StreamTx)
   }
   return result!;
 }
+
+/** A streamed transaction opened by its first write (deferredTransaction). */
+export interface DeferredTx {
+  /** Writes in the transaction (opened by the first call). */
+  put(key: string, value: unknown): Promise<void>;
+  /** Commits what was written (opens the transaction first when nothing was). */
+  commit(): Promise<void>;
+  /** Drops everything written; the transaction's own failure, when it had one, wins. */
+  abort(reason: unknown): Promise<void>;
+}
+
+/**
+ * A streamTransaction that opens on the first put, for writers that must first finish reading
+ * the same store (a reconstruction reads the scan, then writes its volume): the store stays free
+ * for readers until then.
+ */
+export function deferredTransaction(store: UseStore): DeferredTx {
+  let started: Promise<void> | undefined;
+  let tx!: (t: StreamTx) => void;
+  const ready = new Promise<StreamTx>((r) => (tx = r));
+  let finish!: () => void, fail!: (err: unknown) => void;
+  const end = new Promise<void>((res, rej) => {
+    finish = res;
+    fail = rej;
+  });
+  end.catch(() => undefined);
+  const start = () => (started ??= streamTransaction(store, async (t) => {
+    tx(t);
+    await end;
+  }));
+  return {
+    async put(key, value) {
+      void start().catch(() => undefined);
+      const t = await Promise.race([ready, start().then(() => ready)]);
+      await t.put(key, value);
+    },
+    async commit() {
+      const done = start();
+      finish();
+      await done;
+    },
+    async abort(reason) {
+      if (!started) return;
+      fail(reason);
+      await started.catch(() => undefined);
+    },
+  };
+}

@@ -5,7 +5,6 @@
 // to draw. Schema-1 scans hold their projections in one record; they are read through the same
 // source, sliced.
 import { getMany, type UseStore } from 'idb-keyval';
-import { InputError } from '../core/errors';
 import { viewCount, type Geometry } from '../core/geometry/types';
 import type { ProjectionSource } from '../core/projection-source';
 import { viewSize } from '../core/projection-source';
@@ -110,15 +109,4 @@ export async function loadPreview(meta: ScanMeta, store: UseStore = pageStore())
   }
   const [v] = await getMany([keys.scanPreview(meta.id)], store);
   return checkRecord<ScanPreview>(v, 'scan-preview', keys.scanPreview(meta.id));
-}
-
-/** Checks a chunk of line integrals before it is stored: refuses non-finite values, counts clear negatives. */
-export function checkChunkValues(data: Float32Array, negativeLimit: number): number {
-  let negative = 0;
-  for (let i = 0; i < data.length; i++) {
-    const v = data[i];
-    if (!Number.isFinite(v)) throw new InputError(`scan data: value ${i} of a chunk of ${data.length} is not a finite number (NaN or infinity)`);
-    if (v < negativeLimit) negative++;
-  }
-  return negative;
 }

@@ -8,16 +8,16 @@ import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-j
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 5;
+export const APP_PROTOCOL_VERSION = 6;
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
 
 export type AppRequest =
-  | { op: 'import'; files: File[]; name?: string }
+  | { op: 'import'; files: File[]; name?: string; reduce?: unknown }
   | { op: 'demo' }
   | { op: 'demo-cone' }
-  | { op: 'run'; scanId: string; recipe: unknown; name?: string }
+  | { op: 'run'; scanId: string; recipe: unknown; name?: string; budget?: number }
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
   | { op: 'import-image'; scanId: string; files: File[]; slice?: number }
