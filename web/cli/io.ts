@@ -1,6 +1,6 @@
 // File access for the CLI: reads with clear errors, writes all-or-nothing (temporary file, then
 // rename), so a failed command leaves no half-written output.
-import { readFileSync, renameSync, writeFileSync, unlinkSync, statSync } from 'node:fs';
+import { closeSync, openSync, readFileSync, renameSync, writeFileSync, writeSync, unlinkSync, statSync } from 'node:fs';
 import { InputError } from '../core/errors';
 
 /** Largest input file the CLI reads (bytes). */
@@ -50,5 +50,45 @@ export class PendingWrites {
       throw new InputError(`cannot write output: ${(err as Error).message}`);
     }
     for (const [tmp, path] of temps) renameSync(tmp, path);
+  }
+}
+
+/**
+ * A file written in pieces through a temporary name and renamed when complete, so a failed
+ * command leaves no half-written output (as PendingWrites does for files made in memory).
+ */
+export class StreamedFile {
+  private readonly tmp: string;
+  private fd: number | undefined;
+
+  constructor(readonly path: string) {
+    this.tmp = `${path}.rimfill-${process.pid}.tmp`;
+    try {
+      this.fd = openSync(this.tmp, 'w');
+    } catch (err) {
+      throw new InputError(`cannot write output: ${(err as Error).message}`);
+    }
+  }
+
+  write(bytes: Uint8Array): void {
+    if (this.fd === undefined) throw new Error(`${this.path}: written after it was closed`);
+    let done = 0;
+    while (done < bytes.length) done += writeSync(this.fd, bytes, done, bytes.length - done);
+  }
+
+  /** Closes the file and gives it its name. */
+  commit(): void {
+    if (this.fd === undefined) return;
+    closeSync(this.fd);
+    this.fd = undefined;
+    renameSync(this.tmp, this.path);
+  }
+
+  /** Closes and deletes the temporary file. */
+  discard(): void {
+    if (this.fd === undefined) return;
+    closeSync(this.fd);
+    this.fd = undefined;
+    unlinkSync(this.tmp);
   }
 }

@@ -1,16 +1,24 @@
 // rimfill reconstruct: a scan file in, an image file out.
 import { InputError } from '../../core/errors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
-import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
+import { volumeNrrdHeader, writeVolumeNrrd } from '../../core/formats/volume-nrrd';
+import type { Workspace } from '../../core/engine/workspace';
+import { checkMemoryBudget } from '../../core/memory-budget';
+import { readWholeScan } from '../../core/projection-source';
+import type { Recipe } from '../../core/recipe/recipe';
+import { describeReduction, isIdentity } from '../../core/reduction';
+import type { RunHooks } from '../../core/run-hooks';
+import type { VolumeInfo } from '../../core/volume-sink';
+import { availableParallelism, freemem } from 'node:os';
 import { muToHu } from '../../core/image';
 import { METHODS, validateRecipe } from '../../core/recipe/recipe';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { runRecipe } from '../../core/recipe/run';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
-import { PendingWrites } from '../io';
+import { PendingWrites, StreamedFile } from '../io';
 import { priorConsistency } from '../prior-consistency';
-import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
+import { memoryLimit, openScanInput, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS, type ScanInput } from '../load';
 import { openWorkspace } from '../engine-node';
 import { progressLine } from '../progress';
 import type { CommandResult } from './types';
@@ -77,13 +85,25 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
   const recipe = recipeFromArgs(a);
   const out = requireString(a, 'out');
-  const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
-  if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
-  if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
-  const ws = await openWorkspace(a.options.workers as number | undefined);
+  const input = await openScanInput(path, a);
+  const g = input.source.geometry;
+  if (a.options.hu && !input.source.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
+  if (recipe.volume && g.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${g.kind} beam)`);
+  const workers = a.options.workers as number | undefined;
+  const budget = memoryLimit(a) ?? process.availableMemory?.() ?? freemem();
+  const estimate = checkMemoryBudget(g, recipe, { workers: workers ?? Math.max(1, availableParallelism()), sharedMemory: true, scanInMemory: !input.streamed }, budget,
+    memoryLimit(a) !== undefined ? '--memory-limit' : 'the memory this computer has free');
+  const ws = await openWorkspace(workers);
   try {
     const t0 = performance.now();
     const hooks = { onProgress: a.options.json ? undefined : progressLine(recipe.method) };
+    const facts = {
+      ...(isIdentity(input.reduction) ? {} : { reduction: { applied: input.reduction, description: describeReduction(input.reduction), from: input.from } }),
+      memory: { estimateMb: Math.round(estimate.bytes / 2 ** 20), budgetMb: Math.round(budget / 2 ** 20) },
+    };
+    if (g.kind === 'cone' && recipe.method === 'fbp') return await fdkToFile(ws, input, recipe, out, a, hooks, t0, facts);
+    const scan = await readWholeScan(input.source);
+    const readWarnings = input.warnings();
     const { inputs, warnings: priorWarnings, priorReport, checkedPrior } = await iterativeInputs(recipe, a, ws, scan, hooks);
     readWarnings.push(...priorWarnings);
     const r = await runRecipe(ws, scan, recipe, hooks, inputs);
@@ -97,24 +117,64 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
       const v = r.volume;
       writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu' } : v));
       writes.commit();
-      const vg = v.grid;
-      return {
-        json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}`,
-        warnings: [...readWarnings, ...r.warnings],
-      };
+      return volumeResult(out, recipe, v, seconds, r.report, r.warnings, readWarnings, facts);
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
     writes.commit();
-    const g = image.grid;
+    const grid = image.grid;
     return {
-      json: { out, recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
+      json: { out, recipe, grid, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...facts, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
+      text: `wrote ${out}: ${grid.nx} x ${grid.ny} pixels of ${grid.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };
   } finally {
     ws.dispose();
   }
+}
+
+/**
+ * FDK of a cone-beam scan straight into the output file: the projections stream from the input
+ * a chunk of views at a time and the volume is written slab by slab as it leaves the engine.
+ */
+async function fdkToFile(
+  ws: Workspace, input: ScanInput, recipe: Recipe, out: string, a: ParsedArgs, hooks: RunHooks, t0: number, facts: Record<string, unknown>,
+): Promise<CommandResult> {
+  const muWater = input.source.muWater;
+  const file = new StreamedFile(out);
+  let info: VolumeInfo | undefined;
+  try {
+    const r = await runRecipe(ws, input.source, recipe, hooks, {}, {
+      sink: (v) => {
+        info = a.options.hu ? { ...v, quantity: 'hu' } : v;
+        file.write(volumeNrrdHeader(info));
+        return {
+          write: async (_k0, slab) => {
+            const values = a.options.hu ? muToHu(slab, muWater!) : slab;
+            file.write(new Uint8Array(values.buffer, values.byteOffset, values.byteLength));
+          },
+        };
+      },
+    });
+    file.commit();
+    const seconds = (performance.now() - t0) / 1000;
+    return volumeResult(out, recipe, info!, seconds, r.report, r.warnings, input.warnings(), facts);
+  } catch (err) {
+    file.discard();
+    throw err;
+  }
+}
+
+/** The command's answer for a volume written to `out`. */
+function volumeResult(
+  out: string, recipe: Recipe, v: VolumeInfo, seconds: number, report: Record<string, unknown>, warnings: string[], readWarnings: string[], facts: Record<string, unknown>,
+): CommandResult {
+  const vg = v.grid;
+  const reduction = facts.reduction as { description: string } | undefined;
+  return {
+    json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report, ...facts, warnings },
+    text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''}${reduction ? ` from the scan with ${reduction.description}` : ''} in ${seconds.toFixed(2)} s${iterationSummary(report)}`,
+    warnings: [...readWarnings, ...warnings],
+  };
 }
