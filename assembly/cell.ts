@@ -1,5 +1,5 @@
 // Cell index and fraction for linear interpolation on zero-padded lines, four lanes at a time,
-// without float->int conversions in inner loops (toolchain.md: the MAGIC trick, memory.ts).
+// without float->int conversions in inner loops (the MAGIC trick, memory.ts).
 //
 // A padded coordinate t is clamped by the caller to [0, n + 1] (cell 0 and cells n+1, n+2 are
 // zero padding, cells 1..n hold data). The pair read is (lo, lo + 1) with lo in [0, n + 1], so

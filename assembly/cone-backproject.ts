@@ -5,7 +5,7 @@
 //   u = |C - S| (p - S).U / ln,   v = |C - S| (p - S).V / ln          (mm on the detector)
 // with the FDK distance weight (R / ln)^2, R = -S.n the source-to-isocentre distance
 // (L. A. Feldkamp, L. C. Davis, J. W. Kress, "Practical cone-beam algorithm", J. Opt. Soc. Am. A
-// 1(6):612-619, 1984: the factor D^2 / (D - s)^2 of references.md 3e).
+// 1(6):612-619, 1984: the factor D^2 / (D - s)^2 of REFERENCES.md [fdk-1984]).
 // ln, (p - S).U and (p - S).V are linear along x, so four voxels of a row advance together.
 //
 // Filtered projections come as coneFilterViews writes them: per view a block of nRows + 3 row

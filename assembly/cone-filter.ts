@@ -1,6 +1,6 @@
 // FDK pre-weighting and row-wise ramp filtering of cone-beam projections.
 //
-// Feldkamp, Davis & Kress (J. Opt. Soc. Am. A 1(6):612-619, 1984; references.md 3e) weight each
+// Feldkamp, Davis & Kress (J. Opt. Soc. Am. A 1(6):612-619, 1984; REFERENCES.md [fdk-1984]) weight each
 // sample by D / sqrt(D^2 + u^2 + v^2) and ramp-filter every detector row along u. The host's
 // per-view weights (angular step x redundancy x cos(gamma), the in-plane part, as fan-beam FBP
 // uses them) arrive in `viewWeights`; this kernel multiplies in the out-of-plane part

@@ -4,13 +4,13 @@
 // truncated FBP). The host (web/core/truncation/extension-plan.ts) fits the tails; this kernel
 // only evaluates them. Published forms:
 //   EDGE    constant continuation of the edge value over half the tail, then a cos^2 roll-off
-//           (references.md section 4c);
+//           (REFERENCES.md [taper-extrapolation]);
 //   MIRROR  symmetric mirroring of the measured row about the edge, weighted by a cos^2 roll-off
 //           (B. Ohnesorge et al., Med. Phys. 27(1):39-46, 2000);
 //   WATER   projection of a water cylinder fitted to the edge value and slope,
 //           p = 2 mu sqrt(R^2 - (d + delta / a)^2) (J. Hsieh et al., Med. Phys. 31(9):2385-2391,
 //           2004);
-//   COSINE  cos^2 taper of the edge value, p = p_e cos^2(pi delta / (2 L)) (references.md 4c).
+//   COSINE  cos^2 taper of the edge value, p = p_e cos^2(pi delta / (2 L)) (REFERENCES.md [taper-extrapolation]).
 // delta is the outward distance from the edge channel in the ray coordinate s (mm), read from
 // `coord` (s of every extended channel), so fan and parallel beams are treated alike.
 import { ldf, stf } from './memory';

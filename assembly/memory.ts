@@ -27,7 +27,7 @@
 
 /**
  * 2^23 as f32. Adding it to a whole number in [0, 2^22) leaves that number in the low mantissa
- * bits, which avoids a float->int conversion in inner loops (toolchain.md: V8 turns those into a
+ * bits, which avoids a float->int conversion in inner loops (measured here: V8 turns those into a
  * dependency chain). Apply it to floor(t) (floorOffsets), never to t - 0.5: below 2^23 the f32
  * spacing is 0.5, so t - 0.5 + 2^23 does not round to a whole number for t < 0.5.
  */

@@ -10,7 +10,7 @@ function newestSource(root) {
   let newest = 0;
   const walk = (p) => {
     const s = statSync(p);
-    if (s.isDirectory()) readdirSync(p).forEach((n) => walk(join(p, n)));
+    if (s.isDirectory()) readdirSync(p).forEach((n) => { walk(join(p, n)); });
     else newest = Math.max(newest, s.mtimeMs);
   };
   for (const p of SOURCES) if (existsSync(join(root, p))) walk(join(root, p));

@@ -2,6 +2,7 @@
 // what a user does and what must follow; screenshots go to test-artifacts/<mode>-*.png.
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { check, near } from './harness.mjs';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
 
@@ -9,16 +10,16 @@ import { parseFloatNrrd, pngHeader } from './files.mjs';
 const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
 const JOB_TIMEOUT = 10 * 60_000;
 
-/** Text of every cell of the metrics table row for `label`, by column metric and region. */
-/** pydicom's CT test image (Debian python3-pydicom, installed by .ci/run). */
-const CT_SMALL = '/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm';
+/** pydicom's CT test image, a committed fixture (test/fixtures/MANIFEST.json). */
+const CT_SMALL = fileURLToPath(new URL('../fixtures/dicom/CT_small.dcm', import.meta.url));
 
+/** Text of every cell of the metrics table row for `label`, by column metric and region. */
 async function metricsRow(page, label) {
   const row = page.locator(`rf-metrics-table tr[data-label="${label}"]`);
   const cells = await row.locator('td[data-metric]').allTextContents();
   const regions = ['image', 'insideFov', 'outsideFov'];
   const out = {};
-  regions.forEach((r, i) => (out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }));
+  regions.forEach((r, i) => { out[r] = { rmse: Number(cells[3 * i]), psnr: Number(cells[3 * i + 1]), ssim: Number(cells[3 * i + 2]) }; });
   // Cupping and data residual are shown as percentages.
   out.cupping = Number(cells[9].replace('%', ''));
   out.residual = Number(cells[10].replace('%', ''));
@@ -106,6 +107,21 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await page.locator('rf-geometry-form button', { hasText: 'Undo edits' }).click();
     check((await sdd.inputValue()) === '1000', `after undo: ${await sdd.inputValue()}`);
     check(/source 600 mm \/ detector 1000 mm/.test(await page.locator('rf-scan-library li').first().innerText()), 'stored geometry unchanged');
+  });
+
+  await h.step(`${mode}: a library edit the coordinator refuses is reported in the page, and nothing changes`, async () => {
+    const item = page.locator('rf-scan-library li[aria-selected="true"]');
+    const before = await item.locator('.name').innerText();
+    await item.locator('button', { hasText: 'Rename' }).click();
+    const input = page.locator('rf-scan-library input.rename');
+    await input.fill('x'.repeat(250));
+    await input.press('Enter');
+    const alert = page.locator('#page-alert');
+    await alert.waitFor({ timeout: 30_000 });
+    const text = await alert.innerText();
+    check(/name: got "x{250}", expected 1 to 200 characters/.test(text), `alert: ${text.slice(0, 120)}`);
+    check((await item.locator('.name').innerText()) === before, 'the stored name is unchanged');
+    await alert.locator('button', { hasText: 'Dismiss' }).click();
   });
 
   await h.step(`${mode}: (f) a malformed file is refused with the reason and nothing is stored`, async () => {
@@ -356,7 +372,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const got = await metricsRow(page, name);
     for (const region of ['image', 'insideFov', 'outsideFov']) check(got[region].rmse < 0.1, `${region} RMSE ${got[region].rmse} HU against the ground truth`);
     check(Number.isFinite(got.residual) && got.residual > 0, `data residual ${got.residual}%`);
-    // A DICOM CT image (pydicom's test file CT_small.dcm, Debian python3-pydicom) is read in the
+    // A DICOM CT image (pydicom's test file CT_small.dcm, a committed fixture) is read in the
     // page too: HU by its rescale, converted with the scan's mu_water.
     await picker.setInputFiles(CT_SMALL);
     await page.locator('rf-result-list li', { hasText: 'Image file: CT_small.dcm' }).waitFor({ timeout: 60_000 });
@@ -513,7 +529,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
   });
 
   await h.step(`${mode}: (g) no request left the page's own origin, and no script error`, async () => {
-    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
+    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(`${origin}/`) : u === url);
     const outside = requests.filter((u) => !own(u));
     check(requests.length > 0, 'requests were recorded');
     check(outside.length === 0, `requests outside the page: ${outside.slice(0, 5).join(', ')}`);

@@ -26,8 +26,8 @@ async function chooseFiles(page, files) {
 /**
  * Draws a region inside the false disk on the linked panels and reads the region table: the
  * network's output there is the phantom plus the disk exactly (test-models.ts), so the drop to
- * the data-consistent result is the share of the disk's contrast the data removed (issue 8:
- * at least 80%).
+ * the data-consistent result is the share of the disk's contrast the data removed (the project's
+ * acceptance bar: at least 80%).
  */
 async function diskContrastRemoved(page, prior) {
   const view = page.locator('rf-prior-run-view');
@@ -189,7 +189,7 @@ export async function priorTests(h, { context, mode, url, origin, artifacts, pri
   });
 
   await h.step(`${mode}: (priors) no request left the page's own origin, and no script error`, async () => {
-    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(origin + '/') : u === url);
+    const own = (u) => u.startsWith('data:') || u.startsWith('blob:') || (mode === 'http' ? u.startsWith(`${origin}/`) : u === url);
     const outside = requests.filter((u) => !own(u));
     check(requests.length > 0, 'requests were recorded');
     check(outside.length === 0, `requests outside the page: ${outside.slice(0, 5).join(', ')}`);

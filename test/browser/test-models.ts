@@ -1,7 +1,7 @@
 // Test networks for the browser tests, bundled for Node by esbuild when the tests start
 // (prior-reference.mjs): written with the project's ONNX writer, with known behaviour.
 import { gridOrigin, squareGrid } from '../../web/core/image';
-import { writeOnnxModel } from '../../web/core/model/onnx-writer';
+import { writeOnnxModel } from '../../web/cli/bench/onnx-writer';
 import { rasterize } from '../../web/core/phantoms/ellipse';
 import { thorax } from '../../web/core/phantoms/thorax';
 

@@ -1,4 +1,4 @@
-// The command-line contract of design.md: --json prints one JSON object; exit 0 ok, 2 bad input
+// The command-line contract (README, "Command line"): --json prints one JSON object; exit 0 ok, 2 bad input
 // with one line on stderr and nothing written, 1 internal error.
 import { mkdtempSync, readdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';

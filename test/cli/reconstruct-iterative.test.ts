@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { reconstruct } from '../../web/cli/commands/reconstruct';
 import { simulate } from '../../web/cli/commands/simulate';
 import { InputError } from '../../web/core/errors';
-import { readImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd } from '../helpers/read-nrrd';
 
 let dir: string;
 const f = (name: string) => join(dir, name);

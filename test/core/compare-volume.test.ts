@@ -3,7 +3,7 @@ import { compareVolumes } from '../../web/core/compare-volume';
 import { InputError } from '../../web/core/errors';
 import { seededRandom } from '../../web/core/simulate/noise';
 import { volumeOrigin, type Volume, type VolumeGrid } from '../../web/core/volume';
-import { runPython } from '../helpers/python';
+import { fixtureF32, fixtureJson } from '../helpers/fixtures';
 
 const grid: VolumeGrid = { nx: 30, ny: 26, nz: 5, dx: 2, dy: 2, dz: 3, cx: 1, cy: 0, cz: 0 };
 const n = grid.nx * grid.ny * grid.nz;
@@ -19,31 +19,26 @@ function volume(seed: number, noise: number): Float32Array {
 
 describe('volume comparison', () => {
   // SSIM (Wang et al. 2004) computed in axial slices and RMSE / PSNR over the voxels, checked
-  // against scikit-image 0.19.3 (Debian python3-skimage): structural_similarity per slice with
-  // the paper's settings (references.md section 7) averaged over the slices, and numpy's RMSE /
-  // skimage's peak_signal_noise_ratio with the reference's range.
+  // against scikit-image (REFERENCES.md [ssim], [psnr]): structural_similarity per slice with
+  // the paper's settings averaged over the slices, and numpy's RMSE / skimage's
+  // peak_signal_noise_ratio with the reference's range. The volumes and skimage's figures are
+  // committed fixtures made by scripts/reference/metric_values.py.
   it('agrees with scikit-image slice by slice and over the volume', () => {
-    const a = volume(1, 0.004), b = volume(2, 0.001);
-    const mine = compareVolumes({ grid, data: a, quantity: 'mu' }, { grid, data: b, quantity: 'mu' }, { perSlice: true });
-    const py = runPython(`
-import numpy as np, json
-from skimage.metrics import structural_similarity, peak_signal_noise_ratio
-a = np.fromfile('a.f32', dtype='<f4').reshape(${grid.nz}, ${grid.ny}, ${grid.nx}).astype(np.float64)
-b = np.fromfile('b.f32', dtype='<f4').reshape(${grid.nz}, ${grid.ny}, ${grid.nx}).astype(np.float64)
-rng = b.max() - b.min()
-s = [structural_similarity(a[k], b[k], gaussian_weights=True, sigma=1.5, use_sample_covariance=False, data_range=rng) for k in range(a.shape[0])]
-print(json.dumps({'ssim': s, 'rmse': float(np.sqrt(((a - b) ** 2).mean())), 'psnr': float(peak_signal_noise_ratio(b, a, data_range=rng))}))
-`, ['numpy', 'skimage'], { 'a.f32': new Uint8Array(a.buffer), 'b.f32': new Uint8Array(b.buffer) });
-    const ref = JSON.parse(py.stdout) as { ssim: number[]; rmse: number; psnr: number };
+    const ref = fixtureJson<{ size: number[]; ssim: number[]; rmse: number; psnr: number }>('metrics/volume/expected.json');
+    const [nx, ny, nz] = ref.size;
+    const g: VolumeGrid = { nx, ny, nz, dx: 2, dy: 2, dz: 3, cx: 1, cy: 0, cz: 0 };
+    const a = fixtureF32('metrics/volume/a.f32'), b = fixtureF32('metrics/volume/b.f32');
+    const mine = compareVolumes({ grid: g, data: a, quantity: 'mu' }, { grid: g, data: b, quantity: 'mu' }, { perSlice: true });
     const all = mine.regions.volume!;
     expect(mine.unit).toBe('1/mm');
-    expect(all.pixels).toBe(n);
+    expect(all.pixels).toBe(nx * ny * nz);
     expect(all.rmse).toBeCloseTo(ref.rmse, 9);
     expect(all.psnr).toBeCloseTo(ref.psnr, 6);
     const meanSsim = ref.ssim.reduce((x, y) => x + y, 0) / ref.ssim.length;
     expect(meanSsim).toBeLessThan(0.95);
     expect(Math.abs(all.ssim - meanSsim)).toBeLessThan(1e-3);
-    mine.slices!.forEach((s, k) => expect(Math.abs(s.regions.volume!.ssim - ref.ssim[k]), `slice ${k}`).toBeLessThan(1e-3));
+    expect(mine.slices).toHaveLength(nz);
+    mine.slices!.forEach((s, k) => { expect(Math.abs(s.regions.volume!.ssim - ref.ssim[k]), `slice ${k}`).toBeLessThan(1e-3); });
     expect(mine.regions.insideFov).toBeNull();
   });
 

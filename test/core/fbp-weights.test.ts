@@ -4,8 +4,8 @@ import { validateGeometry } from '../../web/core/geometry/validate';
 
 const deg = Math.PI / 180;
 
-describe('Parker short-scan weights (Parker 1982; references.md 3d)', () => {
-  // Values for delta = 15 degrees, references.md 3d [D].
+describe('Parker short-scan weights (Parker 1982; REFERENCES.md [parker-1982])', () => {
+  // Values for delta = 15 degrees, REFERENCES.md [parker-1982] [D].
   it.each([
     [0, 0, 0],
     [15, 0, 0.5],

@@ -53,7 +53,7 @@ describe('geometry validation: messages name the field, the value and what was e
   });
 });
 
-describe('view vectors follow design.md conventions', () => {
+describe('view vectors follow DEVELOPERS.md, "Geometry" conventions', () => {
   it('fan: source at (R cos b, R sin b, 0), detector at -(D-R)(cos b, sin b, 0), u = (-sin b, cos b, 0)', () => {
     const g = validateGeometry(fan);
     const v = viewVectors(g);

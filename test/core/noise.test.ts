@@ -28,7 +28,7 @@ describe('Poisson sampling', () => {
     expect(Math.abs(zeros / n - Math.exp(-2))).toBeLessThan(5 * Math.sqrt((Math.exp(-2) * (1 - Math.exp(-2))) / n));
   });
 
-  it('line-integral noise: sigma_p ~ sqrt(exp(p) / I0) (references.md 8: p = 4.118, I0 = 1e5 -> 0.0248)', () => {
+  it('line-integral noise: sigma_p ~ sqrt(exp(p) / I0) (REFERENCES.md [transmission-noise]: p = 4.118, I0 = 1e5 -> 0.0248)', () => {
     const p = new Float32Array(20000).fill(4.118);
     addPhotonNoise(p, 1e5, 9);
     let s = 0, s2 = 0;

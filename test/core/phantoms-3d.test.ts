@@ -4,7 +4,8 @@ import { firstChannelU, firstRowV, viewVectors } from '../../web/core/geometry/v
 import { inside, valueAt } from '../../web/core/phantoms/ellipse';
 import { sheppLogan } from '../../web/core/phantoms/shepp-logan';
 import { sheppLogan3d } from '../../web/core/phantoms/shepp-logan-3d';
-import { insideSolid, solidChord, solidLineIntegral, solidValueAt, voxelize, type Solid, type SolidPhantom } from '../../web/core/phantoms/solid';
+import { solidChord, solidLineIntegral } from '../helpers/solid-line';
+import { insideSolid, solidValueAt, voxelize, type Solid, type SolidPhantom } from '../../web/core/phantoms/solid';
 import { thorax } from '../../web/core/phantoms/thorax';
 import { thorax3d } from '../../web/core/phantoms/thorax-3d';
 import { analyticConeProjections } from '../../web/core/simulate/analytic-cone';
@@ -13,7 +14,7 @@ import { cubicGrid } from '../../web/core/volume';
 import { cone } from '../helpers/cone';
 
 describe('solid chords', () => {
-  it('reproduces the ray-ellipsoid check value of references.md 1d', () => {
+  it('reproduces the ray-ellipsoid check value of REFERENCES.md [ellipsoid-chord]', () => {
     // Centre (5, -3, 8), semi-axes (60, 40, 30), rotated 25 degrees about z; the ray from
     // (-500, 10, 5) to (500, -20, 30) has a chord of 101.388112 mm.
     const e: Solid = { shape: 'ellipsoid', cx: 5, cy: -3, cz: 8, a: 60, b: 40, c: 30, phiDeg: 25, value: 1 };
@@ -66,7 +67,7 @@ describe('voxelization', () => {
 });
 
 describe("Kak & Slaney's 3D Shepp-Logan head (table from memory)", () => {
-  // What can be checked against the verified 2D table (references.md 1a): at z = -0.25 (table
+  // What can be checked against the verified 2D table (REFERENCES.md [shepp-logan-1974]): at z = -0.25 (table
   // units) the 3D ventricles, ellipse e and tumour f have exactly the 2D ellipses' sections;
   // the skull ellipsoid a has the 2D ellipse a at z = 0. Compared point by point on a fine grid.
   const p3 = sheppLogan3d('original', 1, 1);

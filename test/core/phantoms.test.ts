@@ -7,7 +7,7 @@ import { squareGrid } from '../../web/core/image';
 import { rasterize } from '../../web/core/phantoms/ellipse';
 
 describe('materials (NIST SRD 126, 60 keV)', () => {
-  // references.md 6a: linear mu at 60 keV, 1/mm.
+  // REFERENCES.md [nist-srd126]: linear mu at 60 keV, 1/mm.
   it.each([
     ['water', 0.02059],
     ['softTissue', 0.02171],
@@ -44,12 +44,12 @@ describe('thorax demo phantom', () => {
 });
 
 describe('Shepp-Logan', () => {
-  it('original total mass is 2.20175669 in table units (references.md 1c)', () => {
+  it('original total mass is 2.20175669 in table units (REFERENCES.md [ellipse-projection])', () => {
     const p = sheppLogan('original', 1, 1);
     const mass = p.ellipses.reduce((s, e) => s + e.value * Math.PI * e.a * e.b, 0);
     expect(mass).toBeCloseTo(2.20175669, 7);
   });
-  it('modified total mass is 0.49526460 (references.md 1c)', () => {
+  it('modified total mass is 0.49526460 (REFERENCES.md [ellipse-projection])', () => {
     const p = sheppLogan('modified', 1, 1);
     expect(p.ellipses.reduce((s, e) => s + e.value * Math.PI * e.a * e.b, 0)).toBeCloseTo(0.4952646, 7);
   });

@@ -3,7 +3,7 @@ import { cropDetector, extendDetector, presetGeometry } from '../../web/core/geo
 import { firstChannelU } from '../../web/core/geometry/view-vectors';
 
 describe('detector crop and extension', () => {
-  // design.md: u_k = (k - (n-1)/2) pitch + offset. Cropping and extending must keep every kept
+  // DEVELOPERS.md, "Geometry": u_k = (k - (n-1)/2) pitch + offset. Cropping and extending must keep every kept
   // channel at the same u (common practice: a sub-detector is a window on the same detector).
   it('cropping keeps channel positions', () => {
     const g = presetGeometry('demo')!;

@@ -38,7 +38,7 @@ describe('FFT', () => {
 });
 
 describe('ramp filter', () => {
-  it('spatial kernel has the Kak & Slaney eq. 61 values (references.md 3a)', () => {
+  it('spatial kernel has the Kak & Slaney eq. 61 values (REFERENCES.md [ramp-kernel])', () => {
     const k = rampKernel(16, 1);
     expect(k[0]).toBeCloseTo(0.25, 7);
     expect(k[1]).toBeCloseTo(-0.10132118, 7);
@@ -48,7 +48,7 @@ describe('ramp filter', () => {
     expect(k[15]).toBeCloseTo(-0.10132118, 7);
   });
 
-  // references.md 3a: response of the N-point circular kernel [D]: DC, Nyquist, N/4.
+  // REFERENCES.md [ramp-kernel]: response of the N-point circular kernel [D]: DC, Nyquist, N/4.
   it.each([
     [64, 3.165e-3, 0.496835],
     [256, 7.916e-4, 0.499208],
@@ -67,7 +67,7 @@ describe('ramp filter', () => {
     expect(paddedLength(3)).toBe(8);
   });
 
-  // references.md 3b table: H = |f| W(f) at f/f_N = 0, .25, .5, .75, 1 (tau = 1, f_N = 0.5).
+  // REFERENCES.md [filter-windows] table: H = |f| W(f) at f/f_N = 0, .25, .5, .75, 1 (tau = 1, f_N = 0.5).
   it.each<[FilterWindow, number[]]>([
     ['ram-lak', [0, 0.125, 0.25, 0.375, 0.5]],
     ['shepp-logan', [0, 0.121812, 0.225079, 0.29408, 0.31831]],
@@ -75,7 +75,7 @@ describe('ramp filter', () => {
     ['hamming', [0, 0.108159, 0.135, 0.080524, 0.04]],
     ['hann', [0, 0.106694, 0.125, 0.054917, 0]],
   ])('%s window matches the tabulated |f| W(f)', (w, expected) => {
-    [0, 0.25, 0.5, 0.75, 1].forEach((r, i) => expect(0.5 * r * windowGain(w, r)).toBeCloseTo(expected[i], 5));
+    [0, 0.25, 0.5, 0.75, 1].forEach((r, i) => { expect(0.5 * r * windowGain(w, r)).toBeCloseTo(expected[i], 5); });
   });
 
   it('windows apply symmetrically in FFT order', () => {

@@ -38,7 +38,7 @@ async function project(ws: Workspace): Promise<{ fwd: Float32Array; adj: Float32
 }
 
 const pools: Workspace[] = [];
-afterAll(() => pools.forEach((p) => p.dispose()));
+afterAll(() => pools.forEach((p) => { p.dispose(); }));
 
 describe('projector on worker pools', () => {
   it.each([

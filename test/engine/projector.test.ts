@@ -49,7 +49,7 @@ describe('Joseph forward projector', () => {
     expect(views.length).toBeGreaterThan(0);
   });
 
-  it('parallel projection of Shepp-Logan matches the tabulated values (references.md 1c)', async () => {
+  it('parallel projection of Shepp-Logan matches the tabulated values (REFERENCES.md [ellipse-projection])', async () => {
     // P_0(0) = 1.974260, P_90(0) = 1.450712 for the original phantom on [-1,1]^2 (table units).
     const ws = await localWorkspace();
     const g = { ...parallel(201, 1, 2, 180) };
@@ -95,7 +95,7 @@ describe('adjoint', () => {
 });
 
 describe('geometry conventions', () => {
-  // design.md: source at (R cos b, R sin b), u along (-sin b, cos b); a point object at (x, y)
+  // DEVELOPERS.md, "Geometry": source at (R cos b, R sin b), u along (-sin b, cos b); a point object at (x, y)
   // projects to the channel whose ray passes through it, in every geometry.
   it.each(geometries)('%s: an off-centre point lands on the channel its ray predicts', async (_, g) => {
     const ws = await localWorkspace();

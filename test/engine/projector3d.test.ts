@@ -10,7 +10,7 @@ import { localWorkspace } from '../helpers/engine';
 import { cone, project } from '../helpers/cone';
 
 describe('3D Joseph forward projector', () => {
-  // references.md 1d: the line integral through a uniform ellipsoid is density x chord, with the
+  // REFERENCES.md [ellipsoid-chord]: the line integral through a uniform ellipsoid is density x chord, with the
   // chord from the ray-quadric intersection. Interior rays (whose neighbours 4 mm away at the
   // isocentre also cross the ellipsoid) must agree within 1%. The error is the voxelization of
   // the surface (first order in the voxel size: 1.6% with 1 mm voxels, 0.8% with 0.5 mm).
@@ -107,7 +107,7 @@ describe('3D adjoint', () => {
 });
 
 describe('cone-beam geometry conventions', () => {
-  // design.md: source at (R cos b, R sin b, 0), u along (-sin b, cos b, 0), v along +z, detector
+  // DEVELOPERS.md, "Geometry": source at (R cos b, R sin b, 0), u along (-sin b, cos b, 0), v along +z, detector
   // offsets shift channel and row coordinates. A single voxel off the axis and off the central
   // plane must project onto the cell the geometry predicts (projectPoint), within one cell.
   it('a voxel lands on the detector cell its ray predicts, with offsets in u and v', async () => {
@@ -129,9 +129,9 @@ describe('cone-beam geometry conventions', () => {
       expect(Math.abs(Math.floor(best / 90) - rc), `view ${v} row`).toBeLessThanOrEqual(1);
       expect(got[v * 6300 + best]).toBeGreaterThan(0.1);
     }
-    // The view vectors themselves, from design.md's formulas at b = 23 degrees.
+    // The view vectors themselves, from the formulas of DEVELOPERS.md, "Geometry" at b = 23 degrees.
     const [c, s] = [Math.cos((23 * Math.PI) / 180), Math.sin((23 * Math.PI) / 180)];
     const design = [300 * c, 300 * s, 0, -240 * c, -240 * s, 0, -s, c, 0, 0, 0, 1];
-    design.forEach((x, n) => expect(views[n]).toBeCloseTo(x, 4));
+    design.forEach((x, n) => { expect(views[n]).toBeCloseTo(x, 4); });
   });
 });

@@ -1,6 +1,6 @@
 // The elementwise SART kernels (assembly/sart.ts) against plain TypeScript transcriptions of the
-// SART update of A. H. Andersen, A. C. Kak, Ultrasonic Imaging 6:81-94, 1984 (references.md
-// section 5), on random data with lengths that exercise the SIMD tails.
+// SART update of A. H. Andersen, A. C. Kak, Ultrasonic Imaging 6:81-94, 1984 (REFERENCES.md
+// [andersen-kak-1984]), on random data with lengths that exercise the SIMD tails.
 import { describe, expect, it } from 'vitest';
 import type { LocalWorkspace } from '../../web/core/engine/local-workspace';
 import { seededRandom } from '../../web/core/simulate/noise';

@@ -2,7 +2,6 @@
 // header edits with absurd numbers, inserted bytes). Each case must be read into a well-formed
 // result or rejected with InputError: never another exception, never a hang, and never more
 // memory than the ceiling given.
-import { readFileSync } from 'node:fs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import { writeMetaImage } from '../../web/core/formats/metaimage';
@@ -15,7 +14,7 @@ import { writeImageFile } from '../../web/core/formats/write-image';
 import { validateGeometry } from '../../web/core/geometry/validate';
 import { squareGrid } from '../../web/core/image';
 import { seededRandom } from '../../web/core/simulate/noise';
-import { runPython } from '../helpers/python';
+import { fixtureFile } from '../helpers/fixtures';
 
 const CEILING = { maxBytes: 8 << 20 };
 const CASES_PER_SEED = 300;
@@ -87,15 +86,9 @@ beforeAll(async () => {
   const sidecar = new TextEncoder().encode(JSON.stringify({ ...geometry, dtype: 'float32', sizes: [8, 4] }));
   seeds.push({ label: 'raw + JSON sidecar', files: [{ name: 's.json', bytes: sidecar }, { name: 's.raw', bytes: new Uint8Array(data.buffer) }], read: asScan });
   seeds.push({ label: 'TIFF float32 stack (ours)', files: [{ name: 't.tif', bytes: writeTiffStack({ width: 6, height: 3, frames: 4, data: new Float32Array(72).fill(7) }) }], read: asImage });
-  const py = runPython(`
-import numpy as np, tifffile
-a = (np.arange(3 * 9 * 10) % 251).reshape(3, 9, 10).astype(np.uint16)
-tifffile.imwrite('z.tif', a, photometric='minisblack', compression='zlib', predictor=True)
-tifffile.imwrite('b.tif', a.astype(np.int16), photometric='minisblack', byteorder='>', rowsperstrip=4)
-tifffile.imwrite('t.tif', a, photometric='minisblack', tile=(16, 16))
-`, ['tifffile', 'numpy']);
-  for (const name of ['z.tif', 'b.tif', 't.tif']) seeds.push({ label: `TIFF by tifffile (${name})`, files: [{ name, bytes: py.files[name] }], read: asImage });
-  const ct = new Uint8Array(readFileSync('/usr/lib/python3/dist-packages/pydicom/data/test_files/CT_small.dcm'));
+  // Written by tifffile and pydicom's CT_small.dcm: committed fixtures (test/fixtures/MANIFEST.json).
+  for (const name of ['fuzz-zlib.tif', 'fuzz-big-endian.tif', 'fuzz-tiles.tif']) seeds.push({ label: `TIFF by tifffile (${name})`, files: [fixtureFile(`writers/tiff/${name}`)], read: asImage });
+  const ct = fixtureFile('dicom/CT_small.dcm').bytes;
   seeds.push({ label: 'DICOM CT_small.dcm', files: [{ name: 'ct.dcm', bytes: ct }], read: asImage });
 });
 
@@ -112,7 +105,8 @@ describe('fuzzed files', () => {
     const rand = seededRandom(20240611);
     const outcomes: Record<string, { read: number; rejected: number }> = {};
     for (const s of seeds) {
-      const o = (outcomes[s.label] = { read: 0, rejected: 0 });
+      const o = { read: 0, rejected: 0 };
+      outcomes[s.label] = o;
       for (let k = 0; k < CASES_PER_SEED; k++) {
         const files = s.files.map((f, i) => (i === 0 || rand() < 0.3 ? { name: f.name, bytes: mutate(f.bytes, rand) } : f));
         const t0 = performance.now();

@@ -1,6 +1,5 @@
 // Named lies, each rejected with one clear InputError that names the field, before any
 // allocation the ceiling forbids.
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import { gzip } from '../../web/core/formats/gzip';
@@ -8,6 +7,7 @@ import type { NamedBytes } from '../../web/core/formats/named-file';
 import { readImageFile } from '../../web/core/formats/read-image';
 import { readProjectionData, readScanFile } from '../../web/core/formats/read-scan';
 import { writeTiffStack } from '../../web/core/formats/tiff';
+import { fixtureFile } from '../helpers/fixtures';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 function cat(...parts: Uint8Array[]): Uint8Array {
@@ -86,8 +86,8 @@ describe('TIFF lies', () => {
 });
 
 describe('DICOM files we do not read', () => {
-  const dir = '/usr/lib/python3/dist-packages/pydicom/data/test_files/';
-  const file = (name: string) => [{ name, bytes: new Uint8Array(readFileSync(dir + name)) }];
+  // pydicom's test files, committed as fixtures (test/fixtures/MANIFEST.json).
+  const file = (name: string) => [fixtureFile(`dicom/${name}`)];
   it('a compressed transfer syntax (pydicom JPEG2000.dcm)', () => rejects(file('JPEG2000.dcm'), /transfer syntax 1\.2\.840\.10008\.1\.2\.4\.9\d is compressed/));
   it('an MR image (pydicom MR_small.dcm)', () => rejects(file('MR_small.dcm'), /modality "MR", expected CT/));
   it('a truncated file (pydicom MR_truncated.dcm)', () => rejects(file('MR_truncated.dcm'), /DICOM MR_truncated.dcm/));

@@ -46,7 +46,7 @@ describe('streamed scans', () => {
     const counts = Uint16Array.from({ length: 5 * frame }, (_, i) => 1000 + ((i * 37) % 900));
     const raw = new Uint8Array(16 + counts.length * 2);
     const view = new DataView(raw.buffer);
-    counts.forEach((c, i) => view.setUint16(16 + 2 * i, c, false));
+    for (let i = 0; i < counts.length; i++) view.setUint16(16 + 2 * i, counts[i], false);
     const header = new TextEncoder().encode(`NRRD0004\ntype: uint16\ndimension: 3\nsizes: 6 4 5\nendian: big\nencoding: raw\nbyte skip: 16\ndata file: counts.raw\nrimfill.geometry:=${JSON.stringify(geometry)}\nrimfill.quantity:=intensity\n\n`);
     const files = [{ name: 'scan.nhdr', bytes: header }, { name: 'counts.raw', bytes: raw }];
     const whole = await readScanFile(files, { i0: 2000 });

@@ -1,10 +1,11 @@
 // FDK's formula evaluated directly at single points (Feldkamp, Davis & Kress, J. Opt. Soc. Am. A
-// 1(6):612-619, 1984; references.md 3e), as an independent reference for the engine: exact ray
+// 1(6):612-619, 1984; REFERENCES.md [fdk-1984]), as an independent reference for the engine: exact ray
 // integrals of the phantom, the cosine weight D / sqrt(D^2 + u^2 + v^2), a ramp filter applied
 // by direct summation of Kak & Slaney's discrete kernel (eq. 61) on a very fine detector
 // sampling (no FFT, no detector interpolation: the row is sampled on a grid through u*), and
 // the distance weight (R / (R - s))^2. Full circular scan, redundancy 1/2, f64 throughout.
-import { solidLineIntegral, type SolidPhantom } from '../../web/core/phantoms/solid';
+import type { SolidPhantom } from '../../web/core/phantoms/solid';
+import { solidLineIntegral } from './solid-line';
 
 export function fdkAtPoint(
   p: SolidPhantom, R: number, D: number, point: [number, number, number],

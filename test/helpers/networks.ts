@@ -1,5 +1,5 @@
 // Test networks built as ONNX models (web/core/model/onnx-writer.ts) and the Node runtime.
-import { writeOnnxModel, type OnnxDim } from '../../web/core/model/onnx-writer';
+import { writeOnnxModel, type OnnxDim } from '../../web/cli/bench/onnx-writer';
 export { openNetworkNode } from '../../web/cli/ort-node';
 
 /** output = input. */

@@ -1,16 +1,17 @@
 // Reference files written by an independent, general-purpose writer: Debian's Python 3 with
-// numpy, pydicom and tifffile (apt packages python3-numpy, python3-pydicom, python3-tifffile).
+// numpy, pydicom, tifffile, Pillow and scikit-image (apt packages python3-numpy, python3-pydicom,
+// python3-tifffile, python3-pil, python3-skimage). Only the reference tier (*.ref.test.ts) uses it.
 // Tests fail (never skip) when a module is missing, naming the package to install.
 import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
-export const PYTHON = '/usr/bin/python3';
+export const PYTHON = process.env.RIMFILL_PYTHON ?? '/usr/bin/python3';
 
 const PACKAGES: Record<string, string> = { numpy: 'python3-numpy', pydicom: 'python3-pydicom', tifffile: 'python3-tifffile', PIL: 'python3-pil', skimage: 'python3-skimage' };
 
-/** Checks that /usr/bin/python3 can import the modules, throwing a message naming the apt packages. */
+/** Checks that the reference Python (/usr/bin/python3, or RIMFILL_PYTHON) can import the modules, throwing a message naming the apt packages. */
 export function requirePython(modules: string[]): void {
   try {
     execFileSync(PYTHON, ['-c', modules.map((m) => `import ${m}`).join('; ')], { stdio: 'pipe' });

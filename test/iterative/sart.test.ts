@@ -1,7 +1,7 @@
 // OS-SART on consistent, noise-free data (the data are our projector's projections of a
 // phantom, so an exact solution exists): the measured-data residual must fall monotonically
 // and end below 1% of its start (Andersen & Kak 1984: SART converges on consistent systems for
-// relaxation in (0, 2); references.md section 5).
+// relaxation in (0, 2); REFERENCES.md [andersen-kak-1984]).
 import { describe, expect, it } from 'vitest';
 import { squareGrid } from '../../web/core/image';
 import { circleMask, rmse } from '../../web/core/metrics';

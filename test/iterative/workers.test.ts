@@ -34,7 +34,7 @@ beforeAll(() => {
   scan = { geometry: g, data, muWater: p.muWater };
   prior = { grid: squareGrid(70, 2), data: rasterize(p, squareGrid(70, 2), 2), quantity: 'mu' };
 });
-afterAll(() => pools.forEach((w) => w.dispose()));
+afterAll(() => pools.forEach((w) => { w.dispose(); }));
 
 const recipes: Array<[string, Recipe]> = [
   ['sart', validateRecipe({ method: 'sart', grid: { size: 96, pixel: 1.4 }, iterations: 4, subsets: 10 })],

@@ -1,11 +1,14 @@
-// The model description (design.md, "Model description"): accepted forms, defaults, and one
+// The model description (README, "Your own network as a prior"): accepted forms, defaults, and one
 // clear message per kind of mistake.
 import { describe, expect, it } from 'vitest';
 import { validateModelInfo } from '../../web/core/model/description';
 import { networkInputRecipe } from '../../web/core/model/network-input';
 
-/** The example of design.md, with extension "none" (this build has no detector extension yet). */
-function example(): Record<string, any> {
+/** The example of the README, with extension "none" (this build has no detector extension yet). */
+// biome-ignore lint/suspicious/noExplicitAny: the tests edit the description freely, as a user's JSON is
+type Json = Record<string, any>;
+
+function example(): Json {
   return {
     format: 'rimfill-model/1',
     input: { name: 'image', quantity: 'mu', scale: 1.0, offset: 0.0, size: 256, pixel: 1.0, from: { method: 'fbp', extend: 'none' } },
@@ -13,7 +16,7 @@ function example(): Record<string, any> {
   };
 }
 
-function withChange(edit: (d: Record<string, any>) => void): Record<string, any> {
+function withChange(edit: (d: Json) => void): Json {
   const d = example();
   edit(d);
   return d;
@@ -37,7 +40,7 @@ describe('model description', () => {
     expect(info.name).toBe('thorax completion v2');
   });
 
-  it.each<[string, (d: Record<string, any>) => void, RegExp]>([
+  it.each<[string, (d: Json) => void, RegExp]>([
     ['wrong format', (d) => (d.format = 'rimfill-model/2'), /format: got "rimfill-model\/2", expected "rimfill-model\/1"/],
     ['missing format', (d) => delete d.format, /format: got undefined, expected "rimfill-model\/1"/],
     ['unknown top-level field', (d) => (d.inputs = {}), /unknown field "inputs"/],

@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import { importModel } from '../../web/core/model/import-model';
-import { writeOnnxModel, OnnxType, type OnnxDim } from '../../web/core/model/onnx-writer';
+import { writeOnnxModel, OnnxType, type OnnxDim } from '../../web/cli/bench/onnx-writer';
 import type { NetworkOpener } from '../../web/core/model/runner';
 import { checkSignature, type ModelSignature } from '../../web/core/model/signature';
 import { validateModelInfo } from '../../web/core/model/description';

@@ -8,7 +8,7 @@ import { squareGrid } from '../../web/core/image';
 import { validateModelInfo, type ModelInfo } from '../../web/core/model/description';
 import { networkInputRecipe } from '../../web/core/model/network-input';
 import { networkPrior, type InputReconstructor } from '../../web/core/model/network-prior';
-import { writeOnnxModel } from '../../web/core/model/onnx-writer';
+import { writeOnnxModel } from '../../web/cli/bench/onnx-writer';
 import { rasterize, type EllipsePhantom } from '../../web/core/phantoms/ellipse';
 import { runRecipe } from '../../web/core/recipe/run';
 import { resampleBilinear } from '../../web/core/resample';

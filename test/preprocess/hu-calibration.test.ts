@@ -1,7 +1,7 @@
 // HU calibration end to end: a simulated water-cylinder scan as raw detector frames (photon
 // noise, per-element gain and dark offset), preprocessed with its flat and dark frames,
 // reconstructed by FBP, calibrated on a region marked as water. HU = 1000 (mu - mu_w) / mu_w
-// (ICRP 129; references.md 6b); water's mu at 60 keV is NIST's 0.02059 /mm (references.md 6a).
+// (ICRP 129; REFERENCES.md [hu-definition]); water's mu at 60 keV is NIST's 0.02059 /mm (REFERENCES.md [nist-srd126]).
 import { describe, expect, it } from 'vitest';
 import { readScanFile } from '../../web/core/formats/read-scan';
 import { writeTiffStack } from '../../web/core/formats/tiff';

@@ -1,4 +1,4 @@
-// Intensity preprocessing: flat/dark correction and -ln(I/I0) (Beer-Lambert; references.md 8),
+// Intensity preprocessing: flat/dark correction and -ln(I/I0) (Beer-Lambert; REFERENCES.md [transmission-noise]),
 // reading frames from files end to end, with every clamp and fill counted.
 import { describe, expect, it } from 'vitest';
 import { validateGeometry } from '../../web/core/geometry/validate';
@@ -92,7 +92,7 @@ describe('untrustworthy readings are counted', () => {
 describe('water beam-hardening polynomial', () => {
   it('maps a two-energy water measurement back to the monochromatic line integral', () => {
     // Two equal spectral lines with water mu 0.0227 and 0.0171 /mm (NIST 50 and 100 keV,
-    // references.md 6a); the polychromatic p(L) = -ln(0.5 e^{-mu1 L} + 0.5 e^{-mu2 L}) bends
+    // REFERENCES.md [nist-srd126]); the polychromatic p(L) = -ln(0.5 e^{-mu1 L} + 0.5 e^{-mu2 L}) bends
     // below the line mu_eff L. A cubic least-squares fit of mu_eff L against p, done here on
     // 0..300 mm, must bring every p back to mu_eff L within 0.2%.
     const mu1 = 0.02269, mu2 = 0.01707, muEff = (mu1 + mu2) / 2;

@@ -69,6 +69,8 @@ describe('stored consistency reports', () => {
 
   it('a result without a report has none; a report whose arrays are missing is refused', async () => {
     const store = freshStore();
+    // A result is stored only while its scan is (its description is all the check reads).
+    await putAll([[keys.scan('s'), { schema: SCHEMA_VERSION, kind: 'scan', id: 's' }]], store);
     const plain = await saveResult(base, image, store);
     expect(await loadConsistency(plain.id, store)).toBeUndefined();
     const broken = await saveResult({ ...base, consistency: storedConsistency(report, grid).meta }, image, store);

@@ -36,7 +36,7 @@ describe('row-wise detector extension of cone-beam scans', () => {
     const plan = await planConeExtension({ geometry: cut, data, muWater: p.muWater }, 'water', { onProgress: (_f, st) => stages.add(st) });
     expect([...stages]).toEqual(['analysing the detector edges']);
     expect(plan.summary).toMatchObject({ rows: nR, truncatedRows: nR, massBasis: 'unavailable', muAssumed: false });
-    // Hsieh et al. 2004 (references.md 4a): a centred water cylinder is fitted exactly from the
+    // Hsieh et al. 2004 (REFERENCES.md [hsieh-2004]): a centred water cylinder is fitted exactly from the
     // edge value and slope; the least-squares slope over the last 6 mm leaves about 2 mm of
     // excess reach (the 2D test allows 3 mm). Every row sees the same cylinder: with each row's
     // fits made with mu times the secant of its tilt the rows agree within 0.04 mm (measured);
@@ -54,8 +54,9 @@ describe('row-wise detector extension of cone-beam scans', () => {
     await ws.write(src, data);
     await hook.extendRows(ws, src, dst, 0, nV);
     const out = await ws.read(dst);
-    // Measured channels are copied; the tails follow the true projections: RMS error 1.0% and
-    // worst 2.2% of the largest line integral (measured; the worst lies where the fitted chord
+    // Measured channels are copied; the tails follow the true (analytic) projections: RMS error
+    // 1.0% and worst 2.2% of the largest line integral (measured; the bounds below are a
+    // regression pin; the worst lies where the fitted chord
     // ends 2 mm beyond the true one).
     let peak = 0, worst = 0, sum = 0, n = 0;
     for (let r = 0; r < nV * nR; r++) {
@@ -133,7 +134,7 @@ describe('FDK with truncation correction on the truncated cone-beam demo', () =>
       rmse[extend] = rmseHu(r.volume!, truth, 'inside');
       outside[extend] = rmseHu(r.volume!, truth, 'outside');
     }
-    // Issue 7: water extension lowers the inside-FOV RMSE by at least half against none.
+    // The project's acceptance bar, against the analytic truth: water extension lowers the inside-FOV RMSE by at least half against none.
     // Measured: none 637 HU; edge 124, mirror 85, water 110, cosine 81 HU. Beyond the FOV the
     // extended volume follows the body better too (none 847 HU; extensions 507 to 550 HU).
     expect(rmse.water).toBeLessThan(0.5 * rmse.none);

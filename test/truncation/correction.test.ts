@@ -34,7 +34,7 @@ describe('truncation correction of a uniform water cylinder', () => {
     const none = await runRecipe(ws, scan, validateRecipe(recipe));
     const water = await runRecipe(ws, scan, validateRecipe({ ...recipe, extend: 'water' }));
     expect(none.image.grid).toEqual(squareGrid(112, 1));
-    // Known artefact of truncated FBP (references.md section 7 and 4b: the peripheral bright
+    // Known artefact of truncated FBP (REFERENCES.md [cupping], [ohnesorge-2000]: the peripheral bright
     // band): the rim is brighter than the centre by a clear margin.
     expect(cupping(none.image, fov)!.ratio).toBeGreaterThan(1.3);
     // Fact of the trade: water cylinder extrapolation removes most cupping for near-cylindrical

@@ -7,7 +7,7 @@ import { analyticSinogram } from '../../web/core/simulate/analytic';
 import { analyseEdges } from '../../web/core/truncation/edges';
 import { massConsistency, massUnavailable } from '../../web/core/truncation/mass';
 import { planExtension } from '../../web/core/truncation/extension-plan';
-import { extendScan } from '../../web/core/truncation/extend-scan';
+import { extendScan } from '../helpers/extend-scan';
 import { channelWidthS } from '../../web/core/truncation/ray-coords';
 import { localWorkspace } from '../helpers/engine';
 
@@ -19,7 +19,7 @@ const ELLIPSE: EllipsePhantom = { name: 'ellipse', muWater: 0.02, radius: 82, el
 
 /**
  * Mass of the ellipse's parallel projection inside [t0, t1] at view angle theta (closed form):
- * P(t) = (2 rho A B / a^2) sqrt(a^2 - (t - c)^2) (Kak & Slaney ch. 3, references.md 1c), with
+ * P(t) = (2 rho A B / a^2) sqrt(a^2 - (t - c)^2) (Kak & Slaney ch. 3, REFERENCES.md [ellipse-projection]), with
  * this project's detector axis (-sin theta, cos theta), and
  * int k sqrt(a^2 - x^2) dx = k/2 (x sqrt(a^2 - x^2) + a^2 asin(x / a)).
  */
@@ -39,7 +39,7 @@ function measuredMass(theta: number, t0: number, t1: number): number {
 
 describe('mass consistency (zeroth Helgason-Ludwig condition)', () => {
   it('complete parallel data of the Shepp-Logan phantom have the same total in every view, to 0.1%', () => {
-    // references.md 1c: total mass of the original phantom = 2.20175669 in table units; here
+    // REFERENCES.md [ellipse-projection]: total mass of the original phantom = 2.20175669 in table units; here
     // one unit is 100 mm and densities are table values per mm, so the total is 22017.5669 mm.
     const p = sheppLogan('original', 100, 1);
     const scan = { geometry: parallel(401, 0.5), data: analyticSinogram(p, parallel(401, 0.5)) };

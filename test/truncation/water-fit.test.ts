@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { smoothAcrossViews } from '../../web/core/truncation/edges';
-import { constrainedCylinder, cylinderWithLength, fitCylinder, tailArea, tailLength, tailValue } from '../../web/core/truncation/water-fit';
+import { tailValue } from '../helpers/water-tail';
+import { constrainedCylinder, cylinderWithLength, fitCylinder, tailArea, tailLength } from '../../web/core/truncation/water-fit';
 
 describe('water cylinder fit (Hsieh et al. 2004)', () => {
-  // references.md section 4a, worked example [D]: mu = 0.02/mm, R = 120 mm, x_c = -30 mm,
+  // REFERENCES.md [hsieh-2004], worked example [D]: mu = 0.02/mm, R = 120 mm, x_c = -30 mm,
   // t_e = 60 mm give p_e = 3.174902, s_e = -0.045356/mm; the fit recovers d = 90, R = 120, and
   // the tail ends at x_c + R = 90 mm, i.e. 30 mm beyond the edge.
   it('recovers the cylinder of the worked example from edge value and slope', () => {
@@ -23,7 +24,7 @@ describe('water cylinder fit (Hsieh et al. 2004)', () => {
   });
 
   it('constrains a rising edge to the cylinder centred on the edge, and caps the length', () => {
-    // Physical constraint (references.md 4a, Hsieh 2004): no tail rising beyond the edge.
+    // Physical constraint (REFERENCES.md [hsieh-2004], Hsieh 2004): no tail rising beyond the edge.
     const mu = 0.02, pe = 4;
     const t = constrainedCylinder(pe, +0.01, mu, 1000);
     expect(t.inset).toBe(0);

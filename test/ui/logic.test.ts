@@ -11,7 +11,7 @@ import { geometrySummary } from '../../web/ui/logic/describe';
 import { presetGeometry } from '../../web/core/geometry/presets';
 
 describe('window and level', () => {
-  it('maps L - W/2 to black and L + W/2 to white, linearly (references.md 6d)', () => {
+  it('maps L - W/2 to black and L + W/2 to white, linearly (REFERENCES.md [window-presets])', () => {
     const soft = WINDOW_PRESETS.find((p) => p.name === 'Soft tissue')!;
     expect(windowBounds(soft)).toEqual({ lower: -160, upper: 240 });
     expect(greyOf(-160, soft)).toBe(0);
@@ -22,7 +22,7 @@ describe('window and level', () => {
     expect(greyOf(NaN, soft)).toBe(0);
   });
 
-  it('presets are the teaching values of references.md 6d', () => {
+  it('presets are the teaching values of REFERENCES.md [window-presets]', () => {
     expect(WINDOW_PRESETS.map((p) => [p.name, p.width, p.level])).toEqual([
       ['Soft tissue', 400, 40], ['Lung', 1500, -600], ['Bone', 2000, 500],
     ]);
@@ -55,7 +55,7 @@ describe('display images', () => {
     const hu = toDisplay({ grid: g, data: Float32Array.from([0, 0.02, 0.04, 0.01]), quantity: 'mu', muWater: 0.02 }, 'a');
     expect(hu.unit).toBe('HU');
     // Float32 storage of 0.02 etc. leaves rounding below 1e-3 HU.
-    [-1000, 0, 1000, -500].forEach((v, k) => expect(hu.values[k]).toBeCloseTo(v, 3));
+    [-1000, 0, 1000, -500].forEach((v, k) => { expect(hu.values[k]).toBeCloseTo(v, 3); });
     expect(toDisplay({ grid: g, data: new Float32Array(4), quantity: 'mu' }, 'b').unit).toBe('1/mm');
   });
 
@@ -90,7 +90,7 @@ describe('profiles and regions', () => {
     const p = sampleProfile(ramp, g, { x: -4, y: 0 }, { x: 4, y: 0 });
     expect(p.distance.length).toBe(9);
     expect(p.distance.at(-1)).toBe(8);
-    p.values.forEach((v, k) => expect(v).toBeCloseTo(-4 + p.distance[k], 6));
+    p.values.forEach((v, k) => { expect(v).toBeCloseTo(-4 + p.distance[k], 6); });
   });
 
   it('region statistics match a direct computation over the pixels inside the circle', () => {

@@ -4,7 +4,7 @@ import { atIndex, fovOutline, fromPlane, planeCount, planeGrid, planeImage, plan
 import { volumeOrigin, type Volume, type VolumeGrid } from '../../web/core/volume';
 
 // A volume whose voxel value encodes its own position: value = x + 1000 y + 1e6 z (mm), so a
-// plane's pixel says which voxel it came from (design.md: voxel centres, x fastest).
+// plane's pixel says which voxel it came from (DEVELOPERS.md, "Geometry": voxel centres, x fastest).
 const grid: VolumeGrid = { nx: 6, ny: 5, nz: 4, dx: 2, dy: 3, dz: 4, cx: 1, cy: -2, cz: 6 };
 const o = volumeOrigin(grid);
 const at = (i: number, j: number, k: number) => ({ x: o.x0 + i * grid.dx, y: o.y0 + j * grid.dy, z: o.z0 + k * grid.dz });

@@ -16,7 +16,8 @@ class FakeWorker implements WorkerLike {
     this.sent.push(msg as Record<string, unknown>);
   }
   addEventListener(type: string, h: (e: Event) => void): void {
-    (this.handlers[type] ??= []).push(h);
+    this.handlers[type] ??= [];
+    this.handlers[type].push(h);
   }
   terminate(): void {
     this.terminated = true;

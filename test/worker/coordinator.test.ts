@@ -10,9 +10,11 @@ import { describe, expect, it } from 'vitest';
 import { simulate } from '../../web/cli/commands/simulate';
 import { compareImages } from '../../web/core/compare';
 import { CancelledError, InputError } from '../../web/core/errors';
-import { readImageNrrd, writeImageNrrd } from '../../web/core/formats/image-nrrd';
+import { writeImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd } from '../helpers/read-nrrd';
 import { writeVolumeNrrd } from '../../web/core/formats/volume-nrrd';
-import { readScanNrrd, writeScanNrrd } from '../../web/core/formats/scan-nrrd';
+import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
+import { readScanNrrd } from '../helpers/read-nrrd';
 import { squareGrid } from '../../web/core/image';
 import { rasterize } from '../../web/core/phantoms/ellipse';
 import { sheppLogan } from '../../web/core/phantoms/shepp-logan';
@@ -154,7 +156,7 @@ describe('an image file added to a scan', () => {
     const { scan, truth } = smallScan();
     const grid = squareGrid(64, 1.25);
     const s = await saveScan({ name: 'phantom', scan, source: { type: 'file', fileNames: [] }, reference: { grid, data: truth, muWater: 0.02 } }, store);
-    // The truth in HU: the rescale rule HU = 1000 (mu - mu_w) / mu_w (references.md), mu_water from the scan.
+    // The truth in HU: the rescale rule HU = 1000 (mu - mu_w) / mu_w (REFERENCES.md [hu-definition]), mu_water from the scan.
     const hu = truth.map((v) => (1000 * (v - 0.02)) / 0.02);
     const file = new File([(await writeImageNrrd({ grid, data: hu, quantity: 'hu' })) as BlobPart], 'earlier.nrrd');
     const r = await c.importImage(s.id, [file], undefined, {});

@@ -9,8 +9,12 @@ import type { NetworkOpener } from '../../web/core/model/runner';
 import { openNetworkOverPort } from '../../web/worker/model-client';
 import { serveModels } from '../../web/worker/model-host';
 import type { ModelPort } from '../../web/worker/model-protocol';
-import { embeddedOrtWasm } from '../../web/worker/ort-wasm-embedded';
+import { inflateOrtRuntime } from '../../web/worker/ort-runtime-pack';
+import { embeddedOrtRuntime } from '../../web/worker/ort-wasm-embedded';
 import { identityModel, openNetworkNode, smoothingModel } from '../helpers/networks';
+
+/** The runtime's .wasm bytes as the page carries them. */
+const embeddedOrtWasm = () => inflateOrtRuntime(embeddedOrtRuntime());
 
 const channels: MessageChannel[] = [];
 
@@ -60,7 +64,10 @@ describe('model worker plumbing', () => {
     // A runtime whose run waits until released, standing for a long inference.
     const slowOpen: NetworkOpener = async (bytes) => {
       const inner = await openNetworkNode(bytes);
-      return { signature: inner.signature, dispose: () => inner.dispose(), run: async (...a) => (await held, inner.run(...a)) };
+      return { signature: inner.signature, dispose: () => inner.dispose(), run: async (...a) => {
+        await held;
+        return inner.run(...a);
+      } };
     };
     let stopped = 0;
     const net = await openNetworkOverPort(connect(slowOpen), identityModel(), { onCancel: () => stopped++ });

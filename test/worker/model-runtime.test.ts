@@ -28,7 +28,10 @@ function fakeWorkers(gate?: Promise<void>) {
   const workers: FakeWorker[] = [];
   const slowOpen: NetworkOpener = async (bytes) => {
     const inner = await openNetworkNode(bytes);
-    return { signature: inner.signature, dispose: () => inner.dispose(), run: async (...a) => (await gate, inner.run(...a)) };
+    return { signature: inner.signature, dispose: () => inner.dispose(), run: async (...a) => {
+      await gate;
+      return inner.run(...a);
+    } };
   };
   const starter: ModelWorkerStarter = () => {
     const ch = new MessageChannel();

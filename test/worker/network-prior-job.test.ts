@@ -108,7 +108,7 @@ describe('network-prior step of the page', () => {
     expect(fromReport.rays).toBe(separate.rays);
     expect(fromReport.worstView).toBe(separate.worstView);
     for (const k of ['rms', 'relative', 'bias', 'maxAbs', 'worstViewRms'] as const) expect(fromReport[k]).toBeCloseTo(separate[k], 5);
-    fromReport.perViewRms.forEach((v, i) => expect(v).toBeCloseTo(separate.perViewRms[i], 5));
+    fromReport.perViewRms.forEach((v, i) => { expect(v).toBeCloseTo(separate.perViewRms[i], 5); });
   });
 
   it('a run cancelled while the output is checked stores nothing', async () => {

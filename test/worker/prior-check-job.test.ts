@@ -4,8 +4,8 @@
 // little-endian float32), in HU with mu_water of the phantom, on a grid unlike the
 // reconstruction's. Checks: the stored prior is the file's image; its stored report is the one
 // computed directly; a false disk is localized to the rays that cross it; the data-consistent
-// step removes at least 80% of the disk's contrast inside the FOV (issue 4: "the result must not
-// keep the false structure (its contrast falls by at least 80%)"); the source result is never
+// step removes at least 80% of the disk's contrast inside the FOV (the project's acceptance
+// bar for prior-guided results: a false structure's contrast falls by at least 80%); the source result is never
 // changed; bad requests and cancels store nothing.
 import 'fake-indexeddb/auto';
 import { createStore, keys as allKeys } from 'idb-keyval';

@@ -20,7 +20,7 @@ export function parseArgs(argv: string[], spec: Record<string, OptionType>, maxP
     }
     const [name, inline] = a.slice(2).split(/=(.*)/s, 2);
     const type = spec[name];
-    if (!type) throw new InputError(`unknown option --${name} (known: ${Object.keys(spec).map((k) => '--' + k).join(' ')})`);
+    if (!type) throw new InputError(`unknown option --${name} (known: ${Object.keys(spec).map((k) => `--${k}`).join(' ')})`);
     if (name in options) throw new InputError(`option --${name} given twice`);
     if (type === 'flag') {
       if (inline !== undefined) throw new InputError(`option --${name} takes no value`);

@@ -14,7 +14,7 @@ function buildDir(): URL {
 }
 
 // A CLI run calls each kernel a few times on large data: compile with the optimizing tier from
-// the start instead of V8's baseline tier (about 2x slower code, toolchain.md), which a long
+// the start instead of V8's baseline tier (about 2x slower code, measured), which a long
 // kernel call would otherwise run in until it returns. Must precede the first compile.
 setFlagsFromString('--no-liftoff');
 

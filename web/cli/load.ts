@@ -20,7 +20,7 @@ import type { OptionType, ParsedArgs } from './args';
 import { gatherFiles, gatherSources } from './gather';
 import { readJson } from './io';
 
-/** Options every command that reads a scan accepts (design.md, "Command line"). */
+/** Options every command that reads a scan accepts (README, "Command line"). */
 export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
   geometry: 'string', flat: 'string', dark: 'string', i0: 'number', 'mu-water': 'number', 'memory-limit': 'number', 'line-integrals': 'flag',
   saturation: 'number', 'bad-pixels': 'string', 'water-polynomial': 'string',

@@ -1,4 +1,4 @@
-// The rimfill command line (design.md, "Command line"): exit 0 ok, 2 bad input (one line on
+// The rimfill command line (README, "Command line"): exit 0 ok, 2 bad input (one line on
 // stderr, nothing written), 1 internal error.
 import { InputError } from '../core/errors';
 import { bench, benchHelp } from './commands/bench';
@@ -34,7 +34,7 @@ Exit codes: 0 ok, 2 bad input, 1 internal error.`;
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
   if (!name || name === '--help' || name === 'help' || name === '-h') {
-    process.stdout.write(USAGE + '\n');
+    process.stdout.write(`${USAGE}\n`);
     return name ? 0 : 2;
   }
   const cmd = COMMANDS[name];
@@ -43,13 +43,13 @@ export async function main(argv: string[]): Promise<number> {
     return 2;
   }
   if (rest.includes('--help')) {
-    process.stdout.write(cmd.help + '\n');
+    process.stdout.write(`${cmd.help}\n`);
     return 0;
   }
   try {
     const r = await cmd.run(rest);
     for (const w of r.warnings ?? []) process.stderr.write(`rimfill ${name}: warning: ${w}\n`);
-    process.stdout.write(rest.includes('--json') ? JSON.stringify(r.json) + '\n' : r.text + '\n');
+    process.stdout.write(rest.includes('--json') ? `${JSON.stringify(r.json)}\n` : `${r.text}\n`);
     return 0;
   } catch (err) {
     if (err instanceof InputError) {

@@ -8,7 +8,7 @@ import type { RegionFigures } from './compare';
 import { InputError } from './errors';
 import { ssimBorder, ssimMap } from './metrics';
 import { resampleTrilinear, sameVolumeGrid } from './resample-volume';
-import { volumeOrigin, type Volume } from './volume';
+import { volumeOrigin, type Volume, type VolumeGrid } from './volume';
 import type { VolumeInfo } from './volume-sink';
 
 export type VolumeRegion = 'volume' | 'object' | 'insideFov' | 'outsideFov';
@@ -76,79 +76,42 @@ export function compareVolumes(volume: Volume, reference: Volume, options: Volum
  * once): the reference is held whole (resampled onto the volume's grid), the volume never.
  */
 export class VolumeComparer {
-  private readonly ref: Float32Array;
+  private readonly c: SliceContext;
   private readonly notes: string[] = [];
   private readonly resampled: boolean;
-  private readonly unit: (x: number) => number;
-  private readonly range: number;
-  private readonly threshold: number;
   private readonly total = REGIONS.map(() => new Sums());
   private readonly slices: SliceFigures[] = [];
   private bad = 0;
   private readonly muWater?: number;
 
-  constructor(private readonly volume: VolumeInfo, reference: Volume, private readonly options: VolumeCompareOptions = {}) {
+  constructor(volume: VolumeInfo, reference: Volume, private readonly options: VolumeCompareOptions = {}) {
     const g = volume.grid;
     this.resampled = !sameVolumeGrid(g, reference.grid);
-    this.ref = this.resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
+    const ref = this.resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
     if (this.resampled) this.notes.push('reference resampled (trilinear) onto the volume grid');
     this.muWater = volume.muWater ?? reference.muWater;
-    const scale = this.muWater ? 1000 / this.muWater : 1, offset = this.muWater ?? 0;
-    this.unit = (x: number) => (x - offset) * scale;
+    const scale = this.muWater ? 1000 / this.muWater : 1;
     let lo = Infinity, hi = -Infinity;
-    for (let i = 0; i < this.ref.length; i++) {
-      lo = Math.min(lo, this.ref[i]);
-      hi = Math.max(hi, this.ref[i]);
+    for (let i = 0; i < ref.length; i++) {
+      lo = Math.min(lo, ref[i]);
+      hi = Math.max(hi, ref[i]);
     }
-    this.range = (hi - lo) * scale || 1;
-    this.threshold = OBJECT_THRESHOLD * (this.muWater ?? hi);
-    if (options.fovRadius !== undefined && options.fovHalfHeight === undefined) this.notes.push('no FOV half height known: the FOV cylinder spans every slice');
+    this.c = {
+      g, ref, offset: this.muWater ?? 0, scale, range: (hi - lo) * scale || 1,
+      threshold: OBJECT_THRESHOLD * (this.muWater ?? hi), fov: options.fovRadius, fovH: options.fovHalfHeight,
+    };
+    if (this.c.fov !== undefined && this.c.fovH === undefined) this.notes.push('no FOV half height known: the FOV cylinder spans every slice');
   }
 
   /** Adds slices [k0, k0 + slab.length / (nx ny)). */
   addSlices(k0: number, slab: Float32Array): void {
-    const g = this.volume.grid, nxy = g.nx * g.ny;
+    const g = this.c.g, nxy = g.nx * g.ny;
     for (let i = 0; i < slab.length; i++) if (!Number.isFinite(slab[i])) this.bad++;
     if (this.bad) return;
-    for (let k = k0; k < k0 + slab.length / nxy; k++) this.addSlice(k, slab.subarray((k - k0) * nxy, (k - k0 + 1) * nxy));
-  }
-
-  private addSlice(k: number, slice: Float32Array): void {
-    const g = this.volume.grid, nxy = g.nx * g.ny, border = ssimBorder();
-    const { x0, y0, z0 } = volumeOrigin(g);
-    const fov = this.options.fovRadius, fovH = this.options.fovHalfHeight;
-    const z = z0 + k * g.dz;
-    const inHeight = fovH === undefined || Math.abs(z) <= fovH;
-    const ref = this.ref.subarray(k * nxy, (k + 1) * nxy);
-    const a = new Float32Array(nxy), b = new Float32Array(nxy);
-    for (let i = 0; i < nxy; i++) {
-      a[i] = this.unit(slice[i]);
-      b[i] = this.unit(ref[i]);
+    for (let k = k0; k < k0 + slab.length / nxy; k++) {
+      const here = addSlice(this.c, k, slab.subarray((k - k0) * nxy, (k - k0 + 1) * nxy), this.total);
+      if (this.options.perSlice) this.slices.push({ k, z: volumeOrigin(g).z0 + k * g.dz, regions: figuresOf(here, this.c.range) });
     }
-    const map = ssimMap(a, b, g.nx, g.ny, this.range);
-    const here = REGIONS.map(() => new Sums());
-    for (let j = 0; j < g.ny; j++) {
-      const y = y0 + j * g.dy;
-      for (let i = 0; i < g.nx; i++) {
-        const at = j * g.nx + i;
-        const object = ref[at] > this.threshold;
-        const inside = fov !== undefined && inHeight && Math.hypot(x0 + i * g.dx, y) <= fov;
-        const edge = i < border || j < border || i >= g.nx - border || j >= g.ny - border;
-        const member = [true, object, object && inside, object && fov !== undefined && !inside];
-        const d = a[at] - b[at];
-        for (let r = 0; r < REGIONS.length; r++) {
-          if (!member[r]) continue;
-          for (const s of [this.total[r], here[r]]) {
-            s.add(d);
-            if (r > 0 || !edge) {
-              s.ssim += map[at];
-              s.nSsim++;
-            }
-          }
-        }
-      }
-    }
-    if (this.options.perSlice) this.slices.push({ k, z, regions: figuresOf(here, this.range) });
   }
 
   /** The figures; throws InputError when a voxel was not a finite number. */
@@ -156,14 +119,64 @@ export class VolumeComparer {
     if (this.bad) throw new InputError(`volume: ${this.bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
     return {
       unit: this.muWater ? 'HU' : '1/mm',
-      regions: figuresOf(this.total, this.range),
+      regions: figuresOf(this.total, this.c.range),
       resampled: this.resampled,
-      fovRadiusMm: this.options.fovRadius ?? null,
-      fovHalfHeightMm: this.options.fovHalfHeight ?? null,
+      fovRadiusMm: this.c.fov ?? null,
+      fovHalfHeightMm: this.c.fovH ?? null,
       ...(this.options.perSlice ? { slices: [...this.slices].sort((p, q) => p.k - q.k) } : {}),
       notes: this.notes,
     };
   }
+}
+
+interface SliceContext {
+  g: VolumeGrid;
+  ref: Float32Array;
+  /** Values shown as (mu - offset) * scale (HU when mu_water is known). */
+  offset: number;
+  scale: number;
+  range: number;
+  /** mu above which a reference voxel belongs to the object. */
+  threshold: number;
+  fov: number | undefined;
+  fovH: number | undefined;
+}
+
+/** Adds axial slice k (its voxels in `slice`) to the running totals; returns the slice's own sums. */
+function addSlice(c: SliceContext, k: number, slice: Float32Array, total: Sums[]): Sums[] {
+  const { g, fov } = c;
+  const nxy = g.nx * g.ny, border = ssimBorder();
+  const { x0, y0, z0 } = volumeOrigin(g);
+  const inHeight = c.fovH === undefined || Math.abs(z0 + k * g.dz) <= c.fovH;
+  const a = new Float32Array(nxy), b = new Float32Array(nxy);
+  for (let i = 0; i < nxy; i++) {
+    a[i] = (slice[i] - c.offset) * c.scale;
+    b[i] = (c.ref[k * nxy + i] - c.offset) * c.scale;
+  }
+  const map = ssimMap(a, b, g.nx, g.ny, c.range);
+  const here = REGIONS.map(() => new Sums());
+  for (let j = 0; j < g.ny; j++) {
+    const y = y0 + j * g.dy;
+    for (let i = 0; i < g.nx; i++) {
+      const at = j * g.nx + i;
+      const object = c.ref[k * nxy + at] > c.threshold;
+      const inside = fov !== undefined && inHeight && Math.hypot(x0 + i * g.dx, y) <= fov;
+      const edge = i < border || j < border || i >= g.nx - border || j >= g.ny - border;
+      const member = [true, object, object && inside, object && fov !== undefined && !inside];
+      const d = a[at] - b[at];
+      for (let r = 0; r < REGIONS.length; r++) {
+        if (!member[r]) continue;
+        for (const s of [total[r], here[r]]) {
+          s.add(d);
+          if (r > 0 || !edge) {
+            s.ssim += map[at];
+            s.nSsim++;
+          }
+        }
+      }
+    }
+  }
+  return here;
 }
 
 function figuresOf(sums: Sums[], range: number): Record<VolumeRegion, RegionFigures | null> {

@@ -1,6 +1,6 @@
 // Cupping: the centre-to-rim shape of a reconstruction inside the measured field of view.
-// Truncation makes FBP bright near the FOV edge and shifts it overall (references.md section 7,
-// "Cupping measure": no standard definition; the common usage compares ROI means at about
+// Truncation makes FBP bright near the FOV edge and shifts it overall (REFERENCES.md [cupping]:
+// no standard definition; the common usage compares ROI means at about
 // 0.9 R_FOV and at the centre). Rimfill reports the rim / centre ratio of the object's pixels
 // and, with a reference, the same ratio of the reference, so that an object that is not uniform
 // is judged against its own true profile; and a radial profile for plotting.

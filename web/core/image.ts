@@ -1,4 +1,4 @@
-// Image grids and images (design.md: pixel (i, j) centre x = (i - (nx-1)/2) dx + cx, i fastest).
+// Image grids and images (DEVELOPERS.md, "Geometry": pixel (i, j) centre x = (i - (nx-1)/2) dx + cx, i fastest).
 import { InputError } from './errors';
 
 /** A 2D reconstruction grid, mm. */

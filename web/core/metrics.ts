@@ -11,11 +11,6 @@ export function circleMask(grid: ImageGrid, radius: number): Uint8Array {
   return m;
 }
 
-/** Complement of a mask, optionally restricted to another mask. */
-export function invertMask(m: Uint8Array, within?: Uint8Array): Uint8Array {
-  return m.map((v, i) => (v || (within && !within[i]) ? 0 : 1));
-}
-
 /** Root-mean-square difference over the mask (all pixels when absent); NaN for an empty mask. */
 export function rmse(a: Float32Array, b: Float32Array, mask?: Uint8Array): number {
   let s = 0, n = 0;
@@ -28,7 +23,7 @@ export function rmse(a: Float32Array, b: Float32Array, mask?: Uint8Array): numbe
   return n ? Math.sqrt(s / n) : NaN;
 }
 
-/** PSNR in dB: 10 log10(L^2 / MSE), L the data range (references.md section 7). */
+/** PSNR in dB: 10 log10(L^2 / MSE), L the data range (REFERENCES.md [psnr]). */
 export function psnr(a: Float32Array, b: Float32Array, dataRange: number, mask?: Uint8Array): number {
   const e = rmse(a, b, mask);
   return 10 * Math.log10((dataRange * dataRange) / (e * e));

@@ -1,7 +1,7 @@
 // A scan: projections plus the geometry that produced them.
 import type { Geometry } from './geometry/types';
 
-/** Projections stored as [view][row][channel], channel fastest (design.md). */
+/** Projections stored as [view][row][channel], channel fastest (DEVELOPERS.md, "Geometry"). */
 export interface Scan {
   geometry: Geometry;
   /** Line integrals (dimensionless) after preprocessing. */

@@ -1,4 +1,4 @@
-// Volume grids and volumes (design.md: voxel (i, j, k) centre x = (i - (nx-1)/2) dx + cx,
+// Volume grids and volumes (DEVELOPERS.md, "Geometry": voxel (i, j, k) centre x = (i - (nx-1)/2) dx + cx,
 // likewise y and z; i fastest, then j, then k).
 import { InputError } from './errors';
 import type { Image2D, ImageGrid, ImageQuantity } from './image';

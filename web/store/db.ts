@@ -47,7 +47,7 @@ export async function deleteAll(keys: string[], store: UseStore): Promise<void> 
 
 /** All keys that start with `prefix`. */
 export async function keysWithPrefix(prefix: string, store: UseStore): Promise<string[]> {
-  const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, prefix + '\uffff'))));
+  const all = await store('readonly', (s) => promisifyRequest(s.getAllKeys(IDBKeyRange.bound(prefix, `${prefix}\uffff`))));
   return all.map(String);
 }
 
@@ -123,6 +123,8 @@ export async function streamTransaction<T>(store: UseStore, body: (tx: StreamTx)
 export interface DeferredTx {
   /** Writes in the transaction (opened by the first call). */
   put(key: string, value: unknown): Promise<void>;
+  /** Reads in the transaction (opened by the first call). */
+  get(key: string): Promise<unknown>;
   /** Commits what was written (opens the transaction first when nothing was). */
   commit(): Promise<void>;
   /** Drops everything written; the transaction's own failure, when it had one, wins. */
@@ -148,11 +150,14 @@ export function deferredTransaction(store: UseStore): DeferredTx {
     tx(t);
     await end;
   }));
+  /** The transaction, once open (a failure to open rejects). */
+  const opened = () => Promise.race([ready, start().then(() => ready)]);
   return {
     async put(key, value) {
-      void start().catch(() => undefined);
-      const t = await Promise.race([ready, start().then(() => ready)]);
-      await t.put(key, value);
+      await (await opened()).put(key, value);
+    },
+    async get(key) {
+      return (await opened()).get(key);
     },
     async commit() {
       const done = start();

@@ -1,6 +1,6 @@
 // Users' networks in storage: description and ONNX bytes written in one transaction (a model
 // that failed its import check is never stored), listed from their small descriptions, deleted.
-import { get, getMany, type UseStore } from 'idb-keyval';
+import { getMany, type UseStore } from 'idb-keyval';
 import type { ModelInfo } from '../core/model/description';
 import type { ModelSignature } from '../core/model/signature';
 import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
@@ -43,11 +43,6 @@ export async function listModels(store: UseStore = pageStore()): Promise<ModelMe
   const ks = await keysWithPrefix('model/', store);
   const values = await getMany(ks, store);
   return values.map((v, i) => checkRecord<ModelMeta>(v, 'model', ks[i])).sort((a, b) => a.createdAt - b.createdAt);
-}
-
-/** One model's description. */
-export async function getModelMeta(id: string, store: UseStore = pageStore()): Promise<ModelMeta> {
-  return checkRecord<ModelMeta>(await get(keys.model(id), store), 'model', keys.model(id));
 }
 
 /** A stored model ready to open: its description record and ONNX bytes. */

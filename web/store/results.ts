@@ -1,11 +1,12 @@
 // Reconstructions in storage: description and pixels written in one transaction.
-import { get, getMany, update, type UseStore } from 'idb-keyval';
+import { get, getMany, type UseStore } from 'idb-keyval';
 import type { Image2D } from '../core/image';
 import type { Volume } from '../core/volume';
-import { deleteAll, keysWithPrefix, pageStore, putAll } from './db';
+import { keysWithPrefix, pageStore } from './db';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
 import { checkName, newId } from './scans';
-import { loadVolume, slabKeys, volumeEntries, type StoredVolumeInfo } from './volumes';
+import { patchRecord, putResultEntries, transact } from './transact';
+import { loadVolume, slabPrefix, volumeEntries, type StoredVolumeInfo } from './volumes';
 
 /** A volume whose slabs were already written (SlabWriter) under result id `id`. */
 export interface StoredVolume {
@@ -16,16 +17,16 @@ export interface StoredVolume {
 export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius' | 'volume'>;
 
 /**
- * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction;
- * returns its description.
+ * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction,
+ * provided its scan is still stored; returns its description.
  */
 export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume): Promise<ResultMeta> {
   const { meta, entries } = resultRecords(input, image, {}, volume);
-  await putAll(entries, store);
+  await putResultEntries(input.scanId, entries, store);
   return meta;
 }
 
-/** The records of a new result (for writing several in one transaction with putAll). */
+/** The records of a new result (several are written in one transaction with putResultEntries). */
 export function resultRecords(
   input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}, volume?: Volume | StoredVolume,
 ): { meta: ResultMeta; entries: Array<[string, unknown]> } {
@@ -80,13 +81,15 @@ export async function getResultMeta(id: string, store: UseStore = pageStore()): 
   return checkRecord<ResultMeta>(await get(keys.result(id), store), 'result', keys.result(id));
 }
 
-/** Renames a result. */
-export async function renameResult(id: string, name: string, store: UseStore = pageStore()): Promise<void> {
+/** Renames a result (read and write in one transaction). */
+export async function renameResult(id: string, name: string, store: UseStore = pageStore()): Promise<ResultMeta> {
   const n = checkName(name);
-  await update(keys.result(id), (old) => ({ ...checkRecord<ResultMeta>(old, 'result', keys.result(id)), name: n }), store);
+  return transact(store, (tx) => patchRecord<ResultMeta>(tx, keys.result(id), 'result', (old) => ({ ...old, name: n })));
 }
 
-/** Deletes a result (and its volume's slabs). */
+/** Deletes a result (and its volume's slabs), found and deleted in one transaction. */
 export async function deleteResult(id: string, store: UseStore = pageStore()): Promise<void> {
-  await deleteAll([keys.result(id), keys.resultData(id), ...(await slabKeys('result', id, store))], store);
+  await transact(store, async (tx) => {
+    for (const k of [keys.result(id), keys.resultData(id), ...(await tx.keys(slabPrefix('result', id)))]) tx.delete(k);
+  });
 }

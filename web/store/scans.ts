@@ -1,6 +1,6 @@
 // Scans in storage: saved with their projections in one transaction, listed from their small
 // descriptions, renamed, re-described (geometry) and deleted together with their results.
-import { get, getMany, update, type UseStore } from 'idb-keyval';
+import { get, getMany, type UseStore } from 'idb-keyval';
 import { InputError } from '../core/errors';
 import { viewCount, type Geometry } from '../core/geometry/types';
 import { checkGeometryMatchesData, validateGeometry } from '../core/geometry/validate';
@@ -10,10 +10,11 @@ import { asSource, readWholeScan, viewSize, type ProjectionSource } from '../cor
 import type { RunHooks } from '../core/run-hooks';
 import { throwIfCancelled } from '../core/errors';
 import type { Volume } from '../core/volume';
-import { deleteAll, keysWithPrefix, pageStore, putAll, streamTransaction } from './db';
+import { keysWithPrefix, pageStore, streamTransaction } from './db';
 import { chunkKey, chunkRecord, PreviewRow, projectionLayout, storedProjections } from './projections';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ScanData, type ScanMeta, type ScanSource, type StoredImage } from './records';
-import { loadVolume, slabKeys, volumeEntries } from './volumes';
+import { patchRecord, transact } from './transact';
+import { loadVolume, slabPrefix, volumeEntries } from './volumes';
 
 /** A new record id (random, sortable enough for display). */
 export function newId(): string {
@@ -135,35 +136,39 @@ export async function loadScan(id: string, store: UseStore = pageStore(), signal
   return { meta, scan, reference };
 }
 
-/** Renames a scan. */
-export async function renameScan(id: string, name: string, store: UseStore = pageStore()): Promise<void> {
+/** Renames a scan (read and write in one transaction). */
+export async function renameScan(id: string, name: string, store: UseStore = pageStore()): Promise<ScanMeta> {
   const n = checkName(name);
-  await update(keys.scan(id), (old) => ({ ...checkRecord<ScanMeta>(old, 'scan', keys.scan(id)), name: n }), store);
+  return transact(store, (tx) => patchRecord<ScanMeta>(tx, keys.scan(id), 'scan', (old) => ({ ...old, name: n })));
 }
 
 /**
  * Replaces a scan's geometry after validating it against the stored data: a wrong value throws
- * InputError naming the field, and nothing changes.
+ * InputError naming the field, and nothing changes. Read and write in one transaction.
  */
 export async function setScanGeometry(id: string, geometry: unknown, store: UseStore = pageStore()): Promise<ScanMeta> {
   const g: Geometry = validateGeometry(geometry);
-  const meta = await getScanMeta(id, store);
-  const d = meta.geometry.detector;
-  checkGeometryMatchesData(g, d.channels, d.rows, viewCount(meta.geometry));
-  const next = { ...meta, geometry: g };
-  await putAll([[keys.scan(id), next]], store);
-  return next;
+  return transact(store, (tx) => patchRecord<ScanMeta>(tx, keys.scan(id), 'scan', (old) => {
+    const d = old.geometry.detector;
+    checkGeometryMatchesData(g, d.channels, d.rows, viewCount(old.geometry));
+    return { ...old, geometry: g };
+  }));
 }
 
-/** Deletes a scan, its projections, reference volume and every result made from it (with their volumes), in one transaction. */
+/**
+ * Deletes a scan, its projections, reference volume and every result made from it (with their
+ * volumes), finding them and deleting them in one transaction.
+ */
 export async function deleteScan(id: string, store: UseStore = pageStore()): Promise<void> {
-  const resultKeys = await keysWithPrefix('result/', store);
-  const metas = await getMany(resultKeys, store);
-  const doomed: string[] = [keys.scan(id), keys.scanData(id), keys.scanPreview(id), ...(await keysWithPrefix(keys.scanChunks(id), store)), ...(await slabKeys('scan', id, store))];
-  for (let i = 0; i < metas.length; i++) {
-    if ((metas[i] as { scanId?: string } | undefined)?.scanId !== id) continue;
-    const rid = resultKeys[i].slice('result/'.length);
-    doomed.push(keys.result(rid), keys.resultData(rid), ...(await slabKeys('result', rid, store)));
-  }
-  await deleteAll(doomed, store);
+  await transact(store, async (tx) => {
+    const resultKeys = await tx.keys('result/');
+    const metas = await tx.getMany(resultKeys);
+    const doomed: string[] = [keys.scan(id), keys.scanData(id), keys.scanPreview(id), ...(await tx.keys(keys.scanChunks(id))), ...(await tx.keys(slabPrefix('scan', id)))];
+    for (let i = 0; i < metas.length; i++) {
+      if ((metas[i] as { scanId?: string } | undefined)?.scanId !== id) continue;
+      const rid = resultKeys[i].slice('result/'.length);
+      doomed.push(keys.result(rid), keys.resultData(rid), ...(await tx.keys(slabPrefix('result', rid))));
+    }
+    for (const k of doomed) tx.delete(k);
+  });
 }

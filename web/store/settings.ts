@@ -1,7 +1,8 @@
 // Page settings (one small record).
 import { get, type UseStore } from 'idb-keyval';
-import { pageStore, putAll } from './db';
+import { pageStore } from './db';
 import { checkRecord, keys, SCHEMA_VERSION, type Settings } from './records';
+import { transact } from './transact';
 
 const DEFAULTS: Settings = { schema: SCHEMA_VERSION, kind: 'settings', demoCreated: false };
 
@@ -11,9 +12,12 @@ export async function loadSettings(store: UseStore = pageStore()): Promise<Setti
   return v === undefined ? { ...DEFAULTS } : checkRecord<Settings>(v, 'settings', keys.settings);
 }
 
-/** Changes some settings. */
+/** Changes some settings (read and write in one transaction). */
 export async function saveSettings(change: Partial<Omit<Settings, 'schema' | 'kind'>>, store: UseStore = pageStore()): Promise<Settings> {
-  const next = { ...(await loadSettings(store)), ...change };
-  await putAll([[keys.settings, next]], store);
-  return next;
+  return transact(store, async (tx) => {
+    const v = await tx.get(keys.settings);
+    const next: Settings = { ...(v === undefined ? DEFAULTS : checkRecord<Settings>(v, 'settings', keys.settings)), ...change };
+    tx.put(keys.settings, next);
+    return next;
+  });
 }

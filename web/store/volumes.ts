@@ -5,7 +5,7 @@
 // nothing) and checked on reading (kind, schema, owner, position and size).
 import { getMany, type UseStore } from 'idb-keyval';
 import type { Volume, VolumeGrid } from '../core/volume';
-import { keysWithPrefix, pageStore } from './db';
+import { pageStore } from './db';
 import { checkRecord, RecordError, SCHEMA_VERSION, type Schema } from './records';
 
 /** Largest slab, in voxels (16 MiB of float32). */
@@ -43,9 +43,9 @@ export function slabKey(owner: VolumeOwner, id: string, index: number): string {
   return `${PREFIX[owner]}/${id}/${String(index).padStart(5, '0')}`;
 }
 
-/** Keys of every stored slab of a volume. */
-export function slabKeys(owner: VolumeOwner, id: string, store: UseStore = pageStore()): Promise<string[]> {
-  return keysWithPrefix(`${PREFIX[owner]}/${id}/`, store);
+/** The key prefix of every slab of a volume. */
+export function slabPrefix(owner: VolumeOwner, id: string): string {
+  return `${PREFIX[owner]}/${id}/`;
 }
 
 /** The description and slab records of a volume, ready for putAll with its owner's record. */

@@ -2,11 +2,11 @@ import { html, LitElement, css, nothing } from 'lit';
 import { CancelledError, InputError } from '../core/errors';
 import type { Comparison } from '../core/compare';
 import type { Image2D, ImageGrid } from '../core/image';
-import { detectTruncation, type TruncationReport } from '../core/truncation/detect';
+import type { TruncationReport } from '../core/truncation/detect';
 import { requestPersistence, StorageFullError, storageUse, type StorageUse } from '../store/quota';
 import type { ResultMeta, ScanMeta } from '../store/records';
-import { deleteResult, listResults, loadResultImage } from '../store/results';
-import { deleteScan, listScans, loadScan, renameScan, setScanGeometry } from '../store/scans';
+import { listResults, loadResultImage } from '../store/results';
+import { listScans } from '../store/scans';
 import { loadSettings } from '../store/settings';
 import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
@@ -30,7 +30,7 @@ type Tab = 'scan' | 'reconstruct' | 'images' | 'prior';
 
 interface LoadedScan {
   id: string;
-  /** One detector row (the middle one), [view][channel]. */
+  /** The analysed detector row (the one nearest the orbit plane for cone beams), [view][channel]. */
   projections: Float32Array;
   report: TruncationReport;
   truth?: Image2D;
@@ -181,14 +181,11 @@ export class AppShell extends LitElement {
     const mine = this.results.filter((r) => r.scanId === id);
     this.compareIds = mine.length ? [mine[mine.length - 1].id] : [];
     this.comparisons = new Map();
-    const { meta, scan, reference } = await loadScan(id);
+    // The coordinator reads the projections and analyses them (the same row and report as
+    // `rimfill inspect`); only the analysed row and the reference image come to the page.
+    const { sinogram, report, reference } = await this.client.scanOverview(id);
     if (this.selectedScanId !== id) return;
-    const d = meta.geometry.detector;
-    const views = scan.data.length / (d.channels * d.rows);
-    const mid = Math.floor(d.rows / 2);
-    const row = d.rows === 1 ? scan.data : Float32Array.from({ length: views * d.channels }, (_, k) => scan.data[(Math.floor(k / d.channels) * d.rows + mid) * d.channels + (k % d.channels)]);
-    const report = detectTruncation({ geometry: { ...meta.geometry, detector: { ...d, rows: 1 } }, data: row, muWater: meta.muWater });
-    this.loaded = { id, projections: row, report, truth: reference, referenceGrid: reference?.grid };
+    this.loaded = { id, projections: sinogram, report, truth: reference, referenceGrid: reference?.grid };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);
   }
@@ -198,7 +195,7 @@ export class AppShell extends LitElement {
     if (!missing.length) return;
     const loaded = await Promise.all(missing.map((id) => loadResultImage(id)));
     const next = new Map(this.images);
-    loaded.forEach((l) => next.set(l.meta.id, l.image));
+    loaded.forEach((l) => { next.set(l.meta.id, l.image); });
     this.images = next;
   }
 
@@ -251,6 +248,17 @@ export class AppShell extends LitElement {
     }
   }
 
+  /**
+   * Runs an asynchronous action of the page (an event handler's work): a failure is shown in the
+   * page's alert, prefixed with what was being done, and never vanishes.
+   */
+  private act(what: string, work: () => Promise<unknown>): void {
+    work().catch((err) => {
+      this.alert = `${what}: ${message(err)}`;
+    });
+  }
+
+  /** A change of the stored library through the coordinator; the library is read again either way. */
   private async storeAction(action: () => Promise<unknown>) {
     try {
       await action();
@@ -262,7 +270,7 @@ export class AppShell extends LitElement {
 
   private async deleteScan(id: string) {
     for (const j of this.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.cancelJob(j.key);
-    await this.storeAction(() => deleteScan(id));
+    await this.storeAction(() => this.client.deleteScan(id));
     if (this.selectedScanId === id) {
       this.loaded = undefined;
       this.selectedScanId = '';
@@ -272,7 +280,7 @@ export class AppShell extends LitElement {
 
   private async applyGeometry(geometry: unknown) {
     try {
-      await setScanGeometry(this.selectedScanId, geometry);
+      await this.client.setScanGeometry(this.selectedScanId, geometry);
       this.geometryError = '';
       await this.refreshLibrary();
       await this.selectScan(this.selectedScanId);
@@ -306,11 +314,11 @@ export class AppShell extends LitElement {
       signal: controller.signal,
       onProgress: (p) => this.patchJob(next.key, { fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
     }).then(
-      (result) => this.jobDone(next.key, result),
+      (result) => this.jobDone(next.key, result).catch((err) => (this.alert = `The finished run could not be shown: ${message(err)}`)),
       (err) => this.patchJob(next.key, err instanceof CancelledError ? { state: 'cancelled' } : { state: 'failed', error: message(err) }),
     ).finally(() => {
       this.controllers.delete(next.key);
-      this.storageUseRefresh();
+      this.act('Storage use could not be read', () => this.storageUseRefresh());
       this.pump();
     });
   }
@@ -385,7 +393,7 @@ export class AppShell extends LitElement {
   private scanTab(scan: ScanMeta) {
     return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
         .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .geometryError=${this.geometryError}
-        @geometry-apply=${(e: CustomEvent) => this.applyGeometry(e.detail.geometry)}></rf-scan-view>`;
+        @geometry-apply=${(e: CustomEvent) => this.act('The geometry could not be applied', () => this.applyGeometry(e.detail.geometry))}></rf-scan-view>`;
   }
 
   /** Stored results a recipe of `scan` may take as its prior: volumes for a cone-beam scan, else images; any scan's (the same object scanned before). */
@@ -407,14 +415,14 @@ export class AppShell extends LitElement {
             @job-cancel=${(e: CustomEvent) => this.cancelJob(e.detail.key)}
             @job-remove=${(e: CustomEvent) => (this.jobs = this.jobs.filter((j) => j.key !== e.detail.key))}
             @queue-clear=${() => (this.jobs = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting'))}
-            @job-show=${async (e: CustomEvent) => {
+            @job-show=${(e: CustomEvent) => this.act('The result could not be shown', async () => {
               const job = this.jobs.find((j) => j.key === e.detail.key);
               if (job?.resultId) {
                 if (job.scanId !== this.selectedScanId) await this.selectScan(job.scanId);
                 if (!this.compareIds.includes(job.resultId)) await this.toggleResult(job.resultId);
                 this.tab = 'images';
               }
-            }}></rf-run-queue></div>
+            })}></rf-run-queue></div>
       </div>`;
   }
 
@@ -422,25 +430,25 @@ export class AppShell extends LitElement {
     return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images}
       .truth=${this.loaded?.id === scan.id ? this.loaded.truth : undefined} .referenceId=${this.referenceId} .comparisons=${this.comparisons}
       .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)} ?cone=${scan.geometry.kind === 'cone'} .imageImport=${this.imageImport}
-      @image-files-chosen=${(e: CustomEvent) => this.importImage(scan.id, e.detail.files, e.detail.slice)}
+      @image-files-chosen=${(e: CustomEvent) => this.act('The image could not be added', () => this.importImage(scan.id, e.detail.files, e.detail.slice))}
       @image-import-error-dismiss=${() => (this.imageImport = { ...this.imageImport, error: '' })}
       .muWater=${scan.muWater} .calibration=${scan.calibration} .calibrating=${this.calibrating}
-      @calibrate=${(e: CustomEvent) => this.calibrate(scan.id, e.detail)}
+      @calibrate=${(e: CustomEvent) => this.act('The calibration failed', () => this.calibrate(scan.id, e.detail))}
       @calibrate-error-dismiss=${() => (this.calibrating = { ...this.calibrating, error: '' })}
-      @result-toggle=${(e: CustomEvent) => this.toggleResult(e.detail.id)}
-      @result-delete=${(e: CustomEvent) => this.storeAction(async () => {
-        await deleteResult(e.detail.id);
+      @result-toggle=${(e: CustomEvent) => this.act('The result could not be shown', () => this.toggleResult(e.detail.id))}
+      @result-delete=${(e: CustomEvent) => this.act('The library could not be read', () => this.storeAction(async () => {
+        await this.client.deleteResult(e.detail.id);
         this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
-      })}
-      @reference-change=${(e: CustomEvent) => this.setReference(e.detail.id)}></rf-results-view>
+      }))}
+      @reference-change=${(e: CustomEvent) => this.act('The reference could not be loaded', () => this.setReference(e.detail.id))}></rf-results-view>
       ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .load=${volumeLoader(scan.id)}></rf-volume-view>` : nothing}`;
   }
 
   private priorTab(scan: ScanMeta) {
     return html`<rf-prior-workbench .client=${this.client} .scan=${scan} .results=${this.results.filter((r) => r.scanId === scan.id)}
       .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?active=${this.tab === 'prior'}
-      @library-changed=${() => this.refreshLibrary()}></rf-prior-workbench>`;
+      @library-changed=${() => this.act('The library could not be read', () => this.refreshLibrary())}></rf-prior-workbench>`;
   }
 
   render() {
@@ -465,14 +473,14 @@ export class AppShell extends LitElement {
           <rf-scan-library .scans=${this.scans} .selectedId=${this.selectedScanId} ?importing=${this.importing} .importError=${this.importError}
             ?demoBusy=${this.demoBusy} ?coneDemoBusy=${this.coneDemoBusy} .coneDemoFraction=${this.coneDemoFraction} .storage=${this.storage}
             .libraryBytes=${this.scans.reduce((a, s) => a + s.bytes, 0) + this.results.reduce((a, r) => a + r.bytes, 0)}
-            @scan-select=${(e: CustomEvent) => this.selectScan(e.detail.id)}
-            @scan-rename=${(e: CustomEvent) => this.storeAction(() => renameScan(e.detail.id, e.detail.name))}
-            @scan-delete=${(e: CustomEvent) => this.deleteScan(e.detail.id)}
-            @files-chosen=${(e: CustomEvent) => this.importFiles(e.detail.files)}
+            @scan-select=${(e: CustomEvent) => this.act('The scan could not be opened', () => this.selectScan(e.detail.id))}
+            @scan-rename=${(e: CustomEvent) => this.act('The library could not be read', () => this.storeAction(() => this.client.renameScan(e.detail.id, e.detail.name)))}
+            @scan-delete=${(e: CustomEvent) => this.act('The scan could not be deleted', () => this.deleteScan(e.detail.id))}
+            @files-chosen=${(e: CustomEvent) => this.act('The import failed', () => this.importFiles(e.detail.files))}
             @import-error-dismiss=${() => (this.importError = '')}
-            @demo-request=${() => this.createDemo()}
-            @cone-demo-request=${() => this.createConeDemo()}
-            @persist-request=${async () => { await requestPersistence(); await this.storageUseRefresh(); }}></rf-scan-library>
+            @demo-request=${() => this.act('The demo scan could not be made', () => this.createDemo())}
+            @cone-demo-request=${() => this.act('The cone-beam demo could not be made', () => this.createConeDemo())}
+            @persist-request=${() => this.act('Persistent storage could not be requested', async () => { await requestPersistence(); await this.storageUseRefresh(); })}></rf-scan-library>
         </aside>
         <main>
           <nav role="tablist">${tabs.map(([t, label, extra]) => html`<button role="tab" id=${`tab-${t}`} aria-selected=${this.tab === t} @click=${() => (this.tab = t)}>${label}${extra}</button>`)}</nav>

@@ -110,7 +110,7 @@ export class ImageViewer extends LitElement {
       this.resize.observe(panel);
       this.observed = panel;
     }
-    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = this.colour));
+    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => { d.style.background = this.colour; });
     this.renderRoot.querySelector<HTMLElement>('.panel')?.style.setProperty('--swatch', this.colour);
     this.draw();
   }
@@ -144,46 +144,9 @@ export class ImageViewer extends LitElement {
     ctx.imageSmoothingEnabled = s * g.dx < 3;
     ctx.drawImage(this.windowed(), corner.x, corner.y, g.nx * g.dx * s, g.ny * g.dy * s);
     const at = (p: Point) => toScreen(p, g, w, h, this.view);
-    if (this.showFov && (this.image.fovRadius || this.image.outline)) {
-      ctx.setLineDash([6, 5]);
-      ctx.strokeStyle = 'rgba(111, 179, 224, 0.85)';
-      ctx.lineWidth = 1.2;
-      ctx.beginPath();
-      if (this.image.fovRadius) {
-        const c = at({ x: 0, y: 0 });
-        ctx.arc(c.x, c.y, this.image.fovRadius * s, 0, 2 * Math.PI);
-      }
-      this.image.outline?.forEach((p, i) => {
-        const q = at(p);
-        if (i) ctx.lineTo(q.x, q.y);
-        else ctx.moveTo(q.x, q.y);
-      });
-      if (this.image.outline) ctx.closePath();
-      ctx.stroke();
-      ctx.setLineDash([]);
-    }
-    if (this.crosshair) {
-      const c = at(this.crosshair);
-      ctx.strokeStyle = 'rgba(255, 176, 64, 0.75)';
-      ctx.lineWidth = 1;
-      ctx.beginPath();
-      ctx.moveTo(0, c.y);
-      ctx.lineTo(w, c.y);
-      ctx.moveTo(c.x, 0);
-      ctx.lineTo(c.x, h);
-      ctx.stroke();
-    }
-    if (this.line) {
-      const a = at(this.line.p0), b = at(this.line.p1);
-      ctx.strokeStyle = '#ffd24a';
-      ctx.lineWidth = 1.5;
-      ctx.beginPath();
-      ctx.moveTo(a.x, a.y);
-      ctx.lineTo(b.x, b.y);
-      ctx.stroke();
-      ctx.fillStyle = '#ffd24a';
-      for (const q of [a, b]) ctx.fillRect(q.x - 2.5, q.y - 2.5, 5, 5);
-    }
+    if (this.showFov && (this.image.fovRadius || this.image.outline)) this.drawFov(ctx, at, s);
+    if (this.crosshair) drawCrosshair(ctx, at(this.crosshair), w, h);
+    if (this.line) drawLine(ctx, at(this.line.p0), at(this.line.p1));
     if (this.region) {
       const c = at(this.region.centre);
       ctx.strokeStyle = '#4ee0d0';
@@ -192,21 +155,27 @@ export class ImageViewer extends LitElement {
       ctx.arc(c.x, c.y, this.region.radius * s, 0, 2 * Math.PI);
       ctx.stroke();
     }
-    if (this.cursor) {
-      const c = at(this.cursor);
-      ctx.strokeStyle = 'rgba(255,255,255,0.8)';
-      ctx.lineWidth = 1;
-      ctx.beginPath();
-      ctx.moveTo(c.x - 7, c.y);
-      ctx.lineTo(c.x - 2, c.y);
-      ctx.moveTo(c.x + 2, c.y);
-      ctx.lineTo(c.x + 7, c.y);
-      ctx.moveTo(c.x, c.y - 7);
-      ctx.lineTo(c.x, c.y - 2);
-      ctx.moveTo(c.x, c.y + 2);
-      ctx.lineTo(c.x, c.y + 7);
-      ctx.stroke();
+    if (this.cursor) drawCursor(ctx, at(this.cursor));
+  }
+
+  /** The measured field of view (circle) and the object's outline, dashed. */
+  private drawFov(ctx: CanvasRenderingContext2D, at: (p: Point) => Point, s: number) {
+    ctx.setLineDash([6, 5]);
+    ctx.strokeStyle = 'rgba(111, 179, 224, 0.85)';
+    ctx.lineWidth = 1.2;
+    ctx.beginPath();
+    if (this.image.fovRadius) {
+      const c = at({ x: 0, y: 0 });
+      ctx.arc(c.x, c.y, this.image.fovRadius * s, 0, 2 * Math.PI);
     }
+    this.image.outline?.forEach((p, i) => {
+      const q = at(p);
+      if (i) ctx.lineTo(q.x, q.y);
+      else ctx.moveTo(q.x, q.y);
+    });
+    if (this.image.outline) ctx.closePath();
+    ctx.stroke();
+    ctx.setLineDash([]);
   }
 
   private point(e: PointerEvent | WheelEvent | MouseEvent): { q: Point; p: Point } {
@@ -273,3 +242,39 @@ export class ImageViewer extends LitElement {
   }
 }
 customElements.define('rf-image-viewer', ImageViewer);
+
+/** The linked cursor of the other panels: a horizontal and a vertical line through c (screen px). */
+function drawCrosshair(ctx: CanvasRenderingContext2D, c: Point, w: number, h: number) {
+  ctx.strokeStyle = 'rgba(255, 176, 64, 0.75)';
+  ctx.lineWidth = 1;
+  ctx.beginPath();
+  ctx.moveTo(0, c.y);
+  ctx.lineTo(w, c.y);
+  ctx.moveTo(c.x, 0);
+  ctx.lineTo(c.x, h);
+  ctx.stroke();
+}
+
+/** The profile line from a to b with its end handles (screen px). */
+function drawLine(ctx: CanvasRenderingContext2D, a: Point, b: Point) {
+  ctx.strokeStyle = '#ffd24a';
+  ctx.lineWidth = 1.5;
+  ctx.beginPath();
+  ctx.moveTo(a.x, a.y);
+  ctx.lineTo(b.x, b.y);
+  ctx.stroke();
+  ctx.fillStyle = '#ffd24a';
+  for (const q of [a, b]) ctx.fillRect(q.x - 2.5, q.y - 2.5, 5, 5);
+}
+
+/** This panel's cursor: a small open cross at c (screen px). */
+function drawCursor(ctx: CanvasRenderingContext2D, c: Point) {
+  ctx.strokeStyle = 'rgba(255,255,255,0.8)';
+  ctx.lineWidth = 1;
+  ctx.beginPath();
+  for (const [dx, dy] of [[-1, 0], [1, 0], [0, -1], [0, 1]]) {
+    ctx.moveTo(c.x + 2 * dx, c.y + 2 * dy);
+    ctx.lineTo(c.x + 7 * dx, c.y + 7 * dy);
+  }
+  ctx.stroke();
+}

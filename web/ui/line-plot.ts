@@ -46,7 +46,7 @@ export class LinePlot extends LitElement {
   }
 
   updated() {
-    this.renderRoot.querySelectorAll<HTMLElement>('.swatch').forEach((el) => (el.style.background = el.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('.swatch').forEach((el) => { el.style.background = el.dataset.colour ?? ''; });
   }
 
   private path(s: PlotSeries, sx: (v: number) => number, sy: (v: number) => number): string {

@@ -57,7 +57,7 @@ export class MetricsTable extends LitElement {
   }
 
   updated() {
-    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = d.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => { d.style.background = d.dataset.colour ?? ''; });
   }
 
   render() {

@@ -95,7 +95,7 @@ export class PriorRunView extends LitElement {
 
   updated() {
     // Colours go through the CSSOM: the page's policy forbids inline style attributes.
-    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = d.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => { d.style.background = d.dataset.colour ?? ''; });
   }
 
   /** What the right panel shows: the data-consistent result, or its difference from the prior. */

@@ -3,12 +3,12 @@ import { CancelledError, InputError } from '../core/errors';
 import { anglesRad } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
 import { loadConsistency } from '../store/consistency';
-import { deleteModel, listModels } from '../store/models';
+import { listModels } from '../store/models';
 import { StorageFullError } from '../store/quota';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import { loadResultImage } from '../store/results';
 import type { EngineClient } from '../worker/client';
-import type { NetworkPriorRequest } from '../worker/network-prior-job';
+import type { NetworkPriorRequest } from '../worker/app-protocol';
 import { toDisplay } from './logic/display';
 import { remainingMs } from './logic/time-left';
 import type { ChosenPrior, PriorJobState } from './prior-run-form';
@@ -136,7 +136,7 @@ export class PriorWorkbench extends LitElement {
 
   private async deleteModel(id: string) {
     try {
-      await deleteModel(id);
+      await this.client.deleteModel(id);
     } catch (err) {
       this.importError = `The network could not be deleted: ${message(err)}`;
     }

@@ -29,7 +29,7 @@ export class RegionTable extends LitElement {
   }
 
   updated() {
-    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => (d.style.background = d.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('.dot').forEach((d) => { d.style.background = d.dataset.colour ?? ''; });
   }
 
   render() {

@@ -69,7 +69,7 @@ export class ResultList extends LitElement {
   }
 
   updated() {
-    this.renderRoot.querySelectorAll<HTMLElement>('li[data-colour]').forEach((li) => li.style.setProperty('--swatch', li.dataset.colour ?? ''));
+    this.renderRoot.querySelectorAll<HTMLElement>('li[data-colour]').forEach((li) => { li.style.setProperty('--swatch', li.dataset.colour ?? ''); });
   }
 
   render() {

@@ -325,7 +325,7 @@ export class ResultsView extends LitElement {
           <h2>Export</h2>
           <div class="exports">
             <span class="muted">Highlighted image${active ? html` (<strong>${active.display.label}</strong>)` : nothing}:</span>
-            <button id="export-nrrd-hu" ?disabled=${!active || active.display.unit !== 'HU' || differenceShown} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
+            <button id="export-nrrd-hu" ?disabled=${active?.display.unit !== 'HU' || differenceShown} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
             <button id="export-nrrd-mu" ?disabled=${!active || differenceShown} @click=${() => this.exportImage('nrrd-mu')}>NRRD in µ (1/mm)</button>
             <button id="export-png" ?disabled=${!active} @click=${() => this.exportImage('png')}>PNG at this window</button>
             <span class="muted">All shown:</span>

@@ -145,7 +145,10 @@ export class VolumeView extends LitElement {
     const v = this.volume;
     const choice = this.choices.find((c) => c.key === this.key);
     if (!v || !choice) return;
-    void writeVolumeNrrd(v).then((bytes) => saveFile(bytes as BlobPart, fileName(`${choice.label}-mu`, 'nrrd'), 'application/octet-stream'));
+    writeVolumeNrrd(v).then(
+      (bytes) => saveFile(bytes as BlobPart, fileName(`${choice.label}-mu`, 'nrrd'), 'application/octet-stream'),
+      (err) => (this.error = `The volume could not be saved: ${err instanceof Error ? err.message : String(err)}`),
+    );
   }
 
   private planeView(plane: Plane) {

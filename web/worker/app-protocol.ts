@@ -1,14 +1,19 @@
 // Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
 // id; the coordinator answers with progress messages and then exactly one done or error.
-// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB.
+// Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB; the
+// page gets only what it draws (a scan's analysed sinogram row, images), transferred.
 import type { Comparison } from '../core/compare';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
+import type { LibraryReplies, LibraryRequest } from './library-ops';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 
-export const APP_PROTOCOL_VERSION = 6;
+export const APP_PROTOCOL_VERSION = 7;
+
+export type { CalibrationRequest, LibraryRequest, NetworkPriorRequest, PriorCheckRequest };
+export type { ScanOverview } from './library-ops';
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
@@ -24,10 +29,11 @@ export type AppRequest =
   | { op: 'calibrate'; request: CalibrationRequest }
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
-  | { op: 'prior-check'; request: PriorCheckRequest };
+  | { op: 'prior-check'; request: PriorCheckRequest }
+  | LibraryRequest;
 
 /** What each request resolves to. */
-export interface AppReplies {
+export interface AppReplies extends LibraryReplies {
   import: ScanMeta;
   demo: ScanMeta;
   'demo-cone': ScanMeta;

@@ -2,18 +2,22 @@
 // of one of the scan's results that the user marks as water or another material of known HU
 // (core/preprocess/hu-calibration.ts). The value is stored with the scan and used by every HU
 // figure: each result of the scan takes it, and their comparisons with the scan's reference
-// (which are in HU) are computed again. Everything is written in one transaction; a value that
-// cannot be right is refused and nothing changes.
+// (which are in HU) are computed again. Everything is written in one transaction that reads the
+// records again (changes made meanwhile survive); a value that cannot be right is refused and
+// nothing changes.
 import { compareImages } from '../core/compare';
 import { compareVolumes } from '../core/compare-volume';
 import { InputError, throwIfCancelled } from '../core/errors';
 import { checkMuWater, measureMuWater, type WaterMeasurement } from '../core/preprocess/hu-calibration';
 import type { RunHooks } from '../core/run-hooks';
+import type { Image2D } from '../core/image';
 import type { Volume } from '../core/volume';
-import { putAll, type UseStore } from '../store/db';
-import { keys, type ResultMeta, type ScanCalibration, type ScanMeta } from '../store/records';
+import { get } from 'idb-keyval';
+import type { UseStore } from '../store/db';
+import { checkRecord, keys, RecordError, type ResultMeta, type ScanCalibration, type ScanMeta } from '../store/records';
 import { listResults, loadResultImage, loadResultVolume } from '../store/results';
 import { loadReferenceVolume, loadScan } from '../store/scans';
+import { patchRecord, transact } from '../store/transact';
 
 /** By hand (mu_water in 1/mm), or from a circle (mm) on a result of the scan marked as a material of known HU. */
 export type CalibrationRequest =
@@ -44,34 +48,66 @@ async function newValue(req: CalibrationRequest, store: UseStore): Promise<{ muW
   };
 }
 
-/** Sets a stored scan's mu_water and brings its results' HU figures up to date. */
+/** The fields of a result's description that follow the scan's mu_water. */
+type ResultPatch = Pick<ResultMeta, 'muWater' | 'volume' | 'metrics' | 'volumeMetrics'>;
+
+/** Recomputes the HU figures of each result of the scan with the new mu_water (read only). */
+async function resultPatches(store: UseStore, scan: ScanMeta, reference: Image2D | undefined, muWater: number, hooks: RunHooks): Promise<Map<string, Partial<ResultPatch>>> {
+  const results = await listResults(scan.id, store);
+  let referenceVolume: Volume | undefined;
+  const patches = new Map<string, Partial<ResultPatch>>();
+  for (const [i, r] of results.entries()) {
+    throwIfCancelled(hooks.signal);
+    hooks.onProgress?.(i / Math.max(1, results.length), 'updating the results');
+    // A volume's slabs carry mu only; its HU scale is in the description.
+    const patch: Partial<ResultPatch> = { muWater, ...(r.volume ? { volume: { ...r.volume, muWater } } : {}) };
+    try {
+      if (r.metrics && reference) {
+        const { image } = await loadResultImage(r.id, store);
+        patch.metrics = compareImages({ ...image, muWater }, reference, r.fovRadius);
+      }
+      if (r.volume && r.volumeMetrics && scan.referenceVolume) {
+        referenceVolume ??= await loadReferenceVolume(scan.id, store);
+        const { volume } = await loadResultVolume(r.id, store);
+        patch.volumeMetrics = compareVolumes({ ...volume, muWater }, referenceVolume, { fovRadius: volume.fovRadius, fovHalfHeight: volume.fovHalfHeight });
+      }
+    } catch (err) {
+      if (err instanceof RecordError && !(await resultExists(store, r.id))) continue; // deleted meanwhile
+      throw err;
+    }
+    patches.set(r.id, patch);
+  }
+  return patches;
+}
+
+async function resultExists(store: UseStore, id: string): Promise<boolean> {
+  return (await get(keys.result(id), store)) !== undefined;
+}
+
+/**
+ * Sets a stored scan's mu_water and brings its results' HU figures up to date. The figures are
+ * computed first; then, in one transaction, the scan and each result are read again and only
+ * the fields calibration owns are changed: a rename or a geometry edit made meanwhile survives,
+ * a result deleted meanwhile stays deleted, and a scan deleted meanwhile fails the calibration.
+ */
 export async function calibrateScan(store: UseStore, req: CalibrationRequest, hooks: RunHooks = {}): Promise<CalibrationOutcome> {
   if (typeof req?.scanId !== 'string') throw new InputError('water calibration: a scan must be chosen');
   const { meta, reference } = await loadScan(req.scanId, store);
   hooks.onProgress?.(0, 'measuring');
   const { muWater, calibration, measurement } = await newValue(req, store);
-  const results = await listResults(req.scanId, store);
-  let referenceVolume: Volume | undefined;
-  const entries: Array<[string, unknown]> = [];
-  for (const [i, r] of results.entries()) {
-    throwIfCancelled(hooks.signal);
-    hooks.onProgress?.(i / Math.max(1, results.length), 'updating the results');
-    // A volume's slabs carry mu only; its HU scale is in the description.
-    const next: ResultMeta = { ...r, muWater, ...(r.volume ? { volume: { ...r.volume, muWater } } : {}) };
-    if (r.metrics && reference) {
-      const { image } = await loadResultImage(r.id, store);
-      next.metrics = compareImages({ ...image, muWater }, reference, r.fovRadius);
-    }
-    if (r.volume && r.volumeMetrics && meta.referenceVolume) {
-      referenceVolume ??= await loadReferenceVolume(req.scanId, store);
-      const { volume } = await loadResultVolume(r.id, store);
-      next.volumeMetrics = compareVolumes({ ...volume, muWater }, referenceVolume, { fovRadius: volume.fovRadius, fovHalfHeight: volume.fovHalfHeight });
-    }
-    entries.push([keys.result(r.id), next]);
-  }
+  const patches = await resultPatches(store, meta, reference, muWater, hooks);
   throwIfCancelled(hooks.signal);
-  const scan: ScanMeta = { ...meta, muWater, calibration };
-  await putAll([[keys.scan(meta.id), scan], ...entries], store);
+  const { scan, results } = await transact(store, async (tx) => {
+    const scan = await patchRecord<ScanMeta>(tx, keys.scan(meta.id), 'scan', (old) => ({ ...old, muWater, calibration }));
+    let results = 0;
+    for (const [id, patch] of patches) {
+      const old = await tx.get(keys.result(id));
+      if (old === undefined) continue; // deleted meanwhile: it stays deleted
+      tx.put(keys.result(id), { ...checkRecord<ResultMeta>(old, 'result', keys.result(id)), ...patch });
+      results++;
+    }
+    return { scan, results };
+  });
   hooks.onProgress?.(1, 'stored');
-  return { scan, measurement, results: results.length };
+  return { scan, measurement, results };
 }

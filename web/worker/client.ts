@@ -6,9 +6,7 @@
 import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
-import type { CalibrationRequest } from './calibrate-job';
-import type { NetworkPriorRequest } from './network-prior-job';
-import type { PriorCheckRequest } from './prior-check-job';
+import type { CalibrationRequest, NetworkPriorRequest, PriorCheckRequest } from './app-protocol';
 
 /** What the client needs of a Worker (a real Web Worker, or a stand-in in tests). */
 export interface WorkerLike {
@@ -122,6 +120,41 @@ export class EngineClient {
   /** Checks a stored result or an image file as a prior against a stored scan; stores what it made. */
   checkPrior(request: PriorCheckRequest, options: CallOptions = {}): Promise<AppReplies['prior-check']> {
     return this.call({ op: 'prior-check', request }, options);
+  }
+
+  /** What the page draws of a stored scan: its analysed sinogram row, truncation report and reference image. */
+  scanOverview(scanId: string, options: CallOptions = {}): Promise<AppReplies['scan-overview']> {
+    return this.call({ op: 'scan-overview', scanId }, options);
+  }
+
+  /** Renames a stored scan. */
+  renameScan(scanId: string, name: string, options: CallOptions = {}): Promise<AppReplies['rename-scan']> {
+    return this.call({ op: 'rename-scan', scanId, name }, options);
+  }
+
+  /** Replaces a stored scan's geometry (validated against its data). */
+  setScanGeometry(scanId: string, geometry: unknown, options: CallOptions = {}): Promise<AppReplies['set-geometry']> {
+    return this.call({ op: 'set-geometry', scanId, geometry }, options);
+  }
+
+  /** Deletes a stored scan with its results. */
+  deleteScan(scanId: string, options: CallOptions = {}): Promise<AppReplies['delete-scan']> {
+    return this.call({ op: 'delete-scan', scanId }, options);
+  }
+
+  /** Renames a stored result. */
+  renameResult(resultId: string, name: string, options: CallOptions = {}): Promise<AppReplies['rename-result']> {
+    return this.call({ op: 'rename-result', resultId, name }, options);
+  }
+
+  /** Deletes a stored result. */
+  deleteResult(resultId: string, options: CallOptions = {}): Promise<AppReplies['delete-result']> {
+    return this.call({ op: 'delete-result', resultId }, options);
+  }
+
+  /** Deletes a stored network. */
+  deleteModel(modelId: string, options: CallOptions = {}): Promise<AppReplies['delete-model']> {
+    return this.call({ op: 'delete-model', modelId }, options);
   }
 
   /** Pool size and memory mode. */

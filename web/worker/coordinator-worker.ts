@@ -7,13 +7,14 @@ import type { RunHooks } from '../core/run-hooks';
 import { StorageFullError } from '../store/quota';
 import { APP_PROTOCOL_VERSION, type AppRequest, type FromCoordinator, type ToCoordinator, type WireError } from './app-protocol';
 import { Coordinator } from './coordinator';
+import { replyTransfer } from './library-ops';
 import { browserModelWorkerStarter } from './browser-model-starter';
 import { messagePortAsWorkerPort } from './message-port';
 import { ModelRuntime } from './model-runtime';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
 import { PoolWorkspace } from './pool-workspace';
 
-const post = (msg: FromCoordinator) => (self as unknown as Worker).postMessage(msg);
+const post = (msg: FromCoordinator, transfer: Transferable[] = []) => (self as unknown as Worker).postMessage(msg, transfer);
 const running = new Map<number, AbortController>();
 let coordinator: Coordinator | undefined;
 
@@ -52,7 +53,7 @@ async function answer(id: number, req: AppRequest): Promise<void> {
   try {
     if (!coordinator) throw new Error('engine used before it was started');
     const value = await coordinator.handle(req, hooks);
-    post({ id, type: 'done', value });
+    post({ id, type: 'done', value }, replyTransfer(value));
   } catch (err) {
     post({ id, type: 'error', error: toWire(err) });
   } finally {

@@ -8,7 +8,7 @@ import { axialSlice, sliceAt, type Volume } from '../core/volume';
 import { coneFovHalfHeight } from '../core/geometry/cone';
 import { viewCount } from '../core/geometry/types';
 import { fovRadius } from '../core/geometry/view-vectors';
-import { browserBudget } from '../core/memory-budget';
+import { browserBudget } from './browser-budget';
 import { readWholeScan } from '../core/projection-source';
 import type { Recipe } from '../core/recipe/recipe';
 import type { RecipeInputs } from '../core/recipe/run';
@@ -34,6 +34,7 @@ import { runPriorCheckJob } from './prior-check-job';
 import { calibrateScan } from './calibrate-job';
 import { runRecipeJob, storeImageResult } from './run-job';
 import { storeVolumeResult } from './volume-result';
+import { isLibraryRequest, libraryOp } from './library-ops';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -57,6 +58,8 @@ export class Coordinator {
   /** Answers one request. */
   async handle<K extends AppRequest['op']>(req: Extract<AppRequest, { op: K }>, hooks: RunHooks = {}): Promise<AppReplies[K]> {
     const r = req as AppRequest;
+    // Library edits and reads never wait for a run (each is one transaction of its own).
+    if (isLibraryRequest(r)) return (await libraryOp(this.store, r)) as AppReplies[K];
     switch (r.op) {
       case 'import':
         return (await this.importScan(r.files, r.name, r.reduce, hooks)) as AppReplies[K];

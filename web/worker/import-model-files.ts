@@ -51,7 +51,7 @@ export async function checkModelFiles(files: Array<InputFile & { size?: number }
   }
   const text = new TextDecoder().decode(await description.arrayBuffer());
   const onnx = new Uint8Array(await model.arrayBuffer());
-  let imported;
+  let imported: Awaited<ReturnType<typeof importModel>>;
   try {
     imported = await importModel(onnx, parseModelInfoText(text), open);
   } catch (err) {

@@ -2,7 +2,7 @@
 // reader (the streamed readers, or readScanFile, the same entry points as the CLI).
 import { InputError } from '../core/errors';
 import type { NamedBytes } from '../core/formats/named-file';
-import { blobSource, bytesSource, type ByteSource } from '../core/formats/byte-source';
+import { bytesSource, type ByteSource } from '../core/formats/byte-source';
 import { readScanFile } from '../core/formats/read-scan';
 import { openScanStream } from '../core/formats/scan-stream';
 import type { Geometry } from '../core/geometry/types';
@@ -47,6 +47,11 @@ async function sortFiles(files: InputFile[]): Promise<{ geometry?: Geometry; fla
 }
 
 const read = async (f: InputFile): Promise<NamedBytes> => ({ name: f.name, bytes: new Uint8Array(await f.arrayBuffer()) });
+
+/** A Blob (a File handed to the page) as a source read in pieces. */
+function blobSource(blob: Blob, name: string): ByteSource {
+  return { name, size: blob.size, read: async (o, n) => new Uint8Array(await blob.slice(o, o + n).arrayBuffer()) };
+}
 
 /** A file as a byte source: read in pieces when it is a Blob (a File the page handed over), else whole. */
 async function byteSource(f: InputFile): Promise<ByteSource> {

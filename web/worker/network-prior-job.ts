@@ -11,7 +11,8 @@ import { chooseGrid } from '../core/recipe/grid';
 import type { GridChoice } from '../core/recipe/recipe';
 import { runRecipe } from '../core/recipe/run';
 import type { RunHooks } from '../core/run-hooks';
-import { putAll, type UseStore } from '../store/db';
+import type { UseStore } from '../store/db';
+import { putResultEntries } from '../store/transact';
 import { loadModel } from '../store/models';
 import type { ResultMeta } from '../store/records';
 import { loadScan } from '../store/scans';
@@ -61,7 +62,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
 
   hooks.onProgress?.(0, 'loading the network');
   const runner = await ctx.open(onnx, hooks.signal);
-  let net;
+  let net: Awaited<ReturnType<typeof networkPrior>>;
   try {
     net = await networkPrior(scan, model.info, runner, grid, (recipe, h) => runRecipe(ws, scan, recipe, h), stage(hooks, 0.02, 0.45));
   } finally {
@@ -95,7 +96,7 @@ export async function runNetworkPriorJob(ctx: NetworkPriorContext, req: NetworkP
     entries.push(...rec.entries);
     consistent = rec.meta;
   }
-  await putAll(entries, store);
+  await putResultEntries(req.scanId, entries, store);
   hooks.onProgress?.(1, 'storing');
   return { network: netRecords.meta, consistent };
 }

@@ -4,14 +4,9 @@
 // No fetch: works in a page opened from disk and under a Content-Security-Policy with
 // connect-src 'none'.
 import { ortVersion, ortWasmGzipBase64 } from '../../build/ort-wasm.js';
-import { inflateOrtRuntime, type PackedOrtRuntime } from './ort-runtime-pack';
+import type { PackedOrtRuntime } from './ort-runtime-pack';
 
 /** The packed runtime embedded in this build (about 4.9 MB of text). */
 export function embeddedOrtRuntime(): PackedOrtRuntime {
   return { version: ortVersion, gzipBase64: ortWasmGzipBase64 };
-}
-
-/** The embedded runtime's .wasm bytes. */
-export function embeddedOrtWasm(): Promise<Uint8Array> {
-  return inflateOrtRuntime(embeddedOrtRuntime());
 }

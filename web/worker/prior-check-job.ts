@@ -12,7 +12,8 @@ import type { Image2D } from '../core/image';
 import { chooseGrid } from '../core/recipe/grid';
 import type { GridChoice } from '../core/recipe/recipe';
 import type { RunHooks } from '../core/run-hooks';
-import { putAll, type UseStore } from '../store/db';
+import type { UseStore } from '../store/db';
+import { putResultEntries } from '../store/transact';
 import type { ResultMeta } from '../store/records';
 import { loadResultImage } from '../store/results';
 import { loadScan } from '../store/scans';
@@ -116,7 +117,7 @@ export async function runPriorCheckJob(ctx: PriorCheckContext, req: PriorCheckRe
     entries.push(...rec.entries);
     consistent = rec.meta;
   }
-  await putAll(entries, store);
+  await putResultEntries(req.scanId, entries, store);
   hooks.onProgress?.(1, 'storing');
   return { prior: priorRecords.meta, consistent };
 }

@@ -15,7 +15,7 @@ import type { Volume } from '../core/volume';
 import { volumeDataResidual } from '../core/volume-residual';
 import { teeSinks, type VolumeInfo, type VolumeSink } from '../core/volume-sink';
 import { deferredTransaction, type UseStore } from '../store/db';
-import type { ResultMeta, ScanMeta } from '../store/records';
+import { RecordError, type ResultMeta, type ScanMeta } from '../store/records';
 import { resultRecords } from '../store/results';
 import { newId } from '../store/scans';
 import { SlabWriter } from '../store/volumes';
@@ -87,6 +87,8 @@ export async function storeVolumeResult(
       scanId: job.scanId, name: desc.name, recipe: desc.recipe, warnings, report: out.report, metrics, residual,
       seconds: (performance.now() - desc.t0) / 1000, volumeMetrics,
     }, out.image, {}, { id, info });
+    // A run that ends after its scan was deleted stores nothing.
+    if ((await tx.get(`scan/${job.scanId}`)) === undefined) throw new RecordError('the scan was deleted while its result was being made; nothing was stored');
     for (const [k, v] of entries) await tx.put(k, v);
     await tx.commit();
     return meta;

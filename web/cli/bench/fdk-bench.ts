@@ -1,5 +1,5 @@
 // The FDK section of `rimfill bench`: a 256^3 volume from 360 projections of 512 x 384 cells
-// (the cone-beam issue's benchmark problem; targets: under 10 s with 2 workers, peak memory below
+// (the project's cone-beam benchmark problem; targets: under 10 s with 2 workers, peak memory below
 // 1.5 GB), with one and with two workers. The projections are exact ones of the 3D Shepp-Logan
 // head, so the run also reports how close the central slice comes to the table. The cost of
 // truncation correction: the same problem on the central 256 channels (FOV radius 64 mm, the

@@ -1,4 +1,4 @@
-// Bench section "kernels": the engine issue's standard problem (512 x 512 image, 720 views over
+// Bench section "kernels": the project's standard problem (512 x 512 image, 720 views over
 // 360 degrees, 1024 channels, fan beam, flat detector): forward projection, backprojection and
 // full FBP with one and two workers, against a plain TypeScript backprojection.
 import { availableParallelism } from 'node:os';

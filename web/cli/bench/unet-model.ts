@@ -4,7 +4,7 @@
 // a residual connection to the input (after Ronneberger, Fischer & Brox 2015, "U-Net",
 // doi:10.1007/978-3-319-24574-4_28, at a smaller width). Weights are seeded random (He
 // initialization): the benchmark times the arithmetic, not a trained model.
-import { writeOnnxModel, type OnnxInitializer, type OnnxNode } from '../../core/model/onnx-writer';
+import { writeOnnxModel, type OnnxInitializer, type OnnxNode } from './onnx-writer';
 import { seededRandom } from '../../core/simulate/noise';
 
 export interface UnetModel {

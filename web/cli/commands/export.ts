@@ -64,7 +64,7 @@ export async function exportCommand(argv: string[]): Promise<CommandResult> {
   });
   const writes = new PendingWrites();
   const names = w.files.map((f) => join(dirname(out), f.name));
-  w.files.forEach((f, i) => writes.add(names[i], f.bytes));
+  w.files.forEach((f, i) => { writes.add(names[i], f.bytes); });
   writes.commit();
   const g = image.grid;
   return {

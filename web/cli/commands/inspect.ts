@@ -2,8 +2,8 @@
 import { InputError } from '../../core/errors';
 import { coneFovHalfHeight } from '../../core/geometry/cone';
 import { fovRadius } from '../../core/geometry/view-vectors';
-import { centralRowScan } from '../../core/truncation/central-row';
-import { detectTruncation, type TruncationReport } from '../../core/truncation/detect';
+import { truncationOverview } from '../../core/truncation/overview';
+import type { TruncationReport } from '../../core/truncation/detect';
 import { parseArgs } from '../args';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import type { CommandResult } from './types';
@@ -55,14 +55,13 @@ export async function inspect(argv: string[]): Promise<CommandResult> {
   const { scan, warnings } = await loadScanWithReport(path, a);
   const g = scan.geometry;
   const cone = g.kind === 'cone';
-  // Cone beams: the central detector row, analysed as a fan-beam scan (left/right truncation is
-  // the same in every row of a circular scan to within the cone's divergence).
-  const r = detectTruncation(cone ? centralRowScan(scan) : scan);
+  // Cone beams: the row nearest the orbit plane, analysed as a fan-beam scan (the page shows the same).
+  const { row, report: r } = truncationOverview(scan);
   const text = [
-    `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels${cone ? ` x ${g.detector.rows} rows (central row analysed)` : ''}, ${r.views.length} views`,
+    `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels${cone ? ` x ${g.detector.rows} rows (row ${row} analysed, the nearest to the orbit plane)` : ''}, ${r.views.length} views`,
     `measured field of view: radius ${fovRadius(g).toFixed(1)} mm${cone ? `, half height ${coneFovHalfHeight(g).toFixed(1)} mm on the axis` : ''}`,
     ...summaryLines(r),
     ...(a.options.views ? viewLines(r) : []),
   ].join('\n');
-  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...r }, text, warnings };
+  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...(cone ? { analysedRow: row } : {}), ...r }, text, warnings };
 }

@@ -58,31 +58,7 @@ export async function simulateCone(a: ParsedArgs, full: Geometry): Promise<Comma
     : undefined;
   const scanGeometry = crop?.geometry ?? full;
 
-  let data: Float32Array;
-  let truth: Volume | undefined;
-  let muWater: number | undefined;
-  const readWarnings: string[] = [];
-  if (!(SOLID_PHANTOM_NAMES as readonly string[]).includes(phantomArg)) {
-    // A volume file or folder (NRRD, MetaImage, raw + JSON, DICOM series, TIFF), forward projected.
-    const loaded = await loadVolume(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a);
-    readWarnings.push(...loaded.warnings);
-    truth = loaded.volume;
-    muWater = truth.muWater;
-    data = await projectVolume(truth, full, a.options.workers as number | undefined);
-  } else {
-    const p = namedSolidPhantom(phantomArg);
-    muWater = p.muWater;
-    data = await analyticConeProjections(p, full, subsamples, { onProgress: a.options.json ? undefined : progressLine('simulate') });
-    if (a.options.truth) {
-      const pixel = positiveNumber(a, 'pixel', 1)!;
-      const size = (a.options.size as number | undefined) ?? Math.ceil((2 * p.radius) / pixel / 4) * 4 + 8;
-      const h = coneFovHalfHeight(scanGeometry);
-      const height = h > 0 ? Math.min(2 * p.halfHeight + 2 * pixel, 2.2 * h) : 2 * p.halfHeight + 2 * pixel;
-      const nz = (a.options.slices as number | undefined) ?? Math.max(1, Math.ceil(height / pixel));
-      const grid = checkVolumeGrid({ nx: size, ny: size, nz, dx: pixel, dy: pixel, dz: pixel, cx: 0, cy: 0, cz: 0 });
-      truth = { grid, data: voxelize(p, grid, 3), quantity: 'mu', muWater };
-    }
-  }
+  const { data, truth, muWater, readWarnings } = await coneProjections(a, phantomArg, full, scanGeometry, subsamples);
   let zeroCounts = 0;
   if (photons) zeroCounts = addPhotonNoise(data, photons, seed).zeroCounts;
 
@@ -115,4 +91,24 @@ export async function simulateCone(a: ParsedArgs, full: Geometry): Promise<Comma
     text: `wrote ${out}: ${summary.views} views x ${d.rows} rows x ${d.channels} channels, FOV radius ${summary.fovRadiusMm.toFixed(1)} mm, half height ${summary.fovHalfHeightMm.toFixed(1)} mm`,
     warnings,
   };
+}
+
+/** Projections of a named 3D phantom (exact) or a volume file (Joseph projector), and the truth volume when one is written. */
+async function coneProjections(a: ParsedArgs, phantomArg: string, full: Geometry, scanGeometry: Geometry, subsamples: number): Promise<{ data: Float32Array; truth: Volume | undefined; muWater: number | undefined; readWarnings: string[] }> {
+  if (!(SOLID_PHANTOM_NAMES as readonly string[]).includes(phantomArg)) {
+    // A volume file or folder (NRRD, MetaImage, raw + JSON, DICOM series, TIFF), forward projected.
+    const loaded = await loadVolume(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a);
+    const truth = loaded.volume;
+    return { data: await projectVolume(truth, full, a.options.workers as number | undefined), truth, muWater: truth.muWater, readWarnings: loaded.warnings };
+  }
+  const p = namedSolidPhantom(phantomArg);
+  const data = await analyticConeProjections(p, full, subsamples, { onProgress: a.options.json ? undefined : progressLine('simulate') });
+  if (!a.options.truth) return { data, truth: undefined, muWater: p.muWater, readWarnings: [] };
+  const pixel = positiveNumber(a, 'pixel', 1)!;
+  const size = (a.options.size as number | undefined) ?? Math.ceil((2 * p.radius) / pixel / 4) * 4 + 8;
+  const h = coneFovHalfHeight(scanGeometry);
+  const height = h > 0 ? Math.min(2 * p.halfHeight + 2 * pixel, 2.2 * h) : 2 * p.halfHeight + 2 * pixel;
+  const nz = (a.options.slices as number | undefined) ?? Math.max(1, Math.ceil(height / pixel));
+  const grid = checkVolumeGrid({ nx: size, ny: size, nz, dx: pixel, dy: pixel, dz: pixel, cx: 0, cy: 0, cz: 0 });
+  return { data, truth: { grid, data: voxelize(p, grid, 3), quantity: 'mu', muWater: p.muWater }, muWater: p.muWater, readWarnings: [] };
 }

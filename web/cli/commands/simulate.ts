@@ -3,6 +3,7 @@
 import { existsSync } from 'node:fs';
 import { InputError } from '../../core/errors';
 import { cropDetector } from '../../core/geometry/presets';
+import type { Geometry } from '../../core/geometry/types';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
@@ -14,7 +15,7 @@ import type { Scan } from '../../core/scan';
 import { analyticSinogram } from '../../core/simulate/analytic';
 import { collimatedChannels } from '../../core/simulate/collimate';
 import { addPhotonNoise } from '../../core/simulate/noise';
-import { parseArgs, positiveNumber, requireString } from '../args';
+import { parseArgs, positiveNumber, requireString, type ParsedArgs } from '../args';
 import { PendingWrites } from '../io';
 import { loadGeometry, loadImage } from '../load';
 import { openWorkspace } from '../engine-node';
@@ -50,53 +51,14 @@ export async function simulate(argv: string[]): Promise<CommandResult> {
   const seed = (a.options.seed as number | undefined) ?? 1;
   const subsamples = (a.options.subsamples as number | undefined) ?? 1;
   if (!Number.isInteger(subsamples) || subsamples < 1 || subsamples > 16) throw new InputError(`option --subsamples: got ${subsamples}, expected 1 to 16`);
-  if (a.options.channels !== undefined && a.options.collimate !== undefined) throw new InputError('options --channels and --collimate both choose the kept channels: give one');
-  const collimate = positiveNumber(a, 'collimate');
-  const channels = collimate !== undefined ? collimatedChannels(full, collimate) : (a.options.channels as number | undefined);
-  const crop = channels !== undefined || a.options.offset !== undefined
-    ? cropDetector(full, channels ?? full.detector.channels, (a.options.offset as number | undefined) ?? 0)
-    : undefined;
-
-  let data: Float32Array;
-  let truth: Image2D;
-  let muWater: number | undefined;
-  const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
-  if (isFile) {
-    truth = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
-    muWater = truth.muWater;
-    const ws = await openWorkspace((a.options.workers as number | undefined) ?? undefined);
-    try {
-      const proj = await Projector2d.create(ws, truth.grid, full);
-      const img = ws.alloc('phantom', truth.data.length);
-      const sino = ws.alloc('sino', proj.nViews * proj.nCh);
-      await ws.write(img, truth.data);
-      await proj.forward(img, sino);
-      data = await ws.read(sino);
-    } finally {
-      ws.dispose();
-    }
-  } else {
-    const p = namedPhantom(phantomArg);
-    muWater = p.muWater;
-    data = analyticSinogram(p, full, subsamples);
-    const pixel = positiveNumber(a, 'pixel', 1)!;
-    const size = (a.options.size as number | undefined) ?? Math.ceil((2 * p.radius) / pixel / 4) * 4 + 8;
-    truth = { grid: squareGrid(size, pixel), data: new Float32Array(0), quantity: 'mu', muWater };
-    if (a.options.truth) truth.data = rasterize(p, truth.grid, 4);
-  }
+  const crop = detectorCrop(a, full);
+  const { data, truth, muWater } = await projectPhantom(a, phantomArg, full, subsamples);
   let zeroCounts = 0;
   if (photons) zeroCounts = addPhotonNoise(data, photons, seed).zeroCounts;
 
   const notes: Record<string, string> = { phantom: phantomArg, ...(photons ? { photons: String(photons), seed: String(seed) } : {}) };
   const completeScan: Scan = { geometry: full, data, muWater, notes };
-  let scan = completeScan;
-  if (crop) {
-    const n = crop.geometry.detector.channels, nFull = full.detector.channels;
-    const nViews = data.length / nFull;
-    const cut = new Float32Array(nViews * n);
-    for (let v = 0; v < nViews; v++) cut.set(data.subarray(v * nFull + crop.first, v * nFull + crop.first + n), v * n);
-    scan = { geometry: crop.geometry, data: cut, muWater, notes: { ...notes, truncatedFrom: `${nFull} channels` } };
-  }
+  const scan = crop ? cropScan(completeScan, crop) : completeScan;
   const writes = new PendingWrites();
   writes.add(out, await writeScanNrrd(scan));
   if (a.options.complete) writes.add(a.options.complete as string, await writeScanNrrd(completeScan));
@@ -112,4 +74,53 @@ export async function simulate(argv: string[]): Promise<CommandResult> {
   };
   const warnings = zeroCounts > 0 ? [`${zeroCounts} readings had no photons and were clamped to 1 count`] : [];
   return { json: summary, text: `wrote ${out}: ${summary.views} views x ${summary.channels} channels, FOV radius ${summary.fovRadiusMm.toFixed(1)} mm`, warnings };
+}
+
+/** The kept channels (--channels or --collimate, with --offset), or undefined for the whole detector. */
+function detectorCrop(a: ParsedArgs, full: Geometry): ReturnType<typeof cropDetector> | undefined {
+  if (a.options.channels !== undefined && a.options.collimate !== undefined) throw new InputError('options --channels and --collimate both choose the kept channels: give one');
+  const collimate = positiveNumber(a, 'collimate');
+  const channels = collimate !== undefined ? collimatedChannels(full, collimate) : (a.options.channels as number | undefined);
+  return channels !== undefined || a.options.offset !== undefined
+    ? cropDetector(full, channels ?? full.detector.channels, (a.options.offset as number | undefined) ?? 0)
+    : undefined;
+}
+
+/** The scan on the kept channels only. */
+function cropScan(complete: Scan, crop: ReturnType<typeof cropDetector>): Scan {
+  const { data, muWater, notes } = complete;
+  const n = crop.geometry.detector.channels, nFull = complete.geometry.detector.channels;
+  const nViews = data.length / nFull;
+  const cut = new Float32Array(nViews * n);
+  for (let v = 0; v < nViews; v++) cut.set(data.subarray(v * nFull + crop.first, v * nFull + crop.first + n), v * n);
+  return { geometry: crop.geometry, data: cut, muWater, notes: { ...notes, truncatedFrom: `${nFull} channels` } };
+}
+
+/**
+ * Projections of the phantom on the whole detector and its truth grid: a named phantom exactly
+ * (analytic line integrals), an image file by the Joseph projector.
+ */
+async function projectPhantom(a: ParsedArgs, phantomArg: string, full: Geometry, subsamples: number): Promise<{ data: Float32Array; truth: Image2D; muWater: number | undefined }> {
+  const isFile = !(PHANTOM_NAMES as readonly string[]).includes(phantomArg) && (existsSync(phantomArg) || /[./\\]/.test(phantomArg));
+  if (isFile) {
+    const truth = await loadImage(phantomArg, 'phantom', a.options['mu-water'] as number | undefined, a.options.slice as number | undefined);
+    const ws = await openWorkspace((a.options.workers as number | undefined) ?? undefined);
+    try {
+      const proj = await Projector2d.create(ws, truth.grid, full);
+      const img = ws.alloc('phantom', truth.data.length);
+      const sino = ws.alloc('sino', proj.nViews * proj.nCh);
+      await ws.write(img, truth.data);
+      await proj.forward(img, sino);
+      return { data: await ws.read(sino), truth, muWater: truth.muWater };
+    } finally {
+      ws.dispose();
+    }
+  }
+  const p = namedPhantom(phantomArg);
+  const data = analyticSinogram(p, full, subsamples);
+  const pixel = positiveNumber(a, 'pixel', 1)!;
+  const size = (a.options.size as number | undefined) ?? Math.ceil((2 * p.radius) / pixel / 4) * 4 + 8;
+  const truth: Image2D = { grid: squareGrid(size, pixel), data: new Float32Array(0), quantity: 'mu', muWater: p.muWater };
+  if (a.options.truth) truth.data = rasterize(p, truth.grid, 4);
+  return { data, truth, muWater: p.muWater };
 }

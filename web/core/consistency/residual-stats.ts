@@ -106,35 +106,12 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
   const { bins, binOf } = noiseBins(averaged, measured);
   const binThreshold = bins.map((b) => Math.max(FLAG_SIGMAS * b.sigma, floor));
 
-  const viewRms = new Float32Array(nViews), viewRelative = new Float32Array(nViews), viewMaxAbs = new Float32Array(nViews);
-  const viewFlagged = new Int32Array(nViews);
-  const flagged = new Uint8Array(residual.length);
-  const chSum = new Float64Array(nCh), chCount = new Float64Array(nCh);
-  let flaggedRays = 0;
-  for (let v = 0; v < nViews; v++) {
-    let s2 = 0, p2 = 0, n = 0, mx = 0;
-    for (let k = 0; k < nCh; k++) {
-      const r = residual[v * nCh + k];
-      if (!Number.isFinite(r)) continue;
-      s2 += r * r;
-      p2 += measured[v * nCh + k] ** 2;
-      n++;
-      mx = Math.max(mx, Math.abs(r));
-      chSum[k] += r * r;
-      chCount[k]++;
-      const b = binOf[v * nCh + k];
-      if (b >= 0 && Math.abs(averaged[v * nCh + k]) > binThreshold[b]) {
-        flagged[v * nCh + k] = 1;
-        viewFlagged[v]++;
-      }
-    }
-    viewRms[v] = n ? Math.sqrt(s2 / n) : NaN;
-    viewRelative[v] = p2 > 0 ? Math.sqrt(s2 / p2) : NaN;
-    viewMaxAbs[v] = mx;
-    flaggedRays += viewFlagged[v];
-  }
-  const channelRms = new Float32Array(nCh);
-  for (let k = 0; k < nCh; k++) channelRms[k] = chCount[k] ? Math.sqrt(chSum[k] / chCount[k]) : NaN;
+  const profiles = viewProfiles(residual, measured, nViews, nCh, (i) => {
+    const b = binOf[i];
+    return b >= 0 && Math.abs(averaged[i]) > binThreshold[b];
+  });
+  const { viewFlagged } = profiles;
+  const flaggedRays = viewFlagged.reduce((a, c) => a + c, 0);
   const summary: ResidualSummary = {
     relativeRms: sumP2 > 0 ? Math.sqrt(sumR2 / sumP2) : NaN,
     rmsResidual: rays ? Math.sqrt(sumR2 / rays) : NaN,
@@ -151,5 +128,36 @@ export function residualStats(residual: Float32Array, measured: Float32Array, nV
     flaggedFraction: rays ? flaggedRays / rays : 0,
     flaggedViews: viewFlagged.reduce((a, c) => a + (c > 0 ? 1 : 0), 0),
   };
-  return { summary, profiles: { flagged, viewRms, viewRelative, viewMaxAbs, viewFlagged, channelRms } };
+  return { summary, profiles };
+}
+
+/** Per view: RMS, relative RMS, largest |residual| and flagged rays (`flag(i)`); per channel: RMS. */
+function viewProfiles(residual: Float32Array, measured: Float32Array, nViews: number, nCh: number, flag: (i: number) => boolean): ResidualProfiles {
+  const viewRms = new Float32Array(nViews), viewRelative = new Float32Array(nViews), viewMaxAbs = new Float32Array(nViews);
+  const viewFlagged = new Int32Array(nViews);
+  const flagged = new Uint8Array(residual.length);
+  const chSum = new Float64Array(nCh), chCount = new Float64Array(nCh);
+  for (let v = 0; v < nViews; v++) {
+    let s2 = 0, p2 = 0, n = 0, mx = 0;
+    for (let k = 0; k < nCh; k++) {
+      const r = residual[v * nCh + k];
+      if (!Number.isFinite(r)) continue;
+      s2 += r * r;
+      p2 += measured[v * nCh + k] ** 2;
+      n++;
+      mx = Math.max(mx, Math.abs(r));
+      chSum[k] += r * r;
+      chCount[k]++;
+      if (flag(v * nCh + k)) {
+        flagged[v * nCh + k] = 1;
+        viewFlagged[v]++;
+      }
+    }
+    viewRms[v] = n ? Math.sqrt(s2 / n) : NaN;
+    viewRelative[v] = p2 > 0 ? Math.sqrt(s2 / p2) : NaN;
+    viewMaxAbs[v] = mx;
+  }
+  const channelRms = new Float32Array(nCh);
+  for (let k = 0; k < nCh; k++) channelRms[k] = chCount[k] ? Math.sqrt(chSum[k] / chCount[k]) : NaN;
+  return { flagged, viewRms, viewRelative, viewMaxAbs, viewFlagged, channelRms };
 }

@@ -7,9 +7,8 @@ export interface EngineInstance {
   memory: WebAssembly.Memory;
 }
 
-/** Decodes base64 to bytes (browser and Node). */
+/** Decodes base64 to bytes (atob: browsers and Node alike). */
 export function base64ToBytes(b64: string): Uint8Array {
-  if (typeof Buffer !== 'undefined') return new Uint8Array(Buffer.from(b64, 'base64'));
   const bin = atob(b64);
   const out = new Uint8Array(bin.length);
   for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);

@@ -1,5 +1,5 @@
-// A file read in pieces: a page's File (Blob.slice), a file on disk (the CLI), or bytes already
-// in memory. Streamed readers take these so that a large scan is never copied whole.
+// A file read in pieces: a page's File (Blob.slice, worker/import-scan.ts), a file on disk (the
+// CLI), or bytes already in memory. Streamed readers take these so that a large scan is never copied whole.
 import type { NamedBytes } from './named-file';
 
 export interface ByteSource {
@@ -13,11 +13,6 @@ export interface ByteSource {
 /** Bytes in memory as a source. */
 export function bytesSource(f: NamedBytes): ByteSource {
   return { name: f.name, size: f.bytes.length, read: async (o, n) => f.bytes.subarray(o, Math.min(f.bytes.length, o + n)) };
-}
-
-/** A Blob (a File handed to the page) as a source. */
-export function blobSource(blob: Blob, name: string): ByteSource {
-  return { name, size: blob.size, read: async (o, n) => new Uint8Array(await blob.slice(o, o + n).arrayBuffer()) };
 }
 
 /** The whole file in memory (for readers that cannot stream). */

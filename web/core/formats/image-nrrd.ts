@@ -1,5 +1,5 @@
 // Images as NRRD with "space directions" and "space origin" (mm, origin = centre of the first
-// pixel) and rimfill.quantity mu | hu (design.md); 2D images or 3D volumes. Axis-aligned
+// pixel) and rimfill.quantity mu | hu (DEVELOPERS.md, "Geometry"); 2D images or 3D volumes. Axis-aligned
 // directions only; a negative direction is turned positive by flipping the data along that axis.
 import { InputError } from '../errors';
 import type { Image2D } from '../image';
@@ -7,7 +7,7 @@ import type { ReadLimits } from './limits';
 import type { NamedBytes } from './named-file';
 import { parseNrrd, writeNrrd, type WrittenType } from './nrrd';
 import { positiveKey } from './projections';
-import { flipAxes, imageAsMu, volumeSlice, type ImageVolume, type VolumeQuantity } from './volume';
+import { flipAxes, type ImageVolume, type VolumeQuantity } from './volume';
 
 function vectors(text: string | undefined): number[][] {
   if (!text) return [];
@@ -43,7 +43,7 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
       signs[axis] = Math.sign(d[axis]);
     });
   } else if (n.fields.spacings) {
-    n.fields.spacings.split(/\s+/).map(Number).slice(0, 3).forEach((s, axis) => (spacing[axis] = s));
+    n.fields.spacings.split(/\s+/).map(Number).slice(0, 3).forEach((s, axis) => { spacing[axis] = s; });
   }
   if (spacing.some((s) => !(s > 0) || !Number.isFinite(s))) throw new InputError(`image spacing: got ${spacing.join(' ')}, expected positive pixel sizes in mm`);
   const origin = vectors(n.fields['space origin'])[0];
@@ -58,13 +58,6 @@ export async function volumeFromNrrd(files: readonly NamedBytes[], limits?: Read
     muWater: positiveKey(n.keys['rimfill.muWater'], 'image rimfill.muWater', 'mu of water in 1/mm'), fovRadius: fov, fovHalfHeight, format: 'NRRD',
   };
   return flipAxes(volume, signs[0] < 0, signs[1] < 0, signs[2] < 0);
-}
-
-/** Reads a 2D image as mu (1/mm); HU files need mu_water (in the file or given). */
-export async function readImageNrrd(bytes: Uint8Array, muWater?: number, limits?: ReadLimits): Promise<Image2D> {
-  const v = await volumeFromNrrd([{ name: 'image.nrrd', bytes }], limits);
-  if (v.nz !== 1) throw new InputError(`image: got ${v.nz} slices, expected a 2D image (one slice)`);
-  return imageAsMu(volumeSlice(v, 0), muWater);
 }
 
 /** Writes a 2D image (values as stored in `image`), float32 or int16 (rounded, clamped). */

@@ -160,10 +160,10 @@ export async function writeMetaImage(data: Float32Array, w: MetaImageWrite): Pro
     const base = baseName(w.detachedName).replace(/\.(mhd|mha|raw|zraw)$/i, '');
     const dataName = `${base}.${w.compress ? 'zraw' : 'raw'}`;
     lines.push(`ElementDataFile = ${dataName}`);
-    return [{ name: `${base}.mhd`, bytes: enc.encode(lines.join('\n') + '\n') }, { name: dataName, bytes: body }];
+    return [{ name: `${base}.mhd`, bytes: enc.encode(`${lines.join('\n')}\n`) }, { name: dataName, bytes: body }];
   }
   lines.push('ElementDataFile = LOCAL');
-  const head = enc.encode(lines.join('\n') + '\n');
+  const head = enc.encode(`${lines.join('\n')}\n`);
   const out = new Uint8Array(head.length + body.length);
   out.set(head);
   out.set(body, head.length);

@@ -168,7 +168,7 @@ export function nrrdHeaderBytes(sizes: number[], fields: Record<string, string>,
     if (/[\r\n]/.test(v) || k.includes(':=')) throw new Error(`NRRD key ${k}: values must be one line`);
     lines.push(`${k}:=${v}`);
   }
-  return new TextEncoder().encode(lines.join('\n') + '\n\n');
+  return new TextEncoder().encode(`${lines.join('\n')}\n\n`);
 }
 
 /**

@@ -44,7 +44,7 @@ export function checkWindow(w: DisplayWindow): DisplayWindow {
 }
 
 /**
- * Grey levels 0..255 of an image at a window (linear, references.md 6d: lower = L - W/2,
+ * Grey levels 0..255 of an image at a window (linear, REFERENCES.md [window-presets]: lower = L - W/2,
  * upper = L + W/2), rows written top to bottom as j = ny - 1 ... 0 so +y points up on screen.
  * Non-finite pixels are drawn black and counted.
  */
@@ -64,7 +64,7 @@ export function windowToGrey(image: Image2D, window: DisplayWindow): { grey: Uin
         continue;
       }
       const g = Math.round((v - lo) * scale);
-      grey[j * nx + i] = g < 0 ? 0 : g > 255 ? 255 : g;
+      grey[j * nx + i] = g < 0 ? 0 : Math.min(g, 255);
     }
   }
   return { grey, nonFinite };

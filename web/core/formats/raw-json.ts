@@ -1,4 +1,4 @@
-// Raw samples with a JSON sidecar (design.md, second scan form): the JSON gives "dtype",
+// Raw samples with a JSON sidecar (README, "Inputs": the second scan form): the JSON gives "dtype",
 // "sizes" (fastest axis first), optional "endian" (little), "byteOffset" (0) and "dataFile"
 // (default: the other file given, or the JSON's name with .raw), plus the scan geometry (at
 // the top level or under "geometry"), "quantity" and "muWater"; images give "spacing",

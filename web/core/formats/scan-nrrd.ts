@@ -1,14 +1,13 @@
-// Rimfill's scan file (design.md "Scan file"): NRRD float32, sizes <channels> <rows> <views>,
+// Rimfill's scan file (README, "Files"): NRRD float32, sizes <channels> <rows> <views>,
 // with rimfill.geometry (JSON), rimfill.quantity (line-integral | intensity), rimfill.i0 and
 // optional rimfill.muWater.
 import { InputError } from '../errors';
-import type { Geometry } from '../geometry/types';
 import type { Scan } from '../scan';
 import type { ReadLimits } from './limits';
 import type { NamedBytes } from './named-file';
 import { parseNrrd, writeNrrd } from './nrrd';
 import { parseGeometryText, positiveKey, projectionAxes, type ProjectionData } from './projections';
-import { assembleScan, type ProjectionHeader } from './scan-assembly';
+import type { ProjectionHeader } from './scan-assembly';
 
 /** Reads projection data from NRRD (files[0]; a detached data file among the rest). */
 export async function projectionsFromNrrd(files: readonly NamedBytes[], limits?: ReadLimits): Promise<ProjectionData> {
@@ -33,11 +32,6 @@ export function projectionHeaderFromNrrd(sizes: number[], keys: Record<string, s
     i0: positiveKey(keys['rimfill.i0'], 'scan rimfill.i0', 'the unattenuated intensity'),
     notes, format: 'NRRD',
   };
-}
-
-/** Reads a scan file; `geometry` (from a side file) replaces or supplies the geometry. */
-export async function readScanNrrd(bytes: Uint8Array, geometry?: Geometry, limits?: ReadLimits): Promise<Scan> {
-  return assembleScan(await projectionsFromNrrd([{ name: 'scan.nrrd', bytes }], limits), { geometry }).scan;
 }
 
 /** Writes a scan file (line integrals, float32). */

@@ -1,4 +1,4 @@
-// Writing volumes as NRRD float32 (design.md): sizes <nx> <ny> <nz>, "space directions" (one
+// Writing volumes as NRRD float32 (DEVELOPERS.md, "Geometry"): sizes <nx> <ny> <nz>, "space directions" (one
 // vector per axis, mm) and "space origin" (centre of the first voxel, mm), rimfill.quantity
 // mu | hu, and the optional rimfill.muWater, rimfill.fovRadius, rimfill.fovHalfHeight.
 // NRRD format: http://teem.sourceforge.net/nrrd/format.html ("space directions", "space origin").
@@ -36,12 +36,4 @@ function volumeNrrdFields(volume: Omit<Volume, 'data'>): { fields: Record<string
       kinds: 'domain domain domain',
     },
   };
-}
-
-/** True when NRRD bytes hold a 3-axis array with more than one slice (a volume, not an image). */
-export function isVolumeNrrd(bytes: Uint8Array): boolean {
-  const head = new TextDecoder().decode(bytes.subarray(0, Math.min(bytes.length, 4096)));
-  const m = /^sizes:\s*([^\n]*)$/m.exec(head);
-  const sizes = m ? m[1].trim().split(/\s+/).map(Number) : [];
-  return sizes.length === 3 && sizes[2] > 1;
 }

@@ -44,16 +44,6 @@ export function imageAsMu(image: Image2D, muWater?: number): Image2D {
   return { ...image, data: huToMu(image.data, mw), quantity: 'mu', muWater: mw };
 }
 
-/** A 2D image as a one-slice volume. */
-export function imageAsVolume(image: Image2D, format: string): ImageVolume {
-  const g = image.grid;
-  return {
-    nx: g.nx, ny: g.ny, nz: 1, spacing: [g.dx, g.dy, 1],
-    origin: [g.cx - ((g.nx - 1) / 2) * g.dx, g.cy - ((g.ny - 1) / 2) * g.dy, 0],
-    data: image.data, quantity: image.quantity, muWater: image.muWater, fovRadius: image.fovRadius, format,
-  };
-}
-
 /** Reverses the x, y and/or z axis of a volume (for files whose axes point the other way). */
 export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean, flipZ = false): ImageVolume {
   if (!flipX && !flipY && !flipZ) return v;

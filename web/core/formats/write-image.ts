@@ -8,7 +8,6 @@ import { baseName, type NamedBytes } from './named-file';
 import { checkWindow, writePng, type DisplayWindow } from './png';
 
 export type ImageFileFormat = 'nrrd' | 'mha' | 'mhd' | 'png';
-export const IMAGE_FILE_FORMATS: readonly ImageFileFormat[] = ['nrrd', 'mha', 'mhd', 'png'];
 
 export interface ImageWriteOptions {
   format: ImageFileFormat;

@@ -1,5 +1,5 @@
 /**
- * Scan geometry as stored in files (design.md, "Geometry conventions"): mm and degrees.
+ * Scan geometry as stored in files (DEVELOPERS.md, "Geometry"): mm and degrees.
  * web/core/geometry is the one owner of geometry: everything else consumes the per-view
  * vectors it produces (view-vectors.ts).
  */

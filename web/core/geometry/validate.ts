@@ -13,7 +13,7 @@ function show(v: Json): string {
   if (typeof v === 'string') return JSON.stringify(v);
   if (v === undefined) return 'nothing';
   const s = JSON.stringify(v);
-  return s === undefined ? String(v) : s.length > 60 ? s.slice(0, 57) + '...' : s;
+  return s === undefined ? String(v) : s.length > 60 ? `${s.slice(0, 57)}...` : s;
 }
 
 function fail(field: string, got: Json, expected: string): never {

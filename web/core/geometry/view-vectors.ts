@@ -1,4 +1,4 @@
-// Per-view vectors: the one place where a geometry becomes coordinates (design.md). Kernels,
+// Per-view vectors: the one place where a geometry becomes coordinates (DEVELOPERS.md, "Geometry"). Kernels,
 // analytic phantoms and page overlays all consume these tables.
 import type { Geometry } from './types';
 import { anglesRad, viewCount } from './types';
@@ -20,7 +20,7 @@ export function viewVectors(g: Geometry): Float32Array {
   const n = viewCount(g);
   const out = new Float32Array(n * VIEW_STRIDE);
   if (g.views) {
-    g.views.forEach((w, i) => out.set([...w.source, ...w.detector, ...w.u, ...w.v], i * VIEW_STRIDE));
+    g.views.forEach((w, i) => { out.set([...w.source, ...w.detector, ...w.u, ...w.v], i * VIEW_STRIDE); });
     return out;
   }
   const beta = anglesRad(g);
@@ -43,7 +43,7 @@ export function kernelKind(g: Geometry): number {
   return g.detector.shape === 'curved' ? KernelKind.fanCurved : KernelKind.fanFlat;
 }
 
-/** Coordinate of channel 0 along u, mm: `-(n-1)/2 * pitch + offset` (design.md). */
+/** Coordinate of channel 0 along u, mm: `-(n-1)/2 * pitch + offset` (DEVELOPERS.md, "Geometry"). */
 export function firstChannelU(g: Geometry): number {
   const d = g.detector;
   return -((d.channels - 1) / 2) * d.pitch[0] + d.offset[0];

@@ -20,7 +20,7 @@ export interface Extension {
 
 /**
  * Detector coordinate (mm) whose ray passes at `radius` mm from the isocentre: parallel u = r;
- * fan with a flat detector u = D tan(asin(r / R)); curved u = D asin(r / R) (design.md
+ * fan with a flat detector u = D tan(asin(r / R)); curved u = D asin(r / R) (DEVELOPERS.md, "Geometry"
  * conventions: the ray at fan angle g passes at R |sin g| from the isocentre).
  */
 export function detectorReach(g: Geometry, radius: number): number {

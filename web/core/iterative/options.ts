@@ -48,7 +48,7 @@ export type IterativeOptions = Required<Omit<IterativeFields, 'prior'>>;
 
 /**
  * Defaults. N_grad = 20 and the step-control constants follow Sidky & Pan 2008 (from memory,
- * references.md section 5). Their alpha = 0.2 suits a ray-by-ray ART data step; with OS-SART
+ * REFERENCES.md [sidky-pan-2008]). Their alpha = 0.2 suits a ray-by-ray ART data step; with OS-SART
  * and our step scale (solve.ts) the TV phase needs far less: tuned on the test phantoms
  * (test/iterative), 0.002 for TV and 0.005 for reweighted TV, whose weights shrink the steps
  * at edges. Relaxation 0.5 keeps OS-SART's subset noise down on noisy data (common practice).

@@ -13,7 +13,7 @@ import type { OsSart } from './os-sart';
 import { TvDescent } from './tv-descent';
 import { gridBands, gridSize, type ReconGrid } from './space';
 
-/** ASD-POCS step control constants (Sidky & Pan 2008, from memory; references.md section 5). */
+/** ASD-POCS step control constants (Sidky & Pan 2008, from memory; REFERENCES.md [sidky-pan-2008]). */
 export const ASD_POCS = { rMax: 0.95, alphaRed: 0.95, betaRed: 0.995 } as const;
 
 export interface IterationHistory {

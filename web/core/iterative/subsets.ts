@@ -62,13 +62,13 @@ export function permuteGeometry(g: Geometry, permutation: Int32Array): Geometry 
 /** Rows of a [view][channel] array in permuted order. */
 export function permuteRows(data: Float32Array, nCh: number, permutation: Int32Array): Float32Array {
   const out = new Float32Array(permutation.length * nCh);
-  permutation.forEach((v, q) => out.set(data.subarray(v * nCh, (v + 1) * nCh), q * nCh));
+  permutation.forEach((v, q) => { out.set(data.subarray(v * nCh, (v + 1) * nCh), q * nCh); });
   return out;
 }
 
 /** Inverse of permuteRows for per-view values: out[permutation[q]] = values[q]. */
 export function unpermute(values: ArrayLike<number>, permutation: Int32Array): number[] {
   const out = new Array<number>(permutation.length);
-  permutation.forEach((v, q) => (out[v] = values[q]));
+  permutation.forEach((v, q) => { out[v] = values[q]; });
   return out;
 }

@@ -1,5 +1,5 @@
 // The model description: the small JSON of ours that says what image a user's network expects
-// and what it returns (design.md, "Model description"). Network value = physical value * scale
+// and what it returns (README, "Your own network as a prior"). Network value = physical value * scale
 // + offset, physical values being mu (1/mm) or HU. Tensors are NCHW float32 with N = C = 1.
 import { InputError } from '../errors';
 import type { ImageQuantity } from '../image';
@@ -56,7 +56,7 @@ const path = (where: string, key: string): string => (where ? `${where}.${key}` 
 
 function onlyKnown(o: Json, where: string, known: string[]): void {
   for (const k of Object.keys(o)) {
-    if (!known.includes(k)) throw new InputError(`model description${where ? ' ' + where : ''}: unknown field "${k}" (known: ${known.join(', ')})`);
+    if (!known.includes(k)) throw new InputError(`model description${where ? ` ${where}` : ''}: unknown field "${k}" (known: ${known.join(', ')})`);
   }
 }
 

@@ -1,10 +1,10 @@
-// Intensity normalization between physical images and network tensors (design.md, "Model
-// description"): network value = physical value * scale + offset, the physical value being mu
+// Intensity normalization between physical images and network tensors (README, "Your own network
+// as a prior"): network value = physical value * scale + offset, the physical value being mu
 // (1/mm) or HU = 1000 (mu - mu_water) / mu_water.
 import { InputError } from '../errors';
 import type { ModelTensorInfo } from './description';
 
-function requireMuWater(t: ModelTensorInfo, side: string, muWater: number | undefined): number {
+function requireMuWater(side: string, muWater: number | undefined): number {
   if (!(muWater !== undefined && muWater > 0 && Number.isFinite(muWater))) {
     throw new InputError(`model description ${side}.quantity: "hu" needs the scan's mu_water (rimfill.muWater), which this scan does not carry; calibrate it or describe the model in mu`);
   }
@@ -15,7 +15,7 @@ function requireMuWater(t: ModelTensorInfo, side: string, muWater: number | unde
 export function toNetworkValues(mu: Float32Array, t: ModelTensorInfo, muWater?: number): Float32Array {
   const out = new Float32Array(mu.length);
   if (t.quantity === 'hu') {
-    const mw = requireMuWater(t, 'input', muWater);
+    const mw = requireMuWater('input', muWater);
     // hu * scale + offset with hu = 1000 (mu - mw) / mw.
     const a = (1000 / mw) * t.scale, b = t.offset - 1000 * t.scale;
     for (let i = 0; i < mu.length; i++) out[i] = mu[i] * a + b;
@@ -29,7 +29,7 @@ export function toNetworkValues(mu: Float32Array, t: ModelTensorInfo, muWater?: 
 export function fromNetworkValues(values: Float32Array, t: ModelTensorInfo, muWater?: number): Float32Array {
   const out = new Float32Array(values.length);
   if (t.quantity === 'hu') {
-    const mw = requireMuWater(t, 'output', muWater);
+    const mw = requireMuWater('output', muWater);
     // mu = mw + mw * hu / 1000 with hu = (value - offset) / scale.
     const a = mw / (1000 * t.scale), b = mw - (t.offset * mw) / (1000 * t.scale);
     for (let i = 0; i < values.length; i++) out[i] = values[i] * a + b;

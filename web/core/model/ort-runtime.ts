@@ -28,11 +28,6 @@ export function configureOrt(wasmBinary: Uint8Array): void {
   configured = true;
 }
 
-/** True once configureOrt has run in this thread. */
-export function ortConfigured(): boolean {
-  return configured;
-}
-
 function signatureOf(list: readonly ort.InferenceSession.ValueMetadata[]): TensorSignature[] {
   return list.map((m) => (m.isTensor ? { name: m.name, isTensor: true, type: m.type, shape: [...m.shape] } : { name: m.name, isTensor: false, shape: [] }));
 }

@@ -1,5 +1,5 @@
 // A model's graph inputs and outputs as the runtime reads them, and the check of that signature
-// against the model description (design.md: NCHW float32 tensors with N = C = 1).
+// against the model description (README, "Your own network as a prior": NCHW float32 tensors with N = C = 1).
 import { InputError } from '../errors';
 import type { ModelInfo } from './description';
 

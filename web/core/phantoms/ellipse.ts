@@ -1,6 +1,6 @@
 // Phantoms made of uniform ellipses: exact line integrals and rasterization.
 // Line integral through an ellipse = density x chord length (Kak & Slaney 1988, ch. 3.1, the
-// worked ellipse example; here in the general ray form, references.md section 1c/1d).
+// worked ellipse example; here in the general ray form, REFERENCES.md [ellipse-projection], [ellipsoid-chord]).
 import type { ImageGrid } from '../image';
 import { gridOrigin } from '../image';
 

@@ -1,11 +1,11 @@
 // The three-dimensional Shepp-Logan head of Kak & Slaney (Principles of Computerized
 // Tomographic Imaging, IEEE Press 1988, section 3.6, ellipsoid table).
 //
-// FROM MEMORY, NOT VERIFIED against the book (references.md 1d): the values below are as
+// FROM MEMORY, NOT VERIFIED against the book (REFERENCES.md [ellipsoid-chord]): the values below are as
 // remembered and as transcribed in a secondary copy of the table; where the two disagreed the
 // secondary copy was taken. What can be checked is checked in test/core/phantoms-3d.test.ts:
 // at z = -0.25 the ventricles (c, d), ellipse e and tumour f have exactly the centres, semi-axes
-// and orientations of Shepp & Logan's verified 2D ellipses d, c, e, f (references.md 1a, written
+// and orientations of Shepp & Logan's verified 2D ellipses d, c, e, f (REFERENCES.md [shepp-logan-1974], written
 // in Kak & Slaney's (A, B, angle) form); the skull ellipsoids a, b have the 2D semi-axes in x
 // and y. Known differences from the 2D table: b is centred at y = 0 (2D: -0.0184), the small
 // tumours g, h sit at y = -0.65 (2D: -0.605) and e, f have twice the 2D contrast (0.02).

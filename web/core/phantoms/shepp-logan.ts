@@ -6,7 +6,7 @@
 import { MU_WATER_60KEV } from './materials';
 import { boundingRadius, type EllipsePhantom } from './ellipse';
 
-/** [x0, y0, A, B, phi(deg), rho original, rho modified] (references.md section 1a). */
+/** [x0, y0, A, B, phi(deg), rho original, rho modified] (REFERENCES.md [shepp-logan-1974]). */
 export const SHEPP_LOGAN_TABLE: ReadonlyArray<readonly [number, number, number, number, number, number, number]> = [
   [0, 0, 0.69, 0.92, 0, 2.0, 1.0],
   [0, -0.0184, 0.6624, 0.874, 0, -0.98, -0.8],

@@ -1,7 +1,7 @@
 // Phantoms made of uniform solids (ellipsoids and finite elliptic cylinders along z): exact line
 // integrals, point tests and voxelization.
 //
-// Ray through an ellipsoid (references.md 1d): with the ray x(t) = s + t d (|d| = 1) and the
+// Ray through an ellipsoid (REFERENCES.md [ellipsoid-chord]): with the ray x(t) = s + t d (|d| = 1) and the
 // ellipsoid (x - c)^T M (x - c) <= 1, alpha = d^T M d, beta = d^T M (s - c),
 // gamma = (s - c)^T M (s - c) - 1, the chord is 2 sqrt(beta^2 - alpha gamma) / alpha.
 // A finite elliptic cylinder is the same quadratic in x and y, intersected with the slab
@@ -83,24 +83,6 @@ export function scaledChord(shape: Solid['shape'], qx: number, qy: number, qz: n
     t1 = Math.min(t1, Math.max(za, zb));
   }
   return t1 > t0 ? t1 - t0 : 0;
-}
-
-/** Length (mm) of the part of the ray p + t d (|d| = 1) inside solid e. */
-export function solidChord(e: Solid, p: readonly number[], d: readonly number[]): number {
-  const { co, si } = solidFrame(e);
-  const rx = p[0] - e.cx, ry = p[1] - e.cy;
-  return scaledChord(
-    e.shape,
-    (co * rx + si * ry) / e.a, (-si * rx + co * ry) / e.b, (p[2] - e.cz) / e.c,
-    (co * d[0] + si * d[1]) / e.a, (-si * d[0] + co * d[1]) / e.b, d[2] / e.c,
-  );
-}
-
-/** Exact line integral of the phantom along a ray (unit direction). */
-export function solidLineIntegral(p: SolidPhantom, origin: readonly number[], d: readonly number[]): number {
-  let sum = 0;
-  for (const e of p.solids) sum += e.value * solidChord(e, origin, d);
-  return sum;
 }
 
 /** True when point (x, y, z) lies inside solid e. */

@@ -1,6 +1,6 @@
 // HU calibration: mu_water set by hand, or measured as the mean attenuation of a region the
 // user marks as water (0 HU) or as a material of known HU (soft tissue, say +40 HU). From
-// HU = 1000 (mu - mu_water) / mu_water (ICRP Publication 129; references.md 6b):
+// HU = 1000 (mu - mu_water) / mu_water (ICRP Publication 129; REFERENCES.md [hu-definition]):
 // mu_water = mean(mu) / (1 + HU_ref / 1000).
 import { InputError } from '../errors';
 import { gridOrigin, type Image2D } from '../image';

@@ -1,6 +1,6 @@
 // Detector intensities to line integrals: p = -ln((I - D) / (F - D)), with D the dark frame and
 // F the flat (open-beam) frame, or p = -ln((I - D) / I0) with a known unattenuated level I0
-// (Beer-Lambert law; references.md section 8). Readings that cannot be trusted are counted,
+// (Beer-Lambert law; REFERENCES.md [transmission-noise]). Readings that cannot be trusted are counted,
 // never hidden: non-positive transmissions are clamped, saturated readings capped, non-finite
 // readings and bad elements filled from their neighbours.
 import { InputError, throwIfCancelled } from '../errors';
@@ -20,7 +20,7 @@ export interface IntensityCorrection {
   saturation?: number;
   /**
    * Smallest transmission kept: non-positive ones become this. Default: one count, 1 / (F - D),
-   * when the open-beam level exceeds 1 (count data, as references.md section 8), else 1e-6.
+   * when the open-beam level exceeds 1 (count data, as REFERENCES.md [transmission-noise]), else 1e-6.
    */
   minTransmission?: number;
   /** Bad elements (1 = bad), one frame of rows x channels; filled after the logarithm. */

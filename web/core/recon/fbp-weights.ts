@@ -3,7 +3,7 @@
 // vectors, so calibrated trajectories get the same treatment.
 import { VIEW_STRIDE, firstChannelU, kernelKind, KernelKind, viewVectors } from '../geometry/view-vectors';
 import type { Geometry } from '../geometry/types';
-import { displacedDetectorWeight, displacement } from './displaced-detector';
+import { displacedDetectorWeight, displacement, type DisplacedDetector } from './displaced-detector';
 
 /** Per-view source (or ray) angle, radians, unwrapped so that it changes continuously. */
 export function viewAngles(views: Float32Array, kind: number): Float64Array {
@@ -92,88 +92,121 @@ export function fbpPreweights(g: Geometry, channels = g.detector.channels, u0 = 
   const pitch = g.detector.pitch[0];
   const beta = viewAngles(views, kind);
   const dBeta = angularSteps(beta);
-  const warnings: string[] = [];
   const span = n > 1 ? Math.abs(beta[n - 1] - beta[0]) : 0;
   const step = n > 1 ? span / (n - 1) : Math.PI;
-  const sign = n > 1 && beta[n - 1] < beta[0] ? -1 : 1;
   const fan = kind !== KernelKind.parallel;
-
+  const distances = viewDistances(views);
+  // Outer edges of the measured detector, as fan angles (fan) or u (parallel).
+  const measured0 = firstChannelU(g) - pitch / 2, measured1 = measured0 + g.detector.channels * pitch;
+  const coord = (u: number) => (fan ? fanAngle(u, distances(0).D, kind === KernelKind.fanCurved) : u);
   // Half fan angle of the detector (largest |gamma|), for the short-scan check.
-  let delta = 0;
-  const distances = (v: number) => {
+  const delta = fan ? Math.max(Math.abs(coord(measured0 + pitch / 2)), Math.abs(coord(measured1 - pitch / 2))) : 0;
+  // Up to a channel of asymmetry (a quarter-channel offset, a crop off by half a channel) is a centred detector.
+  const displaced = displacement(coord(measured0), coord(measured1), Math.abs(coord(pitch) - coord(0)));
+  const { scanType, deltaScan, warnings } = classifyScan(span, step, delta, fan);
+  const det: ChannelGeometry = { kind, fan, channels, u0, pitch, displaced };
+  const same = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.abs(b);
+  // A full turn with the same distances in every view factors into a channel row times a view
+  // scale (redundancy and cosine depend on the channel only, the angular step on the view).
+  if (allowFactored && scanType === 'full' && (!fan || sameDistances(n, distances, same))) {
+    return { weights: factoredRow(det, fan ? distances(0) : { R: 1, D: 1 }), perView: Float32Array.from(dBeta), warnings, scanType };
+  }
+  const sign = n > 1 && beta[n - 1] < beta[0] ? -1 : 1;
+  const weights = viewByViewWeights(det, { n, beta, dBeta, sign, scanType, deltaScan }, distances, same);
+  return { weights, warnings, scanType };
+}
+
+/** The detector's channels as the weights see them. */
+interface ChannelGeometry {
+  kind: ReturnType<typeof kernelKind>;
+  fan: boolean;
+  channels: number;
+  /** u of the first channel and the pitch, mm. */
+  u0: number;
+  pitch: number;
+  /** Displaced-detector overlap (displaced-detector.ts), when the measured detector is asymmetric. */
+  displaced: DisplacedDetector | undefined;
+}
+
+/** Source-to-isocentre (R) and source-to-detector (D) distances of view v, mm. */
+function viewDistances(views: Float32Array): (v: number) => { R: number; D: number } {
+  return (v) => {
     const b = v * VIEW_STRIDE;
     const sx = views[b], sy = views[b + 1];
     const nx = views[b + 3] - sx, ny = views[b + 4] - sy;
     const D = Math.hypot(nx, ny);
     return { R: -(sx * nx + sy * ny) / D, D };
   };
-  // Outer edges of the measured detector, as fan angles (fan) or u (parallel).
-  const measured0 = firstChannelU(g) - pitch / 2, measured1 = measured0 + g.detector.channels * pitch;
-  const { D: D0 } = distances(0);
-  const coord = (u: number) => (fan ? fanAngle(u, D0, kind === KernelKind.fanCurved) : u);
-  if (fan) delta = Math.max(Math.abs(coord(measured0 + pitch / 2)), Math.abs(coord(measured1 - pitch / 2)));
-  // Up to a channel of asymmetry (a quarter-channel offset, a crop off by half a channel) is a centred detector.
-  const displaced = displacement(coord(measured0), coord(measured1), Math.abs(coord(pitch) - coord(0)));
+}
 
+/** Full turn, short scan (180 degrees plus the fan) or limited angle, with what the user should know. */
+function classifyScan(span: number, step: number, delta: number, fan: boolean): { scanType: Preweights['scanType']; deltaScan: number; warnings: string[] } {
+  const warnings: string[] = [];
   const coverage = span + step;
+  const deg = (a: number) => ((a * 180) / Math.PI).toFixed(1);
   let scanType: Preweights['scanType'];
   if (coverage >= 2 * Math.PI - step / 2) scanType = 'full';
   else if (coverage >= Math.PI - step / 2) scanType = 'short';
   else scanType = 'limited';
   const deltaScan = Math.max(0, (span - Math.PI) / 2);
   if (scanType === 'full' && coverage > 2 * Math.PI + step) {
-    warnings.push(`the views cover ${(coverage * 180 / Math.PI).toFixed(1)} degrees; rays measured more than twice are weighted as if the scan were one turn`);
+    warnings.push(`the views cover ${deg(coverage)} degrees; rays measured more than twice are weighted as if the scan were one turn`);
   }
   if (scanType === 'short' && fan && deltaScan < delta - step) {
-    warnings.push(`short scan of ${(span * 180 / Math.PI).toFixed(1)} degrees is less than 180 degrees plus the fan angle (${((Math.PI + 2 * delta) * 180 / Math.PI).toFixed(1)}): some rays are missing`);
+    warnings.push(`short scan of ${deg(span)} degrees is less than 180 degrees plus the fan angle (${deg(Math.PI + 2 * delta)}): some rays are missing`);
   }
-  if (scanType === 'limited') {
-    warnings.push(`limited-angle scan (${(coverage * 180 / Math.PI).toFixed(1)} degrees): FBP cannot recover the missing directions`);
-  }
+  if (scanType === 'limited') warnings.push(`limited-angle scan (${deg(coverage)} degrees): FBP cannot recover the missing directions`);
+  return { scanType, deltaScan, warnings };
+}
 
-  // Fan angle and cosine pre-weight per channel, recomputed only when a view's distances differ
-  // from the previous view's by more than float32 rounding of the view table (circular scans: once).
+/** Fan angle of channel k and its cosine pre-weight (cos gamma flat; R cos gamma curved). */
+function channelCosine(det: ChannelGeometry, k: number, R: number, D: number): { gamma: number; cosine: number } {
+  if (!det.fan) return { gamma: 0, cosine: 1 };
+  const curved = det.kind === KernelKind.fanCurved;
+  const gamma = fanAngle(det.u0 + k * det.pitch, D, curved);
+  return { gamma, cosine: curved ? R * Math.cos(gamma) : Math.cos(gamma) };
+}
+
+/** The channel row of a factored full turn: redundancy (1/2 or displaced-detector) times cosine. */
+function factoredRow(det: ChannelGeometry, { R, D }: { R: number; D: number }): Float32Array {
+  const row = new Float32Array(det.channels);
+  for (let k = 0; k < det.channels; k++) {
+    const { gamma, cosine } = channelCosine(det, k, R, D);
+    row[k] = (det.displaced ? displacedDetectorWeight(det.fan ? gamma : det.u0 + k * det.pitch, det.displaced) : 0.5) * cosine;
+  }
+  return row;
+}
+
+/**
+ * Weights view by view: angular step x redundancy (1/2, displaced-detector or Parker) x cosine.
+ * Fan angles and cosines are recomputed only when a view's distances differ from the previous
+ * view's by more than float32 rounding of the view table (circular scans: once).
+ */
+function viewByViewWeights(
+  det: ChannelGeometry,
+  scan: { n: number; beta: Float64Array; dBeta: Float64Array; sign: number; scanType: Preweights['scanType']; deltaScan: number },
+  distances: (v: number) => { R: number; D: number },
+  same: (a: number, b: number) => boolean,
+): Float32Array {
+  const { channels, fan, displaced } = det;
+  const { n, beta, dBeta, sign, scanType, deltaScan } = scan;
   const gammas = new Float64Array(channels), cosines = new Float64Array(channels).fill(1);
   let lastR = NaN, lastD = NaN;
-  const same = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * Math.abs(b);
-  // A full turn with the same distances in every view factors into a channel row times a view
-  // scale (redundancy and cosine depend on the channel only, the angular step on the view).
-  if (allowFactored && scanType === 'full' && (!fan || sameDistances(n, distances, same))) {
-    const { R, D } = fan ? distances(0) : { R: 1, D: 1 };
-    const row = new Float32Array(channels);
-    for (let k = 0; k < channels; k++) {
-      const gamma = fan ? fanAngle(u0 + k * pitch, D, kind === KernelKind.fanCurved) : 0;
-      const cosine = !fan ? 1 : kind === KernelKind.fanCurved ? R * Math.cos(gamma) : Math.cos(gamma);
-      row[k] = (displaced ? displacedDetectorWeight(fan ? gamma : u0 + k * pitch, displaced) : 0.5) * cosine;
-    }
-    return { weights: row, perView: Float32Array.from(dBeta), warnings, scanType };
-  }
   const weights = new Float32Array(n * channels);
   for (let v = 0; v < n; v++) {
     const { R, D } = fan ? distances(v) : { R: 1, D: 1 };
     if (fan && !(same(R, lastR) && same(D, lastD))) {
-      for (let k = 0; k < channels; k++) {
-        gammas[k] = fanAngle(u0 + k * pitch, D, kind === KernelKind.fanCurved);
-        cosines[k] = kind === KernelKind.fanCurved ? R * Math.cos(gammas[k]) : Math.cos(gammas[k]);
-      }
+      for (let k = 0; k < channels; k++) ({ gamma: gammas[k], cosine: cosines[k] } = channelCosine(det, k, R, D));
       [lastR, lastD] = [R, D];
     }
-    const betaRel = sign * (beta[v] - beta[0]);
     const row = v * channels;
-    if (scanType === 'full' && !displaced) {
-      for (let k = 0; k < channels; k++) weights[row + k] = dBeta[v] * 0.5 * cosines[k];
-      continue;
-    }
-    if (scanType === 'full') {
-      for (let k = 0; k < channels; k++) weights[row + k] = dBeta[v] * displacedDetectorWeight(fan ? gammas[k] : u0 + k * pitch, displaced!) * cosines[k];
-      continue;
-    }
     for (let k = 0; k < channels; k++) {
-      let red = 1;
-      if (scanType === 'short') red = parkerWeight(betaRel, -sign * gammas[k], fan ? Math.max(deltaScan, 1e-9) : deltaScan);
-      if (scanType === 'short' && !fan && deltaScan < 1e-9) red = 1;
+      let red: number;
+      if (scanType === 'full') red = displaced ? displacedDetectorWeight(fan ? gammas[k] : det.u0 + k * det.pitch, displaced) : 0.5;
+      else if (scanType === 'short' && (fan || deltaScan >= 1e-9)) red = parkerWeight(sign * (beta[v] - beta[0]), -sign * gammas[k], fan ? Math.max(deltaScan, 1e-9) : deltaScan);
+      else red = 1;
       weights[row + k] = dBeta[v] * red * cosines[k];
     }
   }
-  return { weights, warnings, scanType };
+  return weights;
 }

@@ -1,6 +1,6 @@
 // FDK reconstruction of circular cone-beam scans with a flat detector (L. A. Feldkamp,
 // L. C. Davis, J. W. Kress, "Practical cone-beam algorithm", J. Opt. Soc. Am. A 1(6):612-619,
-// 1984; references.md 3e): cosine pre-weighting, row-wise ramp filtering (the 2D engine's
+// 1984; REFERENCES.md [fdk-1984]): cosine pre-weighting, row-wise ramp filtering (the 2D engine's
 // windows), Parker weights for short scans, voxel-driven backprojection with bilinear detector
 // interpolation, split over z slabs across the workers.
 //
@@ -17,14 +17,14 @@ import type { Buf, Workspace } from '../engine/workspace';
 import { throwIfCancelled } from '../errors';
 import { coneFovHalfHeight, requireCone } from '../geometry/cone';
 import { extendDetector } from '../geometry/presets';
-import { viewCount } from '../geometry/types';
+import { viewCount, type Geometry } from '../geometry/types';
 import { firstChannelU, firstRowV, fovRadius, viewVectors } from '../geometry/view-vectors';
 import { asSource, viewSize, type ProjectionSource } from '../projection-source';
 import type { RunHooks } from '../run-hooks';
 import type { Scan } from '../scan';
 import { checkVolumeGrid, withVolumeMemory, type Volume, type VolumeGrid } from '../volume';
 import { collectVolume, type VolumeInfo, type VolumeSink } from '../volume-sink';
-import { createBackprojector, isAxialTrajectory, rowBlockFloats } from './fdk-backprojectors';
+import { createBackprojector, isAxialTrajectory, rowBlockFloats, type FdkBackprojector } from './fdk-backprojectors';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
 import { prepareFilter } from './filter-response';
@@ -108,19 +108,43 @@ export async function fdkToSink(ws: Workspace, scan: Scan | ProjectionSource, pa
   const grid = checkVolumeGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
   const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
-  const ext = params.extension;
-  const gf = ext ? extendDetector(g, ext.left, ext.right) : g; // the detector the filter sees
-  const table = viewVectors(g);
-  const nViews = viewCount(g);
-  const { channels: nCh, rows: nRows } = g.detector;
-  const nChF = gf.detector.channels;
+  const gf = params.extension ? extendDetector(g, params.extension.left, params.extension.right) : g; // the detector the filter sees
   const t0 = now();
-  const { weights, warnings, scanType } = fbpPreweights(g, nChF, firstChannelU(gf)); // g: the measured detector, for redundancy weights
+  const { weights, warnings, scanType } = fbpPreweights(g, gf.detector.channels, firstChannelU(gf)); // g: the measured detector, for redundancy weights
   const timings: FdkTimings = { weights: now() - t0, filter: 0, backproject: 0, output: 0 };
   throwIfCancelled(hooks.signal);
-
   ws.reset();
-  const chunk = fdkChunkViews(nChF, nRows, nViews, ws.parallelism, params.chunkBytes);
+  const job = await prepareJob(ws, g, gf, grid, weights, { ...params, filter: window });
+  await streamChunks(ws, job, source, params.extension, timings, hooks);
+  const t1 = now();
+  await job.bp.output(sink, hooks.signal);
+  throwIfCancelled(hooks.signal);
+  timings.output = now() - t1;
+  return {
+    info: { grid, quantity: 'mu', muWater: source.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
+    warnings,
+    scanType,
+    backprojector: job.bp.kind,
+    timings,
+  };
+}
+
+/** A laid-out FDK job: views per chunk, the chunk buffers and the backprojector. */
+interface FdkLayout {
+  chunk: number;
+  raw: Buf;
+  /** The chunk's rows as the filter takes them (extended rows, or `raw` itself). */
+  rows: Buf;
+  bp: FdkBackprojector;
+}
+
+/** Lays out the chunk buffers, the filter and the backprojector, and writes the view tables. */
+async function prepareJob(ws: Workspace, g: Geometry, gf: Geometry, grid: VolumeGrid, weights: Float32Array, params: FdkParams & { filter: FilterWindow }): Promise<FdkLayout> {
+  const ext = params.extension;
+  const table = viewVectors(g);
+  const { channels: nCh, rows: nRows } = g.detector;
+  const nChF = gf.detector.channels;
+  const chunk = fdkChunkViews(nChF, nRows, viewCount(g), ws.parallelism, params.chunkBytes);
   const { views, viewWeights, raw, rows } = withVolumeMemory(grid, () => {
     const raw = ws.alloc('projChunk', chunk * nRows * nCh);
     return {
@@ -131,7 +155,7 @@ export async function fdkToSink(ws: Workspace, scan: Scan | ProjectionSource, pa
     };
   });
   // Zero padding as in fbp2d: the measured channels filtered exactly (linear convolution).
-  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, window, params.cutoff ?? 1);
+  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, params.filter, params.cutoff ?? 1);
   const bp = withVolumeMemory(grid, () => createBackprojector({
     ws, grid, nCh: nChF, nRows, chunk, views, viewWeights, filter,
     u0: firstChannelU(gf), pitchU: g.detector.pitch[0], v0: firstRowV(g), pitchV: g.detector.pitch[1],
@@ -140,9 +164,13 @@ export async function fdkToSink(ws: Workspace, scan: Scan | ProjectionSource, pa
   await ws.write(views, table);
   await ws.write(viewWeights, weights);
   await bp.clear();
+  return { chunk, raw, rows, bp };
+}
 
-  const chunks = splitRange(nViews, Math.ceil(nViews / chunk));
-  const n = viewSize(g);
+/** Every chunk of views: read (the next one meanwhile), extend, weight and filter, backproject. */
+async function streamChunks(ws: Workspace, job: FdkLayout, source: ProjectionSource, ext: RowExtension | undefined, timings: FdkTimings, hooks: RunHooks): Promise<void> {
+  const nViews = viewCount(source.geometry), n = viewSize(source.geometry);
+  const chunks = splitRange(nViews, Math.ceil(nViews / job.chunk));
   let next = source.read(chunks[0][0], chunks[0][1]);
   for (let c = 0; c < chunks.length; c++) {
     throwIfCancelled(hooks.signal);
@@ -150,26 +178,15 @@ export async function fdkToSink(ws: Workspace, scan: Scan | ProjectionSource, pa
     const t1 = now();
     const data = await next;
     if (data.length !== (c1 - c0) * n) throw new Error(`projection source: views ${c0} to ${c1} gave ${data.length} values, expected ${(c1 - c0) * n}`);
-    await ws.write(raw, data);
+    await ws.write(job.raw, data);
     // The next chunk is read while the engine works on this one.
     if (c + 1 < chunks.length) next = source.read(chunks[c + 1][0], chunks[c + 1][1]);
-    if (ext) await ext.extendRows(ws, raw, rows, c0, c1);
-    await bp.filter(rows, c0, c1);
+    if (ext) await ext.extendRows(ws, job.raw, job.rows, c0, c1);
+    await job.bp.filter(job.rows, c0, c1);
     const t2 = now();
-    await bp.backproject(c0, c1, c === chunks.length - 1);
+    await job.bp.backproject(c0, c1, c === chunks.length - 1);
     timings.filter += t2 - t1;
     timings.backproject += now() - t2;
     hooks.onProgress?.((c + 1) / chunks.length, 'filter + backproject');
   }
-  const t3 = now();
-  await bp.output(sink, hooks.signal);
-  throwIfCancelled(hooks.signal);
-  timings.output = now() - t3;
-  return {
-    info: { grid, quantity: 'mu', muWater: source.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
-    warnings,
-    scanType,
-    backprojector: bp.kind,
-    timings,
-  };
 }

@@ -1,5 +1,5 @@
 // Exact cone-beam projections of solid phantoms, ray by ray from the view table: for every view,
-// row and channel, the sum over solids of density x chord (references.md 1d). Each solid only
+// row and channel, the sum over solids of density x chord (REFERENCES.md [ellipsoid-chord]). Each solid only
 // visits the detector rectangle that holds the projection of its bounding box (the perspective
 // image of a box lies in the hull of its projected corners), so small solids cost little.
 import { throwIfCancelled } from '../errors';

@@ -1,5 +1,5 @@
 // Reproducible photon noise: I ~ Poisson(I0 exp(-p)), p_hat = -ln(max(I, 1) / I0)
-// (standard transmission model, references.md section 8).
+// (standard transmission model, REFERENCES.md [transmission-noise]).
 
 /** Seeded 32-bit generator (mulberry32, public-domain, common practice); uniform in [0, 1). */
 export function seededRandom(seed: number): () => number {

@@ -1,8 +1,8 @@
 // Edge analysis of a 2D scan: which view is cut off on which side, and how far the object
 // reaches beyond each cut-off edge. The reach comes from Hsieh's water cylinder fit
 // (water-fit.ts) under physical constraints, with the fitted tail lengths smoothed across
-// neighbouring views (Hsieh et al. 2004 low-pass filter the fits across views; references.md
-// section 4a). Both the truncation report (detect.ts) and the detector extension
+// neighbouring views (Hsieh et al. 2004 low-pass filter the fits across views; REFERENCES.md
+// [hsieh-2004]). Both the truncation report (detect.ts) and the detector extension
 // (extension-plan.ts) start from this one analysis.
 import { InputError } from '../errors';
 import { isFullScan } from '../geometry/coverage';
@@ -16,7 +16,7 @@ import { constrainedCylinder, cylinderWithLength, NO_TAIL, tailLength, type Cyli
 
 /**
  * mu of water assumed when the scan does not record it: 0.01937 /mm, water at 70 keV (NIST SRD
- * 126, log-log interpolated between 60 and 80 keV; references.md section 6a).
+ * 126, log-log interpolated between 60 and 80 keV; REFERENCES.md [nist-srd126]).
  */
 export const ASSUMED_MU_WATER = 0.01937;
 

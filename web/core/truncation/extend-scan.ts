@@ -4,9 +4,8 @@
 // itself (iterative and prior-guided reconstruction).
 import type { Buf, Workspace } from '../engine/workspace';
 import { splitRange } from '../recon/split';
-import type { Scan } from '../scan';
 import { EXTEND_PARAMS } from './extend-methods';
-import type { DetectorExtension, ExtensionPlan } from './extension-plan';
+import type { DetectorExtension } from './extension-plan';
 
 /** An extension's tables in engine memory. */
 export interface ExtensionTables {
@@ -56,17 +55,4 @@ export async function runExtension(ws: Workspace, ext: DetectorExtension, measur
     throw new RangeError(`detector extension: tables for ${ext.coord.length} channels and ${ext.params.length / EXTEND_PARAMS} views do not fit ${nViews} views of ${nCh} + ${ext.left + ext.right} channels`);
   }
   await extendRows(ws, ext, await writeExtensionTables(ws, ext), measured, out, nViews, nCh);
-}
-
-/** The scan on the plan's extended detector (resets the workspace's layout). */
-export async function extendScan(ws: Workspace, scan: Scan, plan: ExtensionPlan): Promise<Scan> {
-  const nCh = scan.geometry.detector.channels;
-  const nViews = scan.data.length / nCh;
-  const nExt = plan.geometry.detector.channels;
-  ws.reset();
-  const measured = ws.alloc('measured', scan.data.length);
-  const out = ws.alloc('extended', nViews * nExt);
-  await ws.write(measured, scan.data);
-  await runExtension(ws, plan, measured, out, nViews, nCh);
-  return { ...scan, geometry: plan.geometry, data: await ws.read(out) };
 }

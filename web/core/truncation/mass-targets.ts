@@ -1,5 +1,5 @@
 // The mass each tail should carry so that the extended data satisfy the zeroth
-// Helgason-Ludwig condition (references.md section 4d: "the tail amplitude and length can be
+// Helgason-Ludwig condition (REFERENCES.md [helgason-ludwig]: "the tail amplitude and length can be
 // scaled so each view restores M_total").
 //
 // Parallel beams: view v misses D(v) = M - sum_k p_k ds_k, shared between its two tails in

@@ -1,5 +1,5 @@
 // Mass consistency, the zeroth Helgason-Ludwig condition (S. Helgason 1965; D. Ludwig, Commun.
-// Pure Appl. Math. 19:49-81, 1966; references.md section 4d): every complete parallel-beam
+// Pure Appl. Math. 19:49-81, 1966; REFERENCES.md [helgason-ludwig]): every complete parallel-beam
 // projection integrates to the same total, int P_theta(t) dt = int int f dx dy. Truncated
 // views fall short of it by the mass outside the detector.
 //

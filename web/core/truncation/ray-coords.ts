@@ -3,7 +3,7 @@
 // isocentre projects to 2 mu sqrt(r^2 - s^2) in every geometry: s = u for parallel beams and
 // s = R sin(gamma) for fan beams (gamma the fan angle, R the source-to-isocentre distance),
 // which is also the parallel-beam coordinate t of the fan ray after rebinning
-// (references.md section 4d: theta = beta - gamma, t = R sin gamma in this project's
+// (REFERENCES.md [helgason-ludwig]: theta = beta - gamma, t = R sin gamma in this project's
 // convention).
 import type { Geometry } from '../geometry/types';
 import { firstChannelU, kernelKind, KernelKind, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
@@ -54,7 +54,7 @@ export function rayCoordinates(g: Geometry): RayCoordinates {
       const x = Math.max(-0.999999, Math.min(0.999999, s / R));
       return (D * x) / Math.sqrt(1 - x * x);
     },
-    dsdu: (u) => (R * D * D) / Math.pow(D * D + u * u, 1.5),
+    dsdu: (u) => (R * D * D) / (D * D + u * u) ** 1.5,
     gamma: (u) => Math.atan(u / D),
   };
 }

@@ -1,6 +1,6 @@
 // Water cylinder extrapolation (J. Hsieh, E. Chao, J. Thibault, B. Grekowicz, A. Horst,
 // S. McOlash, T. J. Myers, "A novel reconstruction algorithm to extend the CT scan
-// field-of-view", Med. Phys. 31(9):2385-2391, 2004; maths in references.md section 4a).
+// field-of-view", Med. Phys. 31(9):2385-2391, 2004; maths in REFERENCES.md [hsieh-2004]).
 //
 // Beyond a truncated edge the missing projection is modelled as the projection of a water
 // cylinder that matches the measured edge value p_e and outward slope g. In the outward
@@ -62,13 +62,6 @@ export function constrainedCylinder(pe: number, outwardSlope: number, mu: number
   const radius = Math.sqrt(inset * inset + (pe / (2 * mu)) ** 2);
   const length = radius - inset;
   return length > maxLength ? cylinderWithLength(pe, maxLength, mu) : { mu, radius, inset, stretch: 1 };
-}
-
-/** Tail value at outward distance delta (mm). */
-export function tailValue(t: CylinderTail, delta: number): number {
-  const q = t.inset + delta / t.stretch;
-  const r2 = t.radius * t.radius - q * q;
-  return r2 > 0 && delta >= 0 ? 2 * t.mu * Math.sqrt(r2) : 0;
 }
 
 /**

@@ -1,5 +1,5 @@
 // Measurements on images: a line profile with bilinear sampling, and mean / SD in a circular
-// region. Points are in mm on the image grid (design.md: pixel (i, j) centre at
+// region. Points are in mm on the image grid (DEVELOPERS.md, "Geometry": pixel (i, j) centre at
 // x = (i - (nx-1)/2) dx + cx, y = (j - (ny-1)/2) dy + cy).
 import { gridOrigin, type ImageGrid } from '../../core/image';
 

@@ -1,5 +1,5 @@
 // Display windows: a width and a centre (level) in display units (HU when mu_water is known).
-// Linear mapping: lower = L - W/2 maps to black, upper = L + W/2 to white (references.md 6d).
+// Linear mapping: lower = L - W/2 maps to black, upper = L + W/2 to white (REFERENCES.md [window-presets]).
 
 export interface DisplayWindow {
   /** Width, display units (> 0). */
@@ -12,7 +12,7 @@ export interface WindowPreset extends DisplayWindow {
   name: string;
 }
 
-/** Presets in HU (references.md 6d: radiology teaching values, common practice). */
+/** Presets in HU (REFERENCES.md [window-presets]: radiology teaching values, common practice). */
 export const WINDOW_PRESETS: readonly WindowPreset[] = [
   { name: 'Soft tissue', width: 400, level: 40 },
   { name: 'Lung', width: 1500, level: -600 },

@@ -2,12 +2,12 @@
 // network runs on the scan, its output is the prior of the data-consistent method, and --json
 // reports the consistency of the prior and of the result. Two test networks return the thorax
 // phantom, one of them with a false bright disk inside the FOV: the result keeps less than 20%
-// of the disk's contrast (issue 8), and the prior's disagreement is gone from the result.
+// of the disk's contrast (the project's acceptance bar), and the prior's disagreement is gone from the result.
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readImageNrrd } from '../../web/core/formats/image-nrrd';
+import { readImageNrrd } from '../helpers/read-nrrd';
 import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
 import { squareGrid } from '../../web/core/image';
 import { validateModelInfo } from '../../web/core/model/description';

@@ -83,7 +83,7 @@ function initializer(t: OnnxInitializer): ProtoWriter {
 /** Encodes a model (IR version 8) holding one graph. */
 export function writeOnnxModel(g: OnnxGraph): Uint8Array {
   const graph = new ProtoWriter();
-  g.nodes.forEach((n, i) => graph.message(1, node(n, i)));
+  g.nodes.forEach((n, i) => { graph.message(1, node(n, i)); });
   graph.string(2, 'rimfill_test_graph');
   for (const t of g.initializers ?? []) graph.message(5, initializer(t));
   for (const v of g.inputs) graph.message(11, valueInfo(v));
