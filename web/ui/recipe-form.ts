@@ -5,6 +5,8 @@ import type { ImageGrid } from '../core/image';
 import { describeRecipeFields, recipeSummary, type RecipeField } from '../core/recipe/fields';
 import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
 import { DEFAULT_VOLUME_SIZE } from '../core/recipe/volume-grid';
+import type { Reduction } from '../core/reduction';
+import './reduction-input';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
 import { theme } from './theme';
 
@@ -21,7 +23,7 @@ const RESULT_PRIOR = 'result:';
 export class RecipeForm extends LitElement {
   static properties = {
     referenceGrid: { attribute: false }, disabled: { type: Boolean }, cone: { type: Boolean }, priorResults: { attribute: false },
-    values: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true },
+    values: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true }, reduce: { state: true },
   };
   /** Grid of the scan's reference image, offered as "match the ground truth" (undefined: none). */
   declare referenceGrid: ImageGrid | undefined;
@@ -32,6 +34,8 @@ export class RecipeForm extends LitElement {
   /** Stored results the prior-guided method can start from (volumes for a cone-beam scan, else images). */
   declare priorResults: Array<{ id: string; label: string }>;
   declare slicesMode: 'auto' | 'custom';
+  /** Binning, view step and rows for this run (reduction.ts). */
+  declare reduce: Reduction;
   declare values: Record<string, unknown>;
   declare gridMode: GridMode;
   declare error: string;
@@ -63,6 +67,7 @@ export class RecipeForm extends LitElement {
     this.error = '';
     this.cone = false;
     this.slicesMode = 'auto';
+    this.reduce = {};
     this.priorResults = [];
   }
 
@@ -82,6 +87,7 @@ export class RecipeForm extends LitElement {
     if (this.gridMode === 'reference' && g) r.grid = { size: g.nx, pixel: g.dx };
     if (this.gridMode === 'custom') r.grid = { ...this.customGrid };
     if (this.cone && this.slicesMode === 'custom') r.volume = { ...this.customSlices };
+    if (Object.keys(this.reduce).length) r.reduce = { ...this.reduce };
     if (typeof r.prior === 'string' && r.prior.startsWith(RESULT_PRIOR)) {
       const id = r.prior.slice(RESULT_PRIOR.length);
       const chosen = this.priorResults.find((p) => p.id === id);
@@ -168,6 +174,9 @@ export class RecipeForm extends LitElement {
           ${this.input(f)}
           <span class="help">${f.help}</span></div>`)}
         ${this.cone ? this.slicesInput() : nothing}
+        <div class="field wide"><label>Reduce the scan for this run</label>
+          <rf-reduction-input name="recipe" ?cone=${this.cone} .reduce=${this.reduce}
+            @reduction-change=${(e: CustomEvent) => { e.stopPropagation(); this.reduce = e.detail.reduce; this.error = ''; }}></rf-reduction-input></div>
       </form>
       <div class="actions">
         <button class="primary" id="queue-recipe" ?disabled=${this.disabled} @click=${this.queue}>Add to queue</button>

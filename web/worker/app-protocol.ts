@@ -13,7 +13,8 @@ import type { PackedOrtRuntime } from './ort-runtime-pack';
 export const APP_PROTOCOL_VERSION = 7;
 
 export type { CalibrationRequest, LibraryRequest, NetworkPriorRequest, PriorCheckRequest };
-export type { ScanOverview } from './library-ops';
+export type { ScanOverview, StoredVolumeRef } from './library-ops';
+export type { VolumePlane } from '../store/volume-planes';
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };

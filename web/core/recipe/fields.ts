@@ -7,6 +7,7 @@ import { FILTER_WINDOWS } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
 import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, type IterativeOptions } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
+import { describeReduction, isIdentity, type Reduction } from '../reduction';
 
 export interface FieldChoice {
   value: string;
@@ -206,5 +207,6 @@ export function recipeSummary(recipe: Record<string, unknown>): string {
     .map((f) => formatValue(f, recipe[f.key]));
   const v = recipe.volume as { slices?: number; spacing?: number } | undefined;
   if (v?.slices !== undefined) parts.push(`${v.slices} slices × ${v.spacing} mm`);
+  if (recipe.reduce && !isIdentity(recipe.reduce as Reduction)) parts.push(describeReduction(recipe.reduce as Reduction));
   return parts.join(', ');
 }
