@@ -2,7 +2,7 @@
 // playwright-core: once served from a loopback static server (cross-origin isolated: shared
 // engine memory) and once opened from disk (file://: separate memories). Builds the page first
 // when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
-// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only]
+// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--big-cone-only]
 import { execSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -13,6 +13,7 @@ import { cliReference } from './cli-reference.mjs';
 import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
+import { bigConeTests } from './big-cone-tests.mjs';
 import { priorReference } from './prior-reference.mjs';
 import { priorTests } from './prior-tests.mjs';
 import { ensurePageBuilt } from '../../scripts/page-build.mjs';
@@ -25,6 +26,8 @@ const argv = process.argv.slice(2);
 const only = argv.includes('--only') ? argv[argv.indexOf('--only') + 1] : undefined;
 /** Only the network-prior steps (on a fresh profile the page makes the demo scan itself). */
 const priorsOnly = argv.includes('--priors-only');
+/** Only the steps of the large cone-beam path (big-cone-tests.mjs). */
+const bigConeOnly = argv.includes('--big-cone-only');
 
 function chromiumPath() {
   try {
@@ -49,10 +52,10 @@ async function main() {
   }
   mkdirSync(artifacts, { recursive: true });
   let reference;
-  await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
+  if (!bigConeOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
-  if (!priorsOnly) {
+  if (!priorsOnly && !bigConeOnly) {
     await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
       reference.cone = coneReference(root);
     });
@@ -74,7 +77,8 @@ async function main() {
       const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
       const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1440, height: 1000 }, acceptDownloads: true });
       try {
-        if (!priorsOnly) await pageTests(h, { context, ...m, artifacts, reference });
+        if (!priorsOnly && !bigConeOnly) await pageTests(h, { context, ...m, artifacts, reference });
+        if (!priorsOnly) await bigConeTests(h, { context, ...m, root });
         if (prior) await priorTests(h, { context, ...m, artifacts, prior });
       } finally {
         await context.close();

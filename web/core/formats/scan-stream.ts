@@ -16,7 +16,7 @@ import { convertViews, planScan, tallyWarnings, type ConversionTally, type Proje
 import { projectionHeaderFromNrrd } from './scan-nrrd';
 import { readTiffStack } from './tiff';
 import { looksLikeTiff } from './tiff-structure';
-import { checkAllocation } from './limits';
+import { checkAllocation, checkBytesPresent } from './limits';
 
 /** A scan opened for streaming. */
 export interface StreamedScan {
@@ -80,9 +80,10 @@ async function nrrdViews(files: readonly ByteSource[], head: ByteSource, maxByte
     start = 0;
   }
   const need = count * SAMPLE_BYTES[type];
-  start += byteSkip(fields, encoding, data.size - start, need);
-  if (start < 0 || start + need > data.size) throw new InputError(`NRRD: the header promises ${need} bytes of data from byte ${start}, the file holds ${Math.max(0, data.size - start)}`);
-  return rawLayout(header, data, start, type, endian !== 'big', maxBytes);
+  // Offsets in the messages count from the start of the data, as the whole-file reader's do.
+  const skip = byteSkip(fields, encoding, data.size - start, need);
+  checkBytesPresent(data.size - start, skip, need, 'NRRD');
+  return rawLayout(header, data, start + skip, type, endian !== 'big', maxBytes);
 }
 
 /** Views of `type` samples stored one after another from byte `start` of `file`. */
