@@ -149,7 +149,7 @@ async function main() {
       out.pageRunSeconds = (performance.now() - t) / 1000;
       clearInterval(measure);
       clearInterval(sampler);
-      if ((await job.getAttribute('data-state')) !== 'done') throw new Error(`page FDK: ${await job.innerText()}`);
+      if ((await job.getAttribute('data-state')) !== 'done') throw new Error(`page FDK: ${await job.textContent()}`);
       const result = await page.evaluate(() => document.querySelector('rf-app').results.at(-1));
       out.page = { runSeconds: out.pageRunSeconds, storedSeconds: result.seconds, timings: result.report.timings, residual: result.residual?.sampled ?? 'every ray' };
       const renderer = Math.max(...samples.filter((x) => x.role === 'renderer').map((x) => x.peak));

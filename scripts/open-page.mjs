@@ -7,6 +7,7 @@ import { resolve, join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { ensurePageBuilt } from './page-build.mjs';
 import { serveDirectory } from './serve-page.mjs';
+import { startBanner } from './page-banner.mjs';
 
 const root = resolve(import.meta.dirname, '..');
 const argv = process.argv.slice(2);
@@ -22,9 +23,7 @@ const server = await serveDirectory(join(root, 'dist'), { port: portArg }).catch
   console.log(`port ${portArg} is taken; using a free one`);
   return serveDirectory(join(root, 'dist'), { port: 0 });
 });
-console.log(`Rimfill is served at ${server.url} (this computer only; press Ctrl+C to stop).`);
-console.log(`Without a server, open the file directly: ${pathToFileURL(join(root, 'dist/index.html')).href}`);
-console.log('For research and quality work, not for diagnosis.');
+for (const line of startBanner(server.url, pathToFileURL(join(root, 'dist/index.html')).href)) console.log(line);
 
 if (!argv.includes('--no-open')) {
   const opener = process.platform === 'darwin' ? 'open' : process.platform === 'win32' ? 'explorer' : 'xdg-open';

@@ -20,7 +20,7 @@ export function coneReference(root) {
   writeFileSync(f('cone.json'), JSON.stringify(CONE_DEMO_GEOMETRY));
   cli('simulate', '--phantom', 'thorax', '--geometry', f('cone.json'), '--photons', '200000', '--seed', '7',
     '--out', f('scan.nrrd'), '--truth', f('truth.nrrd'), '--size', '196', '--pixel', '3', '--slices', '67');
-  cli('reconstruct', f('scan.nrrd'), '--method', 'fbp', '--filter', 'ram-lak', '--cutoff', '1', '--extend', 'water', '--size', '196', '--pixel', '3', '--out', f('fdk.nrrd'));
+  cli('reconstruct', f('scan.nrrd'), '--method', 'fbp', '--filter', 'ramp', '--extend', 'water', '--size', '196', '--pixel', '3', '--out', f('fdk.nrrd'));
   const comparison = JSON.parse(cli('compare', f('fdk.nrrd'), '--reference', f('truth.nrrd'), '--fov', '--json'));
   return { comparison, dir };
 }

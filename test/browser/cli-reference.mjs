@@ -13,7 +13,7 @@ export function cliReference(root) {
   const cli = (...args) => execFileSync(process.execPath, [join(root, 'bin/rimfill.js'), ...args], { encoding: 'utf8' });
   cli('simulate', '--phantom', 'thorax', '--geometry', 'demo', '--channels', '345', '--photons', '200000', '--seed', '7',
     '--out', f('scan.nrrd'), '--truth', f('truth.nrrd'), '--size', '576', '--pixel', '1');
-  cli('reconstruct', f('scan.nrrd'), '--method', 'fbp', '--filter', 'ram-lak', '--cutoff', '1', '--size', '576', '--pixel', '1', '--out', f('fbp.nrrd'));
+  cli('reconstruct', f('scan.nrrd'), '--method', 'fbp', '--filter', 'ramp', '--size', '576', '--pixel', '1', '--out', f('fbp.nrrd'));
   const comparison = JSON.parse(cli('compare', f('fbp.nrrd'), '--reference', f('truth.nrrd'), '--scan', f('scan.nrrd'), '--fov', '--json'));
   return { comparison, fbp: parseFloatNrrd(readFileSync(f('fbp.nrrd'))), dir };
 }

@@ -4,10 +4,11 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { check, near } from './harness.mjs';
+import dicomParser from 'dicom-parser';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
 
 /** The page's default FBP recipe on the ground-truth grid: the CLI reference runs the same. */
-const FBP_NAME = 'FBP, ram-lak, cutoff 1, 576 px × 1 mm';
+const FBP_NAME = 'FBP, ramp, 576 px × 1 mm';
 const JOB_TIMEOUT = 10 * 60_000;
 
 /** pydicom's CT test image, a committed fixture (test/fixtures/MANIFEST.json). */
@@ -296,12 +297,27 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const img = parseFloatNrrd(nrrd.bytes);
     check(img.sizes.join(' ') === '576 576', `sizes ${img.sizes}`);
     check(img.keys['rimfill.quantity'] === 'hu', `quantity ${img.keys['rimfill.quantity']}`);
-    check(/^\(1,0\) \(0,1\)$/.test(img.fields['space directions']), `space directions ${img.fields['space directions']}`);
+    check(img.fields.space === 'left-posterior-superior' && /^\(1,0,0\) \(0,1,0\)$/.test(img.fields['space directions']), `space ${img.fields.space}, directions ${img.fields['space directions']}`);
     const mw = Number(reference.fbp.keys['rimfill.muWater']);
     let maxDiff = 0;
     for (let i = 0; i < img.data.length; i++) maxDiff = Math.max(maxDiff, Math.abs(img.data[i] - (reference.fbp.data[i] - mw) * (1000 / mw)));
     // Same engine and split: the pixels agree to float32 rounding of values up to a few thousand HU.
     check(maxDiff < 0.05, `largest difference from the command line's image: ${maxDiff} HU`);
+    // DICOM CT, encoded in the worker: read by dicom-parser (not the page's writer), HU = stored x
+    // slope + intercept (DICOM PS3.3 C.11.1.1.2) against the command line's image; both store
+    // rows from anterior to posterior (the LPS frame), so pixels pair up index by index.
+    const dcm = await download(page, () => page.locator('#export-dicom').click());
+    check(/\.dcm$/.test(dcm.name), `DICOM file name ${dcm.name}`);
+    const d = dicomParser.parseDicom(new Uint8Array(dcm.bytes));
+    check(d.string('x00080060') === 'CT' && d.string('x00080008') === 'DERIVED\\SECONDARY\\AXIAL', `modality ${d.string('x00080060')}, type ${d.string('x00080008')}`);
+    check(d.string('x0008103e') === FBP_NAME.replace('×', 'x'), `series description ${d.string('x0008103e')}`);
+    check(d.uint16('x00280010') === 576 && d.uint16('x00280011') === 576, `DICOM ${d.uint16('x00280011')} x ${d.uint16('x00280010')}`);
+    const slope = Number(d.string('x00281053')), intercept = Number(d.string('x00281052'));
+    const px = d.elements.x7fe00010;
+    const stored = new Int16Array(dcm.bytes.buffer.slice(dcm.bytes.byteOffset + px.dataOffset, dcm.bytes.byteOffset + px.dataOffset + 576 * 576 * 2));
+    let dicomDiff = 0;
+    for (let i = 0; i < stored.length; i++) dicomDiff = Math.max(dicomDiff, Math.abs(stored[i] * slope + intercept - (reference.fbp.data[i] - mw) * (1000 / mw)));
+    check(dicomDiff <= 0.5 * slope + 0.01, `largest DICOM difference from the command line's image: ${dicomDiff} HU (rescale step ${slope})`);
     const png = pngHeader((await download(page, () => page.locator('#export-png').click())).bytes);
     check(png.width === 576 && png.height === 576, `PNG ${png.width} x ${png.height}`);
     const report = (await download(page, () => page.locator('#export-report').click())).bytes.toString('utf8');
@@ -501,7 +517,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const saved = parseFloatNrrd((await download(page, () => view.locator('#export-volume').click())).bytes);
     check(saved.sizes.join(' ') === '196 196 66', `saved volume sizes ${saved.sizes}`);
     check(saved.keys['rimfill.quantity'] === 'mu' && Number(saved.keys['rimfill.fovHalfHeight']) > 89, `saved volume keys ${JSON.stringify(saved.keys)}`);
-    check(/^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space directions ${saved.fields['space directions']}`);
+    check(saved.fields.space === 'left-posterior-superior' && /^\(3,0,0\) \(0,3,0\) \(0,0,3\)$/.test(saved.fields['space directions']), `space ${saved.fields.space}, directions ${saved.fields['space directions']}`);
   });
 
   await h.step(`${mode}: a cone-beam recipe with chosen slices gives a volume of those slices`, async () => {

@@ -41,6 +41,8 @@ describe('rimfill CLI contract', () => {
     [['reconstruct', 'missing.nrrd', '--method', 'fbp', '--out', 'x.nrrd'], /missing\.nrrd: cannot open/],
     [['reconstruct', 'geom.json', '--method', 'fbp', '--out', 'x.nrrd'], /geom\.raw: cannot open/],
     [['reconstruct', 'scan.nrrd', '--method', 'fbp', '--out', 'x.nrrd', '--frobnicate'], /unknown option --frobnicate/],
+    [['reconstruct', 'scan.nrrd', '--method', 'fbp', '--out', 'x.nrrd', '--band-limit', '-3'], /option --band-limit: got -3, expected line pairs per cm at the isocentre/],
+    [['reconstruct', 'scan.nrrd', '--method', 'fbp', '--out', 'x.nrrd', '--cutoff', '0.5'], /unknown option --cutoff/],
     [['simulate', '--phantom', 'unicorn', '--geometry', 'geom.json', '--out', 'x.nrrd'], /phantom: got "unicorn"/],
     [['simulate', '--phantom', 'water', '--geometry', 'nope', '--out', 'x.nrrd'], /geometry: got "nope"/],
     [['simulate', '--phantom', 'water', '--geometry', 'geom.json', '--channels', '500', '--out', 'x.nrrd'], /channels: got 500/],

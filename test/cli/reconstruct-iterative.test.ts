@@ -57,7 +57,7 @@ describe('rimfill reconstruct, iterative methods', () => {
     const b = await reconstruct([f('scan.nrrd'), '--method', 'prior', '--prior', 'fbp', '--filter', 'hann', '--size', '48', '--pixel', '4',
       '--iterations', '2', '--workers', '1', '--out', f('prior-fbp.nrrd'), '--json']);
     const jb = b.json as { recipe: { prior: unknown } };
-    expect(jb.recipe.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', cutoff: 1, extend: 'none', grid: { size: 48, pixel: 4 } } });
+    expect(jb.recipe.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', extend: 'none', grid: { size: 48, pixel: 4 } } });
     expect(existsSync(f('prior-fbp.nrrd'))).toBe(true);
     // --extend goes to the prior's recipe (water-extrapolated FBP as the prior).
     const c = await reconstruct([f('scan.nrrd'), '--method', 'prior', '--prior', 'fbp', '--extend', 'water', '--size', '48', '--pixel', '4',
@@ -75,7 +75,7 @@ describe('rimfill reconstruct, iterative methods', () => {
     [['--method', 'prior', '--prior', 'prior'], /option --prior: got "prior", expected an image file or folder that exists, or a method \(fbp, sart, tv, wtv\)/],
     [['--method', 'prior', '--prior', 'banana'], /option --prior: got "banana"/],
     [['--method', 'prior', '--model', 'net.onnx'], /needs --prior image.nrrd, or --model net.onnx with --model-info net.json \(both\)/],
-    [['--method', 'tv', '--support', 'oval'], /option --support: got "oval", expected circle, grid or a mask image/],
+    [['--method', 'tv', '--support', 'oval'], /option --support: got "oval", expected disk, grid or a mask image/],
     [['--method', 'wtv', '--tv-eps', '0'], /option --tv-eps: got 0/],
   ])('%j: a clear error and nothing written', async (args, message) => {
     const out = f(`bad-${args.join('-')}.nrrd`);

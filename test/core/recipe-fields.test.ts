@@ -26,9 +26,9 @@ describe('recipe fields', () => {
   });
 
   it('summarize a recipe in one line', () => {
-    expect(recipeSummary({ method: 'fbp', filter: 'hann', cutoff: 0.8 })).toBe('FBP, hann, cutoff 0.8, automatic grid');
-    expect(recipeSummary({ method: 'fbp', filter: 'ram-lak', cutoff: 1, grid: { size: 576, pixel: 1 } })).toBe('FBP, ram-lak, cutoff 1, 576 px × 1 mm');
-    expect(recipeSummary({ method: 'fbp', filter: 'ram-lak', cutoff: 1, volume: { slices: 20, spacing: 6 } })).toBe('FBP, ram-lak, cutoff 1, automatic grid, 20 slices × 6 mm');
+    expect(recipeSummary({ method: 'fbp', filter: 'hann', bandLimit: 4 })).toBe('FBP, hann, band limit 4 lp/cm, automatic grid');
+    expect(recipeSummary({ method: 'fbp', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, ramp, 576 px × 1 mm');
+    expect(recipeSummary({ method: 'fbp', filter: 'ramp', volume: { slices: 20, spacing: 6 } })).toBe('FBP, ramp, automatic grid, 20 slices × 6 mm');
     expect(recipeSummary({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('PRIOR, automatic grid, prior: “earlier scan”');
   });
 });

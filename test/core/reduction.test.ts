@@ -1,5 +1,5 @@
 // Binning, view steps and row ranges (web/core/reduction.ts). The outside check: exact cone-beam
-// projections of a phantom (references.md 1d, analytic-cone.ts) on the fine detector, binned
+// projections of a phantom (REFERENCES.md [ellipsoid-chord], analytic-cone.ts) on the fine detector, binned
 // 2 x 2, must equal the exact projections on the reduced detector with 2 x 2 rays per cell
 // (their rays pass through the fine cells' centres), so the reduced geometry (pitch, offsets,
 // cropped rows, kept angles) is the one the values were measured with.
@@ -11,7 +11,7 @@ import { sheppLogan3d } from '../../web/core/phantoms/shepp-logan-3d';
 import { scanSource } from '../../web/core/projection-source';
 import { checkReduction, describeReduction, reducedGeometry, reduceSource } from '../../web/core/reduction';
 import { analyticConeProjections } from '../../web/core/simulate/analytic-cone';
-import { asCalibrated } from '../helpers/cone';
+import { asCalibratedViews } from '../../web/core/geometry/calibrated';
 
 const fine = validateGeometry({
   kind: 'cone', detector: { shape: 'flat', channels: 61, rows: 40, pitch: [2, 2.5], offset: [3, -4] },
@@ -40,11 +40,14 @@ describe('reduced scans', () => {
     expect(relMax(binned, exact)).toBeLessThan(1e-5);
   });
 
-  it('calibrated views keep their vectors; only the detector and the kept views change', async () => {
-    const cal = asCalibrated(fine);
+  it('calibrated views keep their positions, their steps span the binned cells, and only the kept views remain', async () => {
+    const cal = asCalibratedViews(fine);
     const g = reducedGeometry(cal, { bin: 4, viewStep: 2 });
     expect(viewCount(g)).toBe(8);
-    expect(g.views![1]).toEqual(cal.views![2]);
+    const [was, now] = [cal.views![2], g.views![1]];
+    expect(now).toEqual({ ...was, channelStep: was.channelStep.map((x) => x * 4), rowStep: was.rowStep.map((x) => x * 4) });
+    // Still a valid description: every step as long as its pitch (the validator's rule).
+    expect(validateGeometry(JSON.parse(JSON.stringify(g))).views![1].channelStep).toEqual(now.channelStep);
     const measured = await analyticConeProjections(head, cal);
     const binned = await reduceSource(scanSource({ geometry: cal, data: measured }), { bin: 4, viewStep: 2 }).read(2, 6);
     const exact = await analyticConeProjections(head, g, 4);

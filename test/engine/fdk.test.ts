@@ -9,7 +9,8 @@ import { seededRandom } from '../../web/core/simulate/noise';
 import { cubicGrid, sliceAt, volumeOrigin, type VolumeGrid } from '../../web/core/volume';
 import { localWorkspace } from '../helpers/engine';
 import { D, expectHeadRegions, headFdk, headGrid, R } from '../helpers/fdk-head';
-import { asCalibrated, cone } from '../helpers/cone';
+import { asCalibratedViews } from '../../web/core/geometry/calibrated';
+import { cone } from '../helpers/cone';
 import { regionMeans3d } from '../helpers/regions';
 import { sheppLogan3d } from '../../web/core/phantoms/shepp-logan-3d';
 
@@ -28,7 +29,7 @@ describe('FDK backprojectors', () => {
   it('the general backprojector meets the table on the head scan and agrees with the axial one', async () => {
     const axial = await headFdk('modified', 210, 105);
     const p = sheppLogan3d('modified');
-    const r = await fdk3d(await localWorkspace(2), { geometry: asCalibrated(axial.g, 1e-9), data: axial.data }, { grid: headGrid });
+    const r = await fdk3d(await localWorkspace(2), { geometry: asCalibratedViews(axial.g, 1e-9), data: axial.data }, { grid: headGrid });
     expect(r.backprojector).toBe('general');
     const k = sliceAt(headGrid, 0);
     const brain = Math.abs(regionMeans3d(p, headGrid, r.volume.data, k, 1, 3).truth);
@@ -155,7 +156,7 @@ describe('FDK pipeline', () => {
     // A calibrated view whose detector faces away from the isocentre.
     const away = validateGeometry({
       kind: 'cone', detector: { channels: 40, rows: 18, pitch: [2, 2] }, sourceIsocenter: 300, sourceDetector: 540,
-      views: Array.from({ length: 30 }, (_, v) => ({ source: [300, 0, 0], detector: [v === 4 ? 500 : -240, 0, 0], u: [0, 1, 0], v: [0, 0, 1] })),
+      views: Array.from({ length: 30 }, (_, v) => ({ focalSpot: [300, 0, 0], detectorCenter: [v === 4 ? 500 : -240, 0, 0], channelStep: [0, 2, 0], rowStep: [0, 0, 2] })),
     });
     await expect(fdk3d(ws, { geometry: away, data: scan.data }, { grid: smallGrid })).rejects.toThrow(/geometry view 4: the isocentre lies -300.0 mm from the source/);
   });

@@ -1,5 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { applyWindow, paddedLength, rampKernel, windowGain, type FilterWindow } from '../../web/core/recon/filter-design';
+import { applyWindow, FILTER_WINDOWS, paddedLength, rampKernel, windowGain, type FilterWindow } from '../../web/core/recon/filter-design';
+import { bandEdge, isocentreSampling, nyquistLpPerCm, prepareFilter } from '../../web/core/recon/filter-response';
+import { validateGeometry } from '../../web/core/geometry/validate';
 import { localWorkspace } from '../helpers/engine';
 
 async function response(kernel: Float32Array): Promise<Float32Array> {
@@ -69,7 +71,7 @@ describe('ramp filter', () => {
 
   // REFERENCES.md [filter-windows] table: H = |f| W(f) at f/f_N = 0, .25, .5, .75, 1 (tau = 1, f_N = 0.5).
   it.each<[FilterWindow, number[]]>([
-    ['ram-lak', [0, 0.125, 0.25, 0.375, 0.5]],
+    ['ramp', [0, 0.125, 0.25, 0.375, 0.5]],
     ['shepp-logan', [0, 0.121812, 0.225079, 0.29408, 0.31831]],
     ['cosine', [0, 0.115485, 0.176777, 0.143506, 0]],
     ['hamming', [0, 0.108159, 0.135, 0.080524, 0.04]],
@@ -84,5 +86,61 @@ describe('ramp filter', () => {
     expect(h[4]).toBeCloseTo(0, 7);
     expect(h[1]).toBeCloseTo(h[7], 7);
     expect(h[2]).toBeCloseTo(0.5, 7);
+  });
+
+  it('the windows are listed from the sharpest to the smoothest', () => {
+    // For white noise in the projections, the variance of the FBP image is proportional to the
+    // integral of |H(f)|^2 = f^2 W(f)^2 over the band (Kak & Slaney 1988, ch. 5.2): each window
+    // in the list passes less noise than the one before, and its gain falls to one half no later.
+    const n = 20000;
+    const noise = (w: FilterWindow) => {
+      let acc = 0;
+      for (let i = 0; i < n; i++) {
+        const r = (i + 0.5) / n;
+        acc += r * r * windowGain(w, r) ** 2;
+      }
+      return acc / n;
+    };
+    const half = (w: FilterWindow) => {
+      for (let i = 0; i <= n; i++) if (windowGain(w, i / n) < 0.5) return i / n;
+      return 1;
+    };
+    expect(FILTER_WINDOWS[0]).toBe('ramp');
+    expect(noise('ramp')).toBeCloseTo(1 / 3, 6); // integral of r^2 over [0, 1]
+    for (let k = 1; k < FILTER_WINDOWS.length; k++) {
+      expect(noise(FILTER_WINDOWS[k])).toBeLessThan(noise(FILTER_WINDOWS[k - 1]));
+      expect(half(FILTER_WINDOWS[k])).toBeLessThanOrEqual(half(FILTER_WINDOWS[k - 1]));
+    }
+  });
+});
+
+describe('band limit in line pairs per cm at the isocentre', () => {
+  const detector = { channels: 64, pitch: [1, 1] };
+  const fan = validateGeometry({ kind: 'fan', detector, sourceIsocenter: 500, sourceDetector: 1000, anglesDeg: { start: 0, step: 1, count: 360 } });
+
+  it('the Nyquist frequency is 1 / (2 x the ray spacing at the isocentre) (sampling theorem; magnification R/D)', () => {
+    expect(isocentreSampling(fan)).toBeCloseTo(0.5, 12); // 1 mm pitch magnified 1000/500
+    expect(nyquistLpPerCm(fan)).toBeCloseTo(10, 12); // 1 cycle per mm
+    const curved = validateGeometry({ ...fan, detector: { ...detector, shape: 'curved' } });
+    expect(isocentreSampling(curved)).toBeCloseTo((1 / 1000) * 500, 12); // angular step x R
+    const par = validateGeometry({ kind: 'parallel', detector: { channels: 64, pitch: [0.8, 0.8] }, anglesDeg: { start: 0, step: 1, count: 180 } });
+    expect(nyquistLpPerCm(par)).toBeCloseTo(5 / 0.8, 12);
+  });
+
+  it('the window ends at the band limit; a limit above Nyquist keeps the full band and says so', async () => {
+    expect(bandEdge(fan, undefined)).toEqual({ edge: 1 });
+    expect(bandEdge(fan, 4).edge).toBeCloseTo(0.4, 12);
+    const above = bandEdge(fan, 12);
+    expect(above.edge).toBe(1);
+    expect(above.warning).toMatch(/band limit 12 lp\/cm is at or above the detector's Nyquist frequency at the isocentre \(10\.0 lp\/cm\)/);
+    const ws = await localWorkspace();
+    const t = await prepareFilter(ws, fan, 64, 'ramp', bandEdge(fan, 4).edge);
+    const h = await ws.read(t.response);
+    // FFT bin k holds f = k / (nPad tau): f / f_N = 2k / nPad; zero from 0.4 f_N on.
+    for (let k = 1; k <= t.nPad / 2; k++) {
+      const r = (2 * k) / t.nPad;
+      if (r > 0.401) expect(h[k]).toBe(0);
+      else if (r < 0.399) expect(h[k]).toBeGreaterThan(0);
+    }
   });
 });

@@ -88,13 +88,14 @@ beforeAll(async () => {
   seeds.push({ label: 'TIFF float32 stack (ours)', files: [{ name: 't.tif', bytes: writeTiffStack({ width: 6, height: 3, frames: 4, data: new Float32Array(72).fill(7) }) }], read: asImage });
   // Written by tifffile and pydicom's CT_small.dcm: committed fixtures (test/fixtures/MANIFEST.json).
   for (const name of ['fuzz-zlib.tif', 'fuzz-big-endian.tif', 'fuzz-tiles.tif']) seeds.push({ label: `TIFF by tifffile (${name})`, files: [fixtureFile(`writers/tiff/${name}`)], read: asImage });
+  for (const name of ['stack-lzw-predictor-be.tif', 'stack-packbits.tif', 'stack-bigtiff-tiled-lzw-predictor.tif']) seeds.push({ label: `TIFF fixture ${name}`, files: [fixtureFile(`tiff/${name}`)], read: asImage });
   const ct = fixtureFile('dicom/CT_small.dcm').bytes;
   seeds.push({ label: 'DICOM CT_small.dcm', files: [{ name: 'ct.dcm', bytes: ct }], read: asImage });
 });
 
 describe('fuzzed files', () => {
   it('every seed file reads as it is', async () => {
-    expect(seeds.length).toBe(12); // 8 written by us, 3 by tifffile, pydicom's CT_small
+    expect(seeds.length).toBe(15); // 8 written by us, 3 by tifffile, 3 TIFF fixtures (LZW, PackBits, BigTIFF), pydicom's CT_small
     for (const s of seeds) {
       const r = await s.read(s.files);
       expect(r.length, s.label).toBe(r.expected);

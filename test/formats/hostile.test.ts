@@ -7,7 +7,7 @@ import type { NamedBytes } from '../../web/core/formats/named-file';
 import { readImageFile } from '../../web/core/formats/read-image';
 import { readProjectionData, readScanFile } from '../../web/core/formats/read-scan';
 import { writeTiffStack } from '../../web/core/formats/tiff';
-import { fixtureFile } from '../helpers/fixtures';
+import { fixtureBytes, fixtureFile } from '../helpers/fixtures';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 function cat(...parts: Uint8Array[]): Uint8Array {
@@ -69,12 +69,24 @@ describe('TIFF lies', () => {
     v.setUint32(second + 2 + n * 12, 8, true); // the second directory points back to the first
     await rejects([{ name: 'loop.tif', bytes: b }], /loops back to byte 8/);
   });
-  it('LZW compression (not accepted: its decoder cannot bound damaged data)', async () => {
+  it('JPEG compression (not accepted: frames are read exactly)', async () => {
     const b = tiff();
     const v = new DataView(b.buffer);
     const n = v.getUint16(8, true);
-    for (let i = 0; i < n; i++) if (v.getUint16(10 + i * 12, true) === 259) v.setUint16(10 + i * 12 + 8, 5, true);
-    await rejects([{ name: 'lzw.tif', bytes: b }], /Compression: got 5/);
+    for (let i = 0; i < n; i++) if (v.getUint16(10 + i * 12, true) === 259) v.setUint16(10 + i * 12 + 8, 7, true);
+    await rejects([{ name: 'jpeg.tif', bytes: b }], /Compression: got 7, expected 1 \(none\), 5 \(LZW\), 8 \(deflate\) or 32773 \(PackBits\)/);
+  });
+  it('LZW data cut short', async () => {
+    const b = fixtureBytes('tiff/stack-lzw.tif');
+    const v = new DataView(b.buffer);
+    const ifd = v.getUint32(4, true);
+    const n = v.getUint16(ifd, true);
+    // Halve the byte count of the first strip: its LZW stream ends early.
+    for (let i = 0; i < n; i++) if (v.getUint16(ifd + 2 + i * 12, true) === 279) {
+      const at = v.getUint32(ifd + 2 + i * 12 + 8, true);
+      v.setUint32(at, v.getUint32(at, true) >> 1, true);
+    }
+    await rejects([{ name: 'short.tif', bytes: b }], /short\.tif: TIFF strip 0 of the page at byte \d+: LZW data decode to \d+ bytes, 384 expected/);
   });
   it('a strip offset past the end of the file', async () => {
     const b = tiff();

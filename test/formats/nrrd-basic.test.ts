@@ -3,6 +3,7 @@ import { writeImageNrrd } from '../../web/core/formats/image-nrrd';
 import { readImageNrrd } from '../helpers/read-nrrd';
 import { writeScanNrrd } from '../../web/core/formats/scan-nrrd';
 import { readScanNrrd } from '../helpers/read-nrrd';
+import { parseNrrd } from '../../web/core/formats/nrrd';
 import { presetGeometry } from '../../web/core/geometry/presets';
 
 describe('scan and image NRRD files (README, "Files")', () => {
@@ -27,7 +28,14 @@ describe('scan and image NRRD files (README, "Files")', () => {
     const grid = { nx: 5, ny: 3, dx: 0.5, dy: 0.75, cx: 10, cy: -2 };
     const data = Float32Array.from({ length: 15 }, (_, i) => i / 7);
     const bytes = await writeImageNrrd({ grid, data, quantity: 'mu', muWater: 0.02, fovRadius: 99 });
-    expect(new TextDecoder().decode(bytes)).toContain('space origin: (9,-2.75)');
+    // Written in the patient frame LPS, rows from anterior (Rimfill's top row, y = -1.25 mm, so
+    // LPS y = 1.25) to posterior: every direction positive, as DICOM stores an axial slice.
+    const text = new TextDecoder().decode(bytes);
+    expect(text).toContain('space: left-posterior-superior\n');
+    expect(text).toContain('space directions: (0.5,0,0) (0,0.75,0)\n');
+    expect(text).toContain('space origin: (9,1.25,0)\n');
+    const n = await parseNrrd(bytes);
+    expect(Array.from(n.data.subarray(0, 5))).toEqual(Array.from(data.subarray(10, 15)));
     const back = await readImageNrrd(bytes);
     expect(back.grid).toEqual(grid);
     expect(back.data).toEqual(data);

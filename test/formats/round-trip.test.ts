@@ -38,6 +38,17 @@ describe('scan round trip', () => {
       expect(back.scan.notes).toEqual({ phantom: 'water' });
     });
   }
+
+  it('calibrated views travel in the header under their own keys', async () => {
+    const calibrated = validateGeometry({
+      kind: 'cone', detector: { channels: 7, rows: 2, pitch: [1.2, 1] }, sourceIsocenter: 500, sourceDetector: 900,
+      views: [0, 1].map((v) => ({ focalSpot: [500, v, 3], detectorCenter: [-400, 2 * v, 2], channelStep: [0, 1.2, 0], rowStep: [0, 0, 1] })),
+    });
+    const bytes = await writeScanNrrd({ geometry: calibrated, data: ramp(28) });
+    expect(new TextDecoder().decode(bytes.subarray(0, 600))).toMatch(/"views":\[\{"focalSpot":\[500,0,3\],"detectorCenter":\[-400,0,2\],"channelStep":\[0,1\.2,0\],"rowStep":\[0,0,1\]\}/);
+    const back = await readScanFile([{ name: 'scan.nrrd', bytes }]);
+    expect(back.scan.geometry).toEqual(calibrated);
+  });
 });
 
 describe('image round trips', () => {

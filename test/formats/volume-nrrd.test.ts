@@ -44,10 +44,11 @@ describe('volume NRRD', () => {
   it('writes the standard space fields: first voxel centre and per-axis vectors', async () => {
     const n = await parseNrrd(await writeVolumeNrrd(volume()));
     expect(n.sizes).toEqual([5, 4, 3]);
-    expect(n.fields['space dimension']).toBe('3');
+    expect(n.fields.space).toBe('left-posterior-superior');
     expect(n.fields['space directions']).toBe('(0.5,0,0) (0,0.75,0) (0,0,2)');
-    // x0 = 1 - 2 * 0.5, y0 = -2 - 1.5 * 0.75, z0 = 10 - 1 * 2
-    expect(n.fields['space origin']).toBe('(0,-3.125,8)');
+    // x0 = 1 - 2 * 0.5, z0 = 10 - 1 * 2; rows run from the most anterior (Rimfill y = -2 + 1.5 *
+    // 0.75 = -0.875, so LPS y = 0.875) toward posterior.
+    expect(n.fields['space origin']).toBe('(0,0.875,8)');
     expect(n.keys['rimfill.quantity']).toBe('mu');
   });
 

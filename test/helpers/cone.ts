@@ -1,7 +1,6 @@
 // Cone-beam geometries and helpers shared by the cone-beam tests.
 import type { Geometry } from '../../web/core/geometry/types';
 import { validateGeometry } from '../../web/core/geometry/validate';
-import { viewVectors, VIEW_STRIDE } from '../../web/core/geometry/view-vectors';
 import type { Workspace } from '../../web/core/engine/workspace';
 import { Projector3d } from '../../web/core/recon/projector3d';
 import { readFileSync } from 'node:fs';
@@ -39,21 +38,4 @@ export async function project(ws: Workspace, grid: VolumeGrid, g: Geometry, volu
 /** A volume file read as every volume is read (readImageFile, then asMuVolume). */
 export async function readVolumeFile(path: string, muWater?: number): Promise<Volume> {
   return asMuVolume((await readImageFile([{ name: basename(path), bytes: new Uint8Array(readFileSync(path)) }])).volume, muWater);
-}
-
-/**
- * The same scan described by calibrated per-view vectors, the detector's u axis leaning `uz`
- * (a unit-vector component) out of the xy plane: a tiny lean keeps the geometry while sending
- * FDK down its general (any trajectory) backprojector.
- */
-export function asCalibrated(g: Geometry, uz = 0): Geometry {
-  const t = viewVectors(g);
-  const n = t.length / VIEW_STRIDE;
-  const views = Array.from({ length: n }, (_, i) => {
-    const at = (k: number) => Array.from(t.subarray(i * VIEW_STRIDE + k, i * VIEW_STRIDE + k + 3)) as [number, number, number];
-    const u = at(6);
-    u[2] = uz * Math.hypot(u[0], u[1]);
-    return { source: at(0), detector: at(3), u, v: at(9) };
-  });
-  return validateGeometry({ kind: 'cone', detector: g.detector, sourceIsocenter: g.sourceIsocenter, sourceDetector: g.sourceDetector, views });
 }

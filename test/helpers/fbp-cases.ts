@@ -77,7 +77,7 @@ export function regionMeans(p: EllipsePhantom, grid: ImageGrid, img: Float32Arra
 }
 
 /**
- * FBP (ram-lak) of exact Shepp-Logan projections on a 400 x 400 grid of 0.5 mm: the mean in each
+ * FBP (ramp) of exact Shepp-Logan projections on a 400 x 400 grid of 0.5 mm: the mean in each
  * ellipse's interior region within 2% of the table value (Shepp & Logan 1974, Table 1 for the
  * original; Toft 1996, Table B.3 for the higher-contrast variant).
  */
@@ -86,7 +86,7 @@ export async function expectSheppLoganRegions(g: Geometry, variant: 'original' |
   const p = sheppLogan(variant);
   const grid = squareGrid(400, 0.5);
   const sino = analyticSinogram(p, g);
-  const { image, warnings } = await fbp2d(ws, { geometry: g, data: sino }, { grid, filter: 'ram-lak' });
+  const { image, warnings } = await fbp2d(ws, { geometry: g, data: sino }, { grid, filter: 'ramp' });
   expect(warnings).toEqual([]);
   let regions = 0;
   // A region whose table value is 0 (the modified phantom's ventricles) is held to 2% of the

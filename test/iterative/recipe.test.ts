@@ -23,7 +23,7 @@ describe('iterative recipe fields', () => {
 
   it('validates the prior source, including the recipe of a prior', () => {
     const r = validateRecipe({ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', filter: 'hann' } } });
-    expect(r.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', cutoff: 1, extend: 'none' } });
+    expect(r.prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'hann', extend: 'none' } });
     const water = validateRecipe({ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', extend: 'water' } } });
     expect(water.prior).toMatchObject({ recipe: { extend: 'water' } });
     expect(validateRecipe({ method: 'prior', prior: { source: 'image' } }).prior).toEqual({ source: 'image' });
@@ -41,7 +41,7 @@ describe('iterative recipe fields', () => {
     [{ method: 'wtv', tvEps: -1 }, /recipe tvEps: got -1, expected a small positive number in 1\/mm/],
     [{ method: 'prior', prior: { source: 'image' }, priorWeight: 1.5 }, /recipe priorWeight: got 1.5, expected a number in \(0, 1\]/],
     [{ method: 'sart', nonNegative: 'yes' }, /recipe nonNegative: got "yes", expected true or false/],
-    [{ method: 'sart', support: 'square' }, /recipe support: got "square", expected one of circle, grid/],
+    [{ method: 'sart', support: 'square' }, /recipe support: got "square", expected one of disk, grid/],
     [{ method: 'sart', prior: { source: 'image' } }, /recipe prior: given for method "sart"/],
     [{ method: 'prior', prior: { source: 'image', resultId: 7 } }, /recipe prior\.resultId: got 7, expected a non-empty string/],
     [{ method: 'prior', prior: { source: 'web' } }, /recipe prior.source: got "web", expected "image" or "recipe"/],
@@ -49,6 +49,9 @@ describe('iterative recipe fields', () => {
     [{ method: 'prior', prior: { source: 'recipe', recipe: { method: 'prior' } } }, /recipe prior.recipe.method: got "prior"/],
     [{ method: 'prior', prior: { source: 'recipe', recipe: { method: 'fbp', filter: 'box' } } }, /recipe filter: got "box"/],
     [{ method: 'art' }, /recipe method: got "art", expected one of fbp, sart, tv, wtv, prior/],
+    [{ method: 'fbp', filter: 'ram-lak' }, /recipe filter: got "ram-lak", expected one of ramp, shepp-logan, cosine, hamming, hann/],
+    [{ method: 'fbp', bandLimit: 0 }, /recipe bandLimit: got 0, expected line pairs per cm at the isocentre, above 0 and at most 200/],
+    [{ method: 'fbp', bandLimit: '5' }, /recipe bandLimit: got "5"/],
     [{ method: 'tv', extend: 'mirror' }, /recipe extend: got "mirror" for method "tv", expected "none"/],
   ])('%j is refused', (raw, message) => {
     expect(() => validateRecipe(raw)).toThrow(InputError);
@@ -89,7 +92,7 @@ describe('iterative runs refuse bad input before any work', () => {
 
 describe('prior sources a form can hold', () => {
   it('short forms and the default prior (water-extrapolated FBP)', () => {
-    expect(validateRecipe({ method: 'prior', prior: 'fbp:mirror' }).prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'ram-lak', cutoff: 1, extend: 'mirror' } });
+    expect(validateRecipe({ method: 'prior', prior: 'fbp:mirror' }).prior).toEqual({ source: 'recipe', recipe: { method: 'fbp', filter: 'ramp', extend: 'mirror' } });
     expect(validateRecipe({ method: 'prior', prior: 'tv' }).prior).toMatchObject({ source: 'recipe', recipe: { method: 'tv' } });
     expect(validateRecipe({ method: 'prior' }).prior).toMatchObject({ source: 'recipe', recipe: { method: 'fbp', extend: 'water' } });
     expect(() => validateRecipe({ method: 'prior', prior: 'fbp:sideways' })).toThrow(/recipe extend: got "sideways"/);

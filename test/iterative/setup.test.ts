@@ -60,7 +60,7 @@ describe('extended detector', () => {
   it('extends both sides just enough to cover the support, keeping the measured channels', () => {
     const g = fanFlat(64, 1, 8);
     const grid = squareGrid(100, 2);
-    const support = supportMask(grid, 'circle');
+    const support = supportMask(grid, 'disk');
     const r = maskRadius(grid, support);
     expect(r).toBeGreaterThan(99);
     expect(r).toBeLessThan(101.5);

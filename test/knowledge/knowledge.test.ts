@@ -27,6 +27,16 @@ describe('knowledge on a grid', () => {
     expect(Math.abs(sum(p) - Math.abs(polygonArea(points))) / Math.abs(polygonArea(points))).toBeLessThan(0.01);
   });
 
+  it('a concave polygon (an L) covers its shoelace area, and points in its notch stay outside', () => {
+    const points: [number, number][] = [[-50, -50], [50, -50], [50, -10], [-10, -10], [-10, 60], [-50, 60]];
+    const m = outlineMask({ shape: 'polygon', points }, grid);
+    expect(Math.abs(sum(m) - Math.abs(polygonArea(points))) / Math.abs(polygonArea(points))).toBeLessThan(0.01);
+    const at = (x: number, y: number) => m[Math.round(y + 127.5) * 256 + Math.round(x + 127.5)];
+    expect(at(20, 20)).toBe(0);
+    expect(at(-30, 20)).toBe(1);
+    expect(at(20, -30)).toBe(1);
+  });
+
   it('a cylinder over a z slab covers only the slices inside it', () => {
     const vg = cubicGrid(32, 2, 10, 3); // slice centres at z = -13.5 ... 13.5 mm
     const c = regionCoverage({ shape: 'circle', x: 0, y: 0, r: 6, hu: 0, z: [-5, 5] }, vg);
@@ -61,6 +71,15 @@ describe('knowledge checked against the field of view', () => {
     expect(() => validateKnowledge(two)).toThrow(/contradict/);
     expect(() => placeKnowledge({ outline: { shape: 'ellipse', cx: 0, cy: 0, a: 100, b: 40 } }, ctx)).toThrow(/outline .*must enclose the measured field/);
     expect(placeKnowledge({ outline: { shape: 'ellipse', cx: 0, cy: 0, a: 100, b: 70 } }, ctx).outline).toBeDefined();
+  });
+
+  it('with a reconstruction, an outline may leave out air in the field of view but not the object', () => {
+    // A disc of water 50 mm across centred at (20, 0) in a field of view of radius 60 mm: an
+    // outline round the disc leaves out only air; one that cuts the disc is refused.
+    const image = new Float32Array(256 * 256).map((_, q) => (Math.hypot((q % 256) - 127.5 - 20, Math.floor(q / 256) - 127.5) <= 50 ? 0.02 : 0));
+    expect(placeKnowledge({ outline: { shape: 'ellipse', cx: 20, cy: 0, a: 55, b: 55 } }, { ...ctx, image }).outline).toBeDefined();
+    expect(() => placeKnowledge({ outline: { shape: 'ellipse', cx: 20, cy: 0, a: 55, b: 55 } }, ctx)).toThrow(/must enclose the measured field/);
+    expect(() => placeKnowledge({ outline: { shape: 'ellipse', cx: 20, cy: 0, a: 55, b: 30 } }, { ...ctx, image })).toThrow(/outline \(ellipse .*where the data show the object.*must enclose the object/);
   });
 
   it('refuses a mask that was not given', () => {

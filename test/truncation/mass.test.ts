@@ -7,7 +7,7 @@ import { analyticSinogram } from '../../web/core/simulate/analytic';
 import { analyseEdges } from '../../web/core/truncation/edges';
 import { massConsistency, massUnavailable } from '../../web/core/truncation/mass';
 import { planExtension } from '../../web/core/truncation/extension-plan';
-import { extendScan } from '../helpers/extend-scan';
+import { extendScan } from '../../web/core/truncation/extend-scan';
 import { channelWidthS } from '../../web/core/truncation/ray-coords';
 import { localWorkspace } from '../helpers/engine';
 

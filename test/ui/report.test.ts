@@ -15,6 +15,7 @@ const comparison: Comparison = {
     outsideFov: null,
   },
   resampled: false,
+  overlap: 1,
   fovRadiusMm: 100,
   notes: [],
   cupping: null,
@@ -62,7 +63,7 @@ describe('report', () => {
   });
 
   it('file names keep only safe characters', () => {
-    expect(fileName('FBP, ram-lak, 576 px × 1 mm', 'nrrd')).toBe('FBP-ram-lak-576-px-1-mm.nrrd');
+    expect(fileName('FBP, ramp, 576 px × 1 mm', 'nrrd')).toBe('FBP-ramp-576-px-1-mm.nrrd');
     expect(fileName('///', 'png')).toBe('rimfill.png');
   });
 });

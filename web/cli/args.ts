@@ -1,11 +1,12 @@
 // A strict command-line parser: known options only, typed values, one clear error otherwise.
 import { InputError } from '../core/errors';
 
-export type OptionType = 'string' | 'number' | 'int' | 'flag';
+/** 'strings': a string option that may be repeated; its values are collected in order. */
+export type OptionType = 'string' | 'strings' | 'number' | 'int' | 'flag';
 
 export interface ParsedArgs {
   positional: string[];
-  options: Record<string, string | number | boolean>;
+  options: Record<string, string | string[] | number | boolean>;
 }
 
 /** Parses `argv` against `spec` (option name without dashes -> type). */
@@ -21,7 +22,7 @@ export function parseArgs(argv: string[], spec: Record<string, OptionType>, maxP
     const [name, inline] = a.slice(2).split(/=(.*)/s, 2);
     const type = spec[name];
     if (!type) throw new InputError(`unknown option --${name} (known: ${Object.keys(spec).map((k) => `--${k}`).join(' ')})`);
-    if (name in options) throw new InputError(`option --${name} given twice`);
+    if (name in options && type !== 'strings') throw new InputError(`option --${name} given twice`);
     if (type === 'flag') {
       if (inline !== undefined) throw new InputError(`option --${name} takes no value`);
       options[name] = true;
@@ -30,6 +31,7 @@ export function parseArgs(argv: string[], spec: Record<string, OptionType>, maxP
     const raw = inline ?? argv[++i];
     if (raw === undefined || (inline === undefined && raw.startsWith('--'))) throw new InputError(`option --${name} needs a value`);
     if (type === 'string') options[name] = raw;
+    else if (type === 'strings') options[name] = [...((options[name] as string[] | undefined) ?? []), raw];
     else {
       const v = Number(raw);
       if (!Number.isFinite(v) || raw.trim() === '') throw new InputError(`option --${name}: got "${raw}", expected a number`);

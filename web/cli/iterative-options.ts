@@ -27,7 +27,7 @@ export const ITERATIVE_OPTIONS: Record<string, OptionType> = {
 
 export const ITERATIVE_HELP = `    iterative methods (${ITERATIVE_METHODS.join(', ')}):
     [--iterations K] [--subsets N] [--relaxation 0..2] [--tolerance fraction]
-    [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support circle|grid|mask.nrrd] [--allow-negative]
+    [--tv-strength A] [--tv-steps N] [--tv-eps 1/mm] [--support disk|grid|mask.nrrd] [--allow-negative]
     [--prior FILE|METHOD | --model net.onnx --model-info net.json] [--prior-weight 0..1]
   sart: ordered-subsets SART on the measured channels; tv, wtv: plus (reweighted) total
   variation (ASD-POCS). prior: the measured channels are fitted to the data, the channels beyond
@@ -55,7 +55,7 @@ export function addIterativeFields(raw: Record<string, unknown>, a: ParsedArgs):
   }
   if (typeof raw.support === 'string') {
     if (/\.nrrd$/i.test(raw.support)) raw.support = 'image';
-    else if (raw.support !== 'circle' && raw.support !== 'grid') throw new InputError(`option --support: got "${raw.support}", expected circle, grid or a mask image (.nrrd)`);
+    else if (raw.support !== 'disk' && raw.support !== 'grid') throw new InputError(`option --support: got "${raw.support}", expected disk, grid or a mask image (.nrrd)`);
   }
   if (o['allow-negative']) {
     if (!iterative) throw only('allow-negative');

@@ -1,5 +1,6 @@
 // The rimfill command line (README, "Command line"): exit 0 ok, 2 bad input (one line on
 // stderr, nothing written), 1 internal error.
+import { CAUTION } from '../core/caution';
 import { InputError } from '../core/errors';
 import { bench, benchHelp } from './commands/bench';
 import { calibrate, calibrateHelp } from './commands/calibrate';
@@ -24,7 +25,9 @@ const COMMANDS: Record<string, { run: (argv: string[]) => Promise<CommandResult>
   demo: { run: demo, help: demoHelp },
 };
 
-const USAGE = `rimfill: reconstruction of truncated CT scans (research and quality work, not for diagnosis)
+const USAGE = `rimfill: reconstruction of truncated CT scans
+
+${CAUTION}
 
 ${Object.values(COMMANDS).map((c) => c.help).join('\n\n')}
 
@@ -43,7 +46,7 @@ export async function main(argv: string[]): Promise<number> {
     return 2;
   }
   if (rest.includes('--help')) {
-    process.stdout.write(`${cmd.help}\n`);
+    process.stdout.write(`${cmd.help}\n\n${CAUTION}\n`);
     return 0;
   }
   try {

@@ -7,6 +7,7 @@
 import type { RegionFigures } from './compare';
 import { InputError } from './errors';
 import { ssimBorder, ssimMap } from './metrics';
+import { checkOverlap } from './overlap';
 import { resampleTrilinear, sameVolumeGrid } from './resample-volume';
 import { volumeOrigin, type Volume, type VolumeGrid } from './volume';
 import type { VolumeInfo } from './volume-sink';
@@ -26,6 +27,8 @@ export interface VolumeComparison {
   regions: Record<VolumeRegion, RegionFigures | null>;
   /** True when the reference was resampled onto the volume's grid. */
   resampled: boolean;
+  /** Fraction of the volume the reference covers (overlap.ts). */
+  overlap: number;
   fovRadiusMm: number | null;
   fovHalfHeightMm: number | null;
   /** Per axial slice, when asked for. */
@@ -66,6 +69,9 @@ class Sums {
 
 /** Compares `volume` with `reference` (both mu); the reference is resampled (trilinear) onto the volume's grid when they differ. */
 export function compareVolumes(volume: Volume, reference: Volume, options: VolumeCompareOptions = {}): VolumeComparison {
+  let bad = 0;
+  for (const v of volume.data) if (!Number.isFinite(v)) bad++;
+  if (bad) throw new InputError(`volume: ${bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
   const c = new VolumeComparer(volume, reference, options);
   c.addSlices(0, volume.data);
   return c.result();
@@ -79,6 +85,7 @@ export class VolumeComparer {
   private readonly c: SliceContext;
   private readonly notes: string[] = [];
   private readonly resampled: boolean;
+  private readonly overlap: number;
   private readonly total = REGIONS.map(() => new Sums());
   private readonly slices: SliceFigures[] = [];
   private bad = 0;
@@ -86,6 +93,9 @@ export class VolumeComparer {
 
   constructor(volume: VolumeInfo, reference: Volume, private readonly options: VolumeCompareOptions = {}) {
     const g = volume.grid;
+    const { overlap, note } = checkOverlap(g, reference.grid, 'volume');
+    this.overlap = overlap;
+    if (note) this.notes.push(note);
     this.resampled = !sameVolumeGrid(g, reference.grid);
     const ref = this.resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
     if (this.resampled) this.notes.push('reference resampled (trilinear) onto the volume grid');
@@ -121,6 +131,7 @@ export class VolumeComparer {
       unit: this.muWater ? 'HU' : '1/mm',
       regions: figuresOf(this.total, this.c.range),
       resampled: this.resampled,
+      overlap: this.overlap,
       fovRadiusMm: this.c.fov ?? null,
       fovHalfHeightMm: this.c.fovH ?? null,
       ...(this.options.perSlice ? { slices: [...this.slices].sort((p, q) => p.k - q.k) } : {}),

@@ -5,6 +5,7 @@ import { InputError } from './errors';
 import type { Image2D } from './image';
 import { cupping, type CuppingFigures } from './cupping';
 import { circleMask, psnr, rmse, ssim } from './metrics';
+import { checkOverlap } from './overlap';
 import { resampleBilinear, sameGrid } from './resample';
 
 export interface RegionFigures {
@@ -20,6 +21,8 @@ export interface Comparison {
   regions: Record<'image' | 'object' | 'insideFov' | 'outsideFov', RegionFigures | null>;
   /** True when the reference was resampled onto the image grid. */
   resampled: boolean;
+  /** Fraction of the image's area the reference covers (overlap.ts). */
+  overlap: number;
   fovRadiusMm: number | null;
   /** Centre-to-rim shape inside the FOV (object pixels, mu), when the FOV radius is known. */
   cupping: CuppingFigures | null;
@@ -37,6 +40,8 @@ const OBJECT_THRESHOLD = 0.05;
 export function compareImages(image: Image2D, reference: Image2D, fovRadius?: number): Comparison {
   const notes: string[] = [];
   const g = image.grid;
+  const { overlap, note } = checkOverlap(g, reference.grid);
+  if (note) notes.push(note);
   const resampled = !sameGrid(g, reference.grid);
   const ref = resampled ? resampleBilinear(reference.data, reference.grid, g) : reference.data;
   if (resampled) notes.push('reference resampled (bilinear) onto the image grid');
@@ -81,6 +86,7 @@ export function compareImages(image: Image2D, reference: Image2D, fovRadius?: nu
       outsideFov: outside ? figures(outside) : null,
     },
     resampled,
+    overlap,
     fovRadiusMm: fov ?? null,
     cupping: fov !== undefined ? cupping(image, fov, ref, object) : null,
     notes,

@@ -24,6 +24,8 @@ export interface Image2D {
   muWater?: number;
   /** Radius of the scan's measured field of view about the isocentre, mm, when known. */
   fovRadius?: number;
+  /** What made it, in words (the method and its knowledge, e.g. a recipe label), when known. */
+  description?: string;
 }
 
 /** Centre of pixel (0, 0), mm. */

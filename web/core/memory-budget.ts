@@ -9,7 +9,7 @@ import { viewCount, type Geometry } from './geometry/types';
 import { fovRadius } from './geometry/view-vectors';
 import { isIterativeMethod } from './iterative/options';
 import { viewSize } from './projection-source';
-import type { Recipe } from './recipe/recipe';
+import { usesKnowledge, type Recipe } from './recipe/recipe';
 import { chooseVolumeGrid } from './recipe/volume-grid';
 import { fdkChunkViews } from './recon/fdk';
 import { backprojectorFloats } from './recon/fdk-backprojectors';
@@ -77,6 +77,13 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
     // Truncation correction plans on the whole scan and extends each row (about half a detector).
     const nChF = extend ? Math.ceil(1.5 * nCh) : nCh;
     if (extend && !ctx.scanInMemory) parts.push(['the scan, read whole (truncation correction)', scanBytes]);
+    if (usesKnowledge(recipe)) {
+      // FDK before and after the fit, each volume held whole, then both re-projected against the data.
+      const padded = (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3);
+      parts.push(['volumes before and after the knowledge', 2 * voxels * F]);
+      parts.push(['engine: residual projections, padded volumes', copies * (scanBytes + (2 * padded + voxels) * F)]);
+      parts.push(['re-projected data', scanBytes]);
+    }
     const chunk = fdkChunkViews(nChF, nRows, viewCount(g), ctx.workers);
     const engine = backprojectorFloats('axial', grid, nChF, nRows, chunk, ctx.workers) + chunk * nRows * (nCh + nChF)
       + viewCount(g) * nChF + 4 * paddedLength(nChF) * ctx.workers;

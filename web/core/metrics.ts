@@ -68,8 +68,9 @@ function gaussianFilter(src: Float64Array, nx: number, ny: number, taps: Float64
  * Mean SSIM (Z. Wang, A. C. Bovik, H. R. Sheikh, E. P. Simoncelli, "Image quality assessment:
  * from error visibility to structural similarity", IEEE TIP 13(4):600-612, 2004): 11-tap
  * Gaussian window, sigma 1.5, population covariance, K1 = 0.01, K2 = 0.03, L = dataRange.
- * Without a mask the mean excludes a border of 5 pixels (as scikit-image does); with a mask
- * it averages the SSIM map over the mask.
+ * Wang et al. define the mean SSIM over the local windows of the image; we take only the windows
+ * that lie wholly inside it, so without a mask the mean leaves out a border of half the window
+ * (5 pixels) and no padding enters the figure. With a mask it averages the SSIM map over the mask.
  */
 export function ssim(a: Float32Array, b: Float32Array, nx: number, ny: number, dataRange: number, mask?: Uint8Array): number {
   const map = ssimMap(a, b, nx, ny, dataRange);

@@ -8,6 +8,7 @@ declare const performance: { now(): number };
 declare function setTimeout(handler: (...args: never[]) => void, ms?: number): unknown;
 declare function structuredClone<T>(value: T): T;
 declare function atob(data: string): string;
+declare const crypto: { getRandomValues<T extends ArrayBufferView>(array: T): T };
 
 declare class TextDecoder {
   constructor(label?: string, options?: { fatal?: boolean; ignoreBOM?: boolean });

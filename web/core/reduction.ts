@@ -76,10 +76,13 @@ export function reducedGeometry(g: Geometry, r: Reduction, field = 'reduction'):
     pitch: [d.pitch[0] * bin, d.pitch[1] * rowBin] as [number, number],
     offset: [d.offset[0] + shiftU, d.offset[1] + shiftV] as [number, number],
   };
-  // Calibrated views keep their vectors (kernels take directions from them and cell sizes and
-  // offsets from the detector), so only the kept views change.
+  // Calibrated views keep their focal spot and detector centre (offsets come from the detector);
+  // their steps now go from one binned cell to the next, as long as the binned pitches.
   const out: Geometry = { ...g, detector };
-  if (g.views) out.views = g.views.filter((_, i) => i % step === 0);
+  if (g.views) {
+    const times = (v: [number, number, number], k: number): [number, number, number] => [v[0] * k, v[1] * k, v[2] * k];
+    out.views = g.views.filter((_, i) => i % step === 0).map((w) => ({ ...w, channelStep: times(w.channelStep, bin), rowStep: times(w.rowStep, rowBin) }));
+  }
   const a = g.anglesDeg;
   if (a) out.anglesDeg = Array.isArray(a) ? a.filter((_, i) => i % step === 0) : { start: a.start, step: a.step * step, count: views };
   return out;

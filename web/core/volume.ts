@@ -21,6 +21,8 @@ export interface Volume {
   muWater?: number;
   /** Radius of the scan's measured field of view about the rotation axis, mm, when known. */
   fovRadius?: number;
+  /** What made it, in words (the method and its knowledge), when known. */
+  description?: string;
   /** Half height along z of the region every view measures, on the axis, mm, when known. */
   fovHalfHeight?: number;
 }
@@ -82,6 +84,7 @@ export function axialSlice(v: Volume, k: number): Image2D {
     quantity: v.quantity,
     muWater: v.muWater,
     fovRadius: v.fovRadius,
+    description: v.description,
   };
 }
 

@@ -47,12 +47,15 @@ async function slab(owner: VolumeOwner, id: string, info: StoredVolumeInfo, s: n
 }
 
 /**
- * A stored volume as an NRRD file (float32 mu), built slab by slab into a Blob that the browser
- * may keep on disk, so the page can save it without holding the voxels.
+ * A stored volume as a file (a header, then every slab as `layout` arranges its voxels), built
+ * slab by slab into a Blob that the browser may keep on disk, so the page can save it without
+ * holding the voxels.
  */
-export async function volumeFileBlob(owner: VolumeOwner, id: string, info: StoredVolumeInfo, header: Uint8Array, store: UseStore = pageStore()): Promise<Blob> {
+export async function volumeFileBlob(
+  owner: VolumeOwner, id: string, info: StoredVolumeInfo, header: Uint8Array, layout: (slab: Float32Array) => Float32Array, store: UseStore = pageStore(),
+): Promise<Blob> {
   let blob = new Blob([header as BlobPart]);
-  for (let s = 0; s < info.slabs; s++) blob = new Blob([blob, (await slab(owner, id, info, s, store)) as BlobPart]);
+  for (let s = 0; s < info.slabs; s++) blob = new Blob([blob, layout(await slab(owner, id, info, s, store)) as BlobPart]);
   return blob;
 }
 

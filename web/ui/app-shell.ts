@@ -14,7 +14,8 @@ import type { Reduction } from '../core/reduction';
 import { scanSummary } from './logic/describe';
 import { remainingMs } from './logic/time-left';
 import { MAX_COMPARED, type ImageImportState } from './result-list';
-import { TRUTH } from './results-view';
+import { TRUTH, type DicomExportState } from './results-view';
+import { fileName, saveFile } from './export/download';
 import type { QueueJob } from './run-queue';
 import { theme } from './theme';
 import './caution-banner';
@@ -49,7 +50,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
-    importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -76,6 +77,7 @@ export class AppShell extends LitElement {
   declare imageImport: ImageImportState;
   /** A HU calibration of the chosen scan being stored (Images tab). */
   declare calibrating: ImageImportState;
+  declare dicomExport: DicomExportState;
   declare demoBusy: boolean;
   declare demoFraction: number;
   declare coneDemoBusy: boolean;
@@ -126,6 +128,7 @@ export class AppShell extends LitElement {
     this.memoryBudgetGb = '';
     this.importError = '';
     this.imageImport = { busy: false, error: '' };
+    this.dicomExport = { busy: false, error: '' };
     this.calibrating = { busy: false, error: '' };
     this.demoBusy = false;
     this.demoFraction = 0;
@@ -238,6 +241,18 @@ export class AppShell extends LitElement {
       this.imageImport = { busy: false, error: '' };
     } catch (err) {
       this.imageImport = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The image could not be added: ${message(err)}` };
+    }
+  }
+
+  /** A stored result as a DICOM CT series: encoded in the worker, handed to the download as the Blob it sends back. */
+  private async exportDicom(id: string) {
+    this.dicomExport = { busy: true, error: '' };
+    try {
+      const out = await this.client.exportDicom(id);
+      saveFile(out.blob, fileName(out.name, out.kind), out.blob.type);
+      this.dicomExport = { busy: false, error: '', note: out.warnings.join('; ') || undefined };
+    } catch (err) {
+      this.dicomExport = { busy: false, error: err instanceof InputError ? err.message : `The DICOM export failed: ${message(err)}` };
     }
   }
 
@@ -460,6 +475,7 @@ export class AppShell extends LitElement {
         this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       }))}
+      .dicomExport=${this.dicomExport} @export-dicom=${(e: CustomEvent) => this.act('The DICOM export failed', () => this.exportDicom(e.detail.id))}
       @reference-change=${(e: CustomEvent) => this.act('The reference could not be loaded', () => this.setReference(e.detail.id))}></rf-results-view>
       ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .planes=${volumePlanes(this.client, scan.id)}></rf-volume-view>` : nothing}`;
   }

@@ -136,7 +136,7 @@ export class GeometryForm extends LitElement {
           ${this.field('Angle step', 'step', a.step, { unit: '°' })}
           ${this.field('Views', 'count', a.count, { readonly: true })}` : nothing}
       </form>
-      ${g.views ? html`<p class="muted">This scan has calibrated vectors for each of its ${g.views.length} views; they are kept as they are.</p>` : nothing}
+      ${g.views ? html`<p class="muted">This scan has calibrated vectors for each of its ${g.views.length} views (${g.kind === 'parallel' ? 'ray direction' : 'focal spot'}, detector centre, channel step, row step); they are kept as they are.</p>` : nothing}
       ${Array.isArray(a) ? html`<p class="muted">The view angles are an explicit list of ${a.length} values; they are kept as they are.</p>` : nothing}
       <div class="row">
         <button class="primary" @click=${this.apply}>Apply geometry</button>

@@ -29,6 +29,12 @@ import './viewer-toolbar';
 /** The id that stands for the scan's ground truth as reference. */
 export const TRUTH = 'truth';
 
+/** A DICOM export in the worker, as the export area shows it. */
+export interface DicomExportState extends ImageImportState {
+  /** What the last export noted (e.g. values stored in coarser steps). */
+  note?: string;
+}
+
 interface Panel {
   key: string;
   label: string;
@@ -41,8 +47,9 @@ interface Panel {
 /**
  * Results of one scan: choose up to four to compare side by side with linked window, cursor,
  * zoom, line profile and region; differences from a reference; the metrics table; convergence
- * plots; and export of the highlighted image (NRRD, PNG) or of the whole comparison (HTML report).
+ * plots; and export of the highlighted image (NRRD, PNG, DICOM) or of the whole comparison (HTML report).
  * @fires result-toggle - detail: { id }, from the list
+ * @fires export-dicom - detail: { id }: the highlighted stored result as a DICOM CT series (encoded by the worker)
  * @fires result-delete - detail: { id }, from the list
  * @fires reference-change - detail: { id } ('truth' or a result id)
  */
@@ -51,6 +58,7 @@ export class ResultsView extends LitElement {
     results: { attribute: false }, selected: { attribute: false }, images: { attribute: false }, truth: { attribute: false },
     referenceId: { type: String }, comparisons: { attribute: false }, scanName: { type: String }, scanSummary: { type: String },
     cone: { type: Boolean }, imageImport: { attribute: false }, muWater: { type: Number }, calibration: { attribute: false }, calibrating: { attribute: false },
+    dicomExport: { attribute: false },
     window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
     line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
     exportError: { state: true },
@@ -78,6 +86,8 @@ export class ResultsView extends LitElement {
   declare calibration: ScanCalibration | undefined;
   /** A calibration being stored, and why the last one was refused. */
   declare calibrating: ImageImportState;
+  /** A DICOM export being encoded, why the last one failed, and what it noted. */
+  declare dicomExport: DicomExportState;
   declare window: DisplayWindow | undefined;
   declare diffWindow: DisplayWindow;
   declare view: ViewState;
@@ -118,6 +128,7 @@ export class ResultsView extends LitElement {
     this.scanSummary = '';
     this.cone = false;
     this.imageImport = { busy: false, error: '' };
+    this.dicomExport = { busy: false, error: '' };
     this.muWater = undefined;
     this.calibration = undefined;
     this.calibrating = { busy: false, error: '' };
@@ -328,11 +339,15 @@ export class ResultsView extends LitElement {
             <button id="export-nrrd-hu" ?disabled=${active?.display.unit !== 'HU' || differenceShown} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
             <button id="export-nrrd-mu" ?disabled=${!active || differenceShown} @click=${() => this.exportImage('nrrd-mu')}>NRRD in µ (1/mm)</button>
             <button id="export-png" ?disabled=${!active} @click=${() => this.exportImage('png')}>PNG at this window</button>
+            <button id="export-dicom" ?disabled=${!active?.meta?.muWater || this.dicomExport.busy}
+              title=${active?.meta && !active.meta.muWater ? 'Needs the scan\'s mu_water (HU calibration)' : 'A DICOM CT series in HU, for a planning system or a PACS viewer'}
+              @click=${() => this.dispatchEvent(new CustomEvent('export-dicom', { detail: { id: active!.meta!.id } }))}>${this.dicomExport.busy ? 'Encoding DICOM…' : active?.meta?.volume ? 'DICOM CT series (ZIP)' : 'DICOM CT (HU)'}</button>
             <span class="muted">All shown:</span>
             <button id="export-report" class="primary" @click=${() => this.exportReport(panels)}>Report (HTML, printable)</button>
           </div>
           <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header${differenceShown ? '; they hold images, not differences (turn the difference off to save one)' : ''}.</p>
-          ${this.exportError ? html`<div class="error" role="alert">${this.exportError}</div>` : nothing}
+          ${this.exportError || this.dicomExport.error ? html`<div class="error" role="alert">${this.exportError || this.dicomExport.error}</div>` : nothing}
+          ${this.dicomExport.note ? html`<p class="hint" id="dicom-note">${this.dicomExport.note}</p>` : nothing}
         </div>
       `}
       </div>`;

@@ -1,10 +1,12 @@
 // Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
 // id; the coordinator answers with progress messages and then exactly one done or error.
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB; the
-// page gets only what it draws (a scan's analysed sinogram row, images), transferred.
+// page gets only what it draws (a scan's analysed sinogram row, images), transferred, and
+// exported files come back as Blobs for the download.
 import type { Comparison } from '../core/compare';
 import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
+import type { DicomExportOutcome } from './export-dicom-job';
 import type { LibraryReplies, LibraryRequest } from './library-ops';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
@@ -31,6 +33,7 @@ export type AppRequest =
   | { op: 'import-model'; files: File[] }
   | { op: 'network-prior'; request: NetworkPriorRequest }
   | { op: 'prior-check'; request: PriorCheckRequest }
+  | { op: 'export-dicom'; resultId: string }
   | LibraryRequest;
 
 /** What each request resolves to. */
@@ -46,6 +49,7 @@ export interface AppReplies extends LibraryReplies {
   'import-model': ModelMeta;
   'network-prior': NetworkPriorOutcome;
   'prior-check': PriorCheckOutcome;
+  'export-dicom': DicomExportOutcome;
 }
 
 export interface EngineInfo {

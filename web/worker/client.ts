@@ -168,6 +168,11 @@ export class EngineClient {
     return this.call({ op: 'delete-model', modelId }, options);
   }
 
+  /** A stored result as a DICOM CT series (one .dcm, or a ZIP of one file per slice), encoded in the worker. */
+  exportDicom(resultId: string, options: CallOptions = {}): Promise<AppReplies['export-dicom']> {
+    return this.call({ op: 'export-dicom', resultId }, options);
+  }
+
   /** Pool size and memory mode. */
   info(options: CallOptions = {}): Promise<EngineInfo> {
     return this.call({ op: 'info' }, options);

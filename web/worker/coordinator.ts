@@ -35,6 +35,7 @@ import { calibrateScan } from './calibrate-job';
 import { runRecipeJob, storeImageResult } from './run-job';
 import { storeVolumeResult } from './volume-result';
 import { isLibraryRequest, libraryOp } from './library-ops';
+import { exportDicomJob } from './export-dicom-job';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -81,6 +82,8 @@ export class Coordinator {
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
         return (await this.exclusive(async () => runNetworkPriorJob({ ws: await this.openWorkspace(), store: this.store, open: this.modelOpener() }, r.request, hooks))) as AppReplies[K];
+      case 'export-dicom':
+        return (await exportDicomJob(this.store, r.resultId, hooks)) as AppReplies[K];
       case 'prior-check':
         return (await this.exclusive(async () => runPriorCheckJob({ ws: await this.openWorkspace(), store: this.store }, r.request, hooks))) as AppReplies[K];
     }

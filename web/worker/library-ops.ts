@@ -11,6 +11,7 @@ import { deleteResult, getResultMeta, renameResult } from '../store/results';
 import { RecordError, type ResultMeta, type ScanMeta } from '../store/records';
 import { readVolumePlane, volumeFileBlob, type VolumePlane } from '../store/volume-planes';
 import type { StoredVolumeInfo, VolumeOwner } from '../store/volumes';
+import { rowsToLps } from '../core/formats/volume';
 import { volumeNrrdHeader } from '../core/formats/volume-nrrd';
 import { loadPreview } from '../store/projections';
 import { deleteScan, getScanMeta, loadScan, loadScanReference, renameScan, setScanGeometry } from '../store/scans';
@@ -97,7 +98,9 @@ export async function libraryOp(store: UseStore, req: LibraryRequest): Promise<L
       return readVolumePlane(req.volume.owner, req.volume.id, await volumeInfo(store, req.volume), req.plane, req.index, store);
     case 'volume-file': {
       const info = await volumeInfo(store, req.volume);
-      return volumeFileBlob(req.volume.owner, req.volume.id, info, volumeNrrdHeader({ ...info, quantity: 'mu' }), store);
+      // NRRD float32 mu in the LPS frame: each slab's rows from anterior to posterior (volume-nrrd.ts).
+      const { nx, ny } = info.grid;
+      return volumeFileBlob(req.volume.owner, req.volume.id, info, volumeNrrdHeader({ ...info, quantity: 'mu' }), (slab) => rowsToLps(slab, nx, ny), store);
     }
   }
 }

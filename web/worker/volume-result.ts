@@ -60,10 +60,11 @@ export async function storeVolumeResult(
   const { ws, store, hooks } = job;
   const tx = deferredTransaction(store);
   const id = newId();
+  const notes: string[] = [];
   let parts: { writer: SlabWriter; averager: VolumeAverager; checks: SlabChecks; comparer?: VolumeComparer } | undefined;
   const sinkFor = (info: VolumeInfo): VolumeSink => {
     if (parts) throw new Error('a run handed over two volumes');
-    const comparer = job.referenceVolume ? new VolumeComparer(info, job.referenceVolume, { fovRadius: info.fovRadius, fovHalfHeight: info.fovHalfHeight }) : undefined;
+    const comparer = job.referenceVolume ? referenceComparer(info, job.referenceVolume, notes) : undefined;
     parts = { writer: new SlabWriter('result', id, info, (k, v) => tx.put(k, v)), averager: new VolumeAverager(info, job.residual.plan.factor), checks: new SlabChecks(comparer), comparer };
     return teeSinks(parts.writer, parts.averager, parts.checks);
   };
@@ -73,7 +74,7 @@ export async function storeVolumeResult(
     if (!parts) throw new Error('the run gave no volume');
     throwIfCancelled(hooks.signal);
     const info = parts.writer.finish();
-    const warnings = [...out.warnings];
+    const warnings = [...out.warnings, ...notes];
     const bad = parts.checks.nonFinite;
     if (bad) warnings.push(`${bad} voxels are not finite numbers (NaN or infinity): the volume is not trustworthy`);
     const metrics = compareWithImage(out.image, job.reference, warnings);
@@ -95,6 +96,17 @@ export async function storeVolumeResult(
   } catch (err) {
     await tx.abort(err);
     throw err;
+  }
+}
+
+/** A comparer with the scan's reference volume, or none (with a warning) when the two do not compare. */
+function referenceComparer(info: VolumeInfo, reference: Volume, warnings: string[]): VolumeComparer | undefined {
+  try {
+    return new VolumeComparer(info, reference, { fovRadius: info.fovRadius, fovHalfHeight: info.fovHalfHeight });
+  } catch (err) {
+    if (!(err instanceof InputError)) throw err;
+    warnings.push(`no comparison with the reference volume: ${err.message}`);
+    return undefined;
   }
 }
 

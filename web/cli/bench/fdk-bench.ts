@@ -5,9 +5,8 @@
 // truncation correction: the same problem on the central 256 channels (FOV radius 64 mm, the
 // head truncated), FDK without and with row-wise water extension (planning included).
 import { availableParallelism } from 'node:os';
-import type { Geometry } from '../../core/geometry/types';
+import { asCalibratedViews } from '../../core/geometry/calibrated';
 import { validateGeometry } from '../../core/geometry/validate';
-import { viewVectors, VIEW_STRIDE } from '../../core/geometry/view-vectors';
 import { sheppLogan3d } from '../../core/phantoms/shepp-logan-3d';
 import { solidValueAt } from '../../core/phantoms/solid';
 import { fdk3d } from '../../core/recon/fdk';
@@ -62,18 +61,6 @@ function brainError(v: Volume): number {
   return sum / n;
 }
 
-/** The geometry as calibrated per-view vectors whose u axis leans 1e-9 out of the xy plane. */
-function leaningPanel(g: Geometry): Geometry {
-  const t = viewVectors(g);
-  const views = Array.from({ length: t.length / VIEW_STRIDE }, (_, i) => {
-    const at = (k: number) => Array.from(t.subarray(i * VIEW_STRIDE + k, i * VIEW_STRIDE + k + 3)) as [number, number, number];
-    const u = at(6);
-    u[2] = 1e-9;
-    return { source: at(0), detector: at(3), u, v: at(9) };
-  });
-  return validateGeometry({ kind: 'cone', detector: g.detector, sourceIsocenter: g.sourceIsocenter, sourceDetector: g.sourceDetector, views });
-}
-
 /** Runs the FDK benchmark; `log` receives a line per stage (the problem takes a while). */
 export async function benchFdk(log: (line: string) => void = () => {}): Promise<FdkBench> {
   const geometry = validateGeometry({
@@ -120,7 +107,7 @@ export async function benchFdk(log: (line: string) => void = () => {}): Promise<
     // The same scan as calibrated views with the panel leaning 1e-9 out of the orbit plane: the
     // general backprojector, which recomputes the detector column and weight for every voxel.
     let t = now();
-    const leaning = await fdk3d(ws, { geometry: leaningPanel(geometry), data }, { grid });
+    const leaning = await fdk3d(ws, { geometry: asCalibratedViews(geometry, 1e-9), data }, { grid });
     rows.push({ name: `FDK backprojection (${leaning.backprojector}, same scan as calibrated views)`, workers, seconds: leaning.timings.backproject, mupdPerS: updates / leaning.timings.backproject / 1e6 });
     log(`fdk: general backprojector: ${(now() - t).toFixed(2)} s`);
     t = now();

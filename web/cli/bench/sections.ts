@@ -1,6 +1,7 @@
 // The bench sections `rimfill bench` runs, each in a fresh process so that its peak memory is
 // its own. A new section: a module returning a SectionResult, and one entry here.
 import { availableParallelism } from 'node:os';
+import { accuracyLines, benchAccuracy } from './accuracy/run';
 import { benchExtension, extensionBenchLines } from './extension-overhead';
 import { benchFdk } from './fdk-bench';
 import { benchFormats, formatFiguresText } from './formats';
@@ -10,6 +11,7 @@ import { benchIterative3d } from './iterative-3d';
 import { benchNativeFdk } from './native-fdk';
 import { benchNetwork, networkBenchText } from './network';
 import type { SectionResult } from './section';
+import { openWorkspace } from '../engine-node';
 
 export interface BenchSection {
   name: string;
@@ -33,6 +35,18 @@ export const SECTIONS: BenchSection[] = [
       // Each run takes seconds: best of at most two.
       const b = await benchIterative(Math.min(r, 2));
       return { json: b, lines: iterativeLines(b) };
+    },
+  },
+  {
+    name: 'accuracy', about: 'severe truncation (FOV radius 0.42 of the body half-width, C-arm fan): inside/outside-FOV RMSE, residual and time of each method with each kind of knowledge, on real CT slices and the thorax phantom, with noisy, short-scan, off-centre and wrong-knowledge variants',
+    run: async () => {
+      const ws = await openWorkspace(Math.min(2, availableParallelism()));
+      try {
+        const r = await benchAccuracy(ws, (line) => process.stderr.write(`${line}\n`));
+        return { json: r, lines: accuracyLines(r) };
+      } finally {
+        ws.dispose();
+      }
     },
   },
   {

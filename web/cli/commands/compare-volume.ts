@@ -4,7 +4,6 @@ import { compareVolumes, type VolumeComparison } from '../../core/compare-volume
 import { InputError } from '../../core/errors';
 import type { Volume } from '../../core/volume';
 import type { ParsedArgs } from '../args';
-import { loadVolume } from '../load';
 
 function pad(rows: string[][]): string {
   const w = rows[0].map((_, i) => Math.max(...rows.map((r) => r[i].length)));
@@ -31,10 +30,9 @@ function sliceTable(c: VolumeComparison): string {
   return pad(rows);
 }
 
-/** Compares `volume` with the reference volume at `refPath` (when given), as the options say. */
-export async function compareVolumeFiles(a: ParsedArgs, volume: Volume, refPath: string | undefined): Promise<{ comparison?: VolumeComparison; text: string }> {
-  if (!refPath) return { text: '' };
-  const { volume: reference } = await loadVolume(refPath, 'reference', volume.muWater);
+/** Compares `volume` with the reference volume read from `refPath` (when given), as the options say. */
+export function compareVolumeFiles(a: ParsedArgs, volume: Volume, reference: Volume | undefined, refPath: string | undefined): { comparison?: VolumeComparison; text: string } {
+  if (!reference) return { text: '' };
   if (reference.grid.nz === 1) throw new InputError(`reference ${refPath}: got one slice, expected a volume to compare with the ${volume.grid.nz}-slice volume`);
   let fovRadius = a.options['fov-radius'] as number | undefined;
   let fovHalfHeight = a.options['fov-half-height'] as number | undefined;

@@ -8,7 +8,10 @@ import type { Volume } from '../../core/volume';
 import { volumeDataResidual } from '../../core/volume-residual';
 import { parseArgs, type ParsedArgs } from '../args';
 import { openWorkspace } from '../engine-node';
-import { loadImage, loadImageOrVolume, loadScan, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
+import { readImageFile } from '../../core/formats/read-image';
+import { asMuVolume, imageAsMu, volumeSlice } from '../../core/formats/volume';
+import { gatherFiles } from '../gather';
+import { loadScan, memoryLimit, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { compareVolumeFiles } from './compare-volume';
 import type { CommandResult } from './types';
 
@@ -20,7 +23,9 @@ ${SCAN_INPUT_HELP}
   the image file, or --fov-radius), plus cupping (rim / centre inside the FOV against the
   reference's). With --scan: the data residual of the image re-projected onto the scan's
   measured channels. At least one of the two. Images may be NRRD, MetaImage, raw + JSON, DICOM
-  or TIFF; HU images need mu_water (--mu-water).`;
+  or TIFF. mu_water (--mu-water, else the files' or the scan's) turns HU into mu; two HU images
+  compare in HU without it. A reference that covers less than 90% of the image is reported
+  with the share it covers; one that does not overlap it at all is refused.`;
 
 function table(c: Comparison): string {
   const rows = [['region', 'pixels', `RMSE (${c.unit})`, 'PSNR (dB)', 'SSIM']];
@@ -50,6 +55,28 @@ async function residualOf(a: ParsedArgs, scan: Scan, image: Image2D | undefined,
   }
 }
 
+/**
+ * Two images in HU compare without mu_water: read with mu_water = 1 they hold mu / mu_water =
+ * 1 + HU / 1000, which compareImages turns back into the same HU (the object threshold and the
+ * cupping ratios are relative to mu_water too, so they do not depend on its value).
+ */
+const RELATIVE_MU_WATER = 1;
+
+/** The image and reference as read, and the mu_water that turns them into mu. */
+async function readInputs(a: ParsedArgs, path: string, refPath: string | undefined, scan: Scan | undefined) {
+  const read = async (p: string, what: string) => readImageFile(gatherFiles(p, what), { maxBytes: memoryLimit(a) });
+  const image = await read(path, 'image');
+  const reference = refPath ? await read(refPath, 'reference') : undefined;
+  const given = a.options['mu-water'] as number | undefined;
+  let muWater = given ?? image.volume.muWater ?? reference?.volume.muWater ?? scan?.muWater;
+  const notes: string[] = [];
+  if (muWater === undefined && image.volume.quantity === 'hu' && reference?.volume.quantity === 'hu' && !scan) {
+    muWater = RELATIVE_MU_WATER;
+    notes.push('both images hold HU and neither records mu_water: compared in HU as they are (cupping centre and rim in units of mu_water)');
+  }
+  return { image: image.volume, reference: reference?.volume, muWater, warnings: [...image.warnings, ...(reference?.warnings ?? []), ...notes] };
+}
+
 export async function compare(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     ...SCAN_INPUT_OPTIONS, reference: 'string', scan: 'string', fov: 'flag', 'fov-radius': 'number', 'fov-half-height': 'number',
@@ -59,19 +86,22 @@ export async function compare(argv: string[]): Promise<CommandResult> {
   if (!path) throw new InputError('compare: give the image file, e.g. rimfill compare image.nrrd --reference truth.nrrd');
   const refPath = a.options.reference as string | undefined, scanPath = a.options.scan as string | undefined;
   if (!refPath && !scanPath) throw new InputError('compare: give --reference truth.nrrd, --scan scan.nrrd, or both');
-  const loaded = await loadImageOrVolume(path, 'image', a.options['mu-water'] as number | undefined);
   const scan = scanPath ? await loadScan(scanPath, a) : undefined;
-  if (loaded.volume) {
-    const v = await compareVolumeFiles(a, loaded.volume, refPath);
-    const residual = scan ? await residualOf(a, scan, undefined, loaded.volume) : undefined;
+  const inputs = await readInputs(a, path, refPath, scan);
+  const mw = inputs.muWater;
+  if (inputs.image.nz > 1) {
+    const volume = asMuVolume(inputs.image, mw);
+    const v = compareVolumeFiles(a, volume, inputs.reference && asMuVolume(inputs.reference, mw), refPath);
+    const residual = scan ? await residualOf(a, scan, undefined, volume) : undefined;
     const text = [v.text, residual ? residualLine(residual) : ''].filter(Boolean).join('\n');
-    return { json: { ...(v.comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...loaded.warnings, ...(v.comparison?.notes ?? [])] };
+    return { json: { ...(v.comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...inputs.warnings, ...(v.comparison?.notes ?? [])] };
   }
   if (a.options['per-slice'] || a.options['fov-half-height'] !== undefined) throw new InputError('options --per-slice and --fov-half-height: only for volumes (this image has one slice)');
-  const image = loaded.image!;
+  const image = imageAsMu(volumeSlice(inputs.image, 0), mw);
   let comparison: Comparison | undefined;
-  if (refPath) {
-    const reference = await loadImage(refPath, 'reference', image.muWater);
+  if (inputs.reference) {
+    if (inputs.reference.nz > 1) throw new InputError(`reference ${refPath}: got ${inputs.reference.nz} slices, expected one image to compare with the image`);
+    const reference = imageAsMu(volumeSlice(inputs.reference, 0), mw);
     let fov: number | undefined;
     if (a.options['fov-radius'] !== undefined) fov = a.options['fov-radius'] as number;
     else if (a.options.fov) {
@@ -82,5 +112,5 @@ export async function compare(argv: string[]): Promise<CommandResult> {
   }
   const residual = scan ? await residualOf(a, scan, image, undefined) : undefined;
   const text = [comparison ? table(comparison) : '', residual ? residualLine(residual) : ''].filter(Boolean).join('\n');
-  return { json: { ...(comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...loaded.warnings, ...(comparison?.notes ?? [])] };
+  return { json: { ...(comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...inputs.warnings, ...(comparison?.notes ?? [])] };
 }

@@ -11,7 +11,10 @@ import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { gatherFiles } from '../gather';
 import { PendingWrites } from '../io';
 import { loadScanWithReport, memoryLimit, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
+import { existsSync, mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { dirname, join } from 'node:path';
+import { writeDicomSeries } from '../../core/formats/dicom-write';
+import { muToHu } from '../../core/image';
 import type { CommandResult } from './types';
 
 export const exportHelp = `rimfill export <image file or folder> --to out.nrrd|out.mha|out.mhd|out.png
@@ -19,6 +22,12 @@ export const exportHelp = `rimfill export <image file or folder> --to out.nrrd|o
   Writes an image (NRRD, MetaImage, raw + JSON, DICOM file or series folder, TIFF) as NRRD or
   MetaImage (float32 mu, float32 HU, or --int16 HU) or as an 8-bit PNG shown at a window
   (--window width, --level centre, in the written units). HU <-> mu needs mu_water.
+rimfill export <image file or folder> --dicom --to folder/ [--description text] [--mu-water X] [--json]
+  Writes an image or volume as a DICOM CT image series in folder/ (created; it must hold no
+  .dcm files yet): one file per axial slice, 16-bit values with the rescale to HU, positions in
+  the patient frame (LPS), derived-image type, new UIDs made on this machine, the series
+  described by the method and its knowledge (--description, else the file's own description).
+  Patient and study attributes are copied only from a DICOM input, else left empty.
 rimfill export <scan file or folder> --scan --to scan.nrrd [--compress] [--json]
 ${SCAN_INPUT_HELP}
   Writes projections (any readable format, intensities converted) as a Rimfill scan file.`;
@@ -38,15 +47,55 @@ async function exportScan(path: string, out: string, a: ParsedArgs): Promise<Com
   };
 }
 
+/** Refuses an output folder that already holds DICOM files (two series would mix). */
+function checkDicomFolder(out: string): void {
+  if (!existsSync(out)) return;
+  if (!statSync(out).isDirectory()) throw new InputError(`option --to: "${out}" is a file; --dicom writes a folder of slices`);
+  const dcm = readdirSync(out).filter((f) => /\.dcm$/i.test(f));
+  if (dcm.length) throw new InputError(`option --to: the folder ${out} already holds ${dcm.length} .dcm files; give an empty or new folder`);
+}
+
+async function exportDicom(path: string, out: string, a: ParsedArgs): Promise<CommandResult> {
+  for (const k of ['hu', 'mu', 'int16', 'window', 'level', 'slice', 'compress']) if (a.options[k] !== undefined) throw new InputError(`option --${k}: not with --dicom (DICOM holds HU, every slice)`);
+  checkDicomFolder(out);
+  const { volume, warnings } = await readImageFile(gatherFiles(path, 'image'), { maxBytes: memoryLimit(a) });
+  const mw = a.options['mu-water'] as number | undefined;
+  const muWater = mw !== undefined ? checkMuWater(mw, 'option --mu-water') : volume.muWater;
+  if (volume.quantity !== 'hu' && !muWater) throw new InputError(`export --dicom: the ${volume.format} values are mu; give mu_water (--mu-water) to turn them into HU`);
+  const hu = volume.quantity === 'hu' ? volume : { ...volume, data: muToHu(volume.data, muWater!), quantity: 'hu' as const };
+  const series = writeDicomSeries({ volume: hu, description: a.options.description as string | undefined });
+  const created = !existsSync(out);
+  mkdirSync(out, { recursive: true });
+  const writes = new PendingWrites();
+  const names = series.files.map((f) => join(out, f.name));
+  series.files.forEach((f, i) => {
+    writes.add(names[i], f.bytes);
+  });
+  try {
+    writes.commit();
+  } catch (err) {
+    if (created) rmSync(out, { recursive: true, force: true });
+    throw err;
+  }
+  return {
+    json: { written: names, from: volume.format, nx: volume.nx, ny: volume.ny, slices: volume.nz, seriesInstanceUid: series.seriesUid, rescale: series.rescale },
+    text: `wrote ${names.length} DICOM CT file${names.length > 1 ? 's' : ''} to ${out}: ${volume.nx} x ${volume.ny} pixels${volume.nz > 1 ? ` x ${volume.nz} slices` : ''} from ${volume.format}, HU = stored x ${series.rescale.slope} + ${series.rescale.intercept}`,
+    warnings: [...warnings, ...series.warnings],
+  };
+}
+
 export async function exportCommand(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     to: 'string', hu: 'flag', mu: 'flag', int16: 'flag', window: 'number', level: 'number', slice: 'int', compress: 'flag',
-    scan: 'flag', json: 'flag', ...SCAN_INPUT_OPTIONS,
+    scan: 'flag', dicom: 'flag', description: 'string', json: 'flag', ...SCAN_INPUT_OPTIONS,
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('export: give the input, e.g. rimfill export image.dcm --to image.png --window 400 --level 40');
   const out = requireString(a, 'to');
+  if (a.options.scan && a.options.dicom) throw new InputError('options --scan and --dicom exclude each other (projections are not exported as DICOM)');
   if (a.options.scan) return exportScan(path, out, a);
+  if (a.options.dicom) return exportDicom(path, out, a);
+  if (a.options.description !== undefined) throw new InputError('option --description: only with --dicom');
   for (const k of ['geometry', 'flat', 'dark', 'i0']) if (a.options[k] !== undefined) throw new InputError(`option --${k} applies to scans: add --scan`);
   if (a.options.hu && a.options.mu) throw new InputError('options --hu and --mu exclude each other');
   const format = formatFromName(out);

@@ -13,7 +13,7 @@ import { InputError } from '../errors';
 import { checkAllocation, type ReadLimits } from './limits';
 import { baseName, type NamedBytes } from './named-file';
 import { decodeSamples, type SampleType } from './sample-types';
-import type { ImageVolume } from './volume';
+import type { DicomContext, ImageVolume } from './volume';
 
 /** Uncompressed transfer syntaxes (PS3.5 A.1-A.3) and their byte order. */
 const TRANSFER_SYNTAXES: Record<string, boolean> = {
@@ -35,6 +35,30 @@ interface Slice {
   /** Rescaled values (HU), stored order. */
   hu: Float32Array;
   paddingPixels: number;
+  context: DicomContext;
+  /** Carried attributes left out because they are not plain ASCII. */
+  dropped: string[];
+}
+
+/** Patient, study and frame attributes kept with the image (volume.ts DicomContext) and their tags. */
+const CONTEXT_TAGS: Array<[keyof DicomContext, string]> = [
+  ['PatientName', 'x00100010'], ['PatientID', 'x00100020'], ['PatientBirthDate', 'x00100030'], ['PatientSex', 'x00100040'],
+  ['PatientAge', 'x00101010'], ['StudyInstanceUID', 'x0020000d'], ['StudyDate', 'x00080020'], ['StudyTime', 'x00080030'],
+  ['StudyID', 'x00200010'], ['AccessionNumber', 'x00080050'], ['ReferringPhysicianName', 'x00080090'],
+  ['PatientPosition', 'x00185100'], ['FrameOfReferenceUID', 'x00200052'],
+];
+
+/** The context attributes present, as text; values outside printable ASCII are left out (their character set is not decoded here). */
+function contextOf(ds: dicomParser.DataSet): { context: DicomContext; dropped: string[] } {
+  const context: DicomContext = {};
+  const dropped: string[] = [];
+  for (const [key, tag] of CONTEXT_TAGS) {
+    const v = ds.string(tag);
+    if (v === undefined || v === '') continue;
+    if (/^[\x20-\x7e]*$/.test(v)) context[key] = v;
+    else dropped.push(key);
+  }
+  return { context, dropped };
 }
 
 /** Whether bytes look like a DICOM Part 10 file ("DICM" after the 128-byte preamble). */
@@ -116,7 +140,7 @@ function readSlice(file: NamedBytes, limits: ReadLimits | undefined): Slice {
   return {
     name, rows, cols, rowSpacing: spacing[0], colSpacing: spacing[1], orientation,
     position: numbersOf(ds, 'x00200032', 3), instance: Number(ds.string('x00200013') ?? 0),
-    series: ds.string('x0020000e') ?? '', hu, paddingPixels,
+    series: ds.string('x0020000e') ?? '', hu, paddingPixels, ...contextOf(ds),
   };
 }
 
@@ -182,9 +206,11 @@ export function readDicomSeries(files: readonly NamedBytes[], limits?: ReadLimit
   // Centre of voxel (0, 0) in Rimfill coordinates; the stored first pixel sits at Image Position.
   const x0 = sx > 0 ? p[0] : p[0] - (nx - 1) * dx;
   const y0 = sy > 0 ? -p[1] - (ny - 1) * dy : -p[1];
+  const warnings = warning ? [warning] : [];
+  if (a.dropped.length) warnings.push(`DICOM ${a.name}: ${a.dropped.join(', ')} hold characters beyond plain ASCII and are not carried to exports`);
   return {
-    volume: { nx, ny, nz: sorted.length, spacing: [dx, dy, dz], origin: [x0, y0, z0], data, quantity: 'hu', format: 'DICOM' },
+    volume: { nx, ny, nz: sorted.length, spacing: [dx, dy, dz], origin: [x0, y0, z0], data, quantity: 'hu', format: 'DICOM', dicom: a.context },
     paddingPixels: slices.reduce((t, s) => t + s.paddingPixels, 0),
-    warnings: warning ? [warning] : [],
+    warnings,
   };
 }

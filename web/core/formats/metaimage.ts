@@ -130,6 +130,8 @@ export interface MetaImageWrite {
   sizes: number[];
   spacing: number[];
   offset: number[];
+  /** AnatomicalOrientation letters (the coordinates are then in the patient frame LPS). */
+  anatomicalOrientation?: string;
   /** Extra keys (our metadata), one line each. */
   keys?: Record<string, string>;
   type?: WrittenType;
@@ -148,7 +150,7 @@ export async function writeMetaImage(data: Float32Array, w: MetaImageWrite): Pro
     'ObjectType = Image', `NDims = ${nd}`, 'BinaryData = True', 'BinaryDataByteOrderMSB = False',
     `CompressedData = ${w.compress ? 'True' : 'False'}`, ...(w.compress ? [`CompressedDataSize = ${body.length}`] : []),
     `TransformMatrix = ${Array.from({ length: nd * nd }, (_, k) => (k % (nd + 1) === 0 ? 1 : 0)).join(' ')}`,
-    `Offset = ${w.offset.join(' ')}`, `ElementSpacing = ${w.spacing.join(' ')}`, `DimSize = ${w.sizes.join(' ')}`,
+    `Offset = ${w.offset.join(' ')}`, ...(w.anatomicalOrientation ? [`AnatomicalOrientation = ${w.anatomicalOrientation}`] : []), `ElementSpacing = ${w.spacing.join(' ')}`, `DimSize = ${w.sizes.join(' ')}`,
     `ElementType = ${type === 'int16' ? 'MET_SHORT' : 'MET_FLOAT'}`,
   ];
   for (const [k, v] of Object.entries(w.keys ?? {})) {

@@ -12,7 +12,8 @@ import type { NamedBytes } from './named-file';
 import { positiveKey } from './projections';
 import { readRawWithSidecar } from './raw-json';
 import { readTiffStack } from './tiff';
-import { imageAsMu, volumeSlice, type ImageVolume, type VolumeQuantity } from './volume';
+import { checkAnatomicalOrientation, FROM_LPS } from './patient-frame';
+import { flipAxes, imageAsMu, volumeSlice, type ImageVolume, type VolumeQuantity } from './volume';
 
 export interface ImageFileOptions extends ReadLimits {
   /** What the values are when the file does not say (TIFF, raw without "quantity"). Default mu. */
@@ -44,6 +45,50 @@ function centred(n: number[], s: number[]): [number, number, number] {
   return [0, 1, 2].map((k) => -(((n[k] ?? 1) - 1) / 2) * s[k]) as [number, number, number];
 }
 
+/**
+ * The signs of an axis-aligned MetaImage TransformMatrix (row-major NDims x NDims, each axis
+ * along the world axis of the same index, +1 or -1); InputError for anything else.
+ */
+function diagonalSigns(t: number[], nd: number): number[] {
+  const signs: number[] = [];
+  for (let r = 0; r < nd; r++) {
+    for (let c = 0; c < nd; c++) {
+      const v = t[r * nd + c];
+      const ok = r === c ? Math.abs(Math.abs(v) - 1) <= 1e-6 : Math.abs(v) <= 1e-6;
+      if (!ok) throw new InputError(`MetaImage TransformMatrix: got ${t.join(' ')}, expected axis-aligned axes in their own order (1 or -1 on the diagonal; resample rotated images first)`);
+    }
+    signs.push(Math.sign(t[r * nd + r]));
+  }
+  return signs;
+}
+
+/**
+ * A MetaImage as a volume in Rimfill's frame. With an AnatomicalOrientation the coordinates
+ * (Offset, TransformMatrix) are in the patient frame LPS, as the MetaIO toolkit writes them, and
+ * the letters must agree with the matrix; without one (or "???") they are Rimfill's own.
+ */
+async function metaImageVolume(files: readonly NamedBytes[], o: ImageFileOptions): Promise<ImageVolume> {
+  const m = await parseMetaImage(files, o);
+  const nd = m.sizes.length;
+  if (nd < 2 || nd > 3) throw new InputError(`MetaImage: got ${nd} dimensions, expected a 2D image or a 3D volume`);
+  const signs = diagonalSigns(m.transform, nd);
+  const code = m.keys.AnatomicalOrientation;
+  const patient = code !== undefined && !/^\?+$/.test(code.trim());
+  if (patient) checkAnatomicalOrientation(code, signs);
+  const frame = patient ? FROM_LPS : [1, 1, 1];
+  const along = [0, 1, 2].map((k) => (signs[k] ?? 1) * frame[k]);
+  const fov = m.keys.RimfillFovRadius !== undefined ? Number(m.keys.RimfillFovRadius) : undefined;
+  const volume: ImageVolume = {
+    nx: m.sizes[0], ny: m.sizes[1], nz: m.sizes[2] ?? 1, data: m.data, format: 'MetaImage',
+    spacing: [m.spacing[0], m.spacing[1], m.spacing[2] ?? 1],
+    origin: [0, 1, 2].map((k) => (m.offset[k] ?? 0) * frame[k]) as [number, number, number],
+    quantity: quantityOf(m.keys.RimfillQuantity, 'MetaImage RimfillQuantity'),
+    muWater: positiveKey(m.keys.RimfillMuWater, 'MetaImage RimfillMuWater', 'mu of water in 1/mm'),
+    fovRadius: fov !== undefined && fov >= 0 ? fov : undefined,
+  };
+  return flipAxes(volume, along[0] < 0, along[1] < 0, along[2] < 0);
+}
+
 async function readVolume(input: readonly NamedBytes[], o: ImageFileOptions): Promise<ImageReadResult> {
   const { format, files } = detectFormat(input);
   const warnings: string[] = [];
@@ -54,25 +99,7 @@ async function readVolume(input: readonly NamedBytes[], o: ImageFileOptions): Pr
     if (paddingPixels) warnings.push(`${paddingPixels} DICOM padding pixels (outside the reconstructed field) were set to -1000 HU`);
     return { volume, warnings };
   }
-  if (format === 'metaimage') {
-    const m = await parseMetaImage(files, o);
-    if (m.sizes.length < 2 || m.sizes.length > 3) throw new InputError(`MetaImage: got ${m.sizes.length} dimensions, expected a 2D image or a 3D volume`);
-    const nd = m.sizes.length;
-    if (m.transform.some((t, k) => Math.abs(t - (k % (nd + 1) === 0 ? 1 : 0)) > 1e-6)) {
-      throw new InputError(`MetaImage TransformMatrix: got ${m.transform.join(' ')}, expected the identity (resample rotated images first)`);
-    }
-    const fov = m.keys.RimfillFovRadius !== undefined ? Number(m.keys.RimfillFovRadius) : undefined;
-    return {
-      volume: {
-        nx: m.sizes[0], ny: m.sizes[1], nz: m.sizes[2] ?? 1, data: m.data, format: 'MetaImage',
-        spacing: [m.spacing[0], m.spacing[1], m.spacing[2] ?? 1], origin: [m.offset[0], m.offset[1], m.offset[2] ?? 0],
-        quantity: quantityOf(m.keys.RimfillQuantity, 'MetaImage RimfillQuantity'),
-        muWater: positiveKey(m.keys.RimfillMuWater, 'MetaImage RimfillMuWater', 'mu of water in 1/mm'),
-        fovRadius: fov !== undefined && fov >= 0 ? fov : undefined,
-      },
-      warnings,
-    };
-  }
+  if (format === 'metaimage') return { volume: await metaImageVolume(files, o), warnings };
   if (format === 'raw-json') {
     const r = readRawWithSidecar(files, o);
     if (r.sizes.length < 2 || r.sizes.length > 3) throw new InputError(`raw image sizes: got ${r.sizes.length} axes, expected [nx, ny] or [nx, ny, nz]`);

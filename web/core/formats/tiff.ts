@@ -1,14 +1,15 @@
-// TIFF stacks (multi-page files, or one frame per file in name order) of 8/16/32-bit integers
-// or 32/64-bit floats, as float32 frames. The structure is checked first (tiff-structure.ts);
-// uncompressed strips, the usual case for detector frames, are converted straight from the
-// file bytes (one copy); compressed pages (deflate) and tiles are decoded by UTIF
-// (npm "utif", Photopea), after deflate streams were checked to inflate within their size.
-import UTIF from 'utif';
+// TIFF stacks (multi-page files, or one frame per file in name order; TIFF or BigTIFF) of
+// 8/16/32-bit integers or 32/64-bit floats, as float32 frames. The structure is checked first
+// (tiff-structure.ts); uncompressed strips, the usual case for detector frames, are converted
+// straight from the file bytes (one copy); compressed strips and tiles (LZW, PackBits, deflate;
+// horizontal differencing undone) are decoded piece by piece into one frame of file-order bytes,
+// each piece bounded by the size it must have (tiff-codecs.ts, and the platform's inflate).
 import { InputError } from '../errors';
 import { inflate } from './gzip';
 import { checkAllocation, type ReadLimits } from './limits';
 import { baseName, naturalOrder, type NamedBytes } from './named-file';
 import { decodeSamples, type SampleType } from './sample-types';
+import { lzwDecode, packBitsDecode, undoHorizontalDifferencing } from './tiff-codecs';
 import { readTiffStructure, type TiffPage } from './tiff-structure';
 
 /** A stack of frames, frame after frame, each `height` rows of `width` values. */
@@ -40,45 +41,54 @@ function decodeStrips(bytes: Uint8Array, p: TiffPage, le: boolean, out: Float32A
   }
 }
 
-/** Pieces of a compressed page (strips or tiles) and the bytes each may expand to. */
-function pieceSizes(p: TiffPage): number[] {
-  const bytesPer = p.bitsPerSample / 8;
-  if (p.tile) return p.offsets.map(() => p.tile!.width * p.tile!.height * bytesPer);
-  return p.offsets.map((_, s) => Math.min(p.rowsPerStrip, p.height - s * p.rowsPerStrip) * p.width * bytesPer);
+/** Decompresses one piece (strip or tile) into exactly `size` bytes. */
+async function decompress(src: Uint8Array, p: TiffPage, size: number, what: string): Promise<Uint8Array> {
+  switch (p.compression) {
+    case 1:
+      if (src.length < size) throw new InputError(`${what} holds ${src.length} bytes, ${size} expected`);
+      return src.subarray(0, size);
+    case 5:
+      return lzwDecode(src, size, what);
+    case 32773:
+      return packBitsDecode(src, size, what);
+    default: {
+      const out = await inflate(src, 'deflate', size);
+      if (out.length < size) throw new InputError(`${what}: deflate data hold ${out.length} bytes, ${size} expected`);
+      return out;
+    }
+  }
 }
 
-async function checkDeflate(bytes: Uint8Array, p: TiffPage): Promise<void> {
-  const sizes = pieceSizes(p);
+/**
+ * The page's samples in file byte order, frame layout (rows of `width`), from its compressed
+ * strips or its tiles (tiles at the right and bottom edges are cut to the image).
+ */
+async function pageBytes(bytes: Uint8Array, p: TiffPage, le: boolean): Promise<Uint8Array> {
+  const bytesPer = p.bitsPerSample / 8;
+  const frame = new Uint8Array(p.width * p.height * bytesPer);
+  const piece = (s: number) => bytes.subarray(p.offsets[s], p.offsets[s] + p.byteCounts[s]);
+  if (!p.tile) {
+    for (let s = 0; s < p.offsets.length; s++) {
+      const rows = Math.min(p.rowsPerStrip, p.height - s * p.rowsPerStrip);
+      const data = await decompress(piece(s), p, rows * p.width * bytesPer, `TIFF strip ${s} of the page at byte ${p.ifdOffset}`);
+      const copy = p.predictor === 2 ? data.slice() : data;
+      if (p.predictor === 2) undoHorizontalDifferencing(copy, p.width, rows, bytesPer, le);
+      frame.set(copy, s * p.rowsPerStrip * p.width * bytesPer);
+    }
+    return frame;
+  }
+  const { width: tw, height: th } = p.tile;
+  const across = Math.ceil(p.width / tw);
   for (let s = 0; s < p.offsets.length; s++) {
-    await inflate(bytes.subarray(p.offsets[s], p.offsets[s] + p.byteCounts[s]), 'deflate', sizes[s]);
+    const data = (await decompress(piece(s), p, tw * th * bytesPer, `TIFF tile ${s} of the page at byte ${p.ifdOffset}`)).slice();
+    if (p.predictor === 2) undoHorizontalDifferencing(data, tw, th, bytesPer, le);
+    const x0 = (s % across) * tw, y0 = Math.floor(s / across) * th;
+    const w = Math.min(tw, p.width - x0) * bytesPer;
+    for (let r = 0; r < th && y0 + r < p.height; r++) {
+      frame.set(data.subarray(r * tw * bytesPer, r * tw * bytesPer + w), ((y0 + r) * p.width + x0) * bytesPer);
+    }
   }
-}
-
-interface UtifPage extends Record<string, unknown> {
-  data?: Uint8Array;
-}
-
-function decodeWithUtif(buffer: ArrayBuffer, ifds: UtifPage[], index: number, p: TiffPage, le: boolean, out: Float32Array, at: number): void {
-  const ifd = ifds[index];
-  if (!ifd) throw new InputError(`TIFF: page ${index} could not be read`);
-  ifd.t278 = [p.rowsPerStrip]; // bounded as checked (a huge RowsPerStrip would drive UTIF's row loops)
-  try {
-    UTIF.decodeImage(buffer, ifd, ifds);
-  } catch (err) {
-    throw new InputError(`TIFF: page ${index} cannot be decoded (${err instanceof Error ? err.message : String(err)})`);
-  }
-  const n = p.width * p.height;
-  const bytesPer = p.bitsPerSample / 8;
-  const decoded = ifd.data;
-  if (!decoded || decoded.length < n * bytesPer) throw new InputError(`TIFF: page ${index} decodes to ${decoded?.length ?? 0} bytes, ${n * bytesPer} expected`);
-  // UTIF returns 16-bit samples little-endian and other sizes in the file's byte order.
-  decodeSamples(decoded, sampleTypeOf(p), p.bitsPerSample === 16 ? true : le, n, out, at);
-  delete ifd.data;
-}
-
-function wholeBuffer(bytes: Uint8Array): ArrayBuffer {
-  if (bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength && bytes.buffer instanceof ArrayBuffer) return bytes.buffer;
-  return bytes.slice().buffer;
+  return frame;
 }
 
 /**
@@ -105,24 +115,19 @@ export async function readTiffStack(files: readonly NamedBytes[], limits?: ReadL
     }
   }
   const frameSize = first.width * first.height;
-  const decodeBytes = frames.some((f) => f.page.compression !== 1 || f.page.tile) ? (frameSize * first.bitsPerSample) / 8 : 0;
+  // A compressed or tiled page needs its frame of file bytes plus one decoded piece at a time.
+  const decodeBytes = frames.some((f) => f.page.compression !== 1 || f.page.tile) ? (2 * frameSize * first.bitsPerSample) / 8 : 0;
   checkAllocation(frames.length * frameSize * 4 + decodeBytes, limits, `TIFF stack of ${frames.length} frames of ${first.width} x ${first.height}`);
   const data = new Float32Array(frames.length * frameSize);
-  const utif = new Map<NamedBytes, { buffer: ArrayBuffer; ifds: UtifPage[] }>();
   for (let k = 0; k < frames.length; k++) {
     const { file, tiff, page } = frames[k];
-    if (page.compression === 1 && !page.tile) {
-      decodeStrips(file.bytes, page, tiff.littleEndian, data, k * frameSize);
-      continue;
+    try {
+      if (page.compression === 1 && !page.tile && page.predictor === 1) decodeStrips(file.bytes, page, tiff.littleEndian, data, k * frameSize);
+      else decodeSamples(await pageBytes(file.bytes, page, tiff.littleEndian), sampleTypeOf(page), tiff.littleEndian, frameSize, data, k * frameSize);
+    } catch (err) {
+      if (err instanceof InputError) throw new InputError(`${baseName(file.name)}: ${err.message}`);
+      throw err;
     }
-    if (page.compression === 8 || page.compression === 32946) await checkDeflate(file.bytes, page);
-    let u = utif.get(file);
-    if (!u) {
-      const buffer = wholeBuffer(file.bytes);
-      u = { buffer, ifds: UTIF.decode(buffer) as UtifPage[] };
-      utif.set(file, u);
-    }
-    decodeWithUtif(u.buffer, u.ifds, tiff.pages.indexOf(page), page, tiff.littleEndian, data, k * frameSize);
   }
   return { width: first.width, height: first.height, frames: frames.length, data };
 }

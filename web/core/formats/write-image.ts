@@ -5,7 +5,9 @@ import { muToHu, type Image2D } from '../image';
 import { writeImageNrrd } from './image-nrrd';
 import { writeMetaImage } from './metaimage';
 import { baseName, type NamedBytes } from './named-file';
+import { writtenAnatomicalOrientation } from './patient-frame';
 import { checkWindow, writePng, type DisplayWindow } from './png';
+import { imageAsVolume, toLps } from './volume';
 
 export type ImageFileFormat = 'nrrd' | 'mha' | 'mhd' | 'png';
 
@@ -68,13 +70,15 @@ export async function writeImageFile(image: Image2D, name: string, o: ImageWrite
     return { files: [{ name: `${base}.png`, bytes: png.bytes }], clamped: png.nonFinite, warnings };
   }
   if (o.format === 'nrrd') return { files: [{ name: `${base}.nrrd`, bytes: await writeImageNrrd(out, o.compress, type) }], clamped, warnings };
-  const g = out.grid;
   const keys: Record<string, string> = { RimfillQuantity: out.quantity };
   if (out.muWater !== undefined) keys.RimfillMuWater = String(out.muWater);
   if (out.fovRadius !== undefined) keys.RimfillFovRadius = String(out.fovRadius);
-  const files = await writeMetaImage(out.data, {
-    sizes: [g.nx, g.ny], spacing: [g.dx, g.dy],
-    offset: [g.cx - ((g.nx - 1) / 2) * g.dx, g.cy - ((g.ny - 1) / 2) * g.dy],
+  // The patient frame LPS with rows from anterior to posterior (patient-frame.ts).
+  const v = imageAsVolume(out, 'MetaImage');
+  const lps = toLps(v);
+  const files = await writeMetaImage(lps.data, {
+    sizes: [v.nx, v.ny], spacing: [v.spacing[0], v.spacing[1]], offset: lps.origin.slice(0, 2),
+    anatomicalOrientation: writtenAnatomicalOrientation(2),
     keys, type, compress: o.compress, detachedName: o.format === 'mhd' ? base : undefined,
   });
   if (o.format === 'mha') files[0].name = `${base}.mha`;

@@ -25,12 +25,25 @@ export interface AngleRange {
   count: number;
 }
 
-/** One calibrated view: vectors in mm. For parallel beams `source` is the unit ray direction. */
+export type Vec3 = [number, number, number];
+
+/**
+ * One calibrated view, vectors in mm in the world frame (isocentre at the origin). Fan and cone
+ * beams give the focal spot; parallel beams give the ray direction instead (unit length after
+ * validation). `channelStep` and `rowStep` go from one detector channel (row) to the next, so
+ * their lengths are the detector pitch.
+ */
 export interface ViewVectorSpec {
-  source: [number, number, number];
-  detector: [number, number, number];
-  u: [number, number, number];
-  v: [number, number, number];
+  /** Focal spot position (fan and cone beams). */
+  focalSpot?: Vec3;
+  /** Direction the rays travel (parallel beams). */
+  rayDirection?: Vec3;
+  /** Centre of the detector (channel and row coordinates 0). */
+  detectorCenter: Vec3;
+  /** From one channel to the next (length = channel pitch). */
+  channelStep: Vec3;
+  /** From one row to the next (length = row pitch). */
+  rowStep: Vec3;
 }
 
 export interface Geometry {

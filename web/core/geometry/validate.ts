@@ -1,7 +1,7 @@
 // Validation of geometry descriptions from files, forms and the command line. Every message
 // names the field, the value received and what was expected.
 import { InputError } from '../errors';
-import type { AngleRange, DetectorSpec, Geometry, ViewVectorSpec } from './types';
+import type { AngleRange, DetectorSpec, Geometry, GeometryKind, Vec3, ViewVectorSpec } from './types';
 
 type Json = unknown;
 
@@ -48,7 +48,7 @@ function pair(v: Json, field: string, each: (x: Json, f: string) => number, fall
   return [each(v[0], `${field}[0]`), each(v[1], `${field}[1]`)];
 }
 
-function vec3(v: Json, field: string): [number, number, number] {
+function vec3(v: Json, field: string): Vec3 {
   if (!Array.isArray(v) || v.length !== 3) fail(field, v, 'a vector [x, y, z] in mm');
   return [finite(v[0], `${field}[0]`), finite(v[1], `${field}[1]`), finite(v[2], `${field}[2]`)];
 }
@@ -78,17 +78,50 @@ function validateAngles(a: Json): AngleRange | number[] {
   return { start, step, count: count(a.count, 'anglesDeg.count', MAX_VIEWS) };
 }
 
-function validateViews(vs: Json): ViewVectorSpec[] {
+const VIEW_KEYS = {
+  beam: ['focalSpot', 'detectorCenter', 'channelStep', 'rowStep'],
+  parallel: ['rayDirection', 'detectorCenter', 'channelStep', 'rowStep'],
+};
+
+/** A step vector whose length must be the detector pitch (relative tolerance 1e-3). */
+function step(v: Json, field: string, pitch: number, pitchField: string): Vec3 {
+  const s = vec3(v, field);
+  const len = Math.hypot(...s);
+  if (!(Math.abs(len - pitch) <= 1e-3 * pitch)) {
+    fail(field, s, `a step of the ${pitchField} (${pitch} mm long; this one is ${len.toPrecision(6)} mm)`);
+  }
+  return s;
+}
+
+/**
+ * Calibrated views: fan and cone beams give {focalSpot, detectorCenter, channelStep, rowStep},
+ * parallel beams {rayDirection, detectorCenter, channelStep, rowStep}; rowStep may be left out
+ * on single-row detectors (then one row pitch along +z).
+ */
+function validateViews(vs: Json, kind: GeometryKind, d: DetectorSpec): ViewVectorSpec[] {
   if (!Array.isArray(vs) || vs.length < 1 || vs.length > MAX_VIEWS) fail('views', vs, `a list of 1 to ${MAX_VIEWS} views`);
+  const keys = kind === 'parallel' ? VIEW_KEYS.parallel : VIEW_KEYS.beam;
   return vs.map((v, i) => {
-    if (!isObject(v)) fail(`views[${i}]`, v, 'an object {source, detector, u, v}');
-    const out = {
-      source: vec3(v.source, `views[${i}].source`),
-      detector: vec3(v.detector, `views[${i}].detector`),
-      u: vec3(v.u, `views[${i}].u`),
-      v: vec3(v.v ?? [0, 0, 1], `views[${i}].v`),
+    const at = `views[${i}]`;
+    if (!isObject(v)) fail(at, v, `an object {${keys.join(', ')}}`);
+    const unknown = Object.keys(v).find((k) => !keys.includes(k));
+    if (unknown !== undefined) fail(`${at}.${unknown}`, v[unknown], `one of the keys ${keys.join(', ')} (a ${kind} beam)`);
+    if (v.rowStep === undefined && d.rows > 1) fail(`${at}.rowStep`, undefined, 'the step from one detector row to the next (mm)');
+    const beam: Partial<ViewVectorSpec> = {};
+    if (kind === 'parallel') {
+      const r = vec3(v.rayDirection, `${at}.rayDirection`);
+      const len = Math.hypot(...r);
+      if (!(len > 0)) fail(`${at}.rayDirection`, r, 'a non-zero direction');
+      beam.rayDirection = [r[0] / len, r[1] / len, r[2] / len];
+    } else {
+      beam.focalSpot = vec3(v.focalSpot, `${at}.focalSpot`);
+    }
+    const out: ViewVectorSpec = {
+      ...beam,
+      detectorCenter: vec3(v.detectorCenter, `${at}.detectorCenter`),
+      channelStep: step(v.channelStep, `${at}.channelStep`, d.pitch[0], 'channel pitch, detector.pitch[0]'),
+      rowStep: v.rowStep === undefined ? [0, 0, d.pitch[1]] : step(v.rowStep, `${at}.rowStep`, d.pitch[1], 'row pitch, detector.pitch[1]'),
     };
-    if (Math.hypot(...out.u) === 0) fail(`views[${i}].u`, out.u, 'a non-zero vector');
     return out;
   });
 }
@@ -115,7 +148,7 @@ export function validateGeometry(g: Json): Geometry {
       if (fan >= Math.PI) fail('detector.pitch', detector.pitch[0], `an arc shorter than 180 degrees at ${d} mm (got ${((fan * 180) / Math.PI).toFixed(1)} degrees)`);
     }
   }
-  if (g.views !== undefined) out.views = validateViews(g.views);
+  if (g.views !== undefined) out.views = validateViews(g.views, kind, detector);
   if (g.anglesDeg !== undefined) out.anglesDeg = validateAngles(g.anglesDeg);
   if (!out.views && !out.anglesDeg) fail('anglesDeg', undefined, 'view angles (or calibrated "views")');
   if (out.views && out.anglesDeg) {

@@ -4,7 +4,11 @@ import type { Geometry } from './types';
 import { anglesRad, viewCount } from './types';
 import { isFullScan } from './coverage';
 
-/** Floats per view: [a(3), detectorCentre(3), u(3), v(3)] (matches assembly/abi.ts VIEW_STRIDE). */
+/**
+ * Floats per view: [a(3), detectorCentre(3), u(3), v(3)] (matches assembly/abi.ts VIEW_STRIDE):
+ * a is the focal spot (fan, cone) or the ray direction (parallel); u and v point along the
+ * channels and the rows (the kernels use their directions; pitches come from the detector).
+ */
 export const VIEW_STRIDE = 12;
 
 /** Kernel geometry kind codes (match assembly/abi.ts). */
@@ -14,13 +18,14 @@ export const KernelKind = { parallel: 0, fanFlat: 1, fanCurved: 2, coneFlat: 3 }
  * View table for a validated geometry, mm. For fan and cone beams `a` is the source position
  * `(R cos b, R sin b, 0)`, the detector centre is `-(D - R)(cos b, sin b, 0)`, u points along
  * `(-sin b, cos b, 0)` and v along +z. For parallel beams `a` is the unit ray direction
- * `-(cos b, sin b, 0)` and the detector centre is the isocentre. Calibrated `views` are copied.
+ * `-(cos b, sin b, 0)` and the detector centre is the isocentre. Calibrated `views` are copied
+ * (focalSpot or rayDirection, detectorCenter, channelStep, rowStep).
  */
 export function viewVectors(g: Geometry): Float32Array {
   const n = viewCount(g);
   const out = new Float32Array(n * VIEW_STRIDE);
   if (g.views) {
-    g.views.forEach((w, i) => { out.set([...w.source, ...w.detector, ...w.u, ...w.v], i * VIEW_STRIDE); });
+    g.views.forEach((w, i) => { out.set([...(w.focalSpot ?? w.rayDirection!), ...w.detectorCenter, ...w.channelStep, ...w.rowStep], i * VIEW_STRIDE); });
     return out;
   }
   const beta = anglesRad(g);

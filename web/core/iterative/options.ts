@@ -6,8 +6,8 @@ import type { Recipe } from '../recipe/recipe';
 export const ITERATIVE_METHODS = ['sart', 'tv', 'wtv', 'prior'] as const;
 export type IterativeMethod = (typeof ITERATIVE_METHODS)[number];
 
-export const SUPPORTS = ['circle', 'grid', 'image'] as const;
-/** circle: the disk inscribed in the grid; grid: every pixel; image: a mask image given with the run. */
+export const SUPPORTS = ['disk', 'grid', 'image'] as const;
+/** disk: the disk inscribed in the grid (a cylinder for volumes); grid: every pixel; image: a mask image given with the run. */
 export type SupportShape = (typeof SUPPORTS)[number];
 
 /**
@@ -63,7 +63,7 @@ export const ITERATIVE_DEFAULTS: IterativeOptions = {
   tvEps: 0.0005,
   priorWeight: 1,
   nonNegative: true,
-  support: 'circle',
+  support: 'disk',
 };
 
 /** Plain TV smooths edges too, so it takes a smaller default TV step than reweighted TV. */

@@ -39,7 +39,7 @@ export interface Problem {
 export function supportMask(grid: ReconGrid, shape: SupportShape, mask?: Image2D): Uint8Array {
   if (shape === 'image') {
     if (!mask) throw new InputError('recipe support: "image" needs a mask image, but none was given');
-    if (isVolumeGrid(grid)) throw new InputError('recipe support: "image" (a mask image) works on 2D scans; a volume takes "circle" (a cylinder) or "grid"');
+    if (isVolumeGrid(grid)) throw new InputError('recipe support: "image" (a mask image) works on 2D scans; a volume takes "disk" (a cylinder) or "grid"');
     const onGrid = sameGrid(mask.grid, grid) ? mask.data : resampleBilinear(mask.data, mask.grid, grid);
     const out = onGrid.map((v) => (v > 0.5 ? 1 : 0));
     const inside = out.reduce((s, v) => s + v, 0);

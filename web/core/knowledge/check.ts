@@ -34,6 +34,12 @@ export interface KnowledgeContext {
   /** mu of water, 1/mm: known values are in HU. */
   muWater?: number;
   masks?: MaskInputs;
+  /**
+   * A reconstruction on `grid` (mu, e.g. FBP with water extension): when given, the outline may
+   * leave out parts of the field of view where this image shows air (a field of view larger than
+   * the object), and is refused only where it leaves out the object.
+   */
+  image?: Float32Array;
 }
 
 /** HU -> mu (ICRP 129: HU = 1000 (mu - mu_water) / mu_water). */
@@ -105,6 +111,29 @@ function checkOutlineEnclosesFov(outline: Outline, mask: Uint8Array, ctx: Knowle
   }
 }
 
+/** Reconstructed values above this fraction of mu_water (-500 HU) count as object (common practice for a body mask). */
+const OBJECT_LEVEL = 0.5;
+
+/**
+ * With a reconstruction: the share of the field of view (within 95% of its radius, clear of the
+ * truncation rim) that lies outside the outline where the image shows object must stay under 1%.
+ */
+function checkOutlineHoldsFovObject(outline: Outline, mask: Uint8Array, ctx: KnowledgeContext, image: Float32Array): void {
+  const g = ctx.grid, plane = g.nx * g.ny;
+  const x0 = g.cx - ((g.nx - 1) / 2) * g.dx, y0 = g.cy - ((g.ny - 1) / 2) * g.dy;
+  const r = 0.95 * ctx.fovRadius, level = OBJECT_LEVEL * (ctx.muWater ?? 0);
+  let inFov = 0, left = 0;
+  for (let q = 0; q < image.length; q++) {
+    const p = q % plane;
+    if (Math.hypot(x0 + (p % g.nx) * g.dx, y0 + Math.floor(p / g.nx) * g.dy) > r) continue;
+    inFov++;
+    if (!mask[q] && image[q] > level) left++;
+  }
+  if (inFov && left > 0.01 * inFov) {
+    throw new InputError(`${describeOutline(outline)}: ${((100 * left) / inFov).toFixed(0)}% of the measured field of view lies outside it where the data show the object (above -500 HU): the outline must enclose the object`);
+  }
+}
+
 /** Places knowledge on a grid, or throws InputError naming the region at fault. */
 export function placeKnowledge(k: Knowledge | undefined, ctx: KnowledgeContext): PlacedKnowledge {
   const regions = (k?.known ?? []).map((r, i) => placeRegion(r, i, ctx));
@@ -112,7 +141,8 @@ export function placeKnowledge(k: Knowledge | undefined, ctx: KnowledgeContext):
   if (!k?.outline) return { regions };
   const mask = outlineMask(k.outline, ctx.grid, ctx.masks);
   if (!mask.some((v) => v)) throw new InputError(`${describeOutline(k.outline)}: covers no pixel of the reconstruction grid`);
-  checkOutlineEnclosesFov(k.outline, mask, ctx);
+  if (ctx.image) checkOutlineHoldsFovObject(k.outline, mask, ctx, ctx.image);
+  else checkOutlineEnclosesFov(k.outline, mask, ctx);
   for (const r of regions) {
     for (let q = 0; q < r.coverage.length; q++) {
       if (r.coverage[q] >= 0.5 && !mask[q] && r.region.hu > -900) throw new InputError(`${r.name}: lies partly outside the ${describeOutline(k.outline!)}, where there is only air`);

@@ -37,6 +37,36 @@ function coverage(g: ImageGrid, inside: (x: number, y: number) => boolean, box?:
   return out;
 }
 
+/**
+ * Coverage of each pixel by a polygon (even-odd rule), from SUB x SUB sub-samples, row by row:
+ * the crossings of each sub-sample row with the edges, sorted, bound the inside spans (the
+ * scanline form of inPolygon, linear in the number of edges per row instead of per sample).
+ */
+function polygonCoverage(g: ImageGrid, points: readonly (readonly [number, number])[]): Float32Array {
+  const out = new Float32Array(g.nx * g.ny);
+  const { x0, y0 } = gridOrigin(g);
+  const crossings: number[] = [];
+  const w = 1 / (SUB * SUB);
+  for (let j = 0; j < g.ny; j++) {
+    for (let b = 0; b < SUB; b++) {
+      const y = y0 + (j + (b + 0.5) / SUB - 0.5) * g.dy;
+      crossings.length = 0;
+      for (let k = 0, m = points.length - 1; k < points.length; m = k++) {
+        const [xk, yk] = points[k], [xm, ym] = points[m];
+        if (yk > y !== ym > y) crossings.push(((xm - xk) * (y - yk)) / (ym - yk) + xk);
+      }
+      crossings.sort((p, q) => p - q);
+      for (let c = 0; c + 1 < crossings.length; c += 2) {
+        // Sub-sample columns a (over the whole row) whose x lies in [crossings[c], crossings[c + 1]).
+        const first = Math.max(0, Math.ceil(((crossings[c] - x0) / g.dx + 0.5) * SUB - 0.5));
+        const last = Math.min(g.nx * SUB - 1, Math.ceil(((crossings[c + 1] - x0) / g.dx + 0.5) * SUB - 0.5) - 1);
+        for (let a = first; a <= last; a++) out[j * g.nx + Math.floor(a / SUB)] += w;
+      }
+    }
+  }
+  return out;
+}
+
 /** Even-odd rule point-in-polygon test. */
 function inPolygon(points: readonly (readonly [number, number])[], x: number, y: number): boolean {
   let inside = false;
@@ -90,7 +120,7 @@ export function outlineContains(o: Exclude<Outline, { shape: 'mask' }>, x: numbe
 /** 1 inside the outline, 0 outside (a pixel is inside when at least half of it is). */
 export function outlineMask(outline: Outline, g: ImageGrid | VolumeGrid, masks?: MaskInputs): Uint8Array {
   if (outline.shape === 'mask') return Uint8Array.from(maskOnGrid(outline.input, g, masks, 'outline'), (v) => (v > 0.5 ? 1 : 0));
-  const plane = coverage(g, (x, y) => outlineContains(outline, x, y));
+  const plane = outline.shape === 'polygon' ? polygonCoverage(g, outline.points) : coverage(g, (x, y) => outlineContains(outline, x, y));
   const mask = Uint8Array.from(plane, (v) => (v >= 0.5 ? 1 : 0));
   if (!isVolumeGrid(g)) return mask;
   const out = new Uint8Array(mask.length * g.nz);

@@ -3,7 +3,7 @@
 // page without touching the page. Whoever adds a recipe field adds its description here;
 // a field of DEFAULT_RECIPE that has none still appears, as a plain input of its default's type
 // (describeRecipeFields), and test/core/recipe-fields.test.ts names it.
-import { FILTER_WINDOWS } from '../recon/filter-design';
+import { FILTER_WINDOWS, MAX_BAND_LIMIT } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
 import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, type IterativeOptions } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
@@ -62,7 +62,7 @@ const CHOICE_LABELS: Record<string, string> = {
   tv: 'Total variation (iterative)',
   wtv: 'Reweighted total variation (iterative)',
   prior: 'Prior-guided, data-consistent (iterative)',
-  'ram-lak': 'Ramp (sharpest)',
+  ramp: 'Ramp (sharpest)',
   'shepp-logan': 'Shepp-Logan',
   cosine: 'Cosine',
   hamming: 'Hamming',
@@ -94,11 +94,12 @@ export const RECIPE_FIELDS: RecipeField[] = [
   { key: 'method', label: 'Method', kind: 'choice', choices: choicesOf(METHODS), help: 'How the image is computed from the projections.' },
   {
     key: 'filter', label: 'Filter window', kind: 'choice', choices: choicesOf(FILTER_WINDOWS), appliesTo: isFbp,
-    help: 'Apodization of the ramp filter: smoother windows trade resolution for less noise.',
+    help: 'Apodization of the ramp filter, sharpest first: smoother windows trade resolution for less noise.',
   },
   {
-    key: 'cutoff', label: 'Filter cutoff', kind: 'number', min: 0.05, max: 1, step: 0.05, appliesTo: isFbp,
-    help: 'Fraction of the Nyquist frequency where the window ends (1 = full band).',
+    key: 'bandLimit', label: 'Band limit', kind: 'number', min: 0.5, max: MAX_BAND_LIMIT, step: 0.5, unit: 'lp/cm', appliesTo: isFbp,
+    defaultOf: () => 'full band',
+    help: 'Spatial frequency where the filter window ends, in line pairs per cm at the isocentre (empty: the detector\'s Nyquist frequency).',
   },
   {
     key: 'extend', label: 'Truncation correction', kind: 'choice', choices: choicesOf(EXTEND_METHODS, { cosine: 'Cosine taper of the edge value' }), appliesTo: isFbp,
@@ -143,7 +144,7 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'The image the method starts from and whose projections fill the channels beyond the detector; the measured data overrule it inside the field of view.',
   },
   {
-    key: 'support', label: 'Support', kind: 'choice', choices: choicesOf(['circle', 'grid'], { circle: 'Disk inscribed in the grid', grid: 'Whole grid' }), appliesTo: isIterative,
+    key: 'support', label: 'Support', kind: 'choice', choices: choicesOf(['disk', 'grid'], { disk: 'Disk inscribed in the grid', grid: 'Whole grid' }), appliesTo: isIterative,
     help: 'Pixels reconstructed; outside they stay zero.',
   },
 ];
@@ -183,6 +184,7 @@ function formatValue(f: RecipeField, v: unknown): string {
   if (f.key === 'extend') return `${String(v)} extension`;
   if (f.key === 'prior') return `prior: ${priorLabel(v)}`;
   if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
+  if (f.key === 'bandLimit') return `band limit ${String(v)} lp/cm`;
   if (f.kind === 'grid') {
     const g = v as { size: number; pixel: number } | undefined;
     return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
@@ -199,7 +201,7 @@ function priorLabel(v: unknown): string {
   return 'default';
 }
 
-/** A one-line description of a recipe, e.g. "FBP, hann, cutoff 0.8, 576 px × 1 mm". */
+/** A one-line description of a recipe, e.g. "FBP, hann, band limit 5 lp/cm, 576 px × 1 mm". */
 export function recipeSummary(recipe: Record<string, unknown>): string {
   const parts = describeRecipeFields()
     .filter((f) => (f.appliesTo ? f.appliesTo(recipe) : true) && (recipe[f.key] !== undefined || f.kind === 'grid'))

@@ -2,8 +2,8 @@
 // options, the page from its form; both run it with runRecipe (run.ts). Plain JSON, so it can
 // be stored with the result and shown in reports.
 import { InputError } from '../errors';
-import { FILTER_WINDOWS, type FilterWindow } from '../recon/filter-design';
-import { EXTEND_METHODS, type ExtendMethod } from '../truncation/extend-methods';
+import { FILTER_WINDOWS, MAX_BAND_LIMIT, type FilterWindow } from '../recon/filter-design';
+import { RECIPE_EXTENDS, type RecipeExtend } from '../truncation/extend-methods';
 import { checkReduction, isIdentity, type Reduction } from '../reduction';
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 import { validateKnowledge, type Knowledge } from '../knowledge';
@@ -24,11 +24,12 @@ export interface Recipe extends IterativeFields {
   method: Method;
   /** Reconstruction grid; absent: chosen from the scan (grid.ts). */
   grid?: GridChoice;
+  /** Window of the ramp filter (FILTER_WINDOWS, sharpest first). */
   filter: FilterWindow;
-  /** Frequency scaling of the filter window, (0, 1]. */
-  cutoff: number;
-  /** Detector extension before filtering (truncation correction); absent means 'none'. */
-  extend?: ExtendMethod;
+  /** Where the filter window ends: line pairs per cm at the isocentre; absent: the full band (Nyquist). */
+  bandLimit?: number;
+  /** Detector extension before filtering (truncation correction); absent means 'none'. 'outline' needs knowledge.outline. */
+  extend?: RecipeExtend;
   /** Slices of a cone-beam volume; absent: chosen from the scan (volume-grid.ts). */
   volume?: SliceChoice;
   /** What the user knows beyond the data (known regions, outline); absent: nothing. */
@@ -44,7 +45,7 @@ export interface SliceChoice {
   spacing: number;
 }
 
-export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ram-lak', cutoff: 1, extend: 'none' };
+export const DEFAULT_RECIPE: Recipe = { method: 'fbp', filter: 'ramp', extend: 'none' };
 
 function isObject(v: unknown): v is Record<string, unknown> {
   return typeof v === 'object' && v !== null && !Array.isArray(v);
@@ -60,13 +61,18 @@ export function validateRecipe(input: unknown): Recipe {
   if (!(FILTER_WINDOWS as readonly string[]).includes(r.filter as string)) {
     throw new InputError(`recipe filter: got "${r.filter}", expected one of ${FILTER_WINDOWS.join(', ')}`);
   }
-  if (typeof r.cutoff !== 'number' || !(r.cutoff > 0 && r.cutoff <= 1)) throw new InputError(`recipe cutoff: got ${r.cutoff}, expected a number in (0, 1]`);
-  const out: Recipe = { method: r.method as Method, filter: r.filter as FilterWindow, cutoff: r.cutoff };
-  if (r.extend !== undefined) {
-    if (!(EXTEND_METHODS as readonly string[]).includes(r.extend as string)) {
-      throw new InputError(`recipe extend: got "${r.extend}", expected one of ${EXTEND_METHODS.join(', ')}`);
+  const out: Recipe = { method: r.method as Method, filter: r.filter as FilterWindow };
+  if (r.bandLimit !== undefined) {
+    if (typeof r.bandLimit !== 'number' || !(r.bandLimit > 0 && r.bandLimit <= MAX_BAND_LIMIT)) {
+      throw new InputError(`recipe bandLimit: got ${JSON.stringify(r.bandLimit)}, expected line pairs per cm at the isocentre, above 0 and at most ${MAX_BAND_LIMIT}`);
     }
-    out.extend = r.extend as ExtendMethod;
+    out.bandLimit = r.bandLimit;
+  }
+  if (r.extend !== undefined) {
+    if (!(RECIPE_EXTENDS as readonly string[]).includes(r.extend as string)) {
+      throw new InputError(`recipe extend: got "${r.extend}", expected one of ${RECIPE_EXTENDS.join(', ')}`);
+    }
+    out.extend = r.extend as RecipeExtend;
   }
   if (r.grid !== undefined) {
     const g = r.grid;
@@ -82,6 +88,7 @@ export function validateRecipe(input: unknown): Recipe {
   }
   const knowledge = validateKnowledge(r.knowledge);
   if (knowledge) out.knowledge = knowledge;
+  if (out.extend === 'outline' && !knowledge?.outline) throw new InputError('recipe extend: got "outline", which extends from the object\'s outline; give the outline too (knowledge.outline, --outline)');
   Object.assign(out, validateIterativeFields(r, validateRecipe));
   return out;
 }
@@ -92,4 +99,9 @@ function validateSliceChoice(v: unknown): SliceChoice {
   if (!Number.isInteger(v.slices) || (v.slices as number) < 1 || (v.slices as number) > 4096) throw new InputError(`recipe volume.slices: got ${v.slices}, expected a whole number from 1 to 4096`);
   if (typeof v.spacing !== 'number' || !(v.spacing > 0) || v.spacing > 100) throw new InputError(`recipe volume.spacing: got ${v.spacing}, expected a slice spacing in mm (0 to 100)`);
   return { slices: v.slices as number, spacing: v.spacing };
+}
+
+/** True when the recipe brings known regions or the outline (FBP and FDK then fit their tails to them). */
+export function usesKnowledge(recipe: Recipe): boolean {
+  return recipe.knowledge !== undefined || recipe.extend === 'outline';
 }

@@ -1,7 +1,8 @@
 // Running a recipe on a cone-beam scan (runRecipe dispatches here by geometry kind): FDK, with
 // the detector extended row by row when the recipe asks for truncation correction. FDK streams
 // the projections from a source a chunk of views at a time; truncation correction plans on the
-// whole scan, so it reads the source whole first. The volume goes to the caller's sink slab by
+// whole scan, so it reads the source whole first (as known regions and the outline do, which
+// return the volume whole). The volume goes to the caller's sink slab by
 // slab when one is given (the page's storage, a file), else it is returned whole.
 import type { Workspace } from '../engine/workspace';
 import { InputError } from '../errors';
@@ -18,8 +19,9 @@ import { fovRadius } from '../geometry/view-vectors';
 import { sliceAt, type VolumeGrid } from '../volume';
 import { collectVolume, teeSinks, type VolumeInfo, type VolumeSink } from '../volume-sink';
 import { SliceCatcher } from './slice-catcher';
-import type { Recipe } from './recipe';
-import type { RecipeResult } from './run';
+import { usesKnowledge, type Recipe } from './recipe';
+import type { RecipeInputs, RecipeResult } from './run';
+import { runConeKnowledge } from './run-cone-knowledge';
 import { chooseVolumeGrid } from './volume-grid';
 
 /** Where a cone-beam run puts its volume, and what it may know about the scan beforehand. */
@@ -38,12 +40,16 @@ async function radiusOf(scan: Scan | ProjectionSource, out: ConeOutput, signal?:
 }
 
 /** Reconstructs a cone-beam scan: FDK for method fbp. The result's image is the central slice. */
-export async function runConeRecipe(ws: Workspace, input: Scan | ProjectionSource, recipe: Recipe, hooks: RunHooks = {}, out: ConeOutput = {}): Promise<RecipeResult> {
+export async function runConeRecipe(
+  ws: Workspace, input: Scan | ProjectionSource, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}, out: ConeOutput = {},
+): Promise<RecipeResult> {
   if (recipe.method !== 'fbp') {
     throw new InputError(`recipe method: got "${recipe.method}", expected fbp (FDK) for a cone-beam scan`);
   }
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
+  // Knowledge fits the tails to the whole scan and runs FDK twice: it holds the scan and returns its volume whole.
+  if (usesKnowledge(recipe) || extend === 'outline') return runConeKnowledge(ws, isScan(input) ? input : await readWholeScan(input, hooks.signal), recipe, hooks, inputs);
   // Truncation correction plans on every row of every view: the whole scan in memory.
   const scan = extend !== 'none' && !isScan(input) ? await readWholeScan(input, hooks.signal) : input;
   // The edge analysis takes the first 5% of the progress bar, FDK the rest.
@@ -61,7 +67,7 @@ export async function runConeRecipe(ws: Workspace, input: Scan | ProjectionSourc
   const collected = out.sink ? undefined : collectVolume(grid);
   // The caller's sink is made when the first slab leaves the engine (after every view was read).
   let sink: VolumeSink | undefined;
-  const r = await fdkToSink(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension }, {
+  const r = await fdkToSink(ws, scan, { grid, filter: recipe.filter, bandLimit: recipe.bandLimit, extension }, {
     write: async (k0, slab) => {
       sink ??= teeSinks(slice, out.sink ? out.sink(info) : collected!.sink);
       await sink.write(k0, slab);

@@ -10,10 +10,11 @@ import { analyseEdges, objectRadius } from '../truncation/edges';
 import { planExtension } from '../truncation/extension-plan';
 import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
-import type { Recipe } from './recipe';
+import { usesKnowledge, type Recipe } from './recipe';
 import { runConeRecipe, type ConeOutput } from './run-cone';
 import { isScan, readWholeScan, type ProjectionSource } from '../projection-source';
 import type { VolumeInfo } from '../volume-sink';
+import { runKnowledgeFbp } from './run-knowledge';
 import { isIterativeMethod } from '../iterative/options';
 import { runIterative, type RecipeInputs } from '../iterative/run';
 
@@ -37,7 +38,7 @@ export interface RecipeResult {
  * goes (FDK streams; the other methods read the scan whole and hand over their volume).
  */
 export async function runRecipe(ws: Workspace, input: Scan | ProjectionSource, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}, out: ConeOutput = {}): Promise<RecipeResult> {
-  if (input.geometry.kind === 'cone' && !isIterativeMethod(recipe.method)) return runConeRecipe(ws, input, recipe, hooks, out);
+  if (input.geometry.kind === 'cone' && !isIterativeMethod(recipe.method)) return runConeRecipe(ws, input, recipe, hooks, inputs, out);
   const scan = isScan(input) ? input : await readWholeScan(input, hooks.signal);
   if (isIterativeMethod(recipe.method)) {
     return runIterative(ws, scan, recipe, hooks, inputs, (nested, h) => runRecipe(ws, scan, nested, h, inputs));
@@ -46,12 +47,14 @@ export async function runRecipe(ws: Workspace, input: Scan | ProjectionSource, r
   const extend = recipe.extend ?? 'none';
   const g = scan.geometry;
   const is2d = g.detector.rows === 1;
+  if (is2d && usesKnowledge(recipe)) return runKnowledgeFbp(ws, scan, recipe, hooks, inputs);
+  if (usesKnowledge(recipe) || extend === 'outline') throw new InputError(`recipe knowledge: known regions and outlines work on 2D and cone-beam scans; this ${g.kind} scan has ${g.detector.rows} rows`);
   if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on single-row and cone-beam scans)`);
   const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));
   const plan = extend !== 'none' ? planExtension(scan, extend, analysis) : undefined;
   const planSeconds = (performance.now() - t0) / 1000;
-  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, cutoff: recipe.cutoff, extension: plan }, hooks);
+  const r = await fbp2d(ws, scan, { grid, filter: recipe.filter, bandLimit: recipe.bandLimit, extension: plan }, hooks);
   const warnings = [...r.warnings];
   if (plan?.summary.muAssumed) warnings.push(`the scan records no mu_water: the water cylinder fits assume ${plan.summary.muWater} /mm`);
   return {

@@ -9,7 +9,7 @@ import { checkGrid, gridOrigin, type Image2D, type ImageGrid } from '../image';
 import type { Scan } from '../scan';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
-import { prepareFilter } from './filter-response';
+import { bandEdge, prepareFilter } from './filter-response';
 import { require2d, requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 import type { RunHooks } from '../run-hooks';
@@ -19,8 +19,8 @@ import { runExtension } from '../truncation/extend-scan';
 export interface FbpParams {
   grid: ImageGrid;
   filter?: FilterWindow;
-  /** Frequency scaling of the window, (0, 1]. */
-  cutoff?: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
   /**
    * Detector extension applied before filtering (truncation/extension-plan.ts planExtension).
    * Absent: zero channels where a displaced detector needs them (zeroExtension), else none.
@@ -43,7 +43,8 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   require2d(g);
   const grid = checkGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
-  const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
+  const window = checkFilter(params.filter ?? 'ramp', params.bandLimit);
+  const band = bandEdge(g, params.bandLimit);
   const ext = params.extension ?? zeroExtension(scan);
   // With an extension, filtering and backprojection see the extended detector.
   const ge = ext ? extendDetector(g, ext.left, ext.right) : g;
@@ -53,14 +54,14 @@ export async function fbp2d(ws: Workspace, scan: Scan, params: FbpParams, hooks:
   const t1 = now();
   throwIfCancelled(hooks.signal);
   ws.reset();
-  const f = await filterStage(ws, scan, ge, ext, pre, window, params.cutoff ?? 1);
+  const f = await filterStage(ws, scan, ge, ext, pre, window, band.edge);
   const t2 = now();
   hooks.onProgress?.(0.2, 'filter');
   const data = await backprojectStage(ws, f, grid, kernelKind(g), ge, hooks);
   const t3 = now();
   return {
     image: { grid, data, quantity: 'mu', muWater: scan.muWater },
-    warnings: pre.warnings,
+    warnings: band.warning ? [...pre.warnings, band.warning] : pre.warnings,
     timings: { weights: t1 - t0, filter: t2 - t1 - f.tExtend, backproject: t3 - t2, ...(ext ? { extend: f.tExtend } : {}) },
   };
 }
@@ -78,7 +79,7 @@ interface FilteredViews {
 /** Writes the views, extends the detector (when asked), pre-weights and ramp-filters every view. */
 async function filterStage(
   ws: Workspace, scan: Scan, ge: Scan['geometry'], ext: DetectorExtension | undefined,
-  pre: ReturnType<typeof fbpPreweights>, window: FilterWindow, cutoff: number,
+  pre: ReturnType<typeof fbpPreweights>, window: FilterWindow, bandEdgeFraction: number,
 ): Promise<FilteredViews> {
   const g = scan.geometry;
   const nCh = ge.detector.channels;
@@ -96,7 +97,7 @@ async function filterStage(
   // nPad - extended channels, where both the ramp kernel and the tapered data are small
   // (cf. Ohnesorge et al. 2000: extrapolate without lengthening the convolution).
   const padFor = ext ? Math.max(ext.left, ext.right) + g.detector.channels : nCh;
-  const filter = await prepareFilter(ws, ge, padFor, window, cutoff);
+  const filter = await prepareFilter(ws, ge, padFor, window, bandEdgeFraction);
   const res = ws.allocPerWorker('fftRe', filter.nPad);
   const ims = ws.allocPerWorker('fftIm', filter.nPad);
   await ws.write(views, table);

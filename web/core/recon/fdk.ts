@@ -27,7 +27,7 @@ import { collectVolume, type VolumeInfo, type VolumeSink } from '../volume-sink'
 import { createBackprojector, isAxialTrajectory, rowBlockFloats, type FdkBackprojector } from './fdk-backprojectors';
 import { fbpPreweights } from './fbp-weights';
 import { checkFilter, type FilterWindow } from './filter-design';
-import { prepareFilter } from './filter-response';
+import { bandEdge, prepareFilter } from './filter-response';
 import { requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
 
@@ -52,8 +52,8 @@ export interface RowExtension {
 export interface FdkParams {
   grid: VolumeGrid;
   filter?: FilterWindow;
-  /** Frequency scaling of the window, (0, 1]. */
-  cutoff?: number;
+  /** Band limit of the filter window, line pairs per cm at the isocentre; absent: the full band. */
+  bandLimit?: number;
   extension?: RowExtension;
   /**
    * Engine memory for one chunk of filtered views, bytes (default 32 MiB), counted as blocks of
@@ -107,14 +107,15 @@ export async function fdkToSink(ws: Workspace, scan: Scan | ProjectionSource, pa
   const g = source.geometry;
   const grid = checkVolumeGrid(params.grid);
   requireGridInsideSourceCircle(g, grid);
-  const window = checkFilter(params.filter ?? 'ram-lak', params.cutoff ?? 1);
+  const window = checkFilter(params.filter ?? 'ramp', params.bandLimit);
+  const band = bandEdge(g, params.bandLimit);
   const gf = params.extension ? extendDetector(g, params.extension.left, params.extension.right) : g; // the detector the filter sees
   const t0 = now();
   const { weights, warnings, scanType } = fbpPreweights(g, gf.detector.channels, firstChannelU(gf)); // g: the measured detector, for redundancy weights
   const timings: FdkTimings = { weights: now() - t0, filter: 0, backproject: 0, output: 0 };
   throwIfCancelled(hooks.signal);
   ws.reset();
-  const job = await prepareJob(ws, g, gf, grid, weights, { ...params, filter: window });
+  const job = await prepareJob(ws, g, gf, grid, weights, { ...params, filter: window }, band.edge);
   await streamChunks(ws, job, source, params.extension, timings, hooks);
   const t1 = now();
   await job.bp.output(sink, hooks.signal);
@@ -122,7 +123,7 @@ export async function fdkToSink(ws: Workspace, scan: Scan | ProjectionSource, pa
   timings.output = now() - t1;
   return {
     info: { grid, quantity: 'mu', muWater: source.muWater, fovRadius: fovRadius(g), fovHalfHeight: coneFovHalfHeight(g) },
-    warnings,
+    warnings: band.warning ? [...warnings, band.warning] : warnings,
     scanType,
     backprojector: job.bp.kind,
     timings,
@@ -139,7 +140,7 @@ interface FdkLayout {
 }
 
 /** Lays out the chunk buffers, the filter and the backprojector, and writes the view tables. */
-async function prepareJob(ws: Workspace, g: Geometry, gf: Geometry, grid: VolumeGrid, weights: Float32Array, params: FdkParams & { filter: FilterWindow }): Promise<FdkLayout> {
+async function prepareJob(ws: Workspace, g: Geometry, gf: Geometry, grid: VolumeGrid, weights: Float32Array, params: FdkParams & { filter: FilterWindow }, bandEdgeFraction: number): Promise<FdkLayout> {
   const ext = params.extension;
   const table = viewVectors(g);
   const { channels: nCh, rows: nRows } = g.detector;
@@ -155,7 +156,7 @@ async function prepareJob(ws: Workspace, g: Geometry, gf: Geometry, grid: Volume
     };
   });
   // Zero padding as in fbp2d: the measured channels filtered exactly (linear convolution).
-  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, params.filter, params.cutoff ?? 1);
+  const filter = await prepareFilter(ws, gf, ext ? Math.max(ext.left, ext.right) + nCh : nCh, params.filter, bandEdgeFraction);
   const bp = withVolumeMemory(grid, () => createBackprojector({
     ws, grid, nCh: nChF, nRows, chunk, views, viewWeights, filter,
     u0: firstChannelU(gf), pitchU: g.detector.pitch[0], v0: firstRowV(g), pitchV: g.detector.pitch[1],

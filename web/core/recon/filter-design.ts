@@ -6,7 +6,11 @@
 // than the zero of a sampled |f| (no DC offset in the reconstruction).
 import { InputError } from '../errors';
 
-export const FILTER_WINDOWS = ['ram-lak', 'shepp-logan', 'cosine', 'hamming', 'hann'] as const;
+/**
+ * Windows of the ramp filter, from the sharpest (the plain ramp) to the smoothest: each passes
+ * less noise power than the one before (test/engine/filter.test.ts checks the order).
+ */
+export const FILTER_WINDOWS = ['ramp', 'shepp-logan', 'cosine', 'hamming', 'hann'] as const;
 export type FilterWindow = (typeof FILTER_WINDOWS)[number];
 
 /** Smallest power of two >= 2n - 1 (linear, not circular, convolution of an n-sample row). */
@@ -51,16 +55,16 @@ export function equiangularKernel(nPad: number, alpha: number): Float32Array {
 }
 
 /**
- * Apodization window at normalised frequency r = f / f_Nyquist in [0, 1], with frequency
- * scaling `cutoff` in (0, 1] (zero above cutoff * f_Nyquist). Forms from Kak & Slaney ch. 3 and
- * common practice: Shepp-Logan sinc(r/2), cosine cos(pi r/2), Hamming 0.54 + 0.46 cos(pi r),
- * Hann 0.5 + 0.5 cos(pi r).
+ * Apodization window at normalised frequency r = f / f_Nyquist in [0, 1], stretched so that it
+ * ends at `bandEdge` (a fraction of the Nyquist frequency in (0, 1]; zero above). Forms from
+ * Kak & Slaney ch. 3 and common practice: Shepp-Logan sinc(r/2), cosine cos(pi r/2), Hamming
+ * 0.54 + 0.46 cos(pi r), Hann 0.5 + 0.5 cos(pi r).
  */
-export function windowGain(window: FilterWindow, r: number, cutoff = 1): number {
-  const x = r / cutoff;
+export function windowGain(window: FilterWindow, r: number, bandEdge = 1): number {
+  const x = r / bandEdge;
   if (x > 1) return 0;
   switch (window) {
-    case 'ram-lak':
+    case 'ramp':
       return 1;
     case 'shepp-logan':
       return x === 0 ? 1 : Math.sin((Math.PI * x) / 2) / ((Math.PI * x) / 2);
@@ -74,20 +78,25 @@ export function windowGain(window: FilterWindow, r: number, cutoff = 1): number 
 }
 
 /** Multiplies a response (length nPad, FFT order) by the window, in place. */
-export function applyWindow(response: Float32Array, window: FilterWindow, cutoff = 1): Float32Array {
+export function applyWindow(response: Float32Array, window: FilterWindow, bandEdge = 1): Float32Array {
   const n = response.length;
   for (let k = 0; k < n; k++) {
     const r = (2 * Math.min(k, n - k)) / n;
-    response[k] *= windowGain(window, r, cutoff);
+    response[k] *= windowGain(window, r, bandEdge);
   }
   return response;
 }
 
-/** Checks a window name and cutoff from user input. */
-export function checkFilter(window: string, cutoff: number): FilterWindow {
+/** Largest band limit accepted, line pairs per cm (a 0.025 mm sampling at the isocentre). */
+export const MAX_BAND_LIMIT = 200;
+
+/** Checks a window name (and a band limit in line pairs per cm, when given) from user input. */
+export function checkFilter(window: string, bandLimit?: number): FilterWindow {
   if (!(FILTER_WINDOWS as readonly string[]).includes(window)) {
     throw new InputError(`filter: got "${window}", expected one of ${FILTER_WINDOWS.join(', ')}`);
   }
-  if (!(cutoff > 0 && cutoff <= 1)) throw new InputError(`filter cutoff: got ${cutoff}, expected a number in (0, 1]`);
+  if (bandLimit !== undefined && !(bandLimit > 0 && bandLimit <= MAX_BAND_LIMIT)) {
+    throw new InputError(`filter band limit: got ${bandLimit}, expected line pairs per cm at the isocentre, above 0 and at most ${MAX_BAND_LIMIT}`);
+  }
   return window as FilterWindow;
 }

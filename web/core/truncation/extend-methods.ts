@@ -4,6 +4,17 @@
 export const EXTEND_METHODS = ['none', 'edge', 'mirror', 'water', 'cosine'] as const;
 export type ExtendMethod = (typeof EXTEND_METHODS)[number];
 
+/**
+ * What a recipe's `extend` may name: the kernel methods above, and 'outline', which extends from
+ * the object's outline (the recipe's knowledge; completion/knowledge-extension.ts).
+ */
+export const RECIPE_EXTENDS = [...EXTEND_METHODS, 'outline'] as const;
+export type RecipeExtend = (typeof RECIPE_EXTENDS)[number];
+
+/** One line for 'outline', beside EXTEND_DESCRIPTIONS. */
+export const OUTLINE_EXTEND_DESCRIPTION =
+  'water cylinders joined to each edge, stretched per view so that every view holds the mass and first moment of the object whose part outside the measured strip is the outline filled with water (Helgason-Ludwig orders 0 and 1; completion from patient shape after Kolditz et al. 2011)';
+
 /** Kernel method codes (assembly/extend.ts EXTEND_*). */
 export const EXTEND_CODES: Record<ExtendMethod, number> = { none: 0, edge: 1, mirror: 2, water: 3, cosine: 4 };
 

@@ -5,7 +5,8 @@
 import type { Buf, Workspace } from '../engine/workspace';
 import { splitRange } from '../recon/split';
 import { EXTEND_PARAMS } from './extend-methods';
-import type { DetectorExtension } from './extension-plan';
+import type { Scan } from '../scan';
+import type { DetectorExtension, ExtensionPlan } from './extension-plan';
 
 /** An extension's tables in engine memory. */
 export interface ExtensionTables {
@@ -35,6 +36,7 @@ export async function extendRows(
   if (ext.coord.length !== nExt || ext.params.length < (firstRow + rows) * EXTEND_PARAMS || out.length < rows * nExt || measured.length < rows * nCh) {
     throw new RangeError(`detector extension: tables for ${ext.coord.length} channels and ${ext.params.length / EXTEND_PARAMS} rows do not fit rows ${firstRow} to ${firstRow + rows - 1} of ${nCh} + ${ext.left + ext.right} channels`);
   }
+  if (ext.table) return copyTableRows(ws, ext, ext.table, measured, out, rows, nCh, firstRow);
   const params = { ...tables.params, ptr: tables.params.ptr + firstRow * EXTEND_PARAMS * 4 };
   await ws.run(
     splitRange(rows, ws.parallelism).map(([a, b]) => ({
@@ -43,6 +45,21 @@ export async function extendRows(
       writes: [{ buf: out, start: a * nExt, length: (b - a) * nExt }],
     })),
   );
+}
+
+/** Rows of a table extension: the measured row between the table's left and right values. */
+async function copyTableRows(ws: Workspace, ext: DetectorExtension, table: Float32Array, measured: Buf, out: Buf, rows: number, nCh: number, firstRow: number): Promise<void> {
+  const side = ext.left + ext.right, nExt = side + nCh;
+  if (table.length < (firstRow + rows) * side) throw new RangeError(`detector extension: a table of ${table.length / Math.max(1, side)} rows does not hold rows ${firstRow} to ${firstRow + rows - 1}`);
+  const m = await ws.read(measured, 0, rows * nCh);
+  const rowsOut = new Float32Array(rows * nExt);
+  for (let i = 0; i < rows; i++) {
+    const t = (firstRow + i) * side;
+    rowsOut.set(table.subarray(t, t + ext.left), i * nExt);
+    rowsOut.set(m.subarray(i * nCh, (i + 1) * nCh), i * nExt + ext.left);
+    rowsOut.set(table.subarray(t + ext.left, t + side), i * nExt + ext.left + nCh);
+  }
+  await ws.write(out, rowsOut);
 }
 
 /**
@@ -55,4 +72,17 @@ export async function runExtension(ws: Workspace, ext: DetectorExtension, measur
     throw new RangeError(`detector extension: tables for ${ext.coord.length} channels and ${ext.params.length / EXTEND_PARAMS} views do not fit ${nViews} views of ${nCh} + ${ext.left + ext.right} channels`);
   }
   await extendRows(ws, ext, await writeExtensionTables(ws, ext), measured, out, nViews, nCh);
+}
+
+/** The scan on the plan's extended detector (resets the workspace's layout). */
+export async function extendScan(ws: Workspace, scan: Scan, plan: DetectorExtension & Pick<ExtensionPlan, 'geometry'>): Promise<Scan> {
+  const nCh = scan.geometry.detector.channels;
+  const nViews = scan.data.length / nCh;
+  const nExt = plan.geometry.detector.channels;
+  ws.reset();
+  const measured = ws.alloc('measured', scan.data.length);
+  const out = ws.alloc('extended', nViews * nExt);
+  await ws.write(measured, scan.data);
+  await runExtension(ws, plan, measured, out, nViews, nCh);
+  return { ...scan, geometry: plan.geometry, data: await ws.read(out) };
 }

@@ -27,6 +27,11 @@ export interface DetectorExtension {
   params: Float32Array;
   /** s of every extended channel, mm. */
   coord: Float32Array;
+  /**
+   * Tails given as values instead of a kernel formula: per row, the left tail's channels then the
+   * right tail's (left + right floats per row). When present, `code` and `params` are unused.
+   */
+  table?: Float32Array;
 }
 
 export interface ExtensionSummary {

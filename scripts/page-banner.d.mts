@@ -1,0 +1,2 @@
+export const CAUTION: string;
+export function startBanner(url: string, fileUrl: string): string[];
