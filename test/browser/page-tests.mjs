@@ -6,10 +6,10 @@ import { fileURLToPath } from 'node:url';
 import { check, near } from './harness.mjs';
 import dicomParser from 'dicom-parser';
 import { parseFloatNrrd, pngHeader } from './files.mjs';
+import { JOB_TIMEOUT, queueAndFinish, queueAndWait, startLongRun } from './queue-steps.mjs';
 
-/** The page's default FBP recipe on the ground-truth grid: the CLI reference runs the same. */
-const FBP_NAME = 'FBP, ramp, 576 px × 1 mm';
-const JOB_TIMEOUT = 10 * 60_000;
+/** FBP without truncation correction on the ground-truth grid: the CLI reference runs the same. */
+const FBP_NAME = 'FBP, no correction, ramp, 576 px × 1 mm';
 
 /** pydicom's CT test image, a committed fixture (test/fixtures/MANIFEST.json). */
 const CT_SMALL = fileURLToPath(new URL('../fixtures/dicom/CT_small.dcm', import.meta.url));
@@ -36,19 +36,6 @@ async function resultCount(page) {
   return page.locator('rf-result-list li').count();
 }
 
-async function queueAndWait(page, count) {
-  await page.locator('#queue-recipe').click();
-  await page.locator('rf-run-queue li').nth(count - 1).waitFor();
-}
-
-/** Queues the recipe as the form stands and waits until its job is done (`what` names it in a failure). */
-async function queueAndFinish(page, what) {
-  const before = await page.locator('rf-run-queue li').count();
-  await queueAndWait(page, before + 1);
-  const job = page.locator('rf-run-queue li').nth(before);
-  await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
-  check((await job.getAttribute('data-state')) === 'done', `${what}: ${await job.innerText()}`);
-}
 
 export async function pageTests(h, { context, mode, url, origin, artifacts, reference }) {
   const shot = (page, name) => page.screenshot({ path: join(artifacts, `${mode}-${name}.png`), fullPage: true });
@@ -101,10 +88,9 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     const sdd = page.locator('rf-geometry-form input[name="sourceDetector"]');
     await sdd.fill('500');
     await page.locator('rf-geometry-form button.primary').click();
-    const err = page.locator('#geometry-error');
-    await err.waitFor();
-    const text = await err.innerText();
-    check(/sourceDetector: got 500, expected a distance greater than sourceIsocenter \(600 mm\)/.test(text), `message: ${text}`);
+    await page.locator('#geometry-error').waitFor();
+    const text = await page.locator('rf-geometry-form #error-sourceDetector').innerText();
+    check(/Source to detector: got 500, expected a distance greater than the source to isocentre distance \(600 mm\)/.test(text), `message: ${text}`);
     await page.locator('rf-geometry-form button', { hasText: 'Undo edits' }).click();
     check((await sdd.inputValue()) === '1000', `after undo: ${await sdd.inputValue()}`);
     check(/source 600 mm \/ detector 1000 mm/.test(await page.locator('rf-scan-library li').first().innerText()), 'stored geometry unchanged');
@@ -144,10 +130,12 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     check(offered.includes('fbp'), `methods offered: ${offered}`);
     let queued = 0;
     await methodSelect.selectOption('fbp');
-    await queueAndWait(page, ++queued);
-    methods.push({ method: 'fbp', name: FBP_NAME });
+    // The form starts with the suggested correction; the CLI reference runs without one.
     const extend = page.locator('#field-extend');
     const extensions = (await extend.count()) ? await extend.locator('option').evaluateAll((os) => os.map((o) => o.value)) : [];
+    if (extensions.includes('none')) await extend.selectOption('none');
+    await queueAndWait(page, ++queued);
+    methods.push({ method: 'fbp', name: FBP_NAME });
     if (extensions.includes('water')) {
       await extend.selectOption('water');
       await queueAndWait(page, ++queued);
@@ -332,15 +320,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
   await h.step(`${mode}: (d) reloading, even mid-run, keeps the scan and every finished result`, async () => {
     const results = await resultCount(page);
     await page.locator('#tab-reconstruct').click();
-    await page.locator('#field-method').selectOption('fbp');
-    await page.locator('rf-recipe-form input[value="custom"]').check();
-    await page.locator('rf-recipe-form input[name="gridSize"]').fill('3072');
-    await page.locator('rf-recipe-form input[name="gridPixel"]').fill('0.1875');
-    await page.locator('#queue-recipe').click();
-    await page.locator('rf-run-queue li[data-state="running"]').waitFor({ timeout: 30_000 }).catch(async (err) => {
-      const jobs = await page.locator('rf-run-queue li').evaluateAll((ls) => ls.map((l) => `${l.dataset.state}: ${l.innerText.replace(/\s+/g, ' ')}`));
-      throw new Error(`no job started: ${jobs.join(' | ')} (${err.message.split('\n')[0]})`);
-    });
+    await startLongRun(page);
     await page.reload();
     await page.locator('rf-scan-library li').first().waitFor({ timeout: 60_000 });
     check((await page.locator('rf-scan-library li').count()) === 1, 'one scan after reload (the demo is not made twice)');
@@ -445,7 +425,7 @@ export async function pageTests(h, { context, mode, url, origin, artifacts, refe
     await choice.waitFor();
     await page.waitForFunction(() => {
       const v = document.querySelector('rf-app')?.shadowRoot?.querySelector('rf-volume-view');
-      return /water extension/.test(v?.shadowRoot?.querySelector('#volume-choice')?.selectedOptions?.[0]?.textContent ?? '') && !!v?.volume;
+      return /water cylinder/.test(v?.shadowRoot?.querySelector('#volume-choice')?.selectedOptions?.[0]?.textContent ?? '') && !!v?.volume;
     }, undefined, { timeout: 30_000 });
     // The volume against the reference volume, inside and outside the FOV cylinder, as the
     // command line computes it (same engine; the table shows RMSE to 0.1 HU).

@@ -2,7 +2,7 @@
 // playwright-core: once served from a loopback static server (cross-origin isolated: shared
 // engine memory) and once opened from disk (file://: separate memories). Builds the page first
 // when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
-// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--big-cone-only]
+// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--first-hour-only] [--big-cone-only]
 import { execSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -10,6 +10,7 @@ import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium } from 'playwright-core';
 import { cliReference } from './cli-reference.mjs';
+import { firstHourTests } from './first-hour-tests.mjs';
 import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
@@ -28,6 +29,8 @@ const only = argv.includes('--only') ? argv[argv.indexOf('--only') + 1] : undefi
 const priorsOnly = argv.includes('--priors-only');
 /** Only the steps of the large cone-beam path (big-cone-tests.mjs). */
 const bigConeOnly = argv.includes('--big-cone-only');
+/** Only the first-hour steps on laptop screens (first-hour-tests.mjs). */
+const firstHourOnly = argv.includes('--first-hour-only');
 
 function chromiumPath() {
   try {
@@ -52,10 +55,10 @@ async function main() {
   }
   mkdirSync(artifacts, { recursive: true });
   let reference;
-  if (!bigConeOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
+  if (!bigConeOnly && !firstHourOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
-  if (!priorsOnly && !bigConeOnly) {
+  if (!priorsOnly && !bigConeOnly && !firstHourOnly) {
     await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
       reference.cone = coneReference(root);
     });
@@ -72,7 +75,7 @@ async function main() {
     { mode: 'file', url: pathToFileURL(dist).href, origin: 'file://' },
   ].filter((m) => !only || m.mode === only);
   try {
-    for (const m of modes) {
+    for (const m of firstHourOnly ? [] : modes) {
       console.log(`\n${m.mode === 'http' ? `served from ${m.url} (cross-origin isolated)` : `opened from disk, ${m.url}`}`);
       const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
       const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1440, height: 1000 }, acceptDownloads: true });
@@ -80,6 +83,19 @@ async function main() {
         if (!priorsOnly && !bigConeOnly) await pageTests(h, { context, ...m, artifacts, reference });
         if (!priorsOnly) await bigConeTests(h, { context, ...m, root });
         if (prior) await priorTests(h, { context, ...m, artifacts, prior });
+      } finally {
+        await context.close();
+        rmSync(profile, { recursive: true, force: true });
+      }
+    }
+    // Laptop screens, once, on a fresh profile (the page opened from disk unless --only http).
+    if (!priorsOnly && !bigConeOnly) {
+      const m = modes.find((x) => x.mode === 'file') ?? modes[0];
+      const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
+      const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1280, height: 800 } });
+      try {
+        console.log(`\nfirst hour on laptop screens, ${m.mode === 'http' ? 'served' : 'opened from disk'}`);
+        await firstHourTests(h, { context, ...m, artifacts });
       } finally {
         await context.close();
         rmSync(profile, { recursive: true, force: true });

@@ -48,6 +48,10 @@ describe('rimfill CLI contract', () => {
     [['simulate', '--phantom', 'water', '--geometry', 'geom.json', '--channels', '500', '--out', 'x.nrrd'], /channels: got 500/],
     [['compare', 'scan.nrrd', '--reference', 'truth.nrrd'], /image rimfill.quantity: got "line-integral", expected mu or hu/],
     [['frobnicate'], /unknown command "frobnicate"/],
+    // The command's name once, not "rimfill compare: compare: ...".
+    [['compare'], /^rimfill compare: give the image file/],
+    [['inspect'], /^rimfill inspect: give the scan file/],
+    [['reconstruct', 'scan.nrrd', '--method', 'fbp', '--out', 'x.nrrd', '--size', '1e999', '--pixel', '1'], /--size: got "1e999", which is not a finite number/],
   ])('bad input %j: exit 2, one line on stderr, nothing written', (args, msg) => {
     const before = readdirSync(dir).sort();
     const r = rimfill(args as string[], dir);

@@ -34,7 +34,7 @@ describe('rimfill export --dicom', () => {
     expect(JSON.parse(r.stdout).written).toHaveLength(1);
     const files = series('fbp-dicom');
     const d = dicomParser.parseDicom(files[0].bytes);
-    expect(d.string('x0008103e')).toBe('FBP, ramp, 48 px x 4 mm');
+    expect(d.string('x0008103e')).toBe('FBP, no correction, ramp, 48 px x 4 mm');
     const back = readDicomSeries(files).volume;
     const src = (await readImageFile([{ name: 'fbp.nrrd', bytes: new Uint8Array(readFileSync(f('fbp.nrrd'))) }])).volume;
     expect([back.nx, back.ny, back.nz]).toEqual([48, 48, 1]);

@@ -76,7 +76,7 @@ describe('rimfill with real-data formats', () => {
       expect(await main(['export', f('hu.nrrd'), '--to', f('never.png')])).toBe(2);
       expect(String(err.mock.calls.at(-1)?.[0])).toMatch(/PNG output needs a window/);
       expect(await main(['inspect', f('frames'), '--geometry', f('geom.json')])).toBe(2);
-      expect(String(err.mock.calls.at(-1)?.[0])).toMatch(/intensity data need a flat frame \(--flat\) or the unattenuated level \(--i0\)/);
+      expect(String(err.mock.calls.at(-1)?.[0])).toMatch(/intensity data need a flat frame or the unattenuated level \(i0\); give --flat F or --i0 N/);
       expect(existsSync(f('never.png'))).toBe(false);
     } finally {
       err.mockRestore();

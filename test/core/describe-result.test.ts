@@ -7,7 +7,7 @@ import { validateRecipe } from '../../web/core/recipe/recipe';
 describe('result words', () => {
   it('a recipe without knowledge: its label', () => {
     const r = validateRecipe({ method: 'fbp', filter: 'hann', extend: 'water', grid: { size: 256, pixel: 2 } }) as unknown as Record<string, unknown>;
-    expect(describeResult(r)).toEqual({ label: 'FBP, hann, water extension, 256 px × 2 mm', detail: 'FBP, hann, water extension, 256 px × 2 mm' });
+    expect(describeResult(r)).toEqual({ label: 'FBP, water cylinder, hann, 256 px × 2 mm', detail: 'FBP, water cylinder, hann, 256 px × 2 mm' });
   });
 
   it('known regions and the outline: named in the label, spelt out in the detail', () => {
@@ -15,7 +15,7 @@ describe('result words', () => {
       method: 'fbp', knowledge: { known: [{ shape: 'circle', x: 10, y: -20, r: 8, hu: -1000 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 170, b: 120 } },
     }) as unknown as Record<string, unknown>;
     const w = describeResult(r);
-    expect(w.label).toMatch(/^FBP, ramp, .*1 known region \+ outline$/);
+    expect(w.label).toMatch(/^FBP, no correction, 1 known region \+ outline, ramp, /);
     expect(w.detail).toBe(`${w.label}; knowledge: known region 1 (circle at 10, -20 mm, r 8 mm, -1000 HU); outline (ellipse at 0, 0 mm, semi-axes 170 x 120 mm)`);
   });
 });

@@ -19,7 +19,7 @@ const edit = (path: string[], value: unknown) => {
 describe('geometry validation: messages name the field, the value and what was expected', () => {
   it.each([
     [['kind'], 'helical', /geometry\.kind: got "helical", expected "parallel", "fan" or "cone"/],
-    [['sourceDetector'], 400, /geometry\.sourceDetector: got 400, expected a distance greater than sourceIsocenter \(500 mm\)/],
+    [['sourceDetector'], 400, /geometry\.sourceDetector: got 400, expected a distance greater than the source to isocentre distance \(500 mm\)/],
     [['sourceIsocenter'], -5, /geometry\.sourceIsocenter: got -5, expected a positive number \(mm\)/],
     [['detector', 'channels'], 0, /geometry\.detector\.channels: got 0, expected a whole number/],
     [['detector', 'channels'], 10.5, /detector\.channels: got 10\.5/],
@@ -29,6 +29,10 @@ describe('geometry validation: messages name the field, the value and what was e
     [['anglesDeg', 'step'], 0, /anglesDeg\.step: got 0, expected a non-zero step/],
     [['anglesDeg'], [0, 1, 'x'], /anglesDeg\[2\]: got "x", expected a finite number/],
     [['anglesDeg'], undefined, /anglesDeg: got nothing, expected view angles/],
+    // 1e999 in a JSON file reads as Infinity; JSON would print it as null.
+    [['sourceIsocenter'], JSON.parse('1e999'), /geometry\.sourceIsocenter: got Infinity \(not a finite number\), expected a positive number/],
+    [['detector', 'pitch'], JSON.parse('[1e999, 1]'), /detector\.pitch\[0\]: got Infinity \(not a finite number\)/],
+    [['detector', 'pitch'], JSON.parse('[1, 2, -1e999]'), /detector\.pitch: got \[1,2,-Infinity \(not a finite number\)\], expected a pair/],
   ])('%j = %j is refused', (path, value, msg) => {
     expect(() => validateGeometry(edit(path as string[], value))).toThrow(InputError);
     expect(() => validateGeometry(edit(path as string[], value))).toThrow(msg);

@@ -2,7 +2,8 @@
 // offers is a choice, every default field is described, and the summary reads the recipe.
 import { describe, expect, it } from 'vitest';
 import { FILTER_WINDOWS } from '../../web/core/recon/filter-design';
-import { describeRecipeFields, recipeSummary, RECIPE_FIELDS, type ChoiceField } from '../../web/core/recipe/fields';
+import { describeRecipeFields, RECIPE_FIELDS, type ChoiceField } from '../../web/core/recipe/fields';
+import { methodAndCorrection, recipeLabel } from '../../web/core/recipe/label';
 import { DEFAULT_RECIPE, METHODS, validateRecipe } from '../../web/core/recipe/recipe';
 
 describe('recipe fields', () => {
@@ -25,11 +26,19 @@ describe('recipe fields', () => {
     }
   });
 
-  it('summarize a recipe in one line', () => {
-    expect(recipeSummary({ method: 'fbp', filter: 'hann', bandLimit: 4 })).toBe('FBP, hann, band limit 4 lp/cm, automatic grid');
-    expect(recipeSummary({ method: 'fbp', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, ramp, 576 px × 1 mm');
-    expect(recipeSummary({ method: 'fbp', filter: 'ramp', volume: { slices: 20, spacing: 6 } })).toBe('FBP, ramp, automatic grid, 20 slices × 6 mm');
-    expect(recipeSummary({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('PRIOR, automatic grid, prior: “earlier scan”');
+  it('label a result in one line: the method, its truncation correction in words, then the other choices', () => {
+    expect(recipeLabel({ method: 'fbp', filter: 'hann', bandLimit: 4 })).toBe('FBP, no correction, hann, band limit 4 lp/cm, automatic grid');
+    expect(recipeLabel({ method: 'fbp', extend: 'none', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, no correction, ramp, 576 px × 1 mm');
+    expect(recipeLabel({ method: 'fbp', extend: 'water', filter: 'ramp', grid: { size: 576, pixel: 1 } })).toBe('FBP, water cylinder, ramp, 576 px × 1 mm');
+    expect(recipeLabel({ method: 'fbp', filter: 'ramp', volume: { slices: 20, spacing: 6 } })).toBe('FBP, no correction, ramp, automatic grid, 20 slices × 6 mm');
+    expect(recipeLabel({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('Prior-guided, prior: “earlier scan”, automatic grid');
+    expect(recipeLabel({ method: 'sart', iterations: 5 })).toBe('SART, measured rays only, automatic grid, iterations 5');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'cosine' })).toBe('FBP, cosine taper');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');
+    expect(methodAndCorrection({ method: 'prior' })).toBe('Prior-guided, prior: FBP with water cylinder extension');
+    expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
+      .toBe('SART, measured rays only, 1 known region + outline');
   });
 });
 

@@ -114,7 +114,7 @@ describe('scan lies', () => {
   it('intensity data without a flat frame or i0', async () => {
     const g = { kind: 'parallel', detector: { channels: 4, pitch: 1 }, anglesDeg: { start: 0, step: 1, count: 5 } };
     const files = [{ name: 's.json', bytes: enc(JSON.stringify({ ...g, dtype: 'float32', sizes: [4, 5], quantity: 'intensity' })) }, { name: 's.raw', bytes: new Uint8Array(80) }];
-    await expect(readScanFile(files)).rejects.toThrow(/need a flat frame \(--flat\) or the unattenuated level \(--i0\)/);
+    await expect(readScanFile(files)).rejects.toThrow(/need a flat frame or the unattenuated level \(i0\); give --flat F or --i0 N/);
   });
   it('NaN line integrals are reported, not hidden', async () => {
     const g = { kind: 'parallel', detector: { channels: 2, pitch: 1 }, anglesDeg: { start: 0, step: 1, count: 1 } };

@@ -37,6 +37,10 @@ describe('prior-guided data-consistent reconstruction', () => {
     const rand = seededRandom(9);
     const gauss = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
     const r = await runPrior(basePrior.map((v) => v + sigma * gauss()));
+    // The noise makes air pixels of this prior the user gave negative: worth a warning that says
+    // what it means (the base prior has none).
+    expect(r.warnings.join(' ')).toMatch(/prior: \d+ pixels have negative attenuation \(lowest -[\d.e-]+ \/mm\), which no material has/);
+    expect(base.warnings.join(' ')).not.toMatch(/negative attenuation/);
     // Compared where the object is flat (no edge within 2 pixels): at edges TV moves a little
     // differently with and without the noise, which is not noise kept from the prior.
     const flat = flatPixels(truth, N, 2, 0.001);

@@ -4,7 +4,8 @@ import { describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import { ITERATIVE_DEFAULTS, resolveOptions } from '../../web/core/iterative/options';
 import { METHODS, validateRecipe } from '../../web/core/recipe/recipe';
-import { describeRecipeFields, recipeSummary, type ChoiceField } from '../../web/core/recipe/fields';
+import { describeRecipeFields, type ChoiceField } from '../../web/core/recipe/fields';
+import { recipeLabel } from '../../web/core/recipe/label';
 import { runRecipe } from '../../web/core/recipe/run';
 import { squareGrid } from '../../web/core/image';
 import { localWorkspace } from '../helpers/engine';
@@ -102,6 +103,6 @@ describe('prior sources a form can hold', () => {
   it('the form offers them and the summary names the prior', () => {
     const field = describeRecipeFields().find((f) => f.key === 'prior') as ChoiceField;
     for (const c of field.choices) expect(() => validateRecipe({ method: 'prior', prior: c.value })).not.toThrow();
-    expect(recipeSummary({ method: 'prior', prior: 'fbp:water', iterations: 20 })).toBe('PRIOR, automatic grid, iterations 20, prior: FBP with water cylinder extension');
+    expect(recipeLabel({ method: 'prior', prior: 'fbp:water', iterations: 20 })).toBe('Prior-guided, prior: FBP with water cylinder extension, automatic grid, iterations 20');
   });
 });

@@ -56,7 +56,7 @@ describe('scans', () => {
     const store = freshStore();
     const meta = await saveScan(scanInput(), store);
     const bad = { ...geometry, sourceDetector: 400 };
-    await expect(setScanGeometry(meta.id, bad, store)).rejects.toThrow(/sourceDetector: got 400, expected a distance greater than sourceIsocenter/);
+    await expect(setScanGeometry(meta.id, bad, store)).rejects.toThrow(/sourceDetector: got 400, expected a distance greater than the source to isocentre distance/);
     const wrongSize = { ...geometry, detector: { ...geometry.detector, channels: 5 } };
     await expect(setScanGeometry(meta.id, wrongSize, store)).rejects.toThrow(/the data has 4 channels/);
     expect((await getScanMeta(meta.id, store)).geometry).toEqual(geometry);

@@ -56,6 +56,8 @@ describe('report', () => {
     expect(html).toContain('<td>12.3</td><td>30.0</td><td>0.988</td>');
     expect(html).toContain('<td>5.5</td><td>35.0</td><td>0.990</td><td>–</td>');
     expect(html).toContain('{&quot;method&quot;:&quot;fbp&quot;}');
+    // Each recipe's truncation correction in words, whatever the result was named.
+    expect(html).toContain('<th scope="row">FBP &quot;sharp&quot;</th><td class="left">no correction</td>');
     expect(html).toContain('w&lt;1&gt;');
     expect(html).toContain('2026-01-02 03:04');
     expect(html).toContain('Agreement with the measured data');

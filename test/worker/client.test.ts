@@ -45,6 +45,21 @@ const flush = () => new Promise((r) => setTimeout(r, 0));
 afterEach(() => vi.useRealTimers());
 
 describe('engine client', () => {
+  it('every queue request goes out under its call id (a job id never takes its place) and gets its reply', async () => {
+    const { client, started } = setup();
+    const calls = [
+      client.queueJob({ id: 'job-1', session: 's', scanId: 'scan', scanName: 'n', name: 'FBP, water cylinder', recipe: { method: 'fbp' } }),
+      client.settleJob('job-1', 'cancelled'),
+      client.requeueJob('job-1', 's'),
+      client.forgetJobs(['job-1']),
+    ];
+    const c = started[0].coordinator;
+    expect(c.sent.map((m) => typeof m.id)).toEqual(['number', 'number', 'number', 'number']);
+    expect(new Set(c.sent.map((m) => m.id)).size).toBe(4);
+    for (const m of c.sent) c.reply({ id: m.id as number, type: 'done', value: m.op });
+    await expect(Promise.all(calls)).resolves.toEqual(['queue-add', 'queue-settle', 'queue-requeue', 'queue-forget']);
+  });
+
   it('sends a request, reports progress and resolves with the reply', async () => {
     const { client, started } = setup();
     const progress: number[] = [];

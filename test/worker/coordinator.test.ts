@@ -86,7 +86,7 @@ describe('runs', () => {
     const s = await saveScan({ name: 'phantom', scan, source: { type: 'file', fileNames: [] }, reference: { grid: squareGrid(64, 1.25), data: truth, muWater: 0.02 } }, store);
     const stages: string[] = [];
     const r = await c.run(s.id, { method: 'fbp', filter: 'hann', grid: { size: 64, pixel: 1.25 } }, undefined, { onProgress: (_f, st) => stages.push(st) });
-    expect(r.name).toBe('FBP, hann, 64 px × 1.25 mm');
+    expect(r.name).toBe('FBP, no correction, hann, 64 px × 1.25 mm');
     expect(stages).toContain('backproject');
     const whole = r.metrics!.regions.image!;
     // The reconstruction is much closer to the truth than an empty image is (a broken run,

@@ -40,7 +40,9 @@ describe('the analysed row of a cone-beam scan', () => {
     expect(page.row).toBe(7);
     expect(inspected.analysedRow).toBe(7);
     // The same report (JSON, as the CLI prints it), and the page holds that one row only.
-    expect(JSON.parse(JSON.stringify(page.report))).toEqual(JSON.parse(JSON.stringify({ ...inspected, geometry: undefined, fovRadiusMm: undefined, analysedRow: undefined })));
+    expect(JSON.parse(JSON.stringify(page.report))).toEqual(JSON.parse(JSON.stringify({ ...inspected, geometry: undefined, fovRadiusMm: undefined, analysedRow: undefined, recommendation: undefined })));
+    // The same suggested correction: the page's recipe starts with what inspect prints.
+    expect(page.advice).toEqual(inspected.recommendation);
     expect(page.sinogram).toEqual(rowScan(scan, 7).data);
     expect(page.sinogram.length).toBe(36 * 48);
     // The cylinder (radius 60 mm) is wider than the detector (about 53 mm at the isocentre):

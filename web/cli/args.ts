@@ -34,6 +34,7 @@ export function parseArgs(argv: string[], spec: Record<string, OptionType>, maxP
     else if (type === 'strings') options[name] = [...((options[name] as string[] | undefined) ?? []), raw];
     else {
       const v = Number(raw);
+      if (raw.trim() !== '' && !Number.isNaN(v) && !Number.isFinite(v)) throw new InputError(`option --${name}: got "${raw}", which is not a finite number`);
       if (!Number.isFinite(v) || raw.trim() === '') throw new InputError(`option --${name}: got "${raw}", expected a number`);
       if (type === 'int' && !Number.isInteger(v)) throw new InputError(`option --${name}: got "${raw}", expected a whole number`);
       options[name] = v;

@@ -1,6 +1,7 @@
 // File access for the CLI: reads with clear errors, writes all-or-nothing (temporary file, then
 // rename), so a failed command leaves no half-written output.
-import { closeSync, openSync, readFileSync, renameSync, writeFileSync, writeSync, unlinkSync, statSync } from 'node:fs';
+import { accessSync, closeSync, constants, existsSync, fstatSync, openSync, type Stats, readFileSync, renameSync, writeFileSync, writeSync, unlinkSync, statSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 import { InputError } from '../core/errors';
 
 /** Largest input file the CLI reads (bytes). */
@@ -30,14 +31,70 @@ export function readJson(path: string, what: string): unknown {
   }
 }
 
+/** An output a command will write: the option that names it and its path (undefined: not asked for). */
+export type OutputPath = [option: string, path: string | undefined];
+
+/**
+ * Checks, before any work is done, that every output can be written: its folder exists and is
+ * writable, the path is not a folder, and no two outputs share a path. A typo in an output path
+ * then costs a second, not a whole reconstruction. Returns the outputs that exist already (they
+ * will be replaced).
+ */
+export function checkOutputs(outputs: OutputPath[]): string[] {
+  const seen = new Map<string, string>();
+  const existing: string[] = [];
+  for (const [option, path] of outputs) {
+    if (path === undefined) continue;
+    const where = `option --${option}`;
+    if (path.trim() === '') throw new InputError(`${where}: got an empty path, expected a file name`);
+    const full = resolve(path);
+    const other = seen.get(full);
+    if (other) throw new InputError(`options --${other} and --${option} both name ${path}; give each output its own file`);
+    seen.set(full, option);
+    const folder = dirname(full);
+    let st: Stats;
+    try {
+      st = statSync(folder);
+    } catch {
+      throw new InputError(`${where}: the folder ${dirname(path)} does not exist; create it first or choose another`);
+    }
+    if (!st.isDirectory()) throw new InputError(`${where}: ${dirname(path)} is not a folder`);
+    try {
+      accessSync(folder, constants.W_OK);
+    } catch {
+      throw new InputError(`${where}: the folder ${dirname(path)} cannot be written to (permission denied)`);
+    }
+    if (existsSync(full)) {
+      if (statSync(full).isDirectory()) throw new InputError(`${where}: ${path} is a folder; give a file name inside it`);
+      existing.push(path);
+    }
+  }
+  return existing;
+}
+
+/** A file written by PendingWrites.commit. */
+export interface WrittenFile {
+  path: string;
+  bytes: number;
+  /** An existing file of that name was replaced. */
+  replaced: boolean;
+}
+
 /** Files to write once everything has succeeded. */
 export class PendingWrites {
   private readonly files: Array<[string, Uint8Array | string]> = [];
   add(path: string, data: Uint8Array | string): void {
     this.files.push([path, data]);
   }
+  /** Bytes waiting to be written. */
+  get bytes(): number {
+    return this.files.reduce((n, [, d]) => n + (typeof d === 'string' ? Buffer.byteLength(d) : d.byteLength), 0);
+  }
   /** Writes every file through a temporary name, then renames them all. */
-  commit(): void {
+  commit(): WrittenFile[] {
+    const written = this.files.map(([path, data]) => ({
+      path, bytes: typeof data === 'string' ? Buffer.byteLength(data) : data.byteLength, replaced: existsSync(path),
+    }));
     const temps: Array<[string, string]> = [];
     try {
       for (const [path, data] of this.files) {
@@ -50,7 +107,13 @@ export class PendingWrites {
       throw new InputError(`cannot write output: ${(err as Error).message}`);
     }
     for (const [tmp, path] of temps) renameSync(tmp, path);
+    return written;
   }
+}
+
+/** Warnings naming the files that replaced existing ones. */
+export function replacedWarnings(written: WrittenFile[]): string[] {
+  return written.filter((w) => w.replaced).map((w) => `replaced the existing file ${w.path}`);
 }
 
 /**
@@ -77,11 +140,14 @@ export class StreamedFile {
   }
 
   /** Closes the file and gives it its name. */
-  commit(): void {
-    if (this.fd === undefined) return;
+  commit(): WrittenFile[] {
+    if (this.fd === undefined) throw new Error(`${this.path}: committed twice`);
+    const bytes = fstatSync(this.fd).size;
     closeSync(this.fd);
     this.fd = undefined;
+    const replaced = existsSync(this.path);
     renameSync(this.tmp, this.path);
+    return [{ path: this.path, bytes, replaced }];
   }
 
   /** Closes and deletes the temporary file. */

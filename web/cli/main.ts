@@ -33,6 +33,11 @@ ${Object.values(COMMANDS).map((c) => c.help).join('\n\n')}
 
 Exit codes: 0 ok, 2 bad input, 1 internal error.`;
 
+/** A message without the command's own name in front (the line already starts with it). */
+export function withoutPrefix(message: string, command: string): string {
+  return message.startsWith(`${command}: `) ? message.slice(command.length + 2) : message;
+}
+
 /** Runs the CLI; returns the exit code. */
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
@@ -56,7 +61,7 @@ export async function main(argv: string[]): Promise<number> {
     return 0;
   } catch (err) {
     if (err instanceof InputError) {
-      process.stderr.write(`rimfill ${name}: ${err.message}\n`);
+      process.stderr.write(`rimfill ${name}: ${withoutPrefix(err.message, name)}\n`);
       return 2;
     }
     process.stderr.write(`rimfill ${name}: internal error: ${err instanceof Error ? err.stack ?? err.message : String(err)}\n`);

@@ -1,5 +1,6 @@
 // Storage limits: a full quota is reported with what could be deleted; the page asks for
 // persistent storage and shows use against the browser's estimate.
+import { formatSize } from '../core/sizes';
 import { getMany, type UseStore } from 'idb-keyval';
 import type { ModelMeta, ResultMeta, ScanMeta } from './records';
 
@@ -17,17 +18,7 @@ export function isQuotaError(err: unknown): boolean {
 }
 
 /** Human-readable size: 1.5 MB, 320 kB (powers of 1000, as browsers report quota). */
-export function formatBytes(n: number): string {
-  if (!Number.isFinite(n)) return 'unknown';
-  if (n < 1000) return `${n} B`;
-  const units = ['kB', 'MB', 'GB', 'TB'];
-  let v = n / 1000, u = 0;
-  while (v >= 1000 && u < units.length - 1) {
-    v /= 1000;
-    u++;
-  }
-  return `${v < 10 ? v.toFixed(1) : Math.round(v)} ${units[u]}`;
-}
+export const formatBytes = formatSize;
 
 /** Turns a quota error into a StorageFullError naming the largest stored items; other errors pass through. */
 export async function toStorageError(err: unknown, store: UseStore): Promise<unknown> {

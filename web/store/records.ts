@@ -196,7 +196,37 @@ export interface ModelData {
   description: string;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData | ProjectionChunk | ScanPreview;
+/** Where a queued reconstruction stands. */
+export type JobState = 'waiting' | 'running' | 'done' | 'failed' | 'cancelled';
+
+/**
+ * A reconstruction in the page's queue, kept so that a reload or a closed tab loses none: one
+ * that was waiting or running when its page went away shows as interrupted, with its recipe.
+ */
+export interface JobRecord {
+  schema: Schema;
+  kind: 'job';
+  id: string;
+  /** The page (tab and load) that queued it; while that page lives, its unfinished jobs are its own. */
+  session: string;
+  scanId: string;
+  /** The scan's name when it was queued (the scan may be deleted since). */
+  scanName: string;
+  /** The result's label (core/recipe/label.ts). */
+  name: string;
+  /** The recipe to run (validated when it runs). */
+  recipe: Record<string, unknown>;
+  state: JobState;
+  /** Milliseconds since 1970. */
+  createdAt: number;
+  updatedAt: number;
+  /** Done: the stored result and the run's seconds; failed: why. */
+  resultId?: string;
+  seconds?: number;
+  error?: string;
+}
+
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData | ProjectionChunk | ScanPreview | JobRecord;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,
@@ -209,6 +239,7 @@ export const keys = {
   settings: 'settings',
   model: (id: string) => `model/${id}`,
   modelData: (id: string) => `model-data/${id}`,
+  job: (id: string) => `job/${id}`,
 };
 
 /** Thrown when a stored record cannot be read by this build. */

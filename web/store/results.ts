@@ -5,7 +5,7 @@ import type { Volume } from '../core/volume';
 import { keysWithPrefix, pageStore } from './db';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
 import { checkName, newId } from './scans';
-import { patchRecord, putResultEntries, transact } from './transact';
+import { patchRecord, putResultEntries, transact, type Tx } from './transact';
 import { loadVolume, slabPrefix, volumeEntries, type StoredVolumeInfo } from './volumes';
 
 /** A volume whose slabs were already written (SlabWriter) under result id `id`. */
@@ -18,11 +18,14 @@ export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' 
 
 /**
  * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction,
- * provided its scan is still stored; returns its description.
+ * provided its scan is still stored, with what `along` writes in the same transaction (e.g. its
+ * queue job marked done); returns its description.
  */
-export async function saveResult(input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume): Promise<ResultMeta> {
+export async function saveResult(
+  input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume, along?: (meta: ResultMeta, tx: Tx) => Promise<void>,
+): Promise<ResultMeta> {
   const { meta, entries } = resultRecords(input, image, {}, volume);
-  await putResultEntries(input.scanId, entries, store);
+  await putResultEntries(input.scanId, entries, store, along && ((tx) => along(meta, tx)));
   return meta;
 }
 

@@ -58,11 +58,13 @@ export async function patchRecord<R extends StoredRecord>(tx: Tx, key: string, k
 
 /**
  * Writes a new result's records (resultRecords) in one transaction with a check that its scan is
- * still stored: a run that ends after its scan was deleted stores nothing.
+ * still stored: a run that ends after its scan was deleted stores nothing. `along` writes what
+ * belongs with the result in the same transaction (its queue job marked done).
  */
-export async function putResultEntries(scanId: string, entries: Array<[string, unknown]>, store: UseStore): Promise<void> {
+export async function putResultEntries(scanId: string, entries: Array<[string, unknown]>, store: UseStore, along?: (tx: Tx) => Promise<void>): Promise<void> {
   await transact(store, async (tx) => {
     if ((await tx.get(`scan/${scanId}`)) === undefined) throw new RecordError(`the scan was deleted while its result was being made; nothing was stored`);
     for (const [k, v] of entries) tx.put(k, v);
+    await along?.(tx);
   });
 }

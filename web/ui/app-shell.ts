@@ -1,8 +1,9 @@
 import { html, LitElement, css, nothing } from 'lit';
-import { CancelledError, InputError } from '../core/errors';
+import { InputError } from '../core/errors';
 import type { Comparison } from '../core/compare';
 import type { Image2D, ImageGrid } from '../core/image';
 import type { TruncationReport } from '../core/truncation/detect';
+import type { CorrectionAdvice } from '../core/truncation/recommend';
 import { requestPersistence, StorageFullError, storageUse, type StorageUse } from '../store/quota';
 import type { ResultMeta, ScanMeta } from '../store/records';
 import { listResults, loadResultImage } from '../store/results';
@@ -12,11 +13,12 @@ import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
 import type { Reduction } from '../core/reduction';
 import { scanSummary } from './logic/describe';
-import { remainingMs } from './logic/time-left';
-import { MAX_COMPARED, type ImageImportState } from './result-list';
+import { defaultGridText } from './logic/scan-defaults';
+import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
+import type { ImageImportState } from './result-list';
 import { TRUTH, type DicomExportState } from './results-view';
 import { fileName, saveFile } from './export/download';
-import type { QueueJob } from './run-queue';
+import { QueueKeeper } from './queue-keeper';
 import { theme } from './theme';
 import './caution-banner';
 import './prior-workbench';
@@ -35,6 +37,10 @@ interface LoadedScan {
   /** The analysed detector row (the one nearest the orbit plane for cone beams), [view][channel]. */
   projections: Float32Array;
   report: TruncationReport;
+  /** The correction the report suggests (the recipe form starts with it). */
+  advice: CorrectionAdvice;
+  /** The grid a recipe without one gets, in words. */
+  gridText: string;
   truth?: Image2D;
   referenceGrid?: ImageGrid;
 }
@@ -49,7 +55,7 @@ export class AppShell extends LitElement {
   static properties = {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
-    compareIds: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true }, jobs: { state: true },
+    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
     importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
@@ -61,10 +67,11 @@ export class AppShell extends LitElement {
   declare loaded: LoadedScan | undefined;
   declare tab: Tab;
   declare compareIds: string[];
+  /** A result waiting for a place in the full comparison ('' when none): the user chooses which image leaves. */
+  declare waitingId: string;
   declare images: Map<string, Image2D>;
   declare referenceId: string;
   declare comparisons: Map<string, Comparison | string>;
-  declare jobs: QueueJob[];
   declare importing: boolean;
   /** How far the running import got, and the reduction the next import applies. */
   declare importFraction: number;
@@ -87,8 +94,12 @@ export class AppShell extends LitElement {
   declare alert: string;
   declare geometryError: string;
   declare ready: boolean;
-  private nextJobKey = 1;
-  private controllers = new Map<number, AbortController>();
+  /** The reconstruction queue (stored, so a reload loses no job). */
+  private readonly queue = new QueueKeeper(this, () => this.client, {
+    done: (result) => this.act('The finished run could not be shown', () => this.jobDone(result)),
+    ended: () => this.act('Storage use could not be read', () => this.storageUseRefresh()),
+    problem: (text) => { this.alert = text; },
+  }, () => this.budgetBytes());
 
   static styles = [theme, css`
     :host { min-height: 100vh; background: var(--bg); display: flex; flex-direction: column; }
@@ -97,7 +108,10 @@ export class AppShell extends LitElement {
     .tagline { color: #a9b6c4; font-size: 13px; }
     .engine { margin-left: auto; font-size: 12px; color: #a9b6c4; }
     .body { display: grid; grid-template-columns: 300px minmax(0, 1fr); gap: 16px; padding: 16px 18px; align-items: start; flex: 1; }
+    @media (max-width: 1440px) { .body { grid-template-columns: 260px minmax(0, 1fr); } }
     @media (max-width: 900px) { .body { grid-template-columns: 1fr; } }
+    /* A grid item is as wide as its content unless told otherwise: keep wide tables inside the screen. */
+    main { min-width: 0; }
     nav { display: flex; gap: 2px; border-bottom: 1px solid var(--border); margin-bottom: 14px; }
     nav button { border: none; border-bottom: 2px solid transparent; border-radius: 0; background: none; padding: 8px 14px; font-size: 14px; color: var(--muted); }
     nav button[aria-selected='true'] { color: var(--accent); border-bottom-color: var(--accent); font-weight: 600; }
@@ -118,10 +132,10 @@ export class AppShell extends LitElement {
     this.loaded = undefined;
     this.tab = 'scan';
     this.compareIds = [];
+    this.waitingId = '';
     this.images = new Map();
     this.referenceId = '';
     this.comparisons = new Map();
-    this.jobs = [];
     this.importing = false;
     this.importFraction = 0;
     this.importReduce = {};
@@ -144,6 +158,7 @@ export class AppShell extends LitElement {
   async firstUpdated() {
     try {
       await this.refreshLibrary();
+      await this.queue.load();
       const settings = await loadSettings();
       if (!this.scans.length && !settings.demoCreated) await this.createDemo();
       if (!this.selectedScanId && this.scans.length) await this.selectScan(this.scans[0].id);
@@ -193,12 +208,13 @@ export class AppShell extends LitElement {
     this.geometryError = '';
     const mine = this.results.filter((r) => r.scanId === id);
     this.compareIds = mine.length ? [mine[mine.length - 1].id] : [];
+    this.waitingId = '';
     this.comparisons = new Map();
     // The coordinator reads the projections and analyses them (the same row and report as
     // `rimfill inspect`); only the analysed row and the reference image come to the page.
-    const { sinogram, report, reference } = await this.client.scanOverview(id);
+    const { scan, sinogram, report, advice, reference } = await this.client.scanOverview(id);
     if (this.selectedScanId !== id) return;
-    this.loaded = { id, projections: sinogram, report, truth: reference, referenceGrid: reference?.grid };
+    this.loaded = { id, projections: sinogram, report, advice, gridText: defaultGridText(scan.geometry, report.summary.objectRadiusMm), truth: reference, referenceGrid: reference?.grid };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);
   }
@@ -298,7 +314,7 @@ export class AppShell extends LitElement {
   }
 
   private async deleteScan(id: string) {
-    for (const j of this.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.cancelJob(j.key);
+    for (const j of this.queue.jobs) if (j.scanId === id && (j.state === 'waiting' || j.state === 'running')) this.queue.cancel(j.key);
     await this.storeAction(() => this.client.deleteScan(id));
     if (this.selectedScanId === id) {
       this.loaded = undefined;
@@ -318,69 +334,45 @@ export class AppShell extends LitElement {
     }
   }
 
-  // The queue: one run at a time, in order.
-
-  private queueRecipe(recipe: Record<string, unknown>, name: string) {
-    const scan = this.scans.find((s) => s.id === this.selectedScanId);
-    if (!scan) return;
-    this.jobs = [...this.jobs, { key: this.nextJobKey++, scanId: scan.id, scanName: scan.name, name, recipe, state: 'waiting', fraction: 0, stage: '' }];
-    this.pump();
-  }
-
-  private patchJob(key: number, change: Partial<QueueJob>) {
-    this.jobs = this.jobs.map((j) => (j.key === key ? { ...j, ...change } : j));
-  }
-
-  private pump() {
-    if (this.jobs.some((j) => j.state === 'running')) return;
-    const next = this.jobs.find((j) => j.state === 'waiting');
-    if (!next) return;
-    const controller = new AbortController();
-    this.controllers.set(next.key, controller);
-    this.patchJob(next.key, { state: 'running' });
-    const gb = Number(this.memoryBudgetGb);
-    this.client.run(next.scanId, next.recipe, {
-      name: next.name,
-      ...(this.memoryBudgetGb.trim() !== '' && gb > 0 ? { budget: gb * 1e9 } : {}),
-      signal: controller.signal,
-      onProgress: (p) => this.patchJob(next.key, { fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
-    }).then(
-      (result) => this.jobDone(next.key, result).catch((err) => (this.alert = `The finished run could not be shown: ${message(err)}`)),
-      (err) => this.patchJob(next.key, err instanceof CancelledError ? { state: 'cancelled' } : { state: 'failed', error: message(err) }),
-    ).finally(() => {
-      this.controllers.delete(next.key);
-      this.act('Storage use could not be read', () => this.storageUseRefresh());
-      this.pump();
-    });
-  }
-
   private async storageUseRefresh() {
     this.storage = await storageUse();
   }
 
-  private async jobDone(key: number, result: ResultMeta) {
-    this.patchJob(key, { state: 'done', fraction: 1, seconds: result.seconds, resultId: result.id });
-    this.results = await listResults();
-    if (result.scanId === this.selectedScanId) {
-      const ids = [...this.compareIds, result.id];
-      this.compareIds = ids.slice(Math.max(0, ids.length - MAX_COMPARED));
-      await this.loadImages(this.compareIds);
-      await this.updateComparisons();
-    }
+  /** The memory budget of runs in bytes when the user set one (else the coordinator takes half of what the browser reports). */
+  private budgetBytes(): number | undefined {
+    const gb = Number(this.memoryBudgetGb);
+    return this.memoryBudgetGb.trim() !== '' && gb > 0 ? gb * 1e9 : undefined;
   }
 
-  private cancelJob(key: number) {
-    const job = this.jobs.find((j) => j.key === key);
-    if (job?.state === 'waiting') this.patchJob(key, { state: 'cancelled' });
-    else this.controllers.get(key)?.abort();
+  private async jobDone(result: ResultMeta) {
+    this.results = await listResults();
+    if (result.scanId === this.selectedScanId) await this.offerResult(result.id);
   }
 
   // Comparison choices.
 
   private async toggleResult(id: string) {
-    this.compareIds = this.compareIds.includes(id) ? this.compareIds.filter((x) => x !== id) : [...this.compareIds, id].slice(-MAX_COMPARED);
+    if (this.compareIds.includes(id)) this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, id));
+    else await this.offerResult(id);
+  }
+
+  /** A result joins the comparison, or waits for the user to choose which image leaves when it is full. */
+  private async offerResult(id: string) {
+    this.setCompared(offer({ ids: this.compareIds, waiting: this.waitingId }, id));
     await this.loadImages(this.compareIds);
     await this.updateComparisons();
+  }
+
+  /** The waiting result takes the place of `leave`. */
+  private async replaceCompared(leave: string) {
+    this.setCompared(replace({ ids: this.compareIds, waiting: this.waitingId }, leave));
+    await this.loadImages(this.compareIds);
+    await this.updateComparisons();
+  }
+
+  private setCompared(set: { ids: string[]; waiting?: string }) {
+    this.compareIds = set.ids;
+    this.waitingId = set.waiting ?? '';
   }
 
   private async setReference(id: string) {
@@ -423,7 +415,8 @@ export class AppShell extends LitElement {
 
   private scanTab(scan: ScanMeta) {
     return html`<rf-scan-view .meta=${scan} .projections=${this.loaded?.id === scan.id ? this.loaded.projections : undefined}
-        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .geometryError=${this.geometryError}
+        .report=${this.loaded?.id === scan.id ? this.loaded.report : undefined} .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined}
+        .geometryError=${this.geometryError}
         @geometry-apply=${(e: CustomEvent) => this.act('The geometry could not be applied', () => this.applyGeometry(e.detail.geometry))}></rf-scan-view>`;
   }
 
@@ -439,18 +432,20 @@ export class AppShell extends LitElement {
     return html`<div class="reconstruct">
         <div class="card"><h2>Recipe for “${scan.name}”</h2>
           <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?cone=${scan.geometry.kind === 'cone'}
+            .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined} .defaultGrid=${this.loaded?.id === scan.id ? this.loaded.gridText : ''}
             .priorResults=${this.priorChoices(scan)}
-            @recipe-queue=${(e: CustomEvent) => this.queueRecipe(e.detail.recipe, e.detail.name)}></rf-recipe-form></div>
+            @recipe-queue=${(e: CustomEvent) => this.act('The recipe could not be queued', () => this.queue.add(scan, e.detail.recipe, e.detail.name))}></rf-recipe-form></div>
         <div class="card"><h2>Queue</h2>
           <label class="budget">Memory budget <input type="number" id="memory-budget" min="0.1" max="4" step="0.1" placeholder="browser's"
             .value=${this.memoryBudgetGb} @input=${(e: Event) => (this.memoryBudgetGb = (e.target as HTMLInputElement).value)}> GB
             <span class="muted">(empty: half the device memory the browser reports; a run that would need more is refused before it starts, naming the binning that fits)</span></label>
-          <rf-run-queue .jobs=${this.jobs}
-            @job-cancel=${(e: CustomEvent) => this.cancelJob(e.detail.key)}
-            @job-remove=${(e: CustomEvent) => (this.jobs = this.jobs.filter((j) => j.key !== e.detail.key))}
-            @queue-clear=${() => (this.jobs = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting'))}
+          <rf-run-queue .jobs=${this.queue.jobs}
+            @job-cancel=${(e: CustomEvent) => this.queue.cancel(e.detail.key)}
+            @job-rerun=${(e: CustomEvent) => this.act('The run could not be queued again', () => this.queue.rerun(e.detail.key))}
+            @job-remove=${(e: CustomEvent) => this.queue.forget([e.detail.key])}
+            @queue-clear=${() => this.queue.forget(this.queue.jobs.map((j) => j.key))}
             @job-show=${(e: CustomEvent) => this.act('The result could not be shown', async () => {
-              const job = this.jobs.find((j) => j.key === e.detail.key);
+              const job = this.queue.jobs.find((j) => j.key === e.detail.key);
               if (job?.resultId) {
                 if (job.scanId !== this.selectedScanId) await this.selectScan(job.scanId);
                 if (!this.compareIds.includes(job.resultId)) await this.toggleResult(job.resultId);
@@ -469,10 +464,13 @@ export class AppShell extends LitElement {
       .muWater=${scan.muWater} .calibration=${scan.calibration} .calibrating=${this.calibrating}
       @calibrate=${(e: CustomEvent) => this.act('The calibration failed', () => this.calibrate(scan.id, e.detail))}
       @calibrate-error-dismiss=${() => (this.calibrating = { ...this.calibrating, error: '' })}
+      .waitingId=${this.waitingId} .baselineId=${baselineOf(this.results.filter((r) => r.scanId === scan.id)) ?? ''}
       @result-toggle=${(e: CustomEvent) => this.act('The result could not be shown', () => this.toggleResult(e.detail.id))}
+      @compare-replace=${(e: CustomEvent) => this.act('The result could not be shown', () => this.replaceCompared(e.detail.leave))}
+      @compare-dismiss=${() => { this.waitingId = ''; }}
       @result-delete=${(e: CustomEvent) => this.act('The library could not be read', () => this.storeAction(async () => {
         await this.client.deleteResult(e.detail.id);
-        this.compareIds = this.compareIds.filter((x) => x !== e.detail.id);
+        this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, e.detail.id));
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       }))}
       .dicomExport=${this.dicomExport} @export-dicom=${(e: CustomEvent) => this.act('The DICOM export failed', () => this.exportDicom(e.detail.id))}
@@ -487,7 +485,7 @@ export class AppShell extends LitElement {
   }
 
   render() {
-    const running = this.jobs.filter((j) => j.state === 'running' || j.state === 'waiting').length;
+    const running = this.queue.pending;
     const resultCount = this.results.filter((r) => r.scanId === this.selectedScanId).length;
     const tabs: Array<[Tab, string, unknown]> = [
       ['scan', 'Projections', nothing],

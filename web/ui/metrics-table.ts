@@ -43,7 +43,10 @@ export class MetricsTable extends LitElement {
   declare referenceLabel: string;
 
   static styles = [theme, css`
+    :host { overflow-x: auto; }
     table { width: 100%; }
+    table { font-size: 12px; }
+    th, td { padding: 4px 5px; }
     thead th { text-align: center; }
     .dot { display: inline-block; width: 9px; height: 9px; border-radius: 50%; margin-right: 6px; vertical-align: 0; }
     td.reason { text-align: left; color: var(--muted); }

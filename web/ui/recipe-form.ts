@@ -2,12 +2,14 @@ import { html, LitElement, css, nothing } from 'lit';
 import { live } from 'lit/directives/live.js';
 import { InputError } from '../core/errors';
 import type { ImageGrid } from '../core/image';
-import { describeRecipeFields, recipeSummary, type RecipeField } from '../core/recipe/fields';
+import { describeRecipeFields, type RecipeField } from '../core/recipe/fields';
+import { recipeLabel } from '../core/recipe/label';
 import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
 import { DEFAULT_VOLUME_SIZE } from '../core/recipe/volume-grid';
 import type { Reduction } from '../core/reduction';
 import './reduction-input';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
+import type { CorrectionAdvice } from '../core/truncation/recommend';
 import { theme } from './theme';
 
 type GridMode = 'auto' | 'reference' | 'custom';
@@ -23,6 +25,7 @@ const RESULT_PRIOR = 'result:';
 export class RecipeForm extends LitElement {
   static properties = {
     referenceGrid: { attribute: false }, disabled: { type: Boolean }, cone: { type: Boolean }, priorResults: { attribute: false },
+    advice: { attribute: false }, defaultGrid: { type: String },
     values: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true }, reduce: { state: true },
   };
   /** Grid of the scan's reference image, offered as "match the ground truth" (undefined: none). */
@@ -33,6 +36,10 @@ export class RecipeForm extends LitElement {
   declare cone: boolean;
   /** Stored results the prior-guided method can start from (volumes for a cone-beam scan, else images). */
   declare priorResults: Array<{ id: string; label: string }>;
+  /** The correction the scan's truncation report suggests; the form starts with it and says why. */
+  declare advice: CorrectionAdvice | undefined;
+  /** The grid a recipe without one gets, in words ("512 px × 1.29 mm"). */
+  declare defaultGrid: string;
   declare slicesMode: 'auto' | 'custom';
   /** Binning, view step and rows for this run (reduction.ts). */
   declare reduce: Reduction;
@@ -56,6 +63,7 @@ export class RecipeForm extends LitElement {
     .custom { display: flex; gap: 10px; align-items: center; flex-wrap: wrap; }
     .actions { display: flex; gap: 10px; align-items: center; margin-top: 14px; }
     .summary { font-size: 13px; color: var(--muted); }
+    .advice { font-size: 12px; color: var(--text); }
   `];
 
   constructor() {
@@ -69,9 +77,14 @@ export class RecipeForm extends LitElement {
     this.slicesMode = 'auto';
     this.reduce = {};
     this.priorResults = [];
+    this.advice = undefined;
+    this.defaultGrid = '';
   }
 
   willUpdate(changed: Map<string, unknown>) {
+    // A new suggestion (another scan, another report) sets the correction; the same one keeps the user's choice.
+    const before = changed.get('advice') as CorrectionAdvice | undefined;
+    if (changed.has('advice') && this.advice && this.advice.extend !== before?.extend) this.values = { ...this.values, extend: this.advice.extend };
     if (changed.has('referenceGrid')) this.gridMode = this.referenceGrid ? 'reference' : this.gridMode === 'reference' ? 'auto' : this.gridMode;
   }
 
@@ -129,7 +142,7 @@ export class RecipeForm extends LitElement {
     const g = this.referenceGrid;
     const mode = (m: GridMode) => () => { this.gridMode = m; this.error = ''; };
     return html`<div class="grid-choices" role="radiogroup" aria-label="Image grid">
-      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view and the estimated object (${this.cone ? DEFAULT_VOLUME_SIZE : DEFAULT_GRID_SIZE} px)</label>
+      <label><input type="radio" name="grid" value="auto" .checked=${live(this.gridMode === 'auto')} @change=${mode('auto')}>Cover the measured field of view and the estimated object (${this.defaultGrid || `${this.cone ? DEFAULT_VOLUME_SIZE : DEFAULT_GRID_SIZE} px`}, as the command line picks it)</label>
       ${g ? html`<label><input type="radio" name="grid" value="reference" .checked=${live(this.gridMode === 'reference')} @change=${mode('reference')}>Match the ground truth: ${g.nx} px × ${g.dx} mm</label>` : nothing}
       <div class="custom"><label><input type="radio" name="grid" value="custom" .checked=${live(this.gridMode === 'custom')} @change=${mode('custom')}>Choose:</label>
       <label>size <input type="number" name="gridSize" min="8" max="4096" step="1" .value=${live(String(this.customGrid.size))} ?disabled=${this.gridMode !== 'custom'}
@@ -158,7 +171,7 @@ export class RecipeForm extends LitElement {
     try {
       const recipe = validateRecipe(this.recipe());
       this.error = '';
-      const name = recipeSummary(recipe as unknown as Record<string, unknown>);
+      const name = recipeLabel(recipe as unknown as Record<string, unknown>);
       this.dispatchEvent(new CustomEvent('recipe-queue', { detail: { recipe, name }, bubbles: true, composed: true }));
     } catch (err) {
       if (!(err instanceof InputError)) throw err;
@@ -172,6 +185,7 @@ export class RecipeForm extends LitElement {
         ${shown.map((f) => html`<div class="field ${f.kind === 'grid' ? 'wide' : ''}">
           <label for=${`field-${f.key}`}>${f.label}${'unit' in f && f.unit ? ` (${f.unit})` : ''}</label>
           ${this.input(f)}
+          ${f.key === 'extend' && this.advice ? html`<span class="advice" id="extend-advice">Suggested for this scan: <strong>${this.advice.label}</strong>. ${this.advice.reason}.</span>` : nothing}
           <span class="help">${f.help}</span></div>`)}
         ${this.cone ? this.slicesInput() : nothing}
         <div class="field wide"><label>Reduce the scan for this run</label>
@@ -180,7 +194,7 @@ export class RecipeForm extends LitElement {
       </form>
       <div class="actions">
         <button class="primary" id="queue-recipe" ?disabled=${this.disabled} @click=${this.queue}>Add to queue</button>
-        <span class="summary">${recipeSummary(this.recipe())}</span>
+        <span class="summary">${recipeLabel(this.recipe())}</span>
       </div>
       ${this.error ? html`<div class="error" role="alert">Not queued: ${this.error}</div>` : nothing}`;
   }

@@ -1,10 +1,9 @@
 import { html, LitElement, css, nothing } from 'lit';
+import { live } from 'lit/directives/live.js';
 import type { ResultMeta } from '../store/records';
+import { MAX_COMPARED } from './logic/compare-set';
 import { SERIES_COLOURS, theme } from './theme';
 import './file-drop';
-
-/** Most results compared at once. */
-export const MAX_COMPARED = 4;
 
 const send = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
 
@@ -16,8 +15,10 @@ export interface ImageImportState {
 }
 
 /**
- * A scan's results: tick up to four to compare, choose the reference, delete; add an image file
- * as a result (an earlier reconstruction, a DICOM CT image, a model's output).
+ * A scan's results: tick up to four to compare (a fifth asks which one leaves), choose the
+ * reference, delete; the uncorrected baseline and the ground truth as reference come back with
+ * one click; add an image file as a result (an earlier reconstruction, a DICOM CT image, a
+ * model's output).
  * @fires result-toggle - detail: { id }
  * @fires result-delete - detail: { id }
  * @fires reference-change - detail: { id }
@@ -26,7 +27,7 @@ export interface ImageImportState {
  */
 export class ResultList extends LitElement {
   static properties = {
-    results: { attribute: false }, selected: { attribute: false }, referenceId: { type: String }, hasTruth: { type: Boolean }, cone: { type: Boolean },
+    results: { attribute: false }, selected: { attribute: false }, referenceId: { type: String }, hasTruth: { type: Boolean }, cone: { type: Boolean }, baselineId: { type: String },
     imageImport: { attribute: false }, confirming: { state: true }, slice: { state: true },
   };
   declare results: ResultMeta[];
@@ -35,6 +36,8 @@ export class ResultList extends LitElement {
   declare referenceId: string;
   /** The scan has a ground truth to compare with. */
   declare hasTruth: boolean;
+  /** The uncorrected baseline result ('' when there is none). */
+  declare baselineId: string;
   /** The scan is cone beam: an added image file is a volume. */
   declare cone: boolean;
   declare imageImport: ImageImportState;
@@ -54,6 +57,8 @@ export class ResultList extends LitElement {
     .empty { font-size: 13px; color: var(--muted); }
     .slice { display: flex; gap: 6px; align-items: center; font-size: 12px; margin-top: 8px; }
     .slice input { width: 70px; }
+    .tag { font-size: 11px; font-weight: 600; color: var(--accent); background: var(--accent-soft); border-radius: 9px; padding: 0 6px; white-space: nowrap; align-self: flex-start; }
+    .back { display: flex; flex-wrap: wrap; gap: 6px; margin: 0 0 8px; }
   `];
 
   constructor() {
@@ -62,6 +67,7 @@ export class ResultList extends LitElement {
     this.selected = [];
     this.referenceId = '';
     this.hasTruth = false;
+    this.baselineId = '';
     this.cone = false;
     this.imageImport = { busy: false, error: '' };
     this.confirming = '';
@@ -72,17 +78,29 @@ export class ResultList extends LitElement {
     this.renderRoot.querySelectorAll<HTMLElement>('li[data-colour]').forEach((li) => { li.style.setProperty('--swatch', li.dataset.colour ?? ''); });
   }
 
+  /** One-click ways back to the uncorrected baseline and to the ground truth as reference. */
+  private bringBack() {
+    const baseline = this.baselineId && !this.selected.includes(this.baselineId);
+    const truth = this.hasTruth && this.referenceId !== 'truth';
+    if (!baseline && !truth) return nothing;
+    return html`<div class="back">
+      ${baseline ? html`<button class="small" id="bring-back-baseline" @click=${() => send(this, 'result-toggle', { id: this.baselineId })}>Show the uncorrected baseline</button>` : nothing}
+      ${truth ? html`<button class="small" id="bring-back-truth" @click=${() => send(this, 'reference-change', { id: 'truth' })}>Compare with the ground truth</button>` : nothing}
+    </div>`;
+  }
+
   render() {
     const full = this.selected.length >= MAX_COMPARED;
     return html`
       <div class="card">
         <h2>Results</h2>
+        ${this.bringBack()}
         ${this.results.length ? html`<ul>${this.results.map((r) => {
           const k = this.selected.indexOf(r.id);
           const inside = r.metrics?.regions.insideFov;
           return html`<li class=${k >= 0 ? 'on' : ''} data-colour=${k >= 0 ? SERIES_COLOURS[k % 4] : ''} data-result-id=${r.id}>
-            <div class="top"><input type="checkbox" id=${`pick-${r.id}`} .checked=${k >= 0} ?disabled=${k < 0 && full}
-              @change=${() => send(this, 'result-toggle', { id: r.id })}><label for=${`pick-${r.id}`}>${r.name}</label></div>
+            <div class="top"><input type="checkbox" id=${`pick-${r.id}`} .checked=${live(k >= 0)}
+              @change=${() => send(this, 'result-toggle', { id: r.id })}><label for=${`pick-${r.id}`}>${r.name}</label>${r.id === this.baselineId ? html`<span class="tag">baseline</span>` : nothing}${r.id === this.referenceId ? html`<span class="tag">reference</span>` : nothing}</div>
             <div class="sub num">${new Date(r.createdAt).toLocaleString()} · ${r.seconds.toFixed(1)} s${inside ? ` · RMSE in field ${inside.rmse.toFixed(0)} ${r.metrics!.unit}` : ''}</div>
             <div class="row">${this.confirming === r.id
               ? html`<button class="small danger" @click=${() => { this.confirming = ''; send(this, 'result-delete', { id: r.id }); }}>Delete</button>
@@ -90,7 +108,7 @@ export class ResultList extends LitElement {
               : html`<button class="small danger" @click=${() => (this.confirming = r.id)}>Delete…</button>`}</div>
           </li>`;
         })}</ul>
-        ${full ? html`<p class="empty">Four are ticked: untick one to choose another.</p>` : nothing}` : html`<p class="empty">None yet.</p>`}
+        ${full ? html`<p class="empty">${MAX_COMPARED} are compared: ticking another asks which one leaves.</p>` : nothing}` : html`<p class="empty">None yet.</p>`}
       </div>
       <div class="card">
         <h2>Reference</h2>

@@ -14,6 +14,7 @@ import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
 import { autoWindow, type DisplayWindow } from './logic/window-level';
 import type { MetricsRow } from './metrics-table';
 import type { ImageImportState } from './result-list';
+import type { ChooserItem } from './compare-chooser';
 import { huScaleText, type CalibrationRegion } from './hu-calibration';
 import type { ScanCalibration } from '../store/records';
 import './hu-calibration';
@@ -23,6 +24,7 @@ import './image-viewer';
 import './line-plot';
 import './metrics-table';
 import './region-table';
+import './compare-chooser';
 import './result-list';
 import './viewer-toolbar';
 
@@ -58,6 +60,7 @@ export class ResultsView extends LitElement {
     results: { attribute: false }, selected: { attribute: false }, images: { attribute: false }, truth: { attribute: false },
     referenceId: { type: String }, comparisons: { attribute: false }, scanName: { type: String }, scanSummary: { type: String },
     cone: { type: Boolean }, imageImport: { attribute: false }, muWater: { type: Number }, calibration: { attribute: false }, calibrating: { attribute: false },
+    waitingId: { type: String }, baselineId: { type: String },
     dicomExport: { attribute: false },
     window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
     line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
@@ -67,6 +70,10 @@ export class ResultsView extends LitElement {
   declare results: ResultMeta[];
   /** Ids chosen for comparison, in order (at most four). */
   declare selected: string[];
+  /** A result waiting for a place in the full comparison ('' when none). */
+  declare waitingId: string;
+  /** The uncorrected baseline result ('' when there is none). */
+  declare baselineId: string;
   /** Loaded pixels by result id. */
   declare images: Map<string, Image2D>;
   /** The scan's ground truth, when it has one. */
@@ -104,8 +111,10 @@ export class ResultsView extends LitElement {
 
   static styles = [theme, css`
     :host { display: grid; grid-template-columns: 280px minmax(0, 1fr); gap: 14px; align-items: start; }
+    @media (max-width: 1440px) { :host { grid-template-columns: 240px minmax(0, 1fr); } }
     @media (max-width: 1000px) { :host { grid-template-columns: 1fr; } }
-    .main { display: grid; gap: 14px; min-width: 0; }
+    /* One column that may shrink below its content's width (a wide table scrolls inside its card). */
+    .main { display: grid; grid-template-columns: minmax(0, 1fr); gap: 14px; min-width: 0; }
     .side { display: grid; gap: 14px; align-content: start; }
     .panels { display: grid; gap: 10px; }
     .panels.n1 { grid-template-columns: minmax(0, 640px); }
@@ -121,6 +130,8 @@ export class ResultsView extends LitElement {
     super();
     this.results = [];
     this.selected = [];
+    this.waitingId = '';
+    this.baselineId = '';
     this.images = new Map();
     this.referenceId = '';
     this.comparisons = new Map();
@@ -274,6 +285,17 @@ export class ResultsView extends LitElement {
     return { resultId: active.meta.id, label: active.label, region: { cx: this.region.centre.x, cy: this.region.centre.y, radius: this.region.radius } };
   }
 
+  /** Which compared image leaves for the waiting result (shown only while one waits). */
+  private chooser() {
+    const waiting = this.waitingId && this.results.find((r) => r.id === this.waitingId);
+    if (!waiting) return nothing;
+    const items: ChooserItem[] = this.selected.map((id, k) => ({
+      id, label: this.results.find((r) => r.id === id)?.name ?? id, colour: SERIES_COLOURS[k % 4],
+      role: id === this.baselineId ? 'baseline' : id === this.referenceId ? 'reference' : '',
+    }));
+    return html`<rf-compare-chooser .waiting=${waiting.name} .items=${items}></rf-compare-chooser>`;
+  }
+
   private convergence(panels: Panel[]) {
     return panels.filter((p) => p.meta).map((p) => {
       const series: PlotSeries[] = convergenceHistories(p.meta!.report).map((hst, i) => ({
@@ -298,12 +320,13 @@ export class ResultsView extends LitElement {
     const differenceShown = shown !== panels;
     return html`
       <div class="side">
-        <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth}
+        <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth} .baselineId=${this.baselineId}
           ?cone=${this.cone} .imageImport=${this.imageImport}></rf-result-list>
         <rf-hu-calibration .muWater=${this.muWater} .calibration=${this.calibration} .regionSource=${this.calibrationRegion(active)}
           ?busy=${this.calibrating.busy} .error=${this.calibrating.error}></rf-hu-calibration>
       </div>
       <div class="main">
+        ${this.chooser()}
         ${!panels.length ? html`<div class="card empty">${this.results.length ? 'Tick one to four results on the left to view and compare them.' : 'No results for this scan yet: run a recipe from the Reconstruct tab.'}</div>` : html`
         <div class="card">
           <rf-viewer-toolbar .window=${w} .unit=${unit} .tool=${this.tool} .showFov=${this.showFov} .showDifference=${this.showDifference && !!ref} .canDifference=${!!ref && panels.length > 1}

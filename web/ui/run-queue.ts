@@ -1,35 +1,19 @@
 import { html, LitElement, css, nothing } from 'lit';
 import { formatDuration } from './logic/time-left';
+import type { QueueJob, QueueState } from './logic/queue-state';
 import { theme } from './theme';
 
-export type JobState = 'waiting' | 'running' | 'done' | 'failed' | 'cancelled';
+export type { QueueJob } from './logic/queue-state';
 
-/** One queued reconstruction. */
-export interface QueueJob {
-  key: number;
-  scanId: string;
-  scanName: string;
-  name: string;
-  recipe: Record<string, unknown>;
-  state: JobState;
-  /** 0..1 while running. */
-  fraction: number;
-  stage: string;
-  /** Estimated milliseconds left (undefined until known). */
-  remainingMs?: number;
-  /** Seconds the run took (done). */
-  seconds?: number;
-  error?: string;
-  resultId?: string;
-}
-
-const STATE_WORDS: Record<JobState, string> = { waiting: 'Waiting', running: 'Running', done: 'Done', failed: 'Failed', cancelled: 'Cancelled' };
+const STATE_WORDS: Record<QueueState, string> = { waiting: 'Waiting', running: 'Running', done: 'Done', failed: 'Failed', cancelled: 'Cancelled', interrupted: 'Interrupted' };
 
 /**
- * The queue of reconstructions: progress with time left, cancel, and what became of each run.
+ * The queue of reconstructions: progress with time left, cancel, and what became of each run;
+ * a run interrupted by a reload or a closed tab, with one click to run it again.
  * @fires job-cancel - detail: { key }
  * @fires job-remove - detail: { key }
  * @fires job-show - detail: { key }, show a finished job's image
+ * @fires job-rerun - detail: { key }, run an interrupted job again
  * @fires queue-clear - remove every finished job
  */
 export class RunQueue extends LitElement {
@@ -47,6 +31,7 @@ export class RunQueue extends LitElement {
     .state.running { background: var(--accent-soft); color: var(--accent); }
     .state.done { background: #e6f4ea; color: var(--ok); }
     .state.failed { background: var(--danger-soft); color: var(--danger); }
+    .state.interrupted { background: var(--warn-soft); color: var(--warn); }
     progress { margin-top: 7px; }
     .line { display: flex; justify-content: space-between; align-items: center; gap: 8px; font-size: 12px; color: var(--muted); margin-top: 4px; }
     .empty { color: var(--muted); font-size: 13px; }
@@ -58,12 +43,12 @@ export class RunQueue extends LitElement {
     this.jobs = [];
   }
 
-  private emit(name: string, key?: number) {
+  private emit(name: string, key?: string) {
     this.dispatchEvent(new CustomEvent(name, { detail: { key }, bubbles: true, composed: true }));
   }
 
   private job(j: QueueJob) {
-    const finished = j.state === 'done' || j.state === 'failed' || j.state === 'cancelled';
+    const finished = j.state === 'done' || j.state === 'failed' || j.state === 'cancelled' || j.state === 'interrupted';
     return html`<li data-state=${j.state} data-key=${j.key}>
       <div class="head"><span class="name">${j.name}</span><span class="state ${j.state}">${STATE_WORDS[j.state]}</span></div>
       <div class="scan">${j.scanName}</div>
@@ -71,8 +56,10 @@ export class RunQueue extends LitElement {
       <div class="line">
         <span class="num">${j.state === 'running'
           ? `${(100 * j.fraction).toFixed(0)}% · ${j.stage || 'starting'} · ${j.remainingMs !== undefined ? `${formatDuration(j.remainingMs)} left` : 'estimating time left'}`
-          : j.state === 'done' ? `${j.seconds?.toFixed(1)} s` : j.state === 'failed' ? '' : j.state === 'waiting' ? 'in line' : ''}</span>
+          : j.state === 'done' ? `${j.seconds?.toFixed(1)} s` : j.state === 'failed' ? '' : j.state === 'waiting' ? 'in line'
+          : j.state === 'interrupted' ? `the page was reloaded or closed while it ${j.was === 'running' ? 'ran' : 'waited'}; nothing was stored` : ''}</span>
         <span>
+          ${j.state === 'interrupted' ? html`<button class="small primary" @click=${() => this.emit('job-rerun', j.key)}>Run again</button>` : nothing}
           ${finished ? nothing : html`<button class="small danger" @click=${() => this.emit('job-cancel', j.key)}>Cancel</button>`}
           ${j.state === 'done' ? html`<button class="small" @click=${() => this.emit('job-show', j.key)}>Show image</button>` : nothing}
           ${finished ? html`<button class="small" @click=${() => this.emit('job-remove', j.key)}>Remove</button>` : nothing}

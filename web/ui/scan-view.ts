@@ -1,6 +1,7 @@
 import { html, LitElement, css, nothing } from 'lit';
 import { anglesRad } from '../core/geometry/types';
 import type { TruncationReport } from '../core/truncation/detect';
+import type { CorrectionAdvice } from '../core/truncation/recommend';
 import type { ScanMeta } from '../store/records';
 import { fovSummary, geometrySummary } from './logic/describe';
 import { SERIES_COLOURS, theme } from './theme';
@@ -15,13 +16,15 @@ const pct = (f: number) => `${(100 * f).toFixed(0)}%`;
  * its geometry (editable; the form fires geometry-apply).
  */
 export class ScanView extends LitElement {
-  static properties = { meta: { attribute: false }, projections: { attribute: false }, report: { attribute: false }, geometryError: { type: String } };
+  static properties = { meta: { attribute: false }, projections: { attribute: false }, report: { attribute: false }, advice: { attribute: false }, geometryError: { type: String } };
   /** The scan's description. */
   declare meta: ScanMeta;
   /** Line integrals of one detector row, [view][channel]. */
   declare projections: Float32Array | undefined;
   /** Truncation per view and side. */
   declare report: TruncationReport | undefined;
+  /** The correction the report suggests. */
+  declare advice: CorrectionAdvice | undefined;
   /** Why the last geometry edit was refused ('' when it was not). */
   declare geometryError: string;
 
@@ -70,7 +73,8 @@ export class ScanView extends LitElement {
                 <dt>Edge threshold</dt><dd class="num">${r.threshold.toFixed(3)} (noise σ ≈ ${r.noiseSigma.toFixed(4)})</dd>
                 ${r.summary.worstSide !== 'none' ? html`<dt>Reach beyond the edges</dt><dd id="truncation-reach">left up to ${r.summary.maxExtentMm.left.toFixed(0)} mm, right up to ${r.summary.maxExtentMm.right.toFixed(0)} mm (water cylinder fits${r.muAssumed ? ', µ of water assumed' : ''})</dd>` : nothing}
                 <dt>Estimated object</dt><dd id="truncation-object">${r.summary.objectDiameterMm.toFixed(0)} mm across, against a ${r.summary.fovDiameterMm.toFixed(0)} mm field of view</dd>
-                <dt>Missing mass</dt><dd id="truncation-mass">${'unavailable' in r.mass ? r.mass.unavailable : html`cut-off views miss up to ${pct(r.mass.maxMissingFraction)} of the object (mean ${pct(r.mass.meanMissingFraction)}; mass consistency${r.mass.basis === 'complete-views' ? '' : ', lower bound'})`}</dd>` : nothing}
+                <dt>Missing mass</dt><dd id="truncation-mass">${'unavailable' in r.mass ? r.mass.unavailable : html`cut-off views miss up to ${pct(r.mass.maxMissingFraction)} of the object (mean ${pct(r.mass.meanMissingFraction)}; mass consistency${r.mass.basis === 'complete-views' ? '' : ', lower bound'})`}</dd>
+                ${this.advice ? html`<dt>Suggested correction</dt><dd id="truncation-advice"><strong>${this.advice.label}</strong>: ${this.advice.reason}</dd>` : nothing}` : nothing}
               ${m.source.type === 'demo' ? html`<dt>Origin</dt><dd>${m.source.description}</dd>` : html`<dt>Files</dt><dd>${m.source.fileNames.join(', ')}</dd>`}
             </dl>
             ${m.warnings.map((w) => html`<p class="warning">${w}</p>`)}

@@ -1,10 +1,12 @@
 // Messages between the page's facade (client.ts) and the coordinator worker. Requests carry an
-// id; the coordinator answers with progress messages and then exactly one done or error.
+// id (so no request names a field "id" of its own); the coordinator answers with progress
+// messages and then exactly one done or error.
 // Bulk data never travels here: files go over as File objects, arrays stay in IndexedDB; the
 // page gets only what it draws (a scan's analysed sinogram row, images), transferred, and
 // exported files come back as Blobs for the download.
 import type { Comparison } from '../core/compare';
-import type { ModelMeta, ResultMeta, ScanMeta } from '../store/records';
+import type { NewJob } from '../store/jobs';
+import type { JobRecord, ModelMeta, ResultMeta, ScanMeta } from '../store/records';
 import type { CalibrationOutcome, CalibrationRequest } from './calibrate-job';
 import type { DicomExportOutcome } from './export-dicom-job';
 import type { LibraryReplies, LibraryRequest } from './library-ops';
@@ -25,7 +27,11 @@ export type AppRequest =
   | { op: 'import'; files: File[]; name?: string; reduce?: unknown }
   | { op: 'demo' }
   | { op: 'demo-cone' }
-  | { op: 'run'; scanId: string; recipe: unknown; name?: string; budget?: number }
+  | { op: 'run'; scanId: string; recipe: unknown; name?: string; jobId?: string; budget?: number }
+  | { op: 'queue-add'; job: NewJob }
+  | { op: 'queue-settle'; jobId: string; state: 'failed' | 'cancelled'; error?: string }
+  | { op: 'queue-requeue'; jobId: string; session: string }
+  | { op: 'queue-forget'; ids: string[] }
   | { op: 'compare'; resultId: string; against: CompareTarget }
   | { op: 'info' }
   | { op: 'import-image'; scanId: string; files: File[]; slice?: number }
@@ -42,6 +48,10 @@ export interface AppReplies extends LibraryReplies {
   demo: ScanMeta;
   'demo-cone': ScanMeta;
   run: ResultMeta;
+  'queue-add': JobRecord;
+  'queue-settle': null;
+  'queue-requeue': null;
+  'queue-forget': null;
   compare: Comparison;
   info: EngineInfo;
   'import-image': ResultMeta;

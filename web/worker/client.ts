@@ -6,6 +6,7 @@
 import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
+import type { NewJob } from '../store/jobs';
 import type { CalibrationRequest, NetworkPriorRequest, PriorCheckRequest, StoredVolumeRef, VolumePlane } from './app-protocol';
 import type { Reduction } from '../core/reduction';
 
@@ -88,9 +89,29 @@ export class EngineClient {
     return this.call({ op: 'demo-cone' }, options);
   }
 
-  /** Runs a recipe on a stored scan; resolves to the stored result. */
-  run(scanId: string, recipe: unknown, options: CallOptions & { name?: string; budget?: number } = {}): Promise<AppReplies['run']> {
-    return this.call({ op: 'run', scanId, recipe, name: options.name, budget: options.budget }, options);
+  /** Runs a recipe on a stored scan; resolves to the stored result. With a queue job, the job's record follows the run. */
+  run(scanId: string, recipe: unknown, options: CallOptions & { name?: string; jobId?: string; budget?: number } = {}): Promise<AppReplies['run']> {
+    return this.call({ op: 'run', scanId, recipe, name: options.name, budget: options.budget, ...(options.jobId ? { jobId: options.jobId } : {}) }, options);
+  }
+
+  /** Stores a queued job (so a reload cannot lose it). */
+  queueJob(job: NewJob, options: CallOptions = {}): Promise<AppReplies['queue-add']> {
+    return this.call({ op: 'queue-add', job }, options);
+  }
+
+  /** Records that a stored job failed or was cancelled (a job already finished stays as it is). */
+  settleJob(id: string, state: 'failed' | 'cancelled', error?: string, options: CallOptions = {}): Promise<null> {
+    return this.call({ op: 'queue-settle', jobId: id, state, ...(error !== undefined ? { error } : {}) }, options);
+  }
+
+  /** Puts a stored job back in line for this page (an interrupted one run again). */
+  requeueJob(id: string, session: string, options: CallOptions = {}): Promise<null> {
+    return this.call({ op: 'queue-requeue', jobId: id, session }, options);
+  }
+
+  /** Forgets stored jobs (their results stay). */
+  forgetJobs(ids: string[], options: CallOptions = {}): Promise<null> {
+    return this.call({ op: 'queue-forget', ids }, options);
   }
 
   /** Image-quality figures of a result against its scan's reference or another result. */
@@ -216,7 +237,7 @@ export class EngineClient {
         started: performance.now(),
       });
       signal?.addEventListener('abort', onAbort, { once: true });
-      engine.coordinator.postMessage({ id, ...req });
+      engine.coordinator.postMessage({ ...req, id });
     });
   }
 

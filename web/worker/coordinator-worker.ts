@@ -4,6 +4,7 @@
 import { engineSharedWasmBase64, engineWasmBase64 } from '../../build/engine-wasm.js';
 import { base64ToBytes, createMemory } from '../core/engine/instance';
 import type { RunHooks } from '../core/run-hooks';
+import { InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import { APP_PROTOCOL_VERSION, type AppRequest, type FromCoordinator, type ToCoordinator, type WireError } from './app-protocol';
 import { Coordinator } from './coordinator';
@@ -20,6 +21,8 @@ let coordinator: Coordinator | undefined;
 
 function toWire(err: unknown): WireError {
   if (err instanceof StorageFullError) return { name: err.name, message: err.message, details: err.largest };
+  // The page shows what to do in its own words, not as command-line options.
+  if (err instanceof InputError) return { name: err.name, message: err.pageMessage };
   if (err instanceof Error) return { name: err.name, message: err.message };
   return { name: 'Error', message: String(err) };
 }

@@ -1,7 +1,7 @@
 // The coordinator: imports, the demo, recipe runs and comparisons, off the page's main thread.
 // It is the only writer of scans and results; runs take turns on one engine workspace.
 import { compareImages, type Comparison } from '../core/compare';
-import { InputError, throwIfCancelled } from '../core/errors';
+import { CancelledError, InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
 import { axialSlice, sliceAt, type Volume } from '../core/volume';
@@ -23,6 +23,7 @@ import { loadReferenceVolume, loadScan, loadScanReference, saveScan } from '../s
 import { saveSettings } from '../store/settings';
 import type { NetworkRunner } from '../core/model/runner';
 import { saveModel } from '../store/models';
+import { addJob, deleteJobs, updateJob } from '../store/jobs';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
 import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
@@ -69,7 +70,15 @@ export class Coordinator {
       case 'demo-cone':
         return (await this.createConeDemo(hooks)) as AppReplies[K];
       case 'run':
-        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks, r.budget))) as AppReplies[K];
+        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks, r.jobId, r.budget))) as AppReplies[K];
+      case 'queue-add':
+        return (await addJob(r.job, this.store)) as AppReplies[K];
+      case 'queue-settle':
+        return (await updateJob(r.jobId, { state: r.state, ...(r.error !== undefined ? { error: r.error } : {}) }, this.store).then(() => null)) as AppReplies[K];
+      case 'queue-requeue':
+        return (await updateJob(r.jobId, { state: 'waiting', session: r.session }, this.store, true).then(() => null)) as AppReplies[K];
+      case 'queue-forget':
+        return (await deleteJobs(r.ids, this.store).then(() => null)) as AppReplies[K];
       case 'compare':
         return (await this.compare(r.resultId, r.against)) as AppReplies[K];
       case 'info':
@@ -163,14 +172,29 @@ export class Coordinator {
     }, this.store);
   }
 
-  /** Reconstructs a stored scan and stores the result with its comparison to the scan's reference. */
-  async run(scanId: string, recipe: unknown, name: string | undefined, hooks: RunHooks, budget?: number): Promise<ResultMeta> {
-    const ws = await this.openWorkspace();
-    return runRecipeJob({
-      ws, store: this.store, sharedMemory: this.options.sharedMemory,
-      budget: budget !== undefined ? { bytes: budget, source: 'the page\'s memory budget' } : browserBudget(),
-      inputs: (r: Recipe, cone: boolean) => this.recipeInputs(r, cone),
-    }, { scanId, recipe, name }, hooks);
+  /**
+   * Reconstructs a stored scan and stores the result with its comparison to the scan's reference.
+   * With a queue job: the job is marked running, then done with the result in the same
+   * transaction, or failed / cancelled. `budget`: the page's memory budget (bytes; else half of
+   * what the browser reports).
+   */
+  async run(scanId: string, recipe: unknown, name: string | undefined, hooks: RunHooks, jobId?: string, budget?: number): Promise<ResultMeta> {
+    if (jobId) await updateJob(jobId, { state: 'running' }, this.store);
+    try {
+      const ws = await this.openWorkspace();
+      return await runRecipeJob({
+        ws, store: this.store, sharedMemory: this.options.sharedMemory,
+        budget: budget !== undefined ? { bytes: budget, source: 'the page\'s memory budget' } : browserBudget(),
+        inputs: (r: Recipe, cone: boolean) => this.recipeInputs(r, cone),
+      }, { scanId, recipe, name, jobId }, hooks);
+    } catch (err) {
+      const cancelled = err instanceof CancelledError;
+      if (jobId) {
+        await updateJob(jobId, cancelled ? { state: 'cancelled' } : { state: 'failed', error: err instanceof InputError ? err.pageMessage : String((err as Error)?.message ?? err) }, this.store)
+          .catch(() => undefined); // the run's own failure is what the page must hear
+      }
+      throw err;
+    }
   }
 
   /**
@@ -238,7 +262,7 @@ export class Coordinator {
     const { meta, image } = await loadResultImage(resultId, this.store);
     let reference: Image2D;
     if (against.kind === 'reference') {
-      const s = await loadScan(meta.scanId, this.store);
+      const s = await loadScanReference(meta.scanId, this.store);
       if (!s.reference) throw new InputError(`compare: scan of result "${meta.name}" has no reference image`);
       reference = s.reference;
     } else {

@@ -57,7 +57,7 @@ export async function checkModelFiles(files: Array<InputFile & { size?: number }
   } catch (err) {
     if (!(err instanceof InputError)) throw err;
     const file = /^model (file|inputs?|outputs?)\b/.test(err.message) ? model.name : description.name;
-    throw new InputError(`${file}: ${err.message}`);
+    throw err.prefixed(file);
   }
   const { info, runner, warnings } = imported;
   const signature = runner.signature;

@@ -61,7 +61,7 @@ async function byteSource(f: InputFile): Promise<ByteSource> {
 /** Prefixes the data files' names to messages that do not name one. */
 function named(err: unknown, data: InputFile[]): unknown {
   const names = data.map((f) => f.name).join(', ');
-  if (err instanceof InputError && !data.some((f) => err.message.includes(f.name))) return new InputError(`${names}: ${err.message}`);
+  if (err instanceof InputError && !data.some((f) => err.message.includes(f.name))) return err.prefixed(names);
   return err;
 }
 

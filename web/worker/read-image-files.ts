@@ -28,7 +28,7 @@ async function naming<T>(fileNames: string[], read: () => Promise<{ value: T; wa
     const { value, warnings } = await read();
     return { value, warnings, fileNames, name: fileNames.find((n) => !/\.(raw|json)$/i.test(n)) ?? fileNames[0] };
   } catch (err) {
-    if (err instanceof InputError && !err.message.includes(fileNames[0])) throw new InputError(`${fileNames.join(', ')}: ${err.message}`);
+    if (err instanceof InputError && !err.message.includes(fileNames[0])) throw err.prefixed(fileNames.join(', '));
     throw err;
   }
 }

@@ -8,7 +8,7 @@ import { throwIfCancelled } from '../core/errors';
 import type { Image2D } from '../core/image';
 import { checkMemoryBudget, estimatedGrid, type RunContext } from '../core/memory-budget';
 import { readWholeScan, type ProjectionSource } from '../core/projection-source';
-import { recipeSummary } from '../core/recipe/fields';
+import { recipeLabel } from '../core/recipe/label';
 import { validateRecipe, type Recipe } from '../core/recipe/recipe';
 import { runRecipe, type RecipeInputs, type RecipeResult } from '../core/recipe/run';
 import { checkReduction, isIdentity, reduceSource } from '../core/reduction';
@@ -19,9 +19,10 @@ import { rowGeometry } from '../core/truncation/central-row';
 import type { UseStore } from '../store/db';
 import { loadPreview, storedProjections } from '../store/projections';
 import type { ResultMeta, ScanMeta } from '../store/records';
+import { changeJob } from '../store/jobs';
 import { saveResult } from '../store/results';
 import { loadReferenceVolume, loadScanReference } from '../store/scans';
-import { compareWithImage, storeVolumeResult } from './volume-result';
+import { compareWithImage, storeVolumeResult, type ResultDescription } from './volume-result';
 
 export interface RunJobContext {
   ws: Workspace;
@@ -37,6 +38,8 @@ export interface RunRequest {
   scanId: string;
   recipe: unknown;
   name?: string;
+  /** The page's queue job: marked done in the result's own transaction. */
+  jobId?: string;
 }
 
 /** The scan's stored projections as the recipe wants them (reduced). */
@@ -56,7 +59,7 @@ export async function runRecipeJob(ctx: RunJobContext, req: RunRequest, hooks: R
   const cone = source.geometry.kind === 'cone';
   const inputs = await ctx.inputs(recipe, cone);
   throwIfCancelled(hooks.signal);
-  const desc = { name: req.name ?? recipeSummary(recipe as unknown as Record<string, unknown>), recipe: recipe as unknown as Record<string, unknown>, t0 };
+  const desc: ResultDescription = { name: req.name ?? recipeLabel(recipe as unknown as Record<string, unknown>), recipe: recipe as unknown as Record<string, unknown>, t0, jobId: req.jobId };
   // The reconstruction takes the first 95% of the bar; checks and storing the rest.
   const runHooks: RunHooks = { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) };
   if (!cone) {
@@ -88,7 +91,7 @@ async function storedCentralRow(meta: ScanMeta, store: UseStore): Promise<Scan> 
  */
 export async function storeImageResult(
   ctx: Pick<RunJobContext, 'ws' | 'store'>, s: { scanId: string; scan: Scan; reference?: Image2D },
-  out: Pick<RecipeResult, 'image' | 'warnings' | 'report'>, desc: { name: string; recipe: Record<string, unknown>; t0: number }, hooks: RunHooks,
+  out: Pick<RecipeResult, 'image' | 'warnings' | 'report'>, desc: ResultDescription, hooks: RunHooks,
 ): Promise<ResultMeta> {
   const warnings = [...out.warnings];
   let bad = 0;
@@ -98,8 +101,9 @@ export async function storeImageResult(
   hooks.onProgress?.(0.97, 'checking against the measured data');
   const residual = await dataResidual(ctx.ws, out.image, s.scan, { signal: hooks.signal });
   hooks.onProgress?.(1, 'storing');
+  const seconds = (performance.now() - desc.t0) / 1000;
+  const job = desc.jobId;
   return saveResult({
-    scanId: s.scanId, name: desc.name, recipe: desc.recipe, warnings, report: out.report, metrics, residual,
-    seconds: (performance.now() - desc.t0) / 1000,
-  }, out.image, ctx.store);
+    scanId: s.scanId, name: desc.name, recipe: desc.recipe, warnings, report: out.report, metrics, residual, seconds,
+  }, out.image, ctx.store, undefined, job ? (meta, tx) => changeJob(tx, job, { state: 'done', resultId: meta.id, seconds }) : undefined);
 }

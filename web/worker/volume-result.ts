@@ -14,7 +14,8 @@ import type { RunHooks } from '../core/run-hooks';
 import type { Volume } from '../core/volume';
 import { volumeDataResidual } from '../core/volume-residual';
 import { teeSinks, type VolumeInfo, type VolumeSink } from '../core/volume-sink';
-import { deferredTransaction, type UseStore } from '../store/db';
+import { deferredTransaction, type DeferredTx, type UseStore } from '../store/db';
+import { changeJob } from '../store/jobs';
 import { RecordError, type ResultMeta, type ScanMeta } from '../store/records';
 import { resultRecords } from '../store/results';
 import { newId } from '../store/scans';
@@ -37,6 +38,8 @@ export interface ResultDescription {
   name: string;
   recipe: Record<string, unknown>;
   t0: number;
+  /** The page's queue job, marked done in the result's own transaction. */
+  jobId?: string;
 }
 
 /** What the slabs tell on their way to storage. */
@@ -84,19 +87,30 @@ export async function storeVolumeResult(
     if (job.residual.plan.note) residual.sampled = job.residual.plan.note;
     throwIfCancelled(hooks.signal);
     hooks.onProgress?.(1, 'storing');
+    const seconds = (performance.now() - desc.t0) / 1000;
     const { meta, entries } = resultRecords({
-      scanId: job.scanId, name: desc.name, recipe: desc.recipe, warnings, report: out.report, metrics, residual,
-      seconds: (performance.now() - desc.t0) / 1000, volumeMetrics,
+      scanId: job.scanId, name: desc.name, recipe: desc.recipe, warnings, report: out.report, metrics, residual, seconds, volumeMetrics,
     }, out.image, {}, { id, info });
     // A run that ends after its scan was deleted stores nothing.
     if ((await tx.get(`scan/${job.scanId}`)) === undefined) throw new RecordError('the scan was deleted while its result was being made; nothing was stored');
     for (const [k, v] of entries) await tx.put(k, v);
+    if (desc.jobId) await markJobDone(tx, desc.jobId, meta.id, seconds);
     await tx.commit();
     return meta;
   } catch (err) {
     await tx.abort(err);
     throw err;
   }
+}
+
+/** The queue job marked done (store/jobs.ts changeJob) in the streamed transaction of its result. */
+async function markJobDone(tx: DeferredTx, jobId: string, resultId: string, seconds: number): Promise<void> {
+  const writes: Array<Promise<void>> = [];
+  await changeJob({
+    get: (key) => tx.get(key),
+    put: (key, value) => { writes.push(tx.put(key, value)); },
+  }, jobId, { state: 'done', resultId, seconds });
+  await Promise.all(writes);
 }
 
 /** A comparer with the scan's reference volume, or none (with a warning) when the two do not compare. */

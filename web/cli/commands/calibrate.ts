@@ -4,7 +4,7 @@ import { InputError } from '../../core/errors';
 import { writeScanNrrd } from '../../core/formats/scan-nrrd';
 import { measureMuWater, type Region } from '../../core/preprocess/hu-calibration';
 import { parseArgs, requireString } from '../args';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { loadImage, loadScanWithReport, SCAN_INPUT_OPTIONS } from '../load';
 import type { CommandResult } from './types';
 
@@ -34,6 +34,7 @@ export async function calibrate(argv: string[]): Promise<CommandResult> {
     region = { shape: 'rectangle', x0, y0, x1, y1 };
   } else throw new InputError('calibrate: mark one region, with --circle x,y,r or --rectangle x0,y0,x1,y1 (mm)');
   if ((a.options.scan === undefined) !== (a.options.out === undefined)) throw new InputError('options --scan and --out go together');
+  checkOutputs([['out', a.options.out as string | undefined]]);
   const image = await loadImage(path, 'image');
   const m = measureMuWater(image, region, (a.options['material-hu'] as number | undefined) ?? 0);
   const text = [`mu_water = ${m.muWater.toPrecision(6)} /mm from ${m.pixels} pixels (standard deviation ${m.stdHu.toFixed(1)} HU)`];
@@ -43,6 +44,6 @@ export async function calibrate(argv: string[]): Promise<CommandResult> {
     writes.add(requireString(a, 'out'), await writeScanNrrd({ ...r.scan, muWater: m.muWater }));
     text.push(`wrote ${a.options.out} with this mu_water`);
   }
-  writes.commit();
-  return { json: { ...m, region, out: a.options.out ?? null }, text: text.join('\n') };
+  const warnings = replacedWarnings(writes.commit());
+  return { json: { ...m, region, out: a.options.out ?? null }, text: text.join('\n'), warnings };
 }

@@ -6,6 +6,7 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { VolumeComparison } from '../../core/compare-volume';
 import { presetGeometry } from '../../core/geometry/presets';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { compare } from './compare';
 import { reconstruct } from './reconstruct';
@@ -43,7 +44,7 @@ export async function coneDemo(dir: string): Promise<{ log: string[]; results: R
   for (const m of EXTEND_METHODS) {
     const out = f(`fdk-extend-${m}.nrrd`);
     log.push((await reconstruct([f('cone-scan.nrrd'), '--method', 'fbp', '--filter', 'shepp-logan', '--extend', m, ...grid, '--out', out])).text);
-    rows.push([`extend ${m}`, (await compare([out, '--reference', f('cone-truth.nrrd'), '--fov', '--json'])).json as VolumeComparison]);
+    rows.push([methodAndCorrection({ method: 'fbp', extend: m }).replace(/^FBP/, 'FDK'), (await compare([out, '--reference', f('cone-truth.nrrd'), '--fov', '--json'])).json as VolumeComparison]);
   }
   log.push('', 'FDK of the truncated cone-beam scan (C-arm, FOV cylinder 118 mm radius) against the truth:', table(rows));
   return { log, results: Object.fromEntries(rows) };

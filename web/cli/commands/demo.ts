@@ -1,10 +1,12 @@
 // rimfill demo: the whole job on the built-in demo scan: simulate a truncated scan of the
 // thorax phantom, inspect it, reconstruct it without and with each detector extension, and
 // compare every result with the ground truth and with the measured data.
-import { mkdirSync } from 'node:fs';
+import { accessSync, constants, mkdirSync } from 'node:fs';
+import { InputError } from '../../core/errors';
 import { join } from 'node:path';
 import type { Comparison } from '../../core/compare';
 import type { DataResidual } from '../../core/data-residual';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { EXTEND_METHODS } from '../../core/truncation/extend-methods';
 import { parseArgs } from '../args';
 import { simulate } from './simulate';
@@ -14,6 +16,19 @@ import { inspect } from './inspect';
 import { coneDemo } from './demo-cone';
 import type { CommandResult } from './types';
 
+/** The demo's folder when --dir is not given. */
+export const DEMO_DIR = 'rimfill-demo';
+
+/** Creates the demo's folder (and its parents) and checks it can be written, before any work. */
+function demoFolder(dir: string): void {
+  try {
+    mkdirSync(dir, { recursive: true });
+    accessSync(dir, constants.W_OK);
+  } catch (err) {
+    throw new InputError(`option --dir: cannot create or write the folder ${dir} (${(err as NodeJS.ErrnoException).code ?? String(err)})`);
+  }
+}
+
 export const demoHelp = `rimfill demo [--dir folder] [--json]
   Simulates a truncated scan of the thorax phantom (detector covering about 60% of the body
   width), reconstructs it by FBP without and with each detector extension (${EXTEND_METHODS.join(', ')})
@@ -21,7 +36,7 @@ export const demoHelp = `rimfill demo [--dir folder] [--json]
   measured field of view, cupping) and with the measured data. Then the same for a cone-beam
   C-arm scan of the 3D thorax (demo-cone, binned to 4 mm cells and 2-degree steps): FDK with
   each extension, compared inside and outside the FOV cylinder. Files go to --dir
-  (default rimfill-demo).`;
+  (default ${DEMO_DIR}, which the repository's .gitignore covers when run from its top folder).`;
 
 type Row = { name: string; comparison: Comparison; residual: DataResidual };
 
@@ -45,8 +60,8 @@ function table(rows: Row[]): string {
 
 export async function demo(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, { dir: 'string', json: 'flag' }, 0);
-  const dir = (a.options.dir as string | undefined) ?? 'rimfill-demo';
-  mkdirSync(dir, { recursive: true });
+  const dir = (a.options.dir as string | undefined) ?? DEMO_DIR;
+  demoFolder(dir);
   const f = (name: string) => join(dir, name);
   const log: string[] = [];
   const grid = ['--size', '576', '--pixel', '1'];
@@ -57,11 +72,11 @@ export async function demo(argv: string[]): Promise<CommandResult> {
   log.push((await inspect([f('scan.nrrd')])).text);
   const rows: Row[] = [];
   const jobs: Array<[string, string, string[]]> = [
-    ...EXTEND_METHODS.map((m) => [`truncated, extend ${m}`, 'scan.nrrd', ['--extend', m]] as [string, string, string[]]),
-    ['complete scan', 'scan-complete.nrrd', []],
+    ...EXTEND_METHODS.map((m) => [`truncated scan: ${methodAndCorrection({ method: 'fbp', extend: m })}`, 'scan.nrrd', ['--extend', m]] as [string, string, string[]]),
+    [`complete scan: ${methodAndCorrection({ method: 'fbp' })}`, 'scan-complete.nrrd', []],
   ];
   for (const [name, scan, extra] of jobs) {
-    const out = f(`fbp-${name.replace(/[^a-z]+/g, '-')}.nrrd`);
+    const out = f(`fbp-${scan === 'scan.nrrd' ? `extend-${extra[1]}` : 'complete'}.nrrd`);
     log.push((await reconstruct([f(scan), '--method', 'fbp', '--filter', 'shepp-logan', ...extra, ...grid, '--out', out, '--json'])).text);
     // Every image is judged inside the truncated scan's FOV, and against the data it came from.
     const c = await compare([out, '--reference', f('truth.nrrd'), '--scan', f(scan), '--fov-radius', fov, '--json']);

@@ -9,7 +9,7 @@ import { formatFromName, writeImageFile } from '../../core/formats/write-image';
 import { checkMuWater } from '../../core/preprocess/hu-calibration';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
 import { gatherFiles } from '../gather';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { loadScanWithReport, memoryLimit, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { existsSync, mkdirSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { dirname, join } from 'node:path';
@@ -21,7 +21,9 @@ export const exportHelp = `rimfill export <image file or folder> --to out.nrrd|o
     [--hu | --mu] [--int16] [--window W --level L] [--mu-water X] [--slice k] [--compress] [--json]
   Writes an image (NRRD, MetaImage, raw + JSON, DICOM file or series folder, TIFF) as NRRD or
   MetaImage (float32 mu, float32 HU, or --int16 HU) or as an 8-bit PNG shown at a window
-  (--window width, --level centre, in the written units). HU <-> mu needs mu_water.
+  (--window width, --level centre, in HU: an image in mu is converted with its mu_water or
+  --mu-water; with --mu the window is in 1/mm). A window that misses the image is refused.
+  HU <-> mu needs mu_water.
 rimfill export <image file or folder> --dicom --to folder/ [--description text] [--mu-water X] [--json]
   Writes an image or volume as a DICOM CT image series in folder/ (created; it must hold no
   .dcm files yet): one file per axial slice, 16-bit values with the rescale to HU, positions in
@@ -37,7 +39,7 @@ async function exportScan(path: string, out: string, a: ParsedArgs): Promise<Com
   const r = await loadScanWithReport(path, a);
   const writes = new PendingWrites();
   writes.add(out, await writeScanNrrd(r.scan, Boolean(a.options.compress)));
-  writes.commit();
+  r.warnings.push(...replacedWarnings(writes.commit()));
   const d = r.scan.geometry.detector;
   const views = r.scan.data.length / (d.channels * d.rows);
   return {
@@ -93,6 +95,7 @@ export async function exportCommand(argv: string[]): Promise<CommandResult> {
   if (!path) throw new InputError('export: give the input, e.g. rimfill export image.dcm --to image.png --window 400 --level 40');
   const out = requireString(a, 'to');
   if (a.options.scan && a.options.dicom) throw new InputError('options --scan and --dicom exclude each other (projections are not exported as DICOM)');
+  if (!a.options.dicom) checkOutputs([['to', out]]);
   if (a.options.scan) return exportScan(path, out, a);
   if (a.options.dicom) return exportDicom(path, out, a);
   if (a.options.description !== undefined) throw new InputError('option --description: only with --dicom');
@@ -114,11 +117,11 @@ export async function exportCommand(argv: string[]): Promise<CommandResult> {
   const writes = new PendingWrites();
   const names = w.files.map((f) => join(dirname(out), f.name));
   w.files.forEach((f, i) => { writes.add(names[i], f.bytes); });
-  writes.commit();
+  const replaced = replacedWarnings(writes.commit());
   const g = image.grid;
   return {
     json: { written: names, from: volume.format, nx: g.nx, ny: g.ny, pixelMm: [g.dx, g.dy], clamped: w.clamped },
     text: `wrote ${names.join(' and ')}: ${g.nx} x ${g.ny} pixels from ${volume.format}`,
-    warnings: [...warnings, ...w.warnings],
+    warnings: [...warnings, ...w.warnings, ...replaced],
   };
 }

@@ -4,6 +4,7 @@ import { coneFovHalfHeight } from '../../core/geometry/cone';
 import { fovRadius } from '../../core/geometry/view-vectors';
 import { truncationOverview } from '../../core/truncation/overview';
 import type { TruncationReport } from '../../core/truncation/detect';
+import type { CorrectionAdvice } from '../../core/truncation/recommend';
 import { parseArgs } from '../args';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import type { CommandResult } from './types';
@@ -13,13 +14,14 @@ ${SCAN_INPUT_HELP}
   Reports, per view and per detector side, whether the projection is cut off (edge value
   against a noise-aware threshold), the edge value and outward slope, how far the object
   reaches beyond the edge (water cylinder fit, smoothed across views), the mass each view
-  misses (mass consistency), and a summary. --views lists every view; --json gives it all.
+  misses (mass consistency), a summary, and the correction it suggests for reconstruct
+  (--extend) with the reason. --views lists every view; --json gives it all.
   --mu-water sets mu of water for the fits when the scan records none.`;
 
 const pct = (x: number) => `${(100 * x).toFixed(1)}%`;
 const mm = (x: number) => `${x.toFixed(1)} mm`;
 
-function summaryLines(r: TruncationReport): string[] {
+function summaryLines(r: TruncationReport, advice: CorrectionAdvice): string[] {
   const s = r.summary;
   const lines = [
     `truncated views: ${pct(s.truncatedFraction)} (left edge ${pct(s.leftFraction)}, right edge ${pct(s.rightFraction)}); worst side: ${s.worstSide}`,
@@ -38,6 +40,7 @@ function summaryLines(r: TruncationReport): string[] {
     lines.push(`mass consistency (${form}): ${total}; cut-off views miss up to ${pct(m.maxMissingFraction)} (mean ${pct(m.meanMissingFraction)})`);
   }
   lines.push(`edge threshold ${r.threshold.toPrecision(3)} (noise sigma ${r.noiseSigma.toPrecision(3)}); water fits with mu ${r.muWater} /mm${r.muAssumed ? ' (assumed: the scan records no mu_water)' : ''}`);
+  lines.push(`suggested correction: ${advice.label} (--extend ${advice.extend}): ${advice.reason}`);
   return lines;
 }
 
@@ -56,12 +59,12 @@ export async function inspect(argv: string[]): Promise<CommandResult> {
   const g = scan.geometry;
   const cone = g.kind === 'cone';
   // Cone beams: the row nearest the orbit plane, analysed as a fan-beam scan (the page shows the same).
-  const { row, report: r } = truncationOverview(scan);
+  const { row, report: r, advice } = truncationOverview(scan);
   const text = [
     `${g.kind} beam, ${g.detector.shape} detector, ${g.detector.channels} channels${cone ? ` x ${g.detector.rows} rows (row ${row} analysed, the nearest to the orbit plane)` : ''}, ${r.views.length} views`,
     `measured field of view: radius ${fovRadius(g).toFixed(1)} mm${cone ? `, half height ${coneFovHalfHeight(g).toFixed(1)} mm on the axis` : ''}`,
-    ...summaryLines(r),
+    ...summaryLines(r, advice),
     ...(a.options.views ? viewLines(r) : []),
   ].join('\n');
-  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...(cone ? { analysedRow: row } : {}), ...r }, text, warnings };
+  return { json: { geometry: g, fovRadiusMm: fovRadius(g), ...(cone ? { analysedRow: row } : {}), ...r, recommendation: advice }, text, warnings };
 }

@@ -7,7 +7,7 @@ import { writeImageNrrd } from '../../core/formats/image-nrrd';
 import { chooseGrid } from '../../core/recipe/grid';
 import { parseArgs, positiveNumber, type ParsedArgs } from '../args';
 import { openWorkspace } from '../engine-node';
-import { PendingWrites } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
 import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
 import { PRIOR_OPTIONS, resolvePrior } from '../prior-source';
 import { progressLine } from '../progress';
@@ -52,6 +52,7 @@ export async function priorCheck(argv: string[]): Promise<CommandResult> {
   const path = a.positional[0];
   if (!path) throw new InputError('prior-check: give the scan file, e.g. rimfill prior-check scan.nrrd --model net.onnx --model-info net.json');
   if (a.options.out !== undefined && a.options.model === undefined) throw new InputError('option --out: writes the network prior, so it needs --model (an image given with --prior is already a file)');
+  checkOutputs([['out', a.options.out as string | undefined], ['residual', a.options.residual as string | undefined]]);
   const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
   const grid = chooseGrid(scan, gridOption(a));
   const ws = await openWorkspace(a.options.workers as number | undefined);
@@ -75,9 +76,9 @@ export async function priorCheck(argv: string[]): Promise<CommandResult> {
       writes.add(a.options.residual as string, await writeResidualNrrd(scan, report));
       written.push(`${a.options.residual} (residual sinogram)`);
     }
-    writes.commit();
+    const replaced = replacedWarnings(writes.commit());
     const seconds = (performance.now() - t0) / 1000;
-    const warnings = [...readWarnings, ...src.warnings, ...report.warnings];
+    const warnings = [...readWarnings, ...src.warnings, ...report.warnings, ...replaced];
     const source = src.network ? `network ${a.options.model}${src.model?.name ? ` (${src.model.name})` : ''}` : `image ${a.options.prior}`;
     return {
       json: {

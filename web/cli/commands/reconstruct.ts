@@ -19,9 +19,10 @@ import { describeResult } from '../../core/recipe/describe-result';
 import type { KnowledgeReport } from '../../core/recipe/knowledge-report';
 import { addKnowledgeFields, KNOWLEDGE_HELP, KNOWLEDGE_OPTIONS, knowledgeLines, knowledgeMasks } from '../knowledge-options';
 import { runRecipe } from '../../core/recipe/run';
+import { methodAndCorrection } from '../../core/recipe/label';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
-import { PendingWrites, StreamedFile } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings, StreamedFile } from '../io';
 import { priorConsistency } from '../prior-consistency';
 import { memoryLimit, openScanInput, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS, type ScanInput } from '../load';
 import { openWorkspace } from '../engine-node';
@@ -93,8 +94,9 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('reconstruct: give the scan file, e.g. rimfill reconstruct scan.nrrd --method fbp --out image.nrrd');
-  const recipe = recipeFromArgs(a);
   const out = requireString(a, 'out');
+  checkOutputs([['out', out]]);
+  const recipe = recipeFromArgs(a);
   const input = await openScanInput(path, a);
   const g = input.source.geometry;
   if (a.options.hu && !input.source.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
@@ -132,16 +134,16 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     if (r.volume) {
       const v = r.volume;
       writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu', description } : { ...v, description }));
-      writes.commit();
+      readWarnings.push(...replacedWarnings(writes.commit()));
       return volumeResult(out, recipe, v, seconds, r.report, r.warnings, readWarnings, facts, knowledgeText);
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
-    writes.commit();
+    readWarnings.push(...replacedWarnings(writes.commit()));
     const grid = image.grid;
     return {
       json: { out, recipe, grid, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...facts, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
-      text: `wrote ${out}: ${grid.nx} x ${grid.ny} pixels of ${grid.dx.toFixed(3)} mm, ${recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
+      text: `wrote ${out}: ${grid.nx} x ${grid.ny} pixels of ${grid.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };
@@ -176,9 +178,9 @@ async function fdkToFile(
         };
       },
     });
-    file.commit();
+    const replaced = replacedWarnings(file.commit());
     const seconds = (performance.now() - t0) / 1000;
-    return volumeResult(out, recipe, info!, seconds, r.report, r.warnings, input.warnings(), facts);
+    return volumeResult(out, recipe, info!, seconds, r.report, r.warnings, [...input.warnings(), ...replaced], facts);
   } catch (err) {
     file.discard();
     throw err;
@@ -194,7 +196,7 @@ function volumeResult(
   const reduction = facts.reduction as { description: string } | undefined;
   return {
     json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report, ...facts, warnings },
-    text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${recipe.method === 'fbp' ? 'FDK' : recipe.method}${recipe.extend && recipe.extend !== 'none' ? ` with ${recipe.extend} extension` : ''}${reduction ? ` from the scan with ${reduction.description}` : ''} in ${seconds.toFixed(2)} s${iterationSummary(report)}${knowledgeText}`,
+    text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>).replace(/^FBP/, 'FDK')}${reduction ? ` from the scan with ${reduction.description}` : ''} in ${seconds.toFixed(2)} s${iterationSummary(report)}${knowledgeText}`,
     warnings: [...readWarnings, ...warnings],
   };
 }

@@ -91,8 +91,10 @@ export async function encodePngGrey(grey: Uint8Array, width: number, height: num
   return out;
 }
 
-/** An image as PNG at a window (values as stored: HU windows for HU images). */
-export async function writePng(image: Image2D, window: DisplayWindow): Promise<{ bytes: Uint8Array; nonFinite: number }> {
+/** An image as PNG at a window (values as stored: HU windows for HU images), with the number of grey levels used. */
+export async function writePng(image: Image2D, window: DisplayWindow): Promise<{ bytes: Uint8Array; nonFinite: number; levels: number }> {
   const { grey, nonFinite } = windowToGrey(image, window);
-  return { bytes: await encodePngGrey(grey, image.grid.nx, image.grid.ny), nonFinite };
+  const used = new Uint8Array(256);
+  for (const g of grey) used[g] = 1;
+  return { bytes: await encodePngGrey(grey, image.grid.nx, image.grid.ny), nonFinite, levels: used.reduce((n, u) => n + u, 0) };
 }

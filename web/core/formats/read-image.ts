@@ -137,7 +137,9 @@ export async function readImageFile(files: readonly NamedBytes[], options: Image
 export async function readImage2D(files: readonly NamedBytes[], options: ImageFileOptions & { slice?: number; muWater?: number } = {}): Promise<{ image: Image2D; warnings: string[] }> {
   const { volume, warnings } = await readImageFile(files, options);
   if (volume.nz > 1 && options.slice === undefined) {
-    throw new InputError(`image: the ${volume.format} data hold ${volume.nz} slices; choose one, 0 to ${volume.nz - 1} (--slice on the command line)`);
+    throw new InputError(`image: the ${volume.format} data hold ${volume.nz} slices`, {
+      remedy: { cli: `choose one with --slice (0 to ${volume.nz - 1})`, page: `give the slice to use (0 to ${volume.nz - 1}) beside the file` },
+    });
   }
   return { image: imageAsMu(volumeSlice(volume, options.slice ?? 0), options.muWater), warnings };
 }

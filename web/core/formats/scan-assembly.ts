@@ -57,7 +57,11 @@ export interface ScanPlan {
 export function planScan(p: ProjectionHeader, o: ScanAssemblyOptions = {}): ScanPlan {
   let geometry = o.geometry;
   if (!geometry) {
-    if (p.geometry === undefined) throw new InputError(`scan (${p.format}): the file carries no geometry; give one with --geometry geom.json`);
+    if (p.geometry === undefined) {
+      throw new InputError(`scan (${p.format}): the file carries no geometry`, {
+        remedy: { cli: 'give one with --geometry geom.json', page: 'add its geometry (a .json file) to the same import' },
+      });
+    }
     geometry = validateGeometry(p.geometry);
   }
   checkGeometryMatchesData(geometry, p.channels, p.rows, p.views);

@@ -1,8 +1,14 @@
 // Images and volumes as read from files: a 3D grid (one slice for 2D images) in mm, values in
 // 1/mm (mu), HU, or as stored when the file does not say.
-import { InputError } from '../errors';
+import { InputError, type Remedy } from '../errors';
 import { checkGrid, huToMu, type Image2D } from '../image';
 import { checkVolumeGrid, type Volume } from '../volume';
+
+/** How to give mu_water for HU data. */
+export const MU_WATER_REMEDY: Remedy = {
+  cli: 'give it with --mu-water',
+  page: "set the scan's mu of water first (HU calibration, in the Images tab)",
+};
 
 export type VolumeQuantity = 'mu' | 'hu' | 'unknown';
 
@@ -51,7 +57,7 @@ export function volumeSlice(v: ImageVolume, k: number): Image2D {
 export function imageAsMu(image: Image2D, muWater?: number): Image2D {
   if (image.quantity === 'mu') return muWater !== undefined ? { ...image, muWater } : image;
   const mw = muWater ?? image.muWater;
-  if (!(mw && mw > 0)) throw new InputError('image: values are HU but mu_water is unknown; give it with --mu-water');
+  if (!(mw && mw > 0)) throw new InputError('image: values are HU but mu_water is unknown', { remedy: MU_WATER_REMEDY });
   return { ...image, data: huToMu(image.data, mw), quantity: 'mu', muWater: mw };
 }
 
@@ -129,7 +135,7 @@ export function asMuVolume(v: ImageVolume, muWater?: number): Volume {
   const mw = muWater ?? v.muWater;
   let data = v.data;
   if (v.quantity === 'hu') {
-    if (!(mw && mw > 0)) throw new InputError(`volume: the ${v.format} values are HU but mu_water is unknown; give it with --mu-water`);
+    if (!(mw && mw > 0)) throw new InputError(`volume: the ${v.format} values are HU but mu_water is unknown`, { remedy: MU_WATER_REMEDY });
     data = huToMu(v.data, mw);
   }
   return { grid, data, quantity: 'mu', muWater: mw, fovRadius: v.fovRadius, fovHalfHeight: v.fovHalfHeight, ...(v.description !== undefined ? { description: v.description } : {}) };

@@ -7,13 +7,16 @@ import { writeMetaImage } from './metaimage';
 import { baseName, type NamedBytes } from './named-file';
 import { writtenAnatomicalOrientation } from './patient-frame';
 import { checkWindow, writePng, type DisplayWindow } from './png';
-import { imageAsVolume, toLps } from './volume';
+import { imageAsVolume, MU_WATER_REMEDY, toLps } from './volume';
 
 export type ImageFileFormat = 'nrrd' | 'mha' | 'mhd' | 'png';
 
 export interface ImageWriteOptions {
   format: ImageFileFormat;
-  /** Values written: mu (1/mm) or HU. Default: as the image holds them. */
+  /**
+   * Values written: mu (1/mm) or HU. Default: as the image holds them; for PNG, HU (the window
+   * is then in HU, as the trade gives windows), converted with the image's mu_water.
+   */
   quantity?: 'mu' | 'hu';
   /** Sample type; int16 only for HU (rounded to whole HU, clamped to -32768..32767). */
   sampleType?: 'float32' | 'int16';
@@ -36,10 +39,17 @@ export function formatFromName(name: string): ImageFileFormat {
   return m[1].toLowerCase() as ImageFileFormat;
 }
 
-function inQuantity(image: Image2D, q: 'mu' | 'hu'): Image2D {
+function inQuantity(image: Image2D, q: 'mu' | 'hu', png: boolean): Image2D {
   if (image.quantity === q) return image;
   const mw = image.muWater;
-  if (!(mw && mw > 0)) throw new InputError(`cannot write ${q === 'hu' ? 'HU' : 'mu'}: mu_water is unknown; give it with --mu-water`);
+  if (!(mw && mw > 0)) {
+    if (png) {
+      throw new InputError('PNG: the window is in HU, but the image holds mu (1/mm) and its mu_water is unknown', {
+        remedy: { cli: 'give --mu-water X, or give the window in 1/mm with --mu', page: "set the scan's mu of water first" },
+      });
+    }
+    throw new InputError(`cannot write ${q === 'hu' ? 'HU' : 'mu'}: mu_water is unknown`, { remedy: MU_WATER_REMEDY });
+  }
   if (q === 'hu') return { ...image, data: muToHu(image.data, mw), quantity: 'hu' };
   const s = mw / 1000;
   return { ...image, data: image.data.map((h) => mw + h * s), quantity: 'mu' };
@@ -54,20 +64,43 @@ function countInt16Overflow(data: Float32Array): number {
   return n;
 }
 
+/**
+ * A PNG of one grey level shows nothing. When the image itself is uniform, say so; when it is
+ * not, the window misses it: refuse, with the image's range, rather than write a blank picture.
+ */
+function onePictureLevel(image: Image2D, w: DisplayWindow, levels: number): string[] {
+  if (levels > 1) return [];
+  let lo = Infinity, hi = -Infinity;
+  for (const v of image.data) {
+    if (!Number.isFinite(v)) continue;
+    lo = Math.min(lo, v);
+    hi = Math.max(hi, v);
+  }
+  const unit = image.quantity === 'hu' ? 'HU' : '/mm';
+  const show = (v: number) => String(image.quantity === 'hu' ? Math.round(v * 10) / 10 : Number(v.toPrecision(4)));
+  if (!(hi > lo)) return [`the image is uniform (${lo === Infinity ? 'no finite value' : `${show(lo)} ${unit}`}): the picture is one grey level`];
+  throw new InputError(`PNG: the window ${show(w.level - w.width / 2)} to ${show(w.level + w.width / 2)} ${unit} misses the image, which holds ${show(lo)} to ${show(hi)} ${unit}: ` +
+    'every pixel would be drawn the same grey', { remedy: { cli: 'choose --window and --level within that range', page: 'choose a window within that range' } });
+}
+
 /** Writes an image; `name` gives the base name of the files. */
 export async function writeImageFile(image: Image2D, name: string, o: ImageWriteOptions): Promise<ImageWriteResult> {
-  const out = inQuantity(image, o.quantity ?? image.quantity);
+  const png = o.format === 'png';
+  const out = inQuantity(image, o.quantity ?? (png ? 'hu' : image.quantity), png);
   const type = o.sampleType ?? 'float32';
-  if (type === 'int16' && out.quantity !== 'hu') throw new InputError('int16 output holds whole HU: write HU (--hu) or float32');
+  if (type === 'int16' && out.quantity !== 'hu') {
+    throw new InputError('int16 output holds whole HU', { remedy: { cli: 'write HU (--hu) or float32', page: 'write HU, or float32' } });
+  }
   const warnings: string[] = [];
   const clamped = type === 'int16' ? countInt16Overflow(out.data) : 0;
   if (clamped) warnings.push(`${clamped} pixels lie outside the int16 range (or are not finite) and were clamped`);
   const base = baseName(name).replace(/\.(nrrd|mha|mhd|raw|png)$/i, '');
   if (o.format === 'png') {
-    if (!o.window) throw new InputError('PNG output needs a window (--window W --level L)');
-    const png = await writePng(out, checkWindow(o.window));
-    if (png.nonFinite) warnings.push(`${png.nonFinite} pixels are not finite numbers and were drawn black`);
-    return { files: [{ name: `${base}.png`, bytes: png.bytes }], clamped: png.nonFinite, warnings };
+    if (!o.window) throw new InputError('PNG output needs a window', { remedy: { cli: 'give --window W --level L', page: 'choose a window' } });
+    const picture = await writePng(out, checkWindow(o.window));
+    if (picture.nonFinite) warnings.push(`${picture.nonFinite} pixels are not finite numbers and were drawn black`);
+    warnings.push(...onePictureLevel(out, o.window, picture.levels));
+    return { files: [{ name: `${base}.png`, bytes: picture.bytes }], clamped: picture.nonFinite, warnings };
   }
   if (o.format === 'nrrd') return { files: [{ name: `${base}.nrrd`, bytes: await writeImageNrrd(out, o.compress, type) }], clamped, warnings };
   const keys: Record<string, string> = { RimfillQuantity: out.quantity };

@@ -9,15 +9,21 @@ const MAX_CHANNELS = 100_000;
 const MAX_ROWS = 100_000;
 const MAX_VIEWS = 1_000_000;
 
+/** Marks a non-finite number inside JSON text (JSON itself would write null). */
+const NOT_FINITE = '~not-finite~';
+
 function show(v: Json): string {
   if (typeof v === 'string') return JSON.stringify(v);
   if (v === undefined) return 'nothing';
-  const s = JSON.stringify(v);
+  // 1e999 in a JSON file reads as Infinity: say so rather than print JSON's "null".
+  if (typeof v === 'number' && !Number.isFinite(v)) return `${v} (not a finite number)`;
+  const s = JSON.stringify(v, (_, x) => (typeof x === 'number' && !Number.isFinite(x) ? `${NOT_FINITE}${x}` : x))
+    ?.replace(new RegExp(`"${NOT_FINITE}(-?Infinity|NaN)"`, 'g'), '$1 (not a finite number)');
   return s === undefined ? String(v) : s.length > 60 ? `${s.slice(0, 57)}...` : s;
 }
 
 function fail(field: string, got: Json, expected: string): never {
-  throw new InputError(`geometry.${field}: got ${show(got)}, expected ${expected}`);
+  throw new InputError(`geometry.${field}: got ${show(got)}, expected ${expected}`, { field: `geometry.${field}` });
 }
 
 function isObject(v: Json): v is Record<string, Json> {
@@ -140,7 +146,7 @@ export function validateGeometry(g: Json): Geometry {
   if (kind !== 'parallel') {
     const r = positive(g.sourceIsocenter, 'sourceIsocenter', 'mm');
     const d = positive(g.sourceDetector, 'sourceDetector', 'mm');
-    if (d <= r) fail('sourceDetector', d, `a distance greater than sourceIsocenter (${r} mm)`);
+    if (d <= r) fail('sourceDetector', d, `a distance greater than the source to isocentre distance (${r} mm)`);
     out.sourceIsocenter = r;
     out.sourceDetector = d;
     if (detector.shape === 'curved') {

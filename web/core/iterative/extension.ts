@@ -45,7 +45,9 @@ export function extendToCover(g: Geometry, radius: number): Extension {
   const right = side(reach - last);
   const total = g.detector.channels + left + right;
   if (total > MAX_EXTENDED_CHANNELS) {
-    throw new InputError(`reconstruction grid: covering it needs an extended detector of ${total} channels, more than ${MAX_EXTENDED_CHANNELS}; use a smaller grid (--size/--pixel) or a coarser detector`);
+    throw new InputError(`reconstruction grid: covering it needs an extended detector of ${total} channels, more than ${MAX_EXTENDED_CHANNELS}`, {
+      remedy: { cli: 'use a smaller grid (--size/--pixel) or a coarser detector', page: 'choose a smaller image grid, or a coarser detector' },
+    });
   }
   return { left, right, geometry: extendDetector(g, left, right) };
 }

@@ -7,8 +7,24 @@ import { resampleTrilinear, sameVolumeGrid } from '../resample-volume';
 import type { Volume, VolumeGrid } from '../volume';
 import { discMask, type ReconGrid } from './space';
 
+/** Values of a prior below zero, which no material has (noise or artefacts of the prior). */
+export interface NegativeValues {
+  /** Pixels or voxels below zero (beyond float rounding). */
+  count: number;
+  /** The lowest value, 1/mm. */
+  lowest: number;
+  what: 'pixels' | 'voxels';
+}
+
+/** A prior on the reconstruction grid (mu, 1/mm), with notes on what was done to it and its negative values. */
+export interface PriorOnGrid {
+  data: Float32Array;
+  warnings: string[];
+  negative?: NegativeValues;
+}
+
 /** The prior on the reconstruction grid (mu, 1/mm), with notes about what was done to it. */
-export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array): { data: Float32Array; warnings: string[] } {
+export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array): PriorOnGrid {
   const warnings: string[] = [];
   let mu = prior.data;
   if (prior.quantity === 'hu') {
@@ -25,11 +41,11 @@ export function priorOnGrid(prior: Image2D, grid: ImageGrid, support: Uint8Array
     const uncovered = uncoveredPixels(g, grid, support);
     if (uncovered > 0) warnings.push(`the prior does not cover ${uncovered} pixels of the reconstruction support; they count as 0 (air) there`);
   }
-  return { data, warnings: [...warnings, ...negativeNote(data, 'pixels')] };
+  return { data, warnings, negative: negativeValues(data, 'pixels') };
 }
 
 /** The prior volume (mu, 1/mm) on the reconstruction volume's grid (trilinear where they differ). */
-export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): { data: Float32Array; warnings: string[] } {
+export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): PriorOnGrid {
   if (prior.quantity === 'hu') {
     if (!(prior.muWater && prior.muWater > 0)) throw new InputError('prior: values are HU but its mu_water is unknown');
     prior = { ...prior, data: huToMu(prior.data, prior.muWater), quantity: 'mu' };
@@ -37,26 +53,36 @@ export function priorVolumeOnGrid(prior: Volume, grid: VolumeGrid): { data: Floa
   let bad = 0;
   for (const v of prior.data) if (!Number.isFinite(v)) bad++;
   if (bad > 0) throw new InputError(`prior: ${bad} of ${prior.data.length} voxels are not finite numbers, expected attenuation values`);
-  if (sameVolumeGrid(prior.grid, grid)) return { data: Float32Array.from(prior.data), warnings: negativeNote(prior.data, 'voxels') };
+  if (sameVolumeGrid(prior.grid, grid)) return { data: Float32Array.from(prior.data), warnings: [], negative: negativeValues(prior.data, 'voxels') };
   const g = prior.grid;
   const data = resampleTrilinear(prior.data, g, grid);
-  return { data, warnings: [`prior resampled (trilinear) from ${g.nx} x ${g.ny} x ${g.nz} voxels onto the reconstruction volume`, ...negativeNote(data, 'voxels')] };
+  return { data, warnings: [`prior resampled (trilinear) from ${g.nx} x ${g.ny} x ${g.nz} voxels onto the reconstruction volume`], negative: negativeValues(data, 'voxels') };
 }
 
 /** Negative values above this (1/mm, about -0.05 HU) are float rounding of zero (resampling, HU conversion), not worth a note. */
 const ROUNDING_OF_ZERO = -1e-6;
 
 /**
- * A note on negative values. They are kept (clipping would bias the prior's projections); the
- * first non-negative update clips them in the image.
+ * Negative values of a prior, if any. They are kept (clipping would bias the prior's
+ * projections); the first non-negative update clips them in the image.
  */
-function negativeNote(data: Float32Array, what: 'pixels' | 'voxels'): string[] {
-  let negative = 0, lowest = 0;
+function negativeValues(data: Float32Array, what: 'pixels' | 'voxels'): NegativeValues | undefined {
+  let count = 0, lowest = 0;
   for (const v of data) {
-    if (v < ROUNDING_OF_ZERO) negative++;
+    if (v < ROUNDING_OF_ZERO) count++;
     lowest = Math.min(lowest, v);
   }
-  return negative > 0 ? [`prior: ${negative} ${what} have negative attenuation (lowest ${lowest.toPrecision(3)} /mm)`] : [];
+  return count > 0 ? { count, lowest, what } : undefined;
+}
+
+/**
+ * What negative values in a prior the user gave mean, for a warning. (A prior the method makes
+ * itself, FBP of the truncated scan, always has a few from noise and streaks: that goes in the
+ * report only.)
+ */
+export function negativePriorWarning(n: NegativeValues, clipped: boolean): string {
+  return `prior: ${n.count} ${n.what} have negative attenuation (lowest ${n.lowest.toPrecision(3)} /mm), which no material has: noise or artefacts in the prior image. ` +
+    `They are kept in its projections beyond the detector${clipped ? ' and set to 0 in the result' : ''}`;
 }
 
 /** Support pixels whose centre lies outside the prior's grid. */

@@ -1,7 +1,7 @@
 // The report of an iterative run (RecipeResult.report, printed by --json): convergence history,
 // measured-data residual per view, and for the prior-guided method how far the result departs
 // from the prior (image inside / outside the FOV, and projections on the unmeasured channels).
-import { departureFromPrior } from './prior';
+import { departureFromPrior, type NegativeValues } from './prior';
 import { perViewSquares, type Problem } from './problem';
 import type { IterativeMethod, IterativeOptions } from './options';
 import type { SolveOutcome } from './solve';
@@ -19,6 +19,8 @@ export interface ReportInputs {
   image: Float32Array;
   /** The prior on the grid (prior-guided method). */
   prior?: Float32Array;
+  /** Negative values of the prior, when it has some. */
+  priorNegative?: NegativeValues;
   fov: number;
   muWater?: number;
 }
@@ -59,6 +61,7 @@ export function iterativeReport(r: ReportInputs): Record<string, unknown> {
     report.prior = {
       departure: departureFromPrior(r.image, r.prior, grid, support, r.fov, r.muWater),
       unmeasuredPerViewRms: unpermute(away.map((s) => (unmeasured ? Math.sqrt(s / (rows * unmeasured)) : 0)), plan.permutation),
+      negative: r.priorNegative ?? null,
     };
   }
   return report;

@@ -16,7 +16,7 @@ import type { Scan } from '../scan';
 import { axialSlice, sliceAt, type Volume } from '../volume';
 import { resolveOptions, type IterativeMethod } from './options';
 import { OsSart } from './os-sart';
-import { priorOnGrid, priorVolumeOnGrid } from './prior';
+import { negativePriorWarning, priorOnGrid, priorVolumeOnGrid, type PriorOnGrid } from './prior';
 import { checkScanData, perViewSquares, setUpProblem, supportMask, type Problem } from './problem';
 import { iterativeReport } from './report';
 import { solve } from './solve';
@@ -137,7 +137,7 @@ export async function runIterative(
   const subsets = Math.min(o.subsets, nViews);
   if (subsets < o.subsets) warnings.push(`subsets: ${o.subsets} asked, the scan has ${nViews} views; using ${subsets}`);
   const problem = setUpProblem(scan, grid, support, subsets, method === 'prior' ? o.priorWeight : 0);
-  let prior: { data: Float32Array; warnings: string[] } | undefined;
+  let prior: PriorOnGrid | undefined;
   if (obtained && isVolumeGrid(grid)) {
     if (!obtained.volume) throw new InputError(`prior: the recipe "${recipe.prior?.source === 'recipe' ? recipe.prior.recipe.method : 'image'}" gave no volume for this cone-beam scan`);
     prior = priorVolumeOnGrid(obtained.volume, grid);
@@ -145,6 +145,7 @@ export async function runIterative(
     prior = priorOnGrid(obtained.image, grid as ImageGrid, support);
   }
   if (prior) warnings.push(...prior.warnings);
+  if (prior?.negative && obtained?.given) warnings.push(negativePriorWarning(prior.negative, o.nonNegative !== false));
   const fov = fovRadius(scan.geometry);
   const reach = Math.min(grid.nx * grid.dx, grid.ny * grid.dy) / 2;
   if (method === 'prior' && reach < 1.2 * fov) {
@@ -167,7 +168,7 @@ export async function runIterative(
   const image = await ws.read(x);
   const report = iterativeReport({
     method, options: { ...o, subsets }, problem, outcome, startResidual, finalSino: await ws.read(sart.corr), image,
-    prior: prior?.data, fov, muWater: scan.muWater,
+    prior: prior?.data, priorNegative: prior?.negative, fov, muWater: scan.muWater,
   });
   report.timings = { setup: t1 - t0, iterations: t2 - t1, total: now() - t0 };
   const bad = image.reduce((n, v) => n + (Number.isFinite(v) ? 0 : 1), 0);

@@ -61,8 +61,12 @@ export function describeIntensityReport(r: IntensityReport): string[] {
 function checkOptions(o: IntensityCorrection, frame: number): void {
   checkFrame(o.dark, frame, 'dark frame');
   checkFrame(o.flat, frame, 'flat frame');
-  if (o.flat === undefined && o.i0 === undefined) throw new InputError('intensity data need a flat frame (--flat) or the unattenuated level (--i0)');
-  if (o.flat !== undefined && o.i0 !== undefined) throw new InputError('give either a flat frame or --i0, not both');
+  if (o.flat === undefined && o.i0 === undefined) {
+    throw new InputError('intensity data need a flat frame or the unattenuated level (i0)', {
+      remedy: { cli: 'give --flat F or --i0 N', page: 'add the flat-field frames (files named flat…) to the same import' },
+    });
+  }
+  if (o.flat !== undefined && o.i0 !== undefined) throw new InputError('intensity data: give either a flat frame or the unattenuated level (i0), not both');
   if (o.i0 !== undefined && !(o.i0 > 0 && Number.isFinite(o.i0))) throw new InputError(`i0: got ${o.i0}, expected a positive unattenuated intensity`);
   if (o.saturation !== undefined && !(o.saturation > 0)) throw new InputError(`saturation: got ${o.saturation}, expected a positive level`);
   if (o.minTransmission !== undefined && !(o.minTransmission > 0 && o.minTransmission < 1)) {

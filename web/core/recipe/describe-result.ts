@@ -1,7 +1,7 @@
 // What made a result, in words, for files that leave Rimfill (DICOM series description and
 // derivation, NRRD rimfill.description): the recipe label, and the knowledge it used.
 import { describeOutline, describeRegion, knowledgePhrase, type Knowledge } from '../knowledge';
-import { recipeSummary } from './fields';
+import { recipeLabel } from './label';
 
 export interface ResultWords {
   /** The recipe label, with the knowledge in short ("..., 1 known region + outline"). */
@@ -12,7 +12,7 @@ export interface ResultWords {
 
 /** The words for a recipe as run. */
 export function describeResult(recipe: Record<string, unknown>): ResultWords {
-  const summary = recipeSummary(recipe);
+  const summary = recipeLabel(recipe);
   const k = recipe.knowledge as Knowledge | undefined;
   const phrase = knowledgePhrase(k);
   // The label may already name the knowledge (when its field is described for forms).

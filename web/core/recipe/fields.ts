@@ -7,7 +7,6 @@ import { FILTER_WINDOWS, MAX_BAND_LIMIT } from '../recon/filter-design';
 import { EXTEND_METHODS } from '../truncation/extend-methods';
 import { DEFAULT_PRIOR_RECIPE, isIterativeMethod, resolveOptions, type IterativeOptions } from '../iterative/options';
 import { DEFAULT_RECIPE, METHODS } from './recipe';
-import { describeReduction, isIdentity, type Reduction } from '../reduction';
 
 export interface FieldChoice {
   value: string;
@@ -178,37 +177,4 @@ export function describeRecipeFields(): RecipeField[] {
     }
   }
   return [...RECIPE_FIELDS, ...extra];
-}
-
-function formatValue(f: RecipeField, v: unknown): string {
-  if (f.key === 'extend') return `${String(v)} extension`;
-  if (f.key === 'prior') return `prior: ${priorLabel(v)}`;
-  if (f.kind === 'choice') return f.key === 'method' ? String(v).toUpperCase() : String(v);
-  if (f.key === 'bandLimit') return `band limit ${String(v)} lp/cm`;
-  if (f.kind === 'grid') {
-    const g = v as { size: number; pixel: number } | undefined;
-    return g ? `${g.size} px × ${g.pixel} mm` : 'automatic grid';
-  }
-  return `${f.key} ${String(v)}`;
-}
-
-/** A prior source in words: its short form, or the recipe or image it names. */
-function priorLabel(v: unknown): string {
-  if (typeof v === 'string') return choiceLabel(v);
-  const p = v as { source?: string; name?: string; recipe?: { method?: string; extend?: string } } | undefined;
-  if (p?.source === 'recipe' && p.recipe) return choiceLabel(p.recipe.extend && p.recipe.extend !== 'none' ? `${p.recipe.method}:${p.recipe.extend}` : String(p.recipe.method));
-  if (p?.source === 'image') return p.name ? `“${p.name}”` : 'image';
-  return 'default';
-}
-
-/** A one-line description of a recipe, e.g. "FBP, hann, band limit 5 lp/cm, 576 px × 1 mm". */
-export function recipeSummary(recipe: Record<string, unknown>): string {
-  const parts = describeRecipeFields()
-    .filter((f) => (f.appliesTo ? f.appliesTo(recipe) : true) && (recipe[f.key] !== undefined || f.kind === 'grid'))
-    .filter((f) => !(f.key === 'extend' && recipe.extend === 'none'))
-    .map((f) => formatValue(f, recipe[f.key]));
-  const v = recipe.volume as { slices?: number; spacing?: number } | undefined;
-  if (v?.slices !== undefined) parts.push(`${v.slices} slices × ${v.spacing} mm`);
-  if (recipe.reduce && !isIdentity(recipe.reduce as Reduction)) parts.push(describeReduction(recipe.reduce as Reduction));
-  return parts.join(', ');
 }

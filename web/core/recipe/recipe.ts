@@ -88,7 +88,7 @@ export function validateRecipe(input: unknown): Recipe {
   }
   const knowledge = validateKnowledge(r.knowledge);
   if (knowledge) out.knowledge = knowledge;
-  if (out.extend === 'outline' && !knowledge?.outline) throw new InputError('recipe extend: got "outline", which extends from the object\'s outline; give the outline too (knowledge.outline, --outline)');
+  if (out.extend === 'outline' && !knowledge?.outline) throw new InputError('recipe extend: got "outline", which extends from the object\'s outline', { field: 'extend', remedy: { cli: 'give the outline too (--outline)', page: 'give the outline too (draw it or give an ellipse in the knowledge panel)' } });
   Object.assign(out, validateIterativeFields(r, validateRecipe));
   return out;
 }

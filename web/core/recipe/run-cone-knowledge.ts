@@ -28,7 +28,7 @@ export async function runConeKnowledge(ws: Workspace, scan: Scan, recipe: Recipe
     throw new InputError(`recipe extend: got "${extend}", but known regions and outlines on cone-beam scans adjust the water cylinder extension; choose water or outline`);
   }
   const muWater = scan.muWater;
-  if (!(muWater && muWater > 0)) throw new InputError('knowledge: known values are in HU and the scan has no mu of water; calibrate the scan (or give --mu-water) first');
+  if (!(muWater && muWater > 0)) throw new InputError('knowledge: known values are in HU and the scan has no mu of water', { field: 'knowledge', remedy: { cli: 'calibrate the scan (rimfill calibrate) or give --mu-water first', page: "set the scan's mu of water first (HU calibration, in the Images tab)" } });
   const knowledge = recipe.knowledge ?? {};
   const part = (from: number, to: number): RunHooks => ({ signal: hooks.signal, onProgress: (f, s) => hooks.onProgress?.(from + (to - from) * f, s) });
   const base = await planConeExtension(scan, 'water', part(0, 0.05));

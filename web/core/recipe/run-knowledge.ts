@@ -31,7 +31,7 @@ export async function runKnowledgeFbp(ws: Workspace, scan: Scan, recipe: Recipe,
     throw new InputError('recipe extend: got "none", but known regions and outlines work by adjusting a detector extension; choose water (the usual one), edge, mirror, cosine or outline');
   }
   const muWater = scan.muWater;
-  if (!(muWater && muWater > 0)) throw new InputError('knowledge: known values are in HU and the scan has no mu of water; calibrate the scan (or give --mu-water) first');
+  if (!(muWater && muWater > 0)) throw new InputError('knowledge: known values are in HU and the scan has no mu of water', { field: 'knowledge', remedy: { cli: 'calibrate the scan (rimfill calibrate) or give --mu-water first', page: "set the scan's mu of water first (HU calibration, in the Images tab)" } });
   const method = extend === 'outline' ? 'water' : extend;
   const analysis = analyseEdges(scan);
   const grid = chooseGrid(scan, recipe.grid, objectRadius(analysis));

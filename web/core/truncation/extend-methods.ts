@@ -21,6 +21,15 @@ export const EXTEND_CODES: Record<ExtendMethod, number> = { none: 0, edge: 1, mi
 /** Floats per view in the kernel's parameter table (assembly/extend.ts EXTEND_PARAMS). */
 export const EXTEND_PARAMS = 8;
 
+/** Each correction in a few plain words, for result labels in the page, reports and the CLI. */
+export const EXTEND_WORDS: Record<ExtendMethod, string> = {
+  none: 'no correction',
+  edge: 'edge value',
+  mirror: 'mirror',
+  water: 'water cylinder',
+  cosine: 'cosine taper',
+};
+
 /** One line per method for help texts, the page and reports. */
 export const EXTEND_DESCRIPTIONS: Record<ExtendMethod, string> = {
   none: 'no extension: the data stop at the detector edge (zero beyond)',

@@ -7,6 +7,7 @@ import type { Scan } from '../scan';
 import type { Geometry } from '../geometry/types';
 import { centralRow, rowGeometry, rowScan } from './central-row';
 import { detectTruncation, type TruncationReport } from './detect';
+import { recommendCorrection, type CorrectionAdvice } from './recommend';
 
 export interface TruncationOverview {
   /** The analysed detector row of a cone-beam scan; undefined for 2D scans. */
@@ -14,16 +15,22 @@ export interface TruncationOverview {
   /** The analysed sinogram, [view][channel] (the scan's own data for a 2D scan). */
   sinogram: Float32Array;
   report: TruncationReport;
+  /** The correction the report suggests (the page's recipe default, inspect's last line). */
+  advice: CorrectionAdvice;
 }
 
 /** The analysed row (cone beam) and its truncation report. */
 export function truncationOverview(scan: Scan): TruncationOverview {
-  if (scan.geometry.kind !== 'cone') return { row: undefined, sinogram: scan.data, report: detectTruncation(scan) };
+  if (scan.geometry.kind !== 'cone') {
+    const report = detectTruncation(scan);
+    return { row: undefined, sinogram: scan.data, report, advice: recommendCorrection(report.summary) };
+  }
   const row = centralRow(scan.geometry);
   return rowOverview(scan.geometry, row, rowScan(scan, row).data, scan.muWater);
 }
 
 /** The overview of a cone-beam scan from its analysed row alone (views x channels), as stored. */
 export function rowOverview(g: Geometry, row: number, sinogram: Float32Array, muWater?: number): TruncationOverview {
-  return { row, sinogram, report: detectTruncation({ geometry: rowGeometry(g), data: sinogram, muWater }) };
+  const report = detectTruncation({ geometry: rowGeometry(g), data: sinogram, muWater });
+  return { row, sinogram, report, advice: recommendCorrection(report.summary) };
 }

@@ -1,5 +1,6 @@
 // The printable report: one self-contained HTML file (images as data: URLs, inline styles, a
 // policy that forbids loading anything) with the recipe, the figures and the caution.
+import { correctionWords } from '../../core/recipe/label';
 import type { Comparison, RegionFigures } from '../../core/compare';
 import type { DataResidual } from '../../core/data-residual';
 
@@ -43,6 +44,11 @@ function figures(r: RegionFigures | null | undefined): string {
 
 const CAUTION = 'For research and quality work, not for diagnosis. Defer to local regulations and licensed clinical practice.';
 
+/** A recipe's truncation correction in words (a result added from an image file has none of its own). */
+function correctionOf(recipe: Record<string, unknown>): string {
+  return correctionWords(recipe) || 'made elsewhere (image file)';
+}
+
 /** The report as a complete HTML document. */
 export function buildReport(r: ReportInput): string {
   const unit = r.images.find((i) => i.metrics)?.metrics?.unit ?? r.unit;
@@ -52,7 +58,7 @@ export function buildReport(r: ReportInput): string {
   const residualRows = r.images.filter((i) => i.residual).map((i) => `<tr><th scope="row"><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</th>
     <td>${pct(i.residual!.relative)}</td><td>${i.residual!.rms.toPrecision(3)}</td><td>${i.residual!.bias.toPrecision(3)}</td><td>${i.residual!.worstView}${i.residual!.sampled ? ` (${esc(i.residual!.sampled)})` : ''}</td></tr>`).join('');
   const regionRows = r.images.filter((i) => i.region).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td>${f(i.region!.mean, 1)}</td><td>${f(i.region!.sd, 1)}</td><td>${i.region!.pixels}</td></tr>`).join('');
-  const recipes = r.images.filter((i) => i.recipe).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td class="left"><code>${esc(JSON.stringify(i.recipe))}</code></td><td>${f(i.seconds, 1)} s</td></tr>`).join('');
+  const recipes = r.images.filter((i) => i.recipe).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td class="left">${esc(correctionOf(i.recipe!))}</td><td class="left"><code>${esc(JSON.stringify(i.recipe))}</code></td><td>${f(i.seconds, 1)} s</td></tr>`).join('');
   const warnings = r.images.flatMap((i) => i.warnings.map((w) => `<li>${esc(i.label)}: ${esc(w)}</li>`)).join('');
   return `<!doctype html>
 <html lang="en"><head><meta charset="utf-8">
@@ -88,7 +94,7 @@ ${residualRows ? `<h2>Agreement with the measured data</h2>
 <p class="meta">Each image re-projected onto the measured detector channels and compared with the measured line integrals: ‖Af − p‖ / ‖p‖. A positive mean means the image holds too much along the measured rays.</p>` : ''}
 ${regionRows ? `<h2>Region statistics (${esc(r.unit)})</h2><table><thead><tr><th></th><th>Mean</th><th>SD</th><th>Pixels</th></tr></thead><tbody>${regionRows}</tbody></table>` : ''}
 ${r.profileSvg ? `<h2>Line profile</h2>${r.profileCaption ? `<p class="meta">${esc(r.profileCaption)}</p>` : ''}${r.profileSvg}` : ''}
-${recipes ? `<h2>Recipes</h2><table><tbody>${recipes}</tbody></table>` : ''}
+${recipes ? `<h2>Recipes</h2><table><thead><tr><th></th><th class="left">Truncation correction</th><th class="left">Recipe</th><th>Time</th></tr></thead><tbody>${recipes}</tbody></table>` : ''}
 ${warnings ? `<h2>Warnings</h2><ul>${warnings}</ul>` : ''}
 <p class="caution">${CAUTION}</p>
 </body></html>`;
