@@ -38,6 +38,34 @@ describe('memory estimates', () => {
   });
 });
 
+describe('pixel weights of iterative methods', () => {
+  const sart = validateRecipe({ method: 'sart', subsets: 20, grid: { size: 256, pixel: 1 }, volume: { slices: 256, spacing: 1 } });
+  const g = validateGeometry({ ...carm, detector: { ...carm.detector, channels: 512, rows: 384, pitch: [0.8, 0.8] }, anglesDeg: { start: 0, step: 1, count: 360 } });
+  const cli = { workers: 2, sharedMemory: true, scanInMemory: true };
+  // 20 subsets of 256^3 float32 weights: 20 x 4 x 256^3 bytes (common practice: 4 bytes a value).
+  const allWeights = 20 * 4 * 256 ** 3;
+
+  it('holds every subset\'s weights when the budget allows, else recomputes them and still runs', () => {
+    const held = checkMemoryBudget(g, sart, cli, 8 * GB, '--memory-limit');
+    expect(held.pixelWeightFloats).toBe(Number.MAX_SAFE_INTEGER);
+    const lean = estimateRun(g, sart, cli);
+    expect(held.bytes - lean.bytes).toBeGreaterThanOrEqual(allWeights - 48 * 2 ** 20 * 4);
+    const tight = checkMemoryBudget(g, sart, cli, lean.bytes + 1, '--memory-limit');
+    expect(tight.pixelWeightFloats).toBe(48 * 2 ** 20);
+    expect(tight.bytes).toBe(lean.bytes);
+    expect(() => checkMemoryBudget(g, sart, cli, lean.bytes - 1, '--memory-limit')).toThrow(/with 2 x 2 detector binning/);
+  });
+
+  it('never plans more engine memory than WebAssembly can address (4 GiB), however large the budget', () => {
+    // 384^3: every subset's weights (20 x 226 MB) would not fit in one engine; without them it runs.
+    const mid = validateRecipe({ ...sart, grid: { size: 384, pixel: 0.7 }, volume: { slices: 384, spacing: 0.7 } });
+    expect(checkMemoryBudget(g, mid, cli, 100 * GB, '--memory-limit').pixelWeightFloats).toBe(48 * 2 ** 20);
+    // 512^3: ten volume-sized engine arrays alone pass 4 GiB: refused before any work, with the binning that fits.
+    const big = validateRecipe({ ...sart, grid: { size: 512, pixel: 0.5 }, volume: { slices: 512, spacing: 0.5 } });
+    expect(() => checkMemoryBudget(g, big, cli, 100 * GB, '--memory-limit')).toThrow(/of engine memory .*more than the 4\.0 GB one WebAssembly engine can address; with 2 x 2 detector binning and a 256 x 256 x 256 volume/);
+  });
+});
+
 describe('memory budget', () => {
   it('refuses before any work, naming the estimate, the budget and the binning that fits', () => {
     expect(() => checkMemoryBudget(carm, fdk512, page, 1 * GB, '--memory-limit')).toThrow(InputError);

@@ -8,6 +8,7 @@ import { InputError } from './errors';
 import { viewCount, type Geometry } from './geometry/types';
 import { fovRadius } from './geometry/view-vectors';
 import { isIterativeMethod } from './iterative/options';
+import { PIXEL_WEIGHT_BUDGET } from './iterative/os-sart';
 import { viewSize } from './projection-source';
 import { usesKnowledge, type Recipe } from './recipe/recipe';
 import { chooseVolumeGrid } from './recipe/volume-grid';
@@ -27,6 +28,11 @@ export interface RunContext {
   scanInMemory?: boolean;
   /** The page stores the volume and checks it against the data (the residual sample). */
   storesResult?: boolean;
+  /**
+   * Iterative methods: every subset's pixel weights are held (else only PIXEL_WEIGHT_BUDGET
+   * floats of them, and the rest are recomputed at each step: one more backprojection a step).
+   */
+  keepPixelWeights?: boolean;
 }
 
 export interface MemoryEstimate {
@@ -35,6 +41,8 @@ export interface MemoryEstimate {
   parts: Array<[string, number]>;
   /** The volume the run would make (cone-beam scans). */
   grid?: VolumeGrid;
+  /** Iterative methods: floats the pixel weights may hold within the budget (RecipeInputs.pixelWeightFloats). */
+  pixelWeightFloats?: number;
 }
 
 /** The program, the engine module and the workers themselves (common practice: measured idle footprint, rounded up). */
@@ -67,7 +75,7 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
     parts.push(['data to fit and weights (held by the program)', 2 * scanBytes]);
     const padded = (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3);
     const subsets = Math.min(recipe.subsets ?? 20, viewCount(g));
-    const pixelWeights = Math.min(subsets * voxels, 48 * 2 ** 20);
+    const pixelWeights = ctx.keepPixelWeights ? subsets * voxels : Math.min(subsets * voxels, PIXEL_WEIGHT_BUDGET);
     parts.push(['engine: projections, weights, padded volumes', copies * (4 * scanBytes + (2 * padded + pixelWeights + 8 * voxels) * F)]);
     parts.push(['the volume', 2 * voxels * F]);
     if (recipe.method === 'prior') parts.push(['the prior (an FDK volume)', voxels * F]);
@@ -97,6 +105,14 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
     parts.push(['slabs on their way out', 2 * 16 * 2 ** 20]);
   }
   return { ...total(parts), grid };
+}
+
+/** Largest engine memory (WebAssembly's 4 GiB, less room for the module's own data). */
+const MAX_ENGINE_BYTES = 3.75 * 2 ** 30;
+
+/** The estimate's engine part (the parts named "engine..."). */
+function engineBytes(e: MemoryEstimate): number {
+  return e.parts.filter(([what]) => what.startsWith('engine')).reduce((sum, [, b]) => sum + b, 0);
 }
 
 function total(parts: Array<[string, number]>): MemoryEstimate {
@@ -139,8 +155,16 @@ function describeRecipeSize(r: Recipe, g: Geometry): string {
  * the budget, where it comes from, and the binning (with the volume coarsened alike) that fits.
  */
 export function checkMemoryBudget(g: Geometry, recipe: Recipe, ctx: RunContext, budget: number, budgetSource: string): MemoryEstimate {
+  const copies = ctx.sharedMemory ? 1 : ctx.workers;
+  // One engine (each worker's, with private memories) addresses at most MAX_ENGINE_BYTES.
+  const fits = (e: MemoryEstimate) => e.bytes <= budget && engineBytes(e) / copies <= MAX_ENGINE_BYTES;
+  if (isIterativeMethod(recipe.method)) {
+    // Holding every subset's pixel weights spares a backprojection per step: done when it fits.
+    const keep = estimateRun(g, recipe, { ...ctx, keepPixelWeights: true });
+    if (fits(keep)) return { ...keep, pixelWeightFloats: Number.MAX_SAFE_INTEGER };
+  }
   const need = estimateRun(g, recipe, ctx);
-  if (need.bytes <= budget) return need;
+  if (fits(need)) return isIterativeMethod(recipe.method) ? { ...need, pixelWeightFloats: PIXEL_WEIGHT_BUDGET } : need;
   const largest = need.parts.slice(0, 2).map(([what, b]) => `${what} ${showBytes(b)}`).join(', ');
   let advice = 'no detector binning brings it under the budget: choose a smaller volume or fewer views';
   for (const bin of [2, 4, 8]) {
@@ -148,10 +172,13 @@ export function checkMemoryBudget(g: Geometry, recipe: Recipe, ctx: RunContext, 
     if (d.channels / ((recipe.reduce?.bin ?? 1) * bin) < 8 || (g.kind === 'cone' && d.rows / ((recipe.reduce?.bin ?? 1) * bin) < 2)) break;
     const r = binned(recipe, g, bin);
     const e = estimateRun(g, r, ctx);
-    if (e.bytes <= budget) {
+    if (fits(e)) {
       advice = `with ${describeRecipeSize(r, g)} it needs about ${showBytes(e.bytes)}`;
       break;
     }
+  }
+  if (need.bytes <= budget) {
+    throw new InputError(`memory: this run needs about ${showBytes(engineBytes(need) / copies)} of engine memory (${largest}), more than the ${showBytes(MAX_ENGINE_BYTES)} one WebAssembly engine can address; ${advice}`);
   }
   throw new InputError(`memory: this run needs about ${showBytes(need.bytes)} (${largest}), more than the budget of ${showBytes(budget)} (${budgetSource}); ${advice}`);
 }

@@ -54,10 +54,11 @@ export async function runRecipeJob(ctx: RunJobContext, req: RunRequest, hooks: R
   const recipe = validateRecipe(req.recipe);
   const { meta, reference } = await loadScanReference(req.scanId, ctx.store);
   const run: RunContext = { workers: ctx.ws.parallelism, sharedMemory: ctx.sharedMemory, storesResult: true };
-  checkMemoryBudget(meta.geometry, recipe, run, ctx.budget.bytes, ctx.budget.source);
+  const estimate = checkMemoryBudget(meta.geometry, recipe, run, ctx.budget.bytes, ctx.budget.source);
   const source = recipeSource(meta, recipe, ctx.store);
   const cone = source.geometry.kind === 'cone';
   const inputs = await ctx.inputs(recipe, cone);
+  if (estimate.pixelWeightFloats !== undefined) inputs.pixelWeightFloats = estimate.pixelWeightFloats;
   throwIfCancelled(hooks.signal);
   const desc: ResultDescription = { name: req.name ?? recipeLabel(recipe as unknown as Record<string, unknown>), recipe: recipe as unknown as Record<string, unknown>, t0, jobId: req.jobId };
   // The reconstruction takes the first 95% of the bar; checks and storing the rest.

@@ -121,6 +121,7 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
     readWarnings.push(...priorWarnings);
     const masks = await knowledgeMasks(recipe, scan);
     if (masks) inputs.masks = masks;
+    if (estimate.pixelWeightFloats !== undefined) inputs.pixelWeightFloats = estimate.pixelWeightFloats;
     const r = await runRecipe(ws, scan, recipe, hooks, inputs);
     const knowledge = r.report.knowledge as KnowledgeReport | undefined;
     const knowledgeText = knowledge ? `\n${knowledgeLines(knowledge, recipe.extend === 'outline' ? 'water' : recipe.extend ?? 'none').join('\n')}` : '';

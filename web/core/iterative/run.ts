@@ -32,6 +32,11 @@ export interface RecipeInputs {
   supportMask?: Image2D;
   /** Mask images named by the recipe's knowledge (known regions, outline), by name. */
   masks?: MaskInputs;
+  /**
+   * Floats OS-SART may spend on per-subset pixel weights (default PIXEL_WEIGHT_BUDGET); the
+   * memory budget raises it when every subset's weights fit (memory-budget.ts).
+   */
+  pixelWeightFloats?: number;
 }
 
 /** What runRecipe returns (the same shape as recipe/run.ts RecipeResult). */
@@ -155,7 +160,7 @@ export async function runIterative(
   ws.reset();
   throwIfCancelled(hooks.signal);
   hooks.onProgress?.(0.05, 'setup');
-  const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support) }, hooks);
+  const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support), pixelWeightBudget: inputs.pixelWeightFloats }, scaled(hooks, 0.05, 0.06));
   const x = ws.alloc('image', gridSize(grid));
   const startResidual = await prepareStart(ws, sart, x, problem, prior?.data.map((v, i) => v * support[i]));
   const t1 = now();
