@@ -76,14 +76,22 @@ window.compare = async (resultId) => {
   const reader = (await fetch('cli.nrrd')).body.getReader();
   let pending = new Uint8Array(0), headerDone = false;
   const more = async () => { const { value, done } = await reader.read(); if (done) throw new Error('cli.nrrd ended early'); const n = new Uint8Array(pending.length + value.length); n.set(pending); n.set(value, pending.length); pending = n; };
-  while (!headerDone) { await more(); for (let i = 0; i + 1 < pending.length; i++) if (pending[i] === 10 && pending[i + 1] === 10) { pending = pending.slice(i + 2); headerDone = true; break; } }
+  let header = '';
+  while (!headerDone) { await more(); for (let i = 0; i + 1 < pending.length; i++) if (pending[i] === 10 && pending[i + 1] === 10) { header = new TextDecoder().decode(pending.slice(0, i)); pending = pending.slice(i + 2); headerDone = true; break; } }
+  // The file is in the LPS frame (rows from anterior to posterior); the page stores Rimfill's order: rows pair up reversed.
+  if (!/space: left-posterior-superior/.test(header)) throw new Error('cli.nrrd does not name the LPS frame');
+  const [nx, ny] = /sizes: (\\d+) (\\d+)/.exec(header).slice(1).map(Number);
   let worst = 0, scale = 0, ss = 0, n = 0;
   for (const key of keys) {
     const slab = await new Promise((ok) => { const r = db.transaction('records').objectStore('records').get(key); r.onsuccess = () => ok(r.result.data); });
     while (pending.length < slab.length * 4) await more();
     const cli = new Float32Array(pending.slice(0, slab.length * 4).buffer);
     pending = pending.slice(slab.length * 4);
-    for (let i = 0; i < slab.length; i++) { const d = slab[i] - cli[i]; worst = Math.max(worst, Math.abs(d)); scale = Math.max(scale, Math.abs(cli[i])); ss += d * d; n++; }
+    for (let i = 0; i < slab.length; i++) {
+      const x = i % nx, j = Math.floor(i / nx) % ny, k = Math.floor(i / (nx * ny));
+      const c = cli[(k * ny + ny - 1 - j) * nx + x];
+      const d = slab[i] - c; worst = Math.max(worst, Math.abs(d)); scale = Math.max(scale, Math.abs(c)); ss += d * d; n++;
+    }
   }
   db.close();
   return { worst, scale, rms: Math.sqrt(ss / n), voxels: n };
@@ -108,7 +116,7 @@ async function main() {
     copyFileSync(join(root, 'dist/index.html'), join(site, 'index.html'));
     writeFileSync(join(site, 'compare.html'), COMPARE_PAGE);
     const cli = await runCli(['reconstruct', s.framesDir, '--geometry', s.geometry, '--flat', s.flat, ...recipe, '--out', join(site, 'cli.nrrd'), '--json']);
-    out.cli = { seconds: cli.seconds, peakRssMb: cli.peakMb, timings: cli.json.report.timings, memoryEstimateMb: cli.json.memory.estimateMb };
+    out.cli = { seconds: cli.seconds, peakRssMb: cli.peakMb, timings: cli.json.report.timings, memoryEstimateMb: cli.json.memory.estimateMb, loadAfter: loadavg()[0] };
     log(`command line: ${cli.seconds.toFixed(1)} s, peak resident memory ${cli.peakMb.toFixed(0)} MB`);
     // The page.
     const server = await serveDirectory(site);
@@ -131,6 +139,7 @@ async function main() {
       await page.locator('rf-scan-library rf-file-drop input[type="file"]').setInputFiles(files);
       await page.locator('rf-scan-library li').filter({ hasText: 'frame1.tif' }).waitFor({ timeout: 30 * 60_000 });
       out.pageImportSeconds = (performance.now() - t) / 1000;
+      out.loadAfterImport = loadavg()[0];
       log(`page import: ${out.pageImportSeconds.toFixed(1)} s`);
       await page.locator('#tab-reconstruct').click();
       await page.locator('#field-method').selectOption('fbp');
@@ -147,6 +156,7 @@ async function main() {
       const job = page.locator('rf-run-queue li').last();
       await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: 60 * 60_000 });
       out.pageRunSeconds = (performance.now() - t) / 1000;
+      out.loadAfterPageRun = loadavg()[0];
       clearInterval(measure);
       clearInterval(sampler);
       if ((await job.getAttribute('data-state')) !== 'done') throw new Error(`page FDK: ${await job.textContent()}`);

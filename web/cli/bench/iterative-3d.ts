@@ -21,7 +21,7 @@ import type { Volume } from '../../core/volume';
 import { analyticConeProjections } from '../../core/simulate/analytic-cone';
 import type { Workspace } from '../../core/engine/workspace';
 import { openWorkspace } from '../engine-node';
-import { loadText, peakRssMb, resetPeakRss } from './peak-memory';
+import { loadText, trackPeakRss } from './peak-memory';
 import type { SectionResult } from './section';
 
 /** The problem's size: the bench's own, or a smaller one to try the section quickly. */
@@ -51,9 +51,8 @@ export interface Iterative3dRow {
   /** The memory budget's estimate for the run, MB, and whether every subset's pixel weights were held. */
   estimateMb: number;
   pixelWeightsHeld: boolean;
-  /** Peak resident memory of the process during the run (or since the section began, when it cannot be reset), MB. */
+  /** Peak resident memory of the process during the run (sampled every 200 ms), MB. */
   peakRssMb: number;
-  peakIsOwn: boolean;
   loadBefore: string;
   loadAfter: string;
 }
@@ -79,7 +78,7 @@ function rmseHu(v: Volume, truth: Float32Array, muWater: number): number {
 /** Runs `recipe` as the CLI does (budget: the free memory) and measures it. */
 async function measure(ws: Workspace, scan: Scan, recipe: Recipe, workers: number, truth: Float32Array, log: (line: string) => void): Promise<Iterative3dRow> {
   const estimate = checkMemoryBudget(scan.geometry, recipe, { workers, sharedMemory: true, scanInMemory: true }, freemem(), 'the free memory');
-  const peakIsOwn = resetPeakRss();
+  const peak = trackPeakRss();
   const loadBefore = loadText();
   const t = performance.now();
   let last = -1;
@@ -98,7 +97,7 @@ async function measure(ws: Workspace, scan: Scan, recipe: Recipe, workers: numbe
     secondsPerIteration: (rep.timings?.iterations ?? seconds) / Math.max(1, iterations),
     finalRelativeResidual: rep.residual?.finalRelative ?? NaN, rmseHu: rmseHu(r.volume!, truth, scan.muWater!),
     estimateMb: estimate.bytes / 2 ** 20, pixelWeightsHeld: estimate.pixelWeightFloats === Number.MAX_SAFE_INTEGER,
-    peakRssMb: peakRssMb(), peakIsOwn, loadBefore, loadAfter: loadText(),
+    peakRssMb: peak(), loadBefore, loadAfter: loadText(),
   };
 }
 
@@ -165,7 +164,7 @@ export async function benchIterative3d(log: (line: string) => void, size: Iterat
       `${r.secondsPerIteration.toFixed(1)} s per iteration), residual ${(100 * r.finalRelativeResidual).toFixed(1)}% of the start, ` +
       `error against the phantom ${r.rmseHu.toFixed(0)} HU RMS inside the head; ` +
       `budget estimate ${showBytes(r.estimateMb * 2 ** 20)} (${r.pixelWeightsHeld ? 'every subset\'s pixel weights held' : 'pixel weights recomputed each step'}), ` +
-      `peak resident memory ${r.peakRssMb.toFixed(0)} MB${r.peakIsOwn ? '' : ' (since the section began)'}; ${r.loadBefore} before, ${r.loadAfter} after`),
+      `peak resident memory during the run ${r.peakRssMb.toFixed(0)} MB; ${r.loadBefore} before, ${r.loadAfter} after`),
     `cancel halfway through a subset step (${cancel.stepSeconds.toFixed(1)} s a step, pixel weights recomputed): stopped ${cancel.secondsToStop.toFixed(1)} s after the request`,
   ];
   return { json: { problem, rows, cancel }, lines };

@@ -1,6 +1,6 @@
 // Peak resident memory of the bench process, and the machine's load beside each figure (the
 // machines the bench runs on are shared: a figure means little without the load it was taken at).
-import { readFileSync, writeFileSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
 
 /**
@@ -17,17 +17,29 @@ export function peakRssMb(): number {
   return process.resourceUsage().maxRSS / 1024;
 }
 
-/**
- * Starts a new peak (Linux: writing 5 to /proc/self/clear_refs resets VmHWM to the present
- * resident memory). Returns false where that is not possible: peaks then include what came before.
- */
-export function resetPeakRss(): boolean {
+/** Resident memory of this process now, MB (Linux /proc; elsewhere the heap and buffers Node reports). */
+function rssMb(): number {
   try {
-    writeFileSync('/proc/self/clear_refs', '5');
-    return true;
+    const m = /VmRSS:\s*(\d+)\s*kB/.exec(readFileSync('/proc/self/status', 'utf8'));
+    if (m) return Number(m[1]) / 1024;
   } catch {
-    return false;
+    // not Linux: fall back below
   }
+  return process.memoryUsage.rss() / 2 ** 20;
+}
+
+/**
+ * Samples this process's resident memory every `ms` until the returned function is called, which
+ * gives the largest sample, MB: the peak of one run within a longer process, whose high-water
+ * mark (peakRssMb) is left alone.
+ */
+export function trackPeakRss(ms = 200): () => number {
+  let peak = rssMb();
+  const timer = setInterval(() => { peak = Math.max(peak, rssMb()); }, ms);
+  return () => {
+    clearInterval(timer);
+    return Math.max(peak, rssMb());
+  };
 }
 
 /** The 1-minute load average and the core count, e.g. "load 7.2 on 2 cores". */

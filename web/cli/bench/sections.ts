@@ -64,7 +64,7 @@ export const SECTIONS: BenchSection[] = [
     },
   },
   {
-    name: 'iterative3d', about: '20 iterations of 3D OS-SART and the prior-guided method on 256^3 from 360 projections of 512x384 (2 workers; minutes)',
+    name: 'iterative3d', about: '20 iterations of 3D OS-SART and 5 of the prior-guided method on 256^3 from 360 projections of 512x384, with peak memory and a cancel (2 workers; an hour or more)',
     run: () => benchIterative3d((line) => process.stderr.write(`${line}\n`)),
   },
   {
