@@ -33,6 +33,7 @@ describe('recipe fields', () => {
     expect(recipeLabel({ method: 'fbp', filter: 'ramp', volume: { slices: 20, spacing: 6 } })).toBe('FBP, no correction, ramp, automatic grid, 20 slices × 6 mm');
     expect(recipeLabel({ method: 'prior', prior: { source: 'image', resultId: 'r1', name: 'earlier scan' } })).toBe('Prior-guided, prior: “earlier scan”, automatic grid');
     expect(recipeLabel({ method: 'sart', iterations: 5 })).toBe('SART, measured rays only, automatic grid, iterations 5');
+    expect(recipeLabel({ method: 'fbp', volume: { slices: 20, spacing: 6 }, reduce: { bin: 2, rows: [10, 90] } })).toBe('FBP, no correction, automatic grid, 20 slices × 6 mm, 2 x 2 detector binning, rows 10 to 89');
     expect(methodAndCorrection({ method: 'fbp', extend: 'cosine' })).toBe('FBP, cosine taper');
     expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
     expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');

@@ -63,16 +63,23 @@ function compile(repo: string, dir: string): { binary?: string; reason?: string;
   return { binary, compiler: `${gcc.stdout.split('\n')[0]} ${flags.join(' ')}` };
 }
 
-/** Relative RMS difference of an NRRD volume (ours) and a raw float32 volume (the reference). */
+/**
+ * Relative RMS difference of an NRRD volume (ours, in the LPS frame: rows from anterior to
+ * posterior) and a raw float32 volume (the reference, in Rimfill's frame: rows along +y).
+ */
 function relativeRms(nrrd: string, raw: string): number {
   const a = readFileSync(nrrd), b = readFileSync(raw);
-  const start = a.indexOf('\n\n') + 2;
-  const x = new Float32Array(a.buffer.slice(a.byteOffset + start, a.byteOffset + a.length));
+  const end = a.indexOf('\n\n');
+  const header = a.subarray(0, end).toString('latin1');
+  if (!/^space: left-posterior-superior$/m.test(header)) throw new Error(`${nrrd}: expected a volume in the LPS frame`);
+  const [nx, ny] = /^sizes: (\d+) (\d+) \d+$/m.exec(header)!.slice(1).map(Number);
+  const x = new Float32Array(a.buffer.slice(a.byteOffset + end + 2, a.byteOffset + a.length));
   const y = new Float32Array(b.buffer.slice(b.byteOffset, b.byteOffset + b.length));
   if (x.length !== y.length) throw new Error(`volumes of ${x.length} and ${y.length} voxels`);
   let d2 = 0, r2 = 0;
-  for (let i = 0; i < x.length; i++) {
-    d2 += (x[i] - y[i]) ** 2;
+  for (let i = 0; i < y.length; i++) {
+    const col = i % nx, j = Math.floor(i / nx) % ny, k = Math.floor(i / (nx * ny));
+    d2 += (x[(k * ny + ny - 1 - j) * nx + col] - y[i]) ** 2;
     r2 += y[i] ** 2;
   }
   return Math.sqrt(d2 / r2);
