@@ -37,6 +37,16 @@ function memoryOf(pid) {
   }
 }
 
+/** Processor seconds (user + system, all threads) a process has used so far (Linux /proc; 100 ticks a second). */
+function cpuSecondsOf(pid) {
+  try {
+    const f = readFileSync(`/proc/${pid}/stat`, 'utf8').replace(/^.*\) /, '').split(' ');
+    return (Number(f[11]) + Number(f[12])) / 100;
+  } catch {
+    return undefined;
+  }
+}
+
 /** Chromium's processes below this one: pid and role (renderer, gpu, utility, browser). */
 function chromiumProcesses() {
   const rows = execSync('ps -eo pid=,ppid=,args=', { encoding: 'utf8' }).trim().split('\n').map((l) => {
@@ -52,18 +62,21 @@ function chromiumProcesses() {
   return rows.filter((r) => mine.has(r.pid) && /chrom/.test(r.args)).map((r) => ({ pid: r.pid, role: /--type=(\S+)/.exec(r.args)?.[1] ?? 'browser' }));
 }
 
-/** Runs the CLI, polling its peak resident memory; resolves to seconds and peak MB. */
+/** Runs the CLI, polling its peak resident memory and processor time; resolves to seconds, peak MB and processor seconds (to the last poll). */
 function runCli(args) {
   return new Promise((resolveRun, reject) => {
     const t0 = performance.now();
     const child = spawn(process.execPath, [join(root, 'bin/rimfill.js'), ...args], { stdio: ['ignore', 'pipe', 'inherit'] });
-    let peak = 0, out = '';
-    const poll = setInterval(() => { peak = Math.max(peak, memoryOf(child.pid)?.peak ?? 0); }, 100);
+    let peak = 0, cpu = 0, out = '';
+    const poll = setInterval(() => {
+      peak = Math.max(peak, memoryOf(child.pid)?.peak ?? 0);
+      cpu = cpuSecondsOf(child.pid) ?? cpu;
+    }, 100);
     child.stdout.on('data', (d) => { out += d; });
     child.on('exit', (code) => {
       clearInterval(poll);
       if (code !== 0) reject(new Error(`rimfill ${args[0]} exited with ${code}`));
-      else resolveRun({ seconds: (performance.now() - t0) / 1000, peakMb: peak, json: JSON.parse(out) });
+      else resolveRun({ seconds: (performance.now() - t0) / 1000, peakMb: peak, cpuSeconds: cpu, json: JSON.parse(out) });
     });
   });
 }
@@ -116,8 +129,8 @@ async function main() {
     copyFileSync(join(root, 'dist/index.html'), join(site, 'index.html'));
     writeFileSync(join(site, 'compare.html'), COMPARE_PAGE);
     const cli = await runCli(['reconstruct', s.framesDir, '--geometry', s.geometry, '--flat', s.flat, ...recipe, '--out', join(site, 'cli.nrrd'), '--json']);
-    out.cli = { seconds: cli.seconds, peakRssMb: cli.peakMb, timings: cli.json.report.timings, memoryEstimateMb: cli.json.memory.estimateMb, loadAfter: loadavg()[0] };
-    log(`command line: ${cli.seconds.toFixed(1)} s, peak resident memory ${cli.peakMb.toFixed(0)} MB`);
+    out.cli = { seconds: cli.seconds, cpuSeconds: cli.cpuSeconds, peakRssMb: cli.peakMb, timings: cli.json.report.timings, memoryEstimateMb: cli.json.memory.estimateMb, loadAfter: loadavg()[0] };
+    log(`command line: ${cli.seconds.toFixed(1)} s (processor time ${cli.cpuSeconds.toFixed(1)} s), peak resident memory ${cli.peakMb.toFixed(0)} MB`);
     // The page.
     const server = await serveDirectory(site);
     const profile = mkdtempSync(join(tmpdir(), 'rimfill-bench-profile-'));
@@ -151,11 +164,14 @@ async function main() {
       await page.locator('rf-recipe-form input[name="volumeSpacing"]').fill(String(P.voxel));
       const uaMemory = [];
       const measure = setInterval(() => page.evaluate(() => performance.measureUserAgentSpecificMemory().then((m) => m.bytes)).then((b) => uaMemory.push(b), () => undefined), 3000);
+      const rendererCpu = () => chromiumProcesses().filter((p) => p.role === 'renderer').reduce((sum, p) => sum + (cpuSecondsOf(p.pid) ?? 0), 0);
+      const cpu0 = rendererCpu();
       t = performance.now();
       await page.locator('#queue-recipe').click();
       const job = page.locator('rf-run-queue li').last();
       await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: 60 * 60_000 });
       out.pageRunSeconds = (performance.now() - t) / 1000;
+      out.pageRunRendererCpuSeconds = rendererCpu() - cpu0;
       out.loadAfterPageRun = loadavg()[0];
       clearInterval(measure);
       clearInterval(sampler);
@@ -168,7 +184,7 @@ async function main() {
       out.page.rendererPeakMb = renderer;
       out.page.allChromiumPeaksMb = [...byProcess.values()].map((p) => ({ role: p.role, peakMb: Math.round(p.peak) }));
       out.page.measuredUserAgentMemoryPeakMb = uaMemory.length ? Math.max(...uaMemory) / MB : null;
-      log(`page FDK: ${out.pageRunSeconds.toFixed(1)} s; renderer peak ${renderer.toFixed(0)} MB`);
+      log(`page FDK: ${out.pageRunSeconds.toFixed(1)} s (renderers' processor time ${out.pageRunRendererCpuSeconds.toFixed(1)} s); renderer peak ${renderer.toFixed(0)} MB`);
       const cmp = await context.newPage();
       await cmp.goto(`${server.url}compare.html`);
       out.pageAgainstCli = await cmp.evaluate((id) => window.compare(id), result.id);
