@@ -71,19 +71,26 @@ export async function demo(argv: string[]): Promise<CommandResult> {
   const fov = String((sim.json as { fovRadiusMm: number }).fovRadiusMm);
   log.push((await inspect([f('scan.nrrd')])).text);
   const rows: Row[] = [];
-  const jobs: Array<[string, string, string[]]> = [
-    ...EXTEND_METHODS.map((m) => [`truncated scan: ${methodAndCorrection({ method: 'fbp', extend: m })}`, 'scan.nrrd', ['--extend', m]] as [string, string, string[]]),
-    [`complete scan: ${methodAndCorrection({ method: 'fbp' })}`, 'scan-complete.nrrd', []],
+  // What a user might know of the demo thorax (our own scenario): the heart is muscle, about
+  // 44 HU at 60 keV (NIST muscle against water, REFERENCES.md [nist-srd126]), and the body's
+  // outline is an ellipse drawn a little outside the skin (the arms beside it left out).
+  const knownHeart = '4,30,10:44';
+  const outline = 'ellipse:0,0,172,122';
+  const jobs: Array<[string, string, string[], string]> = [
+    ...EXTEND_METHODS.map((m) => [`truncated scan: ${methodAndCorrection({ method: 'fbp', extend: m })}`, 'scan.nrrd', ['--extend', m], `fbp-extend-${m}.nrrd`] as [string, string, string[], string]),
+    [`truncated scan: FBP, water cylinder, known region (heart, 44 HU)`, 'scan.nrrd', ['--extend', 'water', '--known', knownHeart], 'fbp-known-region.nrrd'],
+    [`truncated scan: FBP, outline (drawn ellipse)`, 'scan.nrrd', ['--outline', outline], 'fbp-outline.nrrd'],
+    [`complete scan: ${methodAndCorrection({ method: 'fbp' })}`, 'scan-complete.nrrd', [], 'fbp-complete.nrrd'],
   ];
-  for (const [name, scan, extra] of jobs) {
-    const out = f(`fbp-${scan === 'scan.nrrd' ? `extend-${extra[1]}` : 'complete'}.nrrd`);
+  for (const [name, scan, extra, file] of jobs) {
+    const out = f(file);
     log.push((await reconstruct([f(scan), '--method', 'fbp', '--filter', 'shepp-logan', ...extra, ...grid, '--out', out, '--json'])).text);
     // Every image is judged inside the truncated scan's FOV, and against the data it came from.
     const c = await compare([out, '--reference', f('truth.nrrd'), '--scan', f(scan), '--fov-radius', fov, '--json']);
     const json = c.json as Comparison & { residual: DataResidual };
     rows.push({ name, comparison: json, residual: json.residual });
   }
-  log.push('', 'FBP of the truncated scan without and with detector extension, and of the complete scan, against the truth:', table(rows));
+  log.push('', 'FBP of the truncated scan without and with detector extension, with what a user knows (a region of known HU, the outline), and of the complete scan, against the truth:', table(rows));
   const cone = await coneDemo(dir);
   log.push('', ...cone.log);
   return {
