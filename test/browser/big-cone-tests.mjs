@@ -130,11 +130,15 @@ export async function bigConeTests(h, { context, mode, url, root }) {
       await page.locator('rf-recipe-form input[name="volumeSlices"]').fill('32');
       await page.locator('rf-recipe-form input[name="volumeSpacing"]').fill('4');
       const before = await page.locator('rf-run-queue li').count();
+      const resultsBefore = new Set(await storedKeys(page, 'result/'));
       await page.locator('#queue-recipe').click();
       const job = page.locator('rf-run-queue li').nth(before);
       await job.and(page.locator('[data-state="done"], [data-state="failed"]')).waitFor({ timeout: JOB_TIMEOUT });
       check((await job.getAttribute('data-state')) === 'done', `FDK job: ${await job.innerText()}`);
-      const resultId = (await storedKeys(page, 'result/')).map((k) => k.slice(7)).at(-1);
+      // The run's result is the one record that is new (other steps may have stored results before).
+      const fresh = (await storedKeys(page, 'result/')).filter((k) => !resultsBefore.has(k));
+      check(fresh.length === 1, `new result records: ${fresh}`);
+      const resultId = fresh[0].slice(7);
       const voxels = await storedVolume(page, resultId);
       check(voxels.length === cli.data.length, `${voxels.length} voxels in the page, ${cli.data.length} from the command line`);
       let worst = 0, scale = 0;
