@@ -7,28 +7,11 @@
 // Screenshots go to test-artifacts/first-hour-*.png.
 import { join } from 'node:path';
 import { check } from './harness.mjs';
+import { overflowing } from './layout.mjs';
 import { queueAndFinish, startLongRun } from './queue-steps.mjs';
 
 /** Labels of the rows of the metrics table, in order. */
 const metricLabels = (page) => page.locator('rf-metrics-table tbody tr').evaluateAll((rows) => rows.map((r) => r.dataset.label));
-
-/** Elements of the page (through shadow roots) that reach past the window's right edge, and tables scrolled sideways. */
-function overflowing(page) {
-  return page.evaluate(() => {
-    const out = [];
-    const walk = (root) => {
-      for (const el of root.querySelectorAll('*')) {
-        const r = el.getBoundingClientRect();
-        if (r.width > 0 && r.right > window.innerWidth + 0.5) out.push(`${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ''} reaches ${r.right.toFixed(0)} px`);
-        if (el.tagName === 'RF-METRICS-TABLE' && el.scrollWidth > el.clientWidth + 1) out.push(`the metrics table scrolls (${el.scrollWidth} px in ${el.clientWidth})`);
-        if (el.shadowRoot) walk(el.shadowRoot);
-      }
-    };
-    walk(document);
-    if (document.documentElement.scrollWidth > window.innerWidth) out.push(`the page is ${document.documentElement.scrollWidth} px wide`);
-    return out;
-  });
-}
 
 export async function firstHourTests(h, { context, mode, url, artifacts }) {
   const shot = (page, name, fullPage = false) => page.screenshot({ path: join(artifacts, `first-hour-${mode}-${name}.png`), fullPage });

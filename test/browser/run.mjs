@@ -2,7 +2,7 @@
 // playwright-core: once served from a loopback static server (cross-origin isolated: shared
 // engine memory) and once opened from disk (file://: separate memories). Builds the page first
 // when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
-// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--first-hour-only] [--big-cone-only]
+// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--first-hour-only] [--knowledge-only] [--big-cone-only]
 import { execSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -11,6 +11,7 @@ import { pathToFileURL } from 'node:url';
 import { chromium } from 'playwright-core';
 import { cliReference } from './cli-reference.mjs';
 import { firstHourTests } from './first-hour-tests.mjs';
+import { knowledgeTests } from './knowledge-tests.mjs';
 import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
@@ -31,6 +32,10 @@ const priorsOnly = argv.includes('--priors-only');
 const bigConeOnly = argv.includes('--big-cone-only');
 /** Only the first-hour steps on laptop screens (first-hour-tests.mjs). */
 const firstHourOnly = argv.includes('--first-hour-only');
+/** Only the knowledge steps on laptop screens (knowledge-tests.mjs). */
+const knowledgeOnly = argv.includes('--knowledge-only');
+/** Only the laptop-screen phases. */
+const laptopOnly = firstHourOnly || knowledgeOnly;
 
 function chromiumPath() {
   try {
@@ -55,10 +60,10 @@ async function main() {
   }
   mkdirSync(artifacts, { recursive: true });
   let reference;
-  if (!bigConeOnly && !firstHourOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
+  if (!laptopOnly && !bigConeOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
-  if (!priorsOnly && !bigConeOnly && !firstHourOnly) {
+  if (!priorsOnly && !laptopOnly && !bigConeOnly) {
     await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
       reference.cone = coneReference(root);
     });
@@ -75,7 +80,7 @@ async function main() {
     { mode: 'file', url: pathToFileURL(dist).href, origin: 'file://' },
   ].filter((m) => !only || m.mode === only);
   try {
-    for (const m of firstHourOnly ? [] : modes) {
+    for (const m of laptopOnly ? [] : modes) {
       console.log(`\n${m.mode === 'http' ? `served from ${m.url} (cross-origin isolated)` : `opened from disk, ${m.url}`}`);
       const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
       const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1440, height: 1000 }, acceptDownloads: true });
@@ -88,14 +93,18 @@ async function main() {
         rmSync(profile, { recursive: true, force: true });
       }
     }
-    // Laptop screens, once, on a fresh profile (the page opened from disk unless --only http).
-    if (!priorsOnly && !bigConeOnly) {
+    // Laptop screens, once each, on a fresh profile (the page opened from disk unless --only http).
+    const laptop = [
+      { name: 'first hour', run: firstHourTests, skip: priorsOnly || knowledgeOnly || bigConeOnly },
+      { name: 'knowledge', run: knowledgeTests, skip: priorsOnly || firstHourOnly || bigConeOnly },
+    ];
+    for (const phase of laptop.filter((p) => !p.skip)) {
       const m = modes.find((x) => x.mode === 'file') ?? modes[0];
       const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
       const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1280, height: 800 } });
       try {
-        console.log(`\nfirst hour on laptop screens, ${m.mode === 'http' ? 'served' : 'opened from disk'}`);
-        await firstHourTests(h, { context, ...m, artifacts });
+        console.log(`\n${phase.name} on laptop screens, ${m.mode === 'http' ? 'served' : 'opened from disk'}`);
+        await phase.run(h, { context, ...m, artifacts });
       } finally {
         await context.close();
         rmSync(profile, { recursive: true, force: true });

@@ -5,12 +5,22 @@ import { FILTER_WINDOWS } from '../../web/core/recon/filter-design';
 import { describeRecipeFields, RECIPE_FIELDS, type ChoiceField } from '../../web/core/recipe/fields';
 import { methodAndCorrection, recipeLabel } from '../../web/core/recipe/label';
 import { DEFAULT_RECIPE, METHODS, validateRecipe } from '../../web/core/recipe/recipe';
+import { EXTEND_METHODS, RECIPE_EXTENDS } from '../../web/core/truncation/extend-methods';
 
 describe('recipe fields', () => {
   it('offer every method and filter window of the recipe module', () => {
     const byKey = Object.fromEntries(describeRecipeFields().map((f) => [f.key, f]));
     expect((byKey.method as ChoiceField).choices.map((c) => c.value)).toEqual([...METHODS]);
     expect((byKey.filter as ChoiceField).choices.map((c) => c.value)).toEqual([...FILTER_WINDOWS]);
+  });
+
+  it('offer every truncation correction; extending from the outline only to a recipe that knows the outline', () => {
+    const extend = describeRecipeFields().find((f) => f.key === 'extend') as ChoiceField;
+    expect(extend.choices.map((c) => c.value)).toEqual([...RECIPE_EXTENDS]);
+    const offered = (r: Record<string, unknown>) => extend.choices.filter((c) => !c.when || c.when(r)).map((c) => c.value);
+    expect(offered({ method: 'fbp' })).toEqual([...EXTEND_METHODS]);
+    expect(offered({ method: 'fbp', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }] } })).toEqual([...EXTEND_METHODS]);
+    expect(offered({ method: 'fbp', knowledge: { outline: { shape: 'ellipse', cx: 0, cy: 0, a: 170, b: 120 } } })).toEqual([...RECIPE_EXTENDS]);
   });
 
   it('describe every field of the default recipe (add a description in fields.ts for a new one)', () => {
@@ -38,6 +48,10 @@ describe('recipe fields', () => {
     expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
     expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');
     expect(methodAndCorrection({ method: 'prior' })).toBe('Prior-guided, prior: FBP with water cylinder extension');
+    // Extending from the outline names it once.
+    const outline = { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 };
+    expect(methodAndCorrection({ method: 'fbp', extend: 'outline', knowledge: { outline } })).toBe('FBP, outline filled with water');
+    expect(methodAndCorrection({ method: 'fbp', extend: 'water', knowledge: { outline } })).toBe('FBP, water cylinder, outline');
     expect(methodAndCorrection({ method: 'sart', knowledge: { known: [{ shape: 'circle', x: 0, y: 0, r: 5, hu: 0 }], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } }))
       .toBe('SART, measured rays only, 1 known region + outline');
   });

@@ -5,6 +5,7 @@ import type { Comparison } from '../../web/core/compare';
 import { buildReport } from '../../web/ui/export/report';
 import { huScaleText } from '../../web/ui/hu-calibration';
 import { fileName } from '../../web/ui/export/download';
+import { resultKnowledge } from '../../web/ui/logic/result-knowledge';
 
 const comparison: Comparison = {
   unit: 'HU',
@@ -62,6 +63,29 @@ describe('report', () => {
     expect(html).toContain('2026-01-02 03:04');
     expect(html).toContain('Agreement with the measured data');
     expect(html).toContain('<td>4.6%</td><td>0.0123</td><td>-0.00100</td><td>7</td>');
+  });
+
+  it('names the knowledge each result used, with each region before and after and the residual, from the run or its recipe', () => {
+    const known = { shape: 'circle' as const, x: 4, y: 30, r: 10, hu: 44, label: 'heart <1>' };
+    const recipe = { method: 'fbp', extend: 'water', knowledge: { known: [known], outline: { shape: 'ellipse', cx: 0, cy: 0, a: 170, b: 120 } } };
+    const ran = resultKnowledge({
+      recipe,
+      report: { knowledge: { used: ['known region 1 "heart <1>" (circle at 4, 30 mm, r 10 mm, 44 HU)', 'outline (ellipse at 0, 0 mm, semi-axes 170 x 120 mm)'],
+        regions: [{ name: 'known region 1 "heart <1>" (circle at 4, 30 mm, r 10 mm, 44 HU)', knownHu: 44, beforeHu: -61.4, afterHu: 43.6 }],
+        residual: { before: { rms: 0.01, relative: 0.0123, bias: 0 }, after: { rms: 0.011, relative: 0.0125, bias: 0 } } } },
+    })!;
+    // A result whose report says nothing of its knowledge is named from its recipe alone.
+    expect(resultKnowledge({ recipe, report: {} })).toEqual({ used: ran.used, regions: [] });
+    expect(resultKnowledge({ recipe: { method: 'fbp' }, report: {} })).toBeUndefined();
+    const html = buildReport({
+      title: 't', scanName: 's', scanSummary: '', referenceLabel: 'the ground truth', window: { width: 400, level: 40 }, unit: 'HU', createdAt: new Date(0),
+      images: [{ label: 'FBP, water cylinder, 1 known region + outline', colour: '#2f6fb0', png: 'data:image/png;base64,AAAA', recipe, warnings: [], knowledge: ran }],
+    });
+    expect(html).toContain('<h2>Knowledge beyond the data</h2>');
+    expect(html).toContain('<li>known region 1 &quot;heart &lt;1&gt;&quot; (circle at 4, 30 mm, r 10 mm, 44 HU)</li><li>outline (ellipse at 0, 0 mm, semi-axes 170 x 120 mm)</li>');
+    expect(html).toContain('<td>44</td><td>-61</td><td>44</td>');
+    expect(html).toContain('Residual against the measured data: 1.23% with the correction alone, 1.25% with the knowledge.');
+    expect(report()).not.toContain('Knowledge beyond the data');
   });
 
   it('file names keep only safe characters', () => {

@@ -6,6 +6,8 @@ import type { Comparison } from '../core/compare';
 import type { VolumeComparison } from '../core/compare-volume';
 import type { Geometry } from '../core/geometry/types';
 import type { ImageGrid } from '../core/image';
+import type { KnownRegion, Outline } from '../core/knowledge';
+import type { Ring } from '../core/knowledge/mask-contour';
 import type { ModelInfo } from '../core/model/description';
 import type { ModelSignature } from '../core/model/signature';
 import type { Reduction } from '../core/reduction';
@@ -70,6 +72,8 @@ export interface ScanMeta {
   projections?: StoredProjections;
   /** Binning or cropping applied on import, and the size of the data before it. */
   reduction?: { applied: Reduction; from: { channels: number; rows: number; views: number } };
+  /** What the user knows about the object (known regions, the outline), set only by the knowledge op (worker/knowledge-ops.ts). */
+  knowledge?: ScanKnowledge;
 }
 
 /** How a scan's projections are stored: `chunks` records of `viewsPerChunk` views (the last may hold fewer). */
@@ -97,6 +101,51 @@ export interface ScanPreview {
   row: number;
   /** views x channels line integrals. */
   data: Float32Array;
+}
+
+/**
+ * Knowledge a user keeps with a scan in the page: known regions and the outline (plain JSON, as
+ * recipes carry them: core/knowledge/types.ts), each with where it came from, and the masks they
+ * name (pixels under keys.maskData). A mask lives as long as a region or the outline names it.
+ */
+export interface ScanKnowledge {
+  regions: StoredRegion[];
+  outline?: StoredOutline;
+  masks: StoredMask[];
+}
+
+export interface StoredRegion {
+  id: string;
+  region: KnownRegion;
+  /** Where it came from, in words ("drawn on “FBP, water cylinder, …”", "mask file liver.nrrd"). */
+  source: string;
+}
+
+export interface StoredOutline {
+  outline: Outline;
+  /** Where it came from, in words ("drawn", "typed", "threshold at -500 HU of …"). */
+  source: string;
+}
+
+/** A mask kept with a scan: its name (what recipes call it), grid and boundary for drawing. */
+export interface StoredMask {
+  id: string;
+  name: string;
+  /** One slice; a cone-beam recipe applies it to every slice. */
+  grid: ImageGrid;
+  /** Pixels inside. */
+  pixels: number;
+  /** Its boundary (mm), to draw over images without loading the mask. */
+  contour: Ring[];
+  source: string;
+}
+
+/** A mask's pixels (1 inside, x fastest). */
+export interface MaskData {
+  schema: typeof SCHEMA_VERSION;
+  kind: 'mask-data';
+  id: string;
+  data: Uint8Array;
 }
 
 /** A reference image stored with a scan (mu, 1/mm). */
@@ -226,7 +275,7 @@ export interface JobRecord {
   error?: string;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData | ProjectionChunk | ScanPreview | JobRecord;
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData | ProjectionChunk | ScanPreview | JobRecord | MaskData;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,
@@ -240,6 +289,8 @@ export const keys = {
   model: (id: string) => `model/${id}`,
   modelData: (id: string) => `model-data/${id}`,
   job: (id: string) => `job/${id}`,
+  /** A mask kept with a scan (its prefix `mask-data/<scan>/` holds all of the scan's masks). */
+  maskData: (scanId: string, maskId: string) => `mask-data/${scanId}/${maskId}`,
 };
 
 /** Thrown when a stored record cannot be read by this build. */

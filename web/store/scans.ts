@@ -156,14 +156,14 @@ export async function setScanGeometry(id: string, geometry: unknown, store: UseS
 }
 
 /**
- * Deletes a scan, its projections, reference volume and every result made from it (with their
- * volumes), finding them and deleting them in one transaction.
+ * Deletes a scan, its projections, reference volume, the masks kept with it and every result
+ * made from it (with their volumes), finding them and deleting them in one transaction.
  */
 export async function deleteScan(id: string, store: UseStore = pageStore()): Promise<void> {
   await transact(store, async (tx) => {
     const resultKeys = await tx.keys('result/');
     const metas = await tx.getMany(resultKeys);
-    const doomed: string[] = [keys.scan(id), keys.scanData(id), keys.scanPreview(id), ...(await tx.keys(keys.scanChunks(id))), ...(await tx.keys(slabPrefix('scan', id)))];
+    const doomed: string[] = [keys.scan(id), keys.scanData(id), keys.scanPreview(id), ...(await tx.keys(keys.scanChunks(id))), ...(await tx.keys(slabPrefix('scan', id))), ...(await tx.keys(keys.maskData(id, '')))];
     for (let i = 0; i < metas.length; i++) {
       if ((metas[i] as { scanId?: string } | undefined)?.scanId !== id) continue;
       const rid = resultKeys[i].slice('result/'.length);

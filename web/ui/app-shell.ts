@@ -4,6 +4,12 @@ import type { Comparison } from '../core/compare';
 import type { Image2D, ImageGrid } from '../core/image';
 import type { TruncationReport } from '../core/truncation/detect';
 import type { CorrectionAdvice } from '../core/truncation/recommend';
+import type { SuggestedOutline } from '../core/completion/suggested-outline';
+import { knowledgeOf, recipeKnowledgeOf } from '../store/knowledge';
+import type { KnowledgeRequest } from '../worker/app-protocol';
+import { demoRuns } from './logic/demo-runs';
+import { knowledgeKind } from './logic/recipe-knowledge';
+import './method-guidance';
 import { requestPersistence, StorageFullError, storageUse, type StorageUse } from '../store/quota';
 import type { ResultMeta, ScanMeta } from '../store/records';
 import { listResults, loadResultImage } from '../store/results';
@@ -43,6 +49,8 @@ interface LoadedScan {
   gridText: string;
   truth?: Image2D;
   referenceGrid?: ImageGrid;
+  /** The outline the views' edges suggest (drawn over the images for the user to correct). */
+  suggested: SuggestedOutline | null;
 }
 
 const message = (err: unknown) => (err instanceof Error ? err.message : String(err));
@@ -56,7 +64,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
-    importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, knowledgeState: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -84,6 +92,8 @@ export class AppShell extends LitElement {
   declare imageImport: ImageImportState;
   /** A HU calibration of the chosen scan being stored (Images tab). */
   declare calibrating: ImageImportState;
+  /** A change of the chosen scan's knowledge being stored (Images tab). */
+  declare knowledgeState: ImageImportState;
   declare dicomExport: DicomExportState;
   declare demoBusy: boolean;
   declare demoFraction: number;
@@ -118,6 +128,7 @@ export class AppShell extends LitElement {
     nav button:hover:not(:disabled) { color: var(--accent); border-bottom-color: var(--accent-soft); }
     .badge { display: inline-block; min-width: 18px; padding: 0 5px; border-radius: 9px; background: var(--accent); color: #fff; font-size: 11px; margin-left: 5px; }
     .reconstruct { display: grid; grid-template-columns: minmax(0, 1.4fr) minmax(300px, 1fr); gap: 14px; align-items: start; }
+    .side-cards { display: grid; gap: 14px; min-width: 0; }
     @media (max-width: 1100px) { .reconstruct { grid-template-columns: 1fr; } }
     .alert { margin: 12px 18px 0; display: flex; justify-content: space-between; gap: 10px; align-items: flex-start; }
     .placeholder { color: var(--muted); }
@@ -144,6 +155,7 @@ export class AppShell extends LitElement {
     this.imageImport = { busy: false, error: '' };
     this.dicomExport = { busy: false, error: '' };
     this.calibrating = { busy: false, error: '' };
+    this.knowledgeState = { busy: false, error: '' };
     this.demoBusy = false;
     this.demoFraction = 0;
     this.coneDemoBusy = false;
@@ -212,9 +224,10 @@ export class AppShell extends LitElement {
     this.comparisons = new Map();
     // The coordinator reads the projections and analyses them (the same row and report as
     // `rimfill inspect`); only the analysed row and the reference image come to the page.
-    const { scan, sinogram, report, advice, reference } = await this.client.scanOverview(id);
+    const { scan, sinogram, report, advice, reference, suggestedOutline } = await this.client.scanOverview(id);
     if (this.selectedScanId !== id) return;
-    this.loaded = { id, projections: sinogram, report, advice, gridText: defaultGridText(scan.geometry, report.summary.objectRadiusMm), truth: reference, referenceGrid: reference?.grid };
+    this.loaded = { id, projections: sinogram, report, advice, gridText: defaultGridText(scan.geometry, report.summary.objectRadiusMm), truth: reference, referenceGrid: reference?.grid, suggested: suggestedOutline };
+    this.knowledgeState = { busy: false, error: '' };
     this.referenceId = reference ? TRUTH : '';
     await this.loadImages(this.compareIds);
   }
@@ -291,6 +304,30 @@ export class AppShell extends LitElement {
     } catch (err) {
       this.calibrating = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The calibration failed: ${message(err)}` };
     }
+  }
+
+  /** Changes the scan's knowledge through the coordinator (checked there; a refusal is shown and nothing is stored). */
+  private async changeKnowledge(request: KnowledgeRequest): Promise<boolean> {
+    this.knowledgeState = { busy: true, error: '' };
+    try {
+      await this.client.changeKnowledge(request);
+      await this.refreshLibrary();
+      this.knowledgeState = { busy: false, error: '' };
+      return true;
+    } catch (err) {
+      this.knowledgeState = { busy: false, error: err instanceof StorageFullError || err instanceof InputError ? err.message : `The knowledge could not be stored: ${message(err)}` };
+      return false;
+    }
+  }
+
+  /** The demo's known region and outline, then the runs that compare them (on the ground truth's grid). */
+  private async showKnowledgeDemo(scanId: string) {
+    if (!(await this.changeKnowledge({ kind: 'demo', scanId }))) return;
+    const scan = this.scans.find((s) => s.id === scanId);
+    if (!scan) return;
+    const g = this.loaded?.id === scanId ? this.loaded.referenceGrid : undefined;
+    const runs = demoRuns(knowledgeOf(scan), this.results.filter((r) => r.scanId === scanId), g ? { size: g.nx, pixel: g.dx } : undefined);
+    for (const r of runs) await this.queue.add(scan, r.recipe as unknown as Record<string, unknown>, r.name);
   }
 
   /**
@@ -433,9 +470,9 @@ export class AppShell extends LitElement {
         <div class="card"><h2>Recipe for “${scan.name}”</h2>
           <rf-recipe-form .referenceGrid=${this.loaded?.id === scan.id ? this.loaded.referenceGrid : undefined} ?cone=${scan.geometry.kind === 'cone'}
             .advice=${this.loaded?.id === scan.id ? this.loaded.advice : undefined} .defaultGrid=${this.loaded?.id === scan.id ? this.loaded.gridText : ''}
-            .priorResults=${this.priorChoices(scan)}
+            .priorResults=${this.priorChoices(scan)} .knowledge=${scan.knowledge}
             @recipe-queue=${(e: CustomEvent) => this.act('The recipe could not be queued', () => this.queue.add(scan, e.detail.recipe, e.detail.name))}></rf-recipe-form></div>
-        <div class="card"><h2>Queue</h2>
+        <div class="side-cards"><div class="card"><h2>Queue</h2>
           <label class="budget">Memory budget <input type="number" id="memory-budget" min="0.1" max="4" step="0.1" placeholder="browser's"
             .value=${this.memoryBudgetGb} @input=${(e: Event) => (this.memoryBudgetGb = (e.target as HTMLInputElement).value)}> GB
             <span class="muted">(empty: half the device memory the browser reports; a run that would need more is refused before it starts, naming the binning that fits)</span></label>
@@ -452,6 +489,8 @@ export class AppShell extends LitElement {
                 this.tab = 'images';
               }
             })}></rf-run-queue></div>
+        <div class="card" id="method-guidance"><h2>Choosing a method</h2>
+          <rf-method-guidance .summary=${this.loaded?.id === scan.id ? this.loaded.report.summary : undefined} .given=${knowledgeKind(recipeKnowledgeOf(knowledgeOf(scan)))}></rf-method-guidance></div></div>
       </div>`;
   }
 
@@ -473,6 +512,11 @@ export class AppShell extends LitElement {
         this.setCompared(withdraw({ ids: this.compareIds, waiting: this.waitingId }, e.detail.id));
         if (this.referenceId === e.detail.id) this.referenceId = this.loaded?.truth ? TRUTH : '';
       }))}
+      .scanId=${scan.id} .knowledge=${scan.knowledge} .suggested=${this.loaded?.id === scan.id ? this.loaded.suggested : undefined} .knowledgeState=${this.knowledgeState}
+      ?demo=${scan.source.type === 'demo' && scan.geometry.kind !== 'cone'}
+      @knowledge-change=${(e: CustomEvent) => this.act('The knowledge could not be stored', () => this.changeKnowledge(e.detail.request))}
+      @knowledge-demo=${() => this.act('The demo could not be queued', () => this.showKnowledgeDemo(scan.id))}
+      @knowledge-error-dismiss=${() => (this.knowledgeState = { ...this.knowledgeState, error: '' })}
       .dicomExport=${this.dicomExport} @export-dicom=${(e: CustomEvent) => this.act('The DICOM export failed', () => this.exportDicom(e.detail.id))}
       @reference-change=${(e: CustomEvent) => this.act('The reference could not be loaded', () => this.setReference(e.detail.id))}></rf-results-view>
       ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .planes=${volumePlanes(this.client, scan.id)}></rf-volume-view>` : nothing}`;

@@ -1,12 +1,16 @@
 import { html, LitElement, css, nothing } from 'lit';
 import { greyPixels, type DisplayImage } from './logic/display';
+import { ellipseFromDrag, type Mark } from './logic/knowledge-draw';
 import { pixelAt, type Point } from './logic/measure';
 import { INITIAL_VIEW, pan, scaleFor, toImage, toScreen, zoomAbout, type ViewState } from './logic/view-transform';
 import { dragWindow, type DisplayWindow } from './logic/window-level';
 import { theme } from './theme';
 
-/** What a left-button drag does ('slice': move the crosshair of a volume's planes). */
-export type Tool = 'window' | 'move' | 'line' | 'region' | 'slice';
+/**
+ * What a left-button drag does ('slice': move the crosshair of a volume's planes; 'ellipse':
+ * drag an outline from its centre; 'polygon': click the outline's corners, double-click to close).
+ */
+export type Tool = 'window' | 'move' | 'line' | 'region' | 'slice' | 'ellipse' | 'polygon';
 
 export interface LineMark {
   p0: Point;
@@ -30,13 +34,16 @@ const fire = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEven
  * @fires line-change - detail: { line } while drawing with the line tool
  * @fires region-change - detail: { region } while drawing with the region tool
  * @fires crosshair-change - detail: { point } (mm) on press and drag with the slice tool
+ * @fires ellipse-change - detail: { ellipse } (mm) while dragging with the ellipse tool
+ * @fires polygon-point - detail: { point, snap } (mm) on each press with the polygon tool (snap: 6 screen pixels in mm)
+ * @fires polygon-close - a double-click with the polygon tool
  * @fires panel-focus - the panel was clicked (it becomes the one exported)
  */
 export class ImageViewer extends LitElement {
   static properties = {
     image: { attribute: false }, window: { attribute: false }, view: { attribute: false }, cursor: { attribute: false },
     tool: { type: String }, line: { attribute: false }, region: { attribute: false }, colour: { type: String },
-    showFov: { type: Boolean }, active: { type: Boolean }, crosshair: { attribute: false },
+    showFov: { type: Boolean }, active: { type: Boolean }, crosshair: { attribute: false }, marks: { attribute: false },
   };
   /** The image in display units. */
   declare image: DisplayImage;
@@ -55,6 +62,8 @@ export class ImageViewer extends LitElement {
   declare active: boolean;
   /** Where the other planes of a volume cut this one, mm (null: no crosshair). */
   declare crosshair: Point | null;
+  /** Knowledge drawn over the image (known regions, the outline, its suggestion, drafts). */
+  declare marks: Mark[];
 
   private cache?: { values: Float32Array; width: number; level: number; canvas: HTMLCanvasElement };
   private size = { w: 0, h: 0 };
@@ -84,6 +93,7 @@ export class ImageViewer extends LitElement {
     this.showFov = true;
     this.active = false;
     this.crosshair = null;
+    this.marks = [];
   }
 
   disconnectedCallback() {
@@ -145,6 +155,7 @@ export class ImageViewer extends LitElement {
     ctx.drawImage(this.windowed(), corner.x, corner.y, g.nx * g.dx * s, g.ny * g.dy * s);
     const at = (p: Point) => toScreen(p, g, w, h, this.view);
     if (this.showFov && (this.image.fovRadius || this.image.outline)) this.drawFov(ctx, at, s);
+    for (const m of this.marks) drawMark(ctx, m, at);
     if (this.crosshair) drawCrosshair(ctx, at(this.crosshair), w, h);
     if (this.line) drawLine(ctx, at(this.line.p0), at(this.line.p1));
     if (this.region) {
@@ -192,6 +203,7 @@ export class ImageViewer extends LitElement {
     (e.currentTarget as HTMLElement).setPointerCapture(e.pointerId);
     this.drag = { mode, x: e.clientX, y: e.clientY, window: this.window, view: this.view, p0: p };
     if (mode === 'slice') fire(this, 'crosshair-change', { point: p });
+    if (mode === 'polygon') fire(this, 'polygon-point', { point: p, snap: 6 / scaleFor(this.image.grid, this.size.w, this.size.h, this.view) });
     e.preventDefault();
   }
 
@@ -206,6 +218,8 @@ export class ImageViewer extends LitElement {
     else if (d.mode === 'move') fire(this, 'view-change', { view: pan(d.view, dx, dy, this.image.grid, this.size.w, this.size.h) });
     else if (d.mode === 'line') fire(this, 'line-change', { line: { p0: d.p0, p1: p } });
     else if (d.mode === 'slice') fire(this, 'crosshair-change', { point: p });
+    else if (d.mode === 'ellipse') fire(this, 'ellipse-change', { ellipse: ellipseFromDrag(d.p0, p) });
+    else if (d.mode === 'polygon') return;
     else fire(this, 'region-change', { region: { centre: d.p0, radius: Math.hypot(p.x - d.p0.x, p.y - d.p0.y) } });
   }
 
@@ -231,7 +245,8 @@ export class ImageViewer extends LitElement {
         <canvas aria-label=${`Image: ${this.image.label}`}
           @pointerdown=${this.down} @pointermove=${this.move} @pointerup=${this.up} @pointercancel=${this.up}
           @pointerleave=${() => fire(this, 'cursor-change', { point: null })}
-          @wheel=${this.wheel} @dblclick=${() => fire(this, 'view-change', { view: { zoom: 1, centre: { x: this.image.grid.cx, y: this.image.grid.cy } } })}
+          @wheel=${this.wheel} @dblclick=${() => (this.tool === 'polygon' ? fire(this, 'polygon-close', {})
+            : fire(this, 'view-change', { view: { zoom: 1, centre: { x: this.image.grid.cx, y: this.image.grid.cy } } }))}
           @contextmenu=${(e: Event) => e.preventDefault()}></canvas>
         <div class="label"><span class="dot"></span><span>${this.image.label}</span></div>
         <div class="corner num">W ${fmt(this.window.width)} · L ${fmt(this.window.level)} ${unit}</div>
@@ -242,6 +257,32 @@ export class ImageViewer extends LitElement {
   }
 }
 customElements.define('rf-image-viewer', ImageViewer);
+
+const MARK_COLOURS: Record<Mark['style'], string> = { known: '#5ee08a', outline: '#ff9f43', suggested: '#e8d44d', draft: '#ffffff' };
+
+/** A knowledge mark: its rings (solid; the suggestion and drafts dashed) and its label (screen px from `at`). */
+function drawMark(ctx: CanvasRenderingContext2D, m: Mark, at: (p: Point) => Point) {
+  ctx.strokeStyle = MARK_COLOURS[m.style];
+  ctx.lineWidth = m.style === 'draft' ? 1.2 : 1.6;
+  ctx.setLineDash(m.style === 'suggested' || m.style === 'draft' ? [5, 4] : []);
+  ctx.beginPath();
+  for (const ring of m.rings) {
+    ring.forEach((p, i) => {
+      const q = at(p);
+      if (i) ctx.lineTo(q.x, q.y);
+      else ctx.moveTo(q.x, q.y);
+    });
+    if (m.closed) ctx.closePath();
+  }
+  ctx.stroke();
+  ctx.setLineDash([]);
+  if (m.label && m.at) {
+    const q = at(m.at);
+    ctx.fillStyle = MARK_COLOURS[m.style];
+    ctx.font = 'bold 12px system-ui, sans-serif';
+    ctx.fillText(m.label, q.x + 3, q.y - 3);
+  }
+}
 
 /** The linked cursor of the other panels: a horizontal and a vertical line through c (screen px). */
 function drawCrosshair(ctx: CanvasRenderingContext2D, c: Point, w: number, h: number) {

@@ -10,6 +10,8 @@ import type { Reduction } from '../core/reduction';
 import './reduction-input';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
 import type { CorrectionAdvice } from '../core/truncation/recommend';
+import type { ScanKnowledge } from '../store/records';
+import { knowledgeItems, knowledgeProblem, recipeKnowledge } from './logic/recipe-knowledge';
 import { theme } from './theme';
 
 type GridMode = 'auto' | 'reference' | 'custom';
@@ -25,8 +27,8 @@ const RESULT_PRIOR = 'result:';
 export class RecipeForm extends LitElement {
   static properties = {
     referenceGrid: { attribute: false }, disabled: { type: Boolean }, cone: { type: Boolean }, priorResults: { attribute: false },
-    advice: { attribute: false }, defaultGrid: { type: String },
-    values: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true }, reduce: { state: true },
+    advice: { attribute: false }, defaultGrid: { type: String }, knowledge: { attribute: false },
+    values: { state: true }, off: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true }, reduce: { state: true },
   };
   /** Grid of the scan's reference image, offered as "match the ground truth" (undefined: none). */
   declare referenceGrid: ImageGrid | undefined;
@@ -40,6 +42,10 @@ export class RecipeForm extends LitElement {
   declare advice: CorrectionAdvice | undefined;
   /** The grid a recipe without one gets, in words ("512 px × 1.29 mm"). */
   declare defaultGrid: string;
+  /** What the user knows about the scan's object (kept with the scan); ticked items go into the recipe. */
+  declare knowledge: ScanKnowledge | undefined;
+  /** Knowledge items left out of the recipe (region ids, 'outline'). */
+  declare off: ReadonlySet<string>;
   declare slicesMode: 'auto' | 'custom';
   /** Binning, view step and rows for this run (reduction.ts). */
   declare reduce: Reduction;
@@ -64,6 +70,9 @@ export class RecipeForm extends LitElement {
     .actions { display: flex; gap: 10px; align-items: center; margin-top: 14px; }
     .summary { font-size: 13px; color: var(--muted); }
     .advice { font-size: 12px; color: var(--text); }
+    .knowledge { display: flex; flex-direction: column; gap: 4px; font-size: 13px; }
+    .knowledge label { color: var(--text); display: flex; gap: 7px; align-items: flex-start; overflow-wrap: anywhere; }
+    .knowledge input { width: auto; margin: 3px 0 0; }
   `];
 
   constructor() {
@@ -79,6 +88,8 @@ export class RecipeForm extends LitElement {
     this.priorResults = [];
     this.advice = undefined;
     this.defaultGrid = '';
+    this.knowledge = undefined;
+    this.off = new Set();
   }
 
   willUpdate(changed: Map<string, unknown>) {
@@ -91,6 +102,8 @@ export class RecipeForm extends LitElement {
   /** The recipe as the form stands (not yet validated). */
   recipe(): Record<string, unknown> {
     const r: Record<string, unknown> = {};
+    const knowledge = recipeKnowledge(this.knowledge, this.off);
+    if (knowledge) r.knowledge = knowledge;
     for (const f of this.fields) {
       if (f.kind === 'grid') continue;
       if (f.appliesTo && !f.appliesTo(this.values)) continue;
@@ -121,7 +134,8 @@ export class RecipeForm extends LitElement {
       case 'choice': {
         // The prior may also be a stored result (listed by the page, not by the field).
         const extra = f.key === 'prior' ? this.priorResults.map((p) => ({ value: `${RESULT_PRIOR}${p.id}`, label: `Stored result: ${p.label}` })) : [];
-        const choices = [...f.choices, ...extra];
+        const recipe = this.recipe();
+        const choices = [...f.choices.filter((c) => !c.when || c.when(recipe)), ...extra];
         const shown = String(v !== undefined && choices.some((c) => c.value === v) ? v : f.defaultOf?.(this.values) ?? f.choices[0]?.value ?? '');
         return html`<select id=${id} name=${f.key} .value=${live(shown)} @change=${(e: Event) => this.set(f.key, (e.target as HTMLSelectElement).value)}>
           ${choices.map((c) => html`<option value=${c.value} ?selected=${c.value === shown}>${c.label}</option>`)}</select>`;
@@ -152,6 +166,24 @@ export class RecipeForm extends LitElement {
     </div>`;
   }
 
+  /** The knowledge kept with the scan, each item ticked to go into the recipe. */
+  private knowledgeInput() {
+    const items = knowledgeItems(this.knowledge);
+    const tick = (key: string, on: boolean) => {
+      const next = new Set(this.off);
+      if (on) next.delete(key);
+      else next.add(key);
+      this.off = next;
+      this.error = '';
+    };
+    return html`<div class="field wide"><label>Knowledge beyond the data</label>
+      ${items.length ? html`<div class="knowledge" role="group" aria-label="Knowledge beyond the data">${items.map((i) => html`<label>
+          <input type="checkbox" name="knowledge-item" data-key=${i.key} .checked=${live(!this.off.has(i.key))} @change=${(e: Event) => tick(i.key, (e.target as HTMLInputElement).checked)}>
+          <span>${i.words}<br><span class="help">${i.source}</span></span></label>`)}</div>`
+        : html`<span class="help" id="no-knowledge">None kept with this scan: draw a region of known value or the object's outline on an image in the Images tab.</span>`}
+      <span class="help">What you know about the object settles what the truncated data leave open; unticked items stay with the scan.</span></div>`;
+  }
+
   /** The slices of a cone-beam volume: automatic (the measured field's height) or chosen. */
   private slicesInput() {
     const mode = (m: 'auto' | 'custom') => () => { this.slicesMode = m; this.error = ''; };
@@ -169,13 +201,18 @@ export class RecipeForm extends LitElement {
   private queue(e: Event) {
     e.preventDefault();
     try {
+      const problem = knowledgeProblem(this.recipe());
+      if (problem) {
+        this.error = problem;
+        return;
+      }
       const recipe = validateRecipe(this.recipe());
       this.error = '';
       const name = recipeLabel(recipe as unknown as Record<string, unknown>);
       this.dispatchEvent(new CustomEvent('recipe-queue', { detail: { recipe, name }, bubbles: true, composed: true }));
     } catch (err) {
       if (!(err instanceof InputError)) throw err;
-      this.error = err.message;
+      this.error = err.pageMessage;
     }
   }
 
@@ -191,6 +228,7 @@ export class RecipeForm extends LitElement {
         <div class="field wide"><label>Reduce the scan for this run</label>
           <rf-reduction-input name="recipe" ?cone=${this.cone} .reduce=${this.reduce}
             @reduction-change=${(e: CustomEvent) => { e.stopPropagation(); this.reduce = e.detail.reduce; this.error = ''; }}></rf-reduction-input></div>
+        ${this.knowledgeInput()}
       </form>
       <div class="actions">
         <button class="primary" id="queue-recipe" ?disabled=${this.disabled} @click=${this.queue}>Add to queue</button>

@@ -27,6 +27,14 @@ import './region-table';
 import './compare-chooser';
 import './result-list';
 import './viewer-toolbar';
+import './knowledge-panel';
+import './knowledge-report';
+import type { SuggestedOutline } from '../core/completion/suggested-outline';
+import type { ScanKnowledge } from '../store/records';
+import type { KnowledgeOn } from './known-regions';
+import { addPolygonPoint, EMPTY_POLYGON, type EllipseDraft, type PolygonDraft } from './logic/knowledge-draw';
+import { knowledgeMarks } from './logic/knowledge-marks';
+import { resultKnowledge } from './logic/result-knowledge';
 
 /** The id that stands for the scan's ground truth as reference. */
 export const TRUTH = 'truth';
@@ -54,6 +62,7 @@ interface Panel {
  * @fires export-dicom - detail: { id }: the highlighted stored result as a DICOM CT series (encoded by the worker)
  * @fires result-delete - detail: { id }, from the list
  * @fires reference-change - detail: { id } ('truth' or a result id)
+ * (and, from the knowledge panel: knowledge-change, knowledge-demo, knowledge-error-dismiss)
  */
 export class ResultsView extends LitElement {
   static properties = {
@@ -61,7 +70,9 @@ export class ResultsView extends LitElement {
     referenceId: { type: String }, comparisons: { attribute: false }, scanName: { type: String }, scanSummary: { type: String },
     cone: { type: Boolean }, imageImport: { attribute: false }, muWater: { type: Number }, calibration: { attribute: false }, calibrating: { attribute: false },
     waitingId: { type: String }, baselineId: { type: String },
-    dicomExport: { attribute: false },
+    dicomExport: { attribute: false }, scanId: { type: String }, knowledge: { attribute: false }, suggested: { attribute: false },
+    knowledgeState: { attribute: false }, demo: { type: Boolean },
+    showKnowledge: { state: true }, draftEllipse: { state: true }, draftPolygon: { state: true },
     window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
     line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
     exportError: { state: true },
@@ -95,6 +106,19 @@ export class ResultsView extends LitElement {
   declare calibrating: ImageImportState;
   /** A DICOM export being encoded, why the last one failed, and what it noted. */
   declare dicomExport: DicomExportState;
+  declare scanId: string;
+  /** What the user knows about the object (kept with the scan). */
+  declare knowledge: ScanKnowledge | undefined;
+  /** The outline the scan's data suggest (undefined: not known yet). */
+  declare suggested: SuggestedOutline | null | undefined;
+  /** A knowledge change being stored, and why the last one was refused. */
+  declare knowledgeState: ImageImportState;
+  /** The scan is the 2D demo (its knowledge can be shown in one click). */
+  declare demo: boolean;
+  declare showKnowledge: boolean;
+  /** The outline ellipse and polygon being drawn. */
+  declare draftEllipse: EllipseDraft | null;
+  declare draftPolygon: PolygonDraft;
   declare window: DisplayWindow | undefined;
   declare diffWindow: DisplayWindow;
   declare view: ViewState;
@@ -153,6 +177,14 @@ export class ResultsView extends LitElement {
     this.showDifference = false;
     this.activeKey = '';
     this.exportError = '';
+    this.scanId = '';
+    this.knowledge = undefined;
+    this.suggested = undefined;
+    this.knowledgeState = { busy: false, error: '' };
+    this.demo = false;
+    this.showKnowledge = true;
+    this.draftEllipse = null;
+    this.draftPolygon = EMPTY_POLYGON;
   }
 
   private display(image: Image2D, label: string): DisplayImage {
@@ -205,7 +237,13 @@ export class ResultsView extends LitElement {
     });
   }
 
-  willUpdate() {
+  willUpdate(changed: Map<string, unknown>) {
+    // A new stored outline replaces what was being drawn for it.
+    const before = changed.get('knowledge') as ScanKnowledge | undefined;
+    if (changed.has('knowledge') && before && JSON.stringify(before.outline) !== JSON.stringify(this.knowledge?.outline)) {
+      this.draftEllipse = null;
+      if (this.draftPolygon.closed) this.draftPolygon = EMPTY_POLYGON;
+    }
     const panels = this.panels();
     if (!this.window && panels.length) {
       const first = panels[0].display;
@@ -267,6 +305,7 @@ export class ResultsView extends LitElement {
         metrics: p.meta ? this.comparisonOf(p.meta) : undefined,
         residual: p.meta?.residual,
         region: this.region ? regionStats(p.display.values, p.display.grid, this.region.centre, this.region.radius) : undefined,
+        knowledge: p.meta ? resultKnowledge(p.meta) : undefined,
       })).map((i) => ({ ...i, metrics: typeof i.metrics === 'object' ? i.metrics : undefined })),
     });
     saveFile(html, fileName(`report-${this.scanName}`, 'html'), 'text/html');
@@ -296,6 +335,26 @@ export class ResultsView extends LitElement {
     return html`<rf-compare-chooser .waiting=${waiting.name} .items=${items}></rf-compare-chooser>`;
   }
 
+  /** The highlighted image as the knowledge op takes it (a stored result, or the reference). */
+  private knowledgeOn(active: Panel | undefined): KnowledgeOn {
+    if (active?.meta) return { resultId: active.meta.id };
+    return active?.key === TRUTH ? 'reference' : undefined;
+  }
+
+  /** The knowledge panel and, for the compared results that used knowledge, what it did. */
+  private knowledgeCards(compared: Panel[], active: Panel | undefined) {
+    const used = compared.flatMap((p) => {
+      const k = resultKnowledge(p.meta!);
+      return k ? [{ label: p.label, colour: p.colour, knowledge: k }] : [];
+    });
+    return html`${used.length ? html`<div class="card"><h2>Knowledge used</h2><rf-knowledge-report .rows=${used}></rf-knowledge-report></div>` : nothing}
+      <rf-knowledge-panel .scanId=${this.scanId} .knowledge=${this.knowledge} .region=${this.region} .ellipse=${this.draftEllipse} .polygon=${this.draftPolygon}
+        .suggested=${this.suggested} .on=${this.knowledgeOn(active)} .onLabel=${active ? `“${active.label}”` : ''} .state=${this.knowledgeState} ?demo=${this.demo} .muWater=${this.muWater}
+        @region-draft=${(e: CustomEvent) => (this.region = e.detail.region)}
+        @ellipse-draft=${(e: CustomEvent) => (this.draftEllipse = e.detail.ellipse)}
+        @polygon-draft=${(e: CustomEvent) => (this.draftPolygon = e.detail.polygon)}></rf-knowledge-panel>`;
+  }
+
   private convergence(panels: Panel[]) {
     return panels.filter((p) => p.meta).map((p) => {
       const series: PlotSeries[] = convergenceHistories(p.meta!.report).map((hst, i) => ({
@@ -318,6 +377,7 @@ export class ResultsView extends LitElement {
       : [];
     const active = shown.find((p) => p.key === this.activeKey);
     const differenceShown = shown !== panels;
+    const marks = this.showKnowledge ? knowledgeMarks({ knowledge: this.knowledge, suggested: this.suggested, ellipse: this.draftEllipse, polygon: this.draftPolygon }) : [];
     return html`
       <div class="side">
         <rf-result-list .results=${this.results} .selected=${this.selected} .referenceId=${this.referenceId} .hasTruth=${!!this.truth} .baselineId=${this.baselineId}
@@ -330,6 +390,7 @@ export class ResultsView extends LitElement {
         ${!panels.length ? html`<div class="card empty">${this.results.length ? 'Tick one to four results on the left to view and compare them.' : 'No results for this scan yet: run a recipe from the Reconstruct tab.'}</div>` : html`
         <div class="card">
           <rf-viewer-toolbar .window=${w} .unit=${unit} .tool=${this.tool} .showFov=${this.showFov} .showDifference=${this.showDifference && !!ref} .canDifference=${!!ref && panels.length > 1}
+            knowledgeTools .showKnowledge=${this.showKnowledge} @knowledge-toggle=${(e: CustomEvent) => (this.showKnowledge = e.detail.show)}
             @window-change=${(e: CustomEvent) => this.setWindow(e.detail.window)}
             @window-auto=${() => this.setWindow(autoWindow(shown[0].display.values))}
             @tool-change=${(e: CustomEvent) => (this.tool = e.detail.tool)}
@@ -341,9 +402,12 @@ export class ResultsView extends LitElement {
           @view-change=${(e: CustomEvent) => (this.view = e.detail.view)}
           @cursor-change=${(e: CustomEvent) => (this.cursor = e.detail.point)}
           @line-change=${(e: CustomEvent) => (this.line = e.detail.line)}
-          @region-change=${(e: CustomEvent) => (this.region = e.detail.region)}>
+          @region-change=${(e: CustomEvent) => (this.region = e.detail.region)}
+          @ellipse-change=${(e: CustomEvent) => (this.draftEllipse = e.detail.ellipse)}
+          @polygon-point=${(e: CustomEvent) => (this.draftPolygon = addPolygonPoint(this.draftPolygon, e.detail.point, e.detail.snap))}
+          @polygon-close=${() => (this.draftPolygon = this.draftPolygon.points.length >= 3 ? { ...this.draftPolygon, closed: true } : this.draftPolygon)}>
           ${shown.map((p) => html`<rf-image-viewer data-key=${p.key} .image=${p.display} .window=${w} .view=${this.view} .cursor=${this.cursor} .tool=${this.tool}
-            .line=${this.line} .region=${this.region} .colour=${p.colour} .showFov=${this.showFov} .active=${p.key === this.activeKey}
+            .line=${this.line} .region=${this.region} .colour=${p.colour} .showFov=${this.showFov} .active=${p.key === this.activeKey} .marks=${marks}
             @panel-focus=${() => (this.activeKey = p.key)}></rf-image-viewer>`)}
         </div>
         ${metricsRows.length ? html`<div class="card"><h2>Agreement with ${this.referenceLabel()}</h2>
@@ -353,6 +417,7 @@ export class ResultsView extends LitElement {
         ${this.region ? html`<div class="card"><h2>Region</h2>
           <rf-region-table .unit=${unit} .radius=${this.region.radius}
             .rows=${shown.map((p) => ({ label: p.display.label, colour: p.colour, stats: regionStats(p.display.values, p.display.grid, this.region!.centre, this.region!.radius) }))}></rf-region-table></div>` : nothing}
+        ${this.knowledgeCards(compared, active)}
         ${this.convergence(panels)}
         ${compared.some((p) => p.meta!.warnings.length) ? html`<div class="card"><h2>Warnings</h2>${compared.flatMap((p) => p.meta!.warnings.map((x) => html`<p class="warning">${p.label}: ${x}</p>`))}</div>` : nothing}
         <div class="card">

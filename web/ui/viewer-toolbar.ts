@@ -14,6 +14,12 @@ const TOOLS: Array<{ tool: Tool; label: string; title: string }> = [
 
 const SLICE_TOOL = { tool: 'slice' as Tool, label: 'Slices', title: 'Click or drag in one plane to move the other planes through that point' };
 
+/** Tools that draw the object's outline (the knowledge panel takes what they draw). */
+const OUTLINE_TOOLS: Array<{ tool: Tool; label: string; title: string }> = [
+  { tool: 'ellipse', label: 'Ellipse', title: 'Drag from the centre of the object outwards to draw its outline as an ellipse' },
+  { tool: 'polygon', label: 'Polygon', title: 'Click the corners of the object\'s outline; click the first corner again or double-click to close it' },
+];
+
 const send = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatchEvent(new CustomEvent(name, { detail, bubbles: true, composed: true }));
 
 /**
@@ -23,11 +29,13 @@ const send = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatc
  * @fires tool-change - detail: { tool }
  * @fires fov-toggle - detail: { show }
  * @fires difference-toggle - detail: { show }
+ * @fires knowledge-toggle - detail: { show }: draw the known regions and the outline
  */
 export class ViewerToolbar extends LitElement {
   static properties = {
     window: { attribute: false }, unit: { type: String }, tool: { type: String },
     showFov: { type: Boolean }, showDifference: { type: Boolean }, canDifference: { type: Boolean }, sliceTool: { type: Boolean },
+    knowledgeTools: { type: Boolean }, showKnowledge: { type: Boolean },
   };
   declare window: DisplayWindow;
   declare unit: DisplayUnit;
@@ -39,6 +47,9 @@ export class ViewerToolbar extends LitElement {
   declare canDifference: boolean;
   /** Offer the slice tool (planes of a volume) and hide the difference switch. */
   declare sliceTool: boolean;
+  /** Offer the outline tools and the switch that draws the knowledge. */
+  declare knowledgeTools: boolean;
+  declare showKnowledge: boolean;
 
   static styles = [theme, css`
     :host { display: flex; flex-wrap: wrap; gap: 8px 18px; align-items: center; }
@@ -70,12 +81,14 @@ export class ViewerToolbar extends LitElement {
       </div>
       <div class="group" role="group" aria-label="Drag tool">
         <label>Drag</label>
-        ${(this.sliceTool ? [SLICE_TOOL, ...TOOLS] : TOOLS).map((t) => html`<button class="small" data-tool=${t.tool} aria-pressed=${this.tool === t.tool} title=${t.title} @click=${() => send(this, 'tool-change', { tool: t.tool })}>${t.label}</button>`)}
+        ${[...(this.sliceTool ? [SLICE_TOOL] : []), ...TOOLS, ...(this.knowledgeTools ? OUTLINE_TOOLS : [])].map((t) => html`<button class="small" data-tool=${t.tool} aria-pressed=${this.tool === t.tool} title=${t.title} @click=${() => send(this, 'tool-change', { tool: t.tool })}>${t.label}</button>`)}
       </div>
       <div class="group">
         <label class="check"><input type="checkbox" .checked=${live(this.showFov)} @change=${(e: Event) => send(this, 'fov-toggle', { show: (e.target as HTMLInputElement).checked })}>Field of view</label>
         ${this.sliceTool ? nothing : html`<label class="check"><input type="checkbox" name="difference" .checked=${live(this.showDifference)} ?disabled=${!this.canDifference}
           @change=${(e: Event) => send(this, 'difference-toggle', { show: (e.target as HTMLInputElement).checked })}>Difference from reference</label>`}
+        ${this.knowledgeTools ? html`<label class="check"><input type="checkbox" name="show-knowledge" .checked=${live(this.showKnowledge)}
+          @change=${(e: Event) => send(this, 'knowledge-toggle', { show: (e.target as HTMLInputElement).checked })}>Knowledge</label>` : nothing}
       </div>`;
   }
 }

@@ -13,10 +13,11 @@ import type { LibraryReplies, LibraryRequest } from './library-ops';
 import type { NetworkPriorOutcome, NetworkPriorRequest } from './network-prior-job';
 import type { PriorCheckOutcome, PriorCheckRequest } from './prior-check-job';
 import type { PackedOrtRuntime } from './ort-runtime-pack';
+import type { KnowledgeRequest } from './knowledge-ops';
 
-export const APP_PROTOCOL_VERSION = 7;
+export const APP_PROTOCOL_VERSION = 8;
 
-export type { CalibrationRequest, LibraryRequest, NetworkPriorRequest, PriorCheckRequest };
+export type { CalibrationRequest, KnowledgeRequest, LibraryRequest, NetworkPriorRequest, PriorCheckRequest };
 export type { ScanOverview, StoredVolumeRef } from './library-ops';
 export type { VolumePlane } from '../store/volume-planes';
 
@@ -40,6 +41,7 @@ export type AppRequest =
   | { op: 'network-prior'; request: NetworkPriorRequest }
   | { op: 'prior-check'; request: PriorCheckRequest }
   | { op: 'export-dicom'; resultId: string }
+  | { op: 'knowledge'; request: KnowledgeRequest }
   | LibraryRequest;
 
 /** What each request resolves to. */
@@ -60,6 +62,8 @@ export interface AppReplies extends LibraryReplies {
   'network-prior': NetworkPriorOutcome;
   'prior-check': PriorCheckOutcome;
   'export-dicom': DicomExportOutcome;
+  /** The scan with its knowledge as stored. */
+  knowledge: ScanMeta;
 }
 
 export interface EngineInfo {

@@ -7,7 +7,7 @@ import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
 import type { NewJob } from '../store/jobs';
-import type { CalibrationRequest, NetworkPriorRequest, PriorCheckRequest, StoredVolumeRef, VolumePlane } from './app-protocol';
+import type { CalibrationRequest, KnowledgeRequest, NetworkPriorRequest, PriorCheckRequest, StoredVolumeRef, VolumePlane } from './app-protocol';
 import type { Reduction } from '../core/reduction';
 
 /** What the client needs of a Worker (a real Web Worker, or a stand-in in tests). */
@@ -127,6 +127,11 @@ export class EngineClient {
   /** Sets a scan's mu_water (by hand or from a marked region) and updates its results' HU figures. */
   calibrate(request: CalibrationRequest, options: CallOptions = {}): Promise<AppReplies['calibrate']> {
     return this.call({ op: 'calibrate', request }, options);
+  }
+
+  /** Changes a scan's knowledge (known regions, outline), checked first; resolves to the scan as stored. */
+  changeKnowledge(request: KnowledgeRequest, options: CallOptions = {}): Promise<AppReplies['knowledge']> {
+    return this.call({ op: 'knowledge', request }, options);
   }
 
   /** Checks a network (its .onnx file and .json description) in the runtime and stores it. */

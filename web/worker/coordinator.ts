@@ -37,6 +37,7 @@ import { runRecipeJob, storeImageResult } from './run-job';
 import { storeVolumeResult } from './volume-result';
 import { isLibraryRequest, libraryOp } from './library-ops';
 import { exportDicomJob } from './export-dicom-job';
+import { changeKnowledge } from './knowledge-ops';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -51,6 +52,8 @@ export interface CoordinatorOptions {
 export class Coordinator {
   private workspace?: Promise<Workspace>;
   private turn: Promise<unknown> = Promise.resolve();
+  /** Knowledge changes take turns among themselves (never waiting for a run). */
+  private knowledgeTurn: Promise<unknown> = Promise.resolve();
   private readonly store: UseStore;
 
   constructor(private readonly options: CoordinatorOptions) {
@@ -91,6 +94,8 @@ export class Coordinator {
         return (await this.exclusive(() => this.importModel(r.files, hooks))) as AppReplies[K];
       case 'network-prior':
         return (await this.exclusive(async () => runNetworkPriorJob({ ws: await this.openWorkspace(), store: this.store, open: this.modelOpener() }, r.request, hooks))) as AppReplies[K];
+      case 'knowledge':
+        return (await this.knowledgeChange(() => changeKnowledge(this.store, r.request, hooks))) as AppReplies[K];
       case 'export-dicom':
         return (await exportDicomJob(this.store, r.resultId, hooks)) as AppReplies[K];
       case 'prior-check':
@@ -283,6 +288,13 @@ export class Coordinator {
       if (this.workspace === ws) this.workspace = undefined;
     });
     return ws;
+  }
+
+  /** Runs a knowledge change after the earlier ones (each re-reads the scan it changes). */
+  private knowledgeChange<T>(job: () => Promise<T>): Promise<T> {
+    const next = this.knowledgeTurn.then(job, job);
+    this.knowledgeTurn = next.catch(() => undefined);
+    return next;
   }
 
   /** Runs `job` after every earlier exclusive job has finished (runs share one workspace). */

@@ -21,6 +21,7 @@ import { loadPreview, storedProjections } from '../store/projections';
 import type { ResultMeta, ScanMeta } from '../store/records';
 import { changeJob } from '../store/jobs';
 import { saveResult } from '../store/results';
+import { loadMasks, maskNamesOf } from '../store/knowledge';
 import { loadReferenceVolume, loadScanReference } from '../store/scans';
 import { compareWithImage, storeVolumeResult, type ResultDescription } from './volume-result';
 
@@ -30,7 +31,7 @@ export interface RunJobContext {
   sharedMemory: boolean;
   /** Bytes the run may use, and where that figure comes from (for the refusal). */
   budget: { bytes: number; source: string };
-  /** Images the recipe names from storage (a prior). */
+  /** Images the recipe names from storage (a prior); the masks its knowledge names are added here. */
   inputs: (recipe: Recipe, cone: boolean) => Promise<RecipeInputs>;
 }
 
@@ -57,7 +58,7 @@ export async function runRecipeJob(ctx: RunJobContext, req: RunRequest, hooks: R
   const estimate = checkMemoryBudget(meta.geometry, recipe, run, ctx.budget.bytes, ctx.budget.source);
   const source = recipeSource(meta, recipe, ctx.store);
   const cone = source.geometry.kind === 'cone';
-  const inputs = await ctx.inputs(recipe, cone);
+  const inputs = { ...(await ctx.inputs(recipe, cone)), masks: await loadMasks(ctx.store, meta, maskNamesOf(recipe.knowledge)) };
   if (estimate.pixelWeightFloats !== undefined) inputs.pixelWeightFloats = estimate.pixelWeightFloats;
   throwIfCancelled(hooks.signal);
   const desc: ResultDescription = { name: req.name ?? recipeLabel(recipe as unknown as Record<string, unknown>), recipe: recipe as unknown as Record<string, unknown>, t0, jobId: req.jobId };

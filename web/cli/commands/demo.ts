@@ -3,6 +3,7 @@
 // compare every result with the ground truth and with the measured data.
 import { accessSync, constants, mkdirSync } from 'node:fs';
 import { InputError } from '../../core/errors';
+import { demoKnowledge } from '../../core/knowledge/demo';
 import { join } from 'node:path';
 import type { Comparison } from '../../core/compare';
 import type { DataResidual } from '../../core/data-residual';
@@ -71,14 +72,13 @@ export async function demo(argv: string[]): Promise<CommandResult> {
   const fov = String((sim.json as { fovRadiusMm: number }).fovRadiusMm);
   log.push((await inspect([f('scan.nrrd')])).text);
   const rows: Row[] = [];
-  // What a user might know of the demo thorax (our own scenario): the heart is muscle, about
-  // 44 HU at 60 keV (NIST muscle against water, REFERENCES.md [nist-srd126]), and the body's
-  // outline is an ellipse drawn a little outside the skin (the arms beside it left out).
-  const knownHeart = '4,30,10:44';
-  const outline = 'ellipse:0,0,172,122';
+  // What a user might know of the demo thorax, the same knowledge the page's demo offers.
+  const { region, outline: tape } = demoKnowledge();
+  const knownHeart = `${region.x},${region.y},${region.r}:${region.hu}`;
+  const outline = `ellipse:${tape.cx},${tape.cy},${tape.a},${tape.b}`;
   const jobs: Array<[string, string, string[], string]> = [
     ...EXTEND_METHODS.map((m) => [`truncated scan: ${methodAndCorrection({ method: 'fbp', extend: m })}`, 'scan.nrrd', ['--extend', m], `fbp-extend-${m}.nrrd`] as [string, string, string[], string]),
-    [`truncated scan: FBP, water cylinder, known region (heart, 44 HU)`, 'scan.nrrd', ['--extend', 'water', '--known', knownHeart], 'fbp-known-region.nrrd'],
+    [`truncated scan: FBP, water cylinder, known region (${region.label}, ${region.hu} HU)`, 'scan.nrrd', ['--extend', 'water', '--known', knownHeart], 'fbp-known-region.nrrd'],
     [`truncated scan: FBP, outline (drawn ellipse)`, 'scan.nrrd', ['--outline', outline], 'fbp-outline.nrrd'],
     [`complete scan: ${methodAndCorrection({ method: 'fbp' })}`, 'scan-complete.nrrd', [], 'fbp-complete.nrrd'],
   ];

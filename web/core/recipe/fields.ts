@@ -11,6 +11,8 @@ import { DEFAULT_RECIPE, METHODS } from './recipe';
 export interface FieldChoice {
   value: string;
   label: string;
+  /** When present, the choice is offered only for recipes where this returns true (e.g. it needs knowledge the recipe has). */
+  when?: (recipe: Record<string, unknown>) => boolean;
 }
 
 interface FieldBase {
@@ -87,6 +89,7 @@ const isIterative = (r: Record<string, unknown>) => isIterativeMethod(String(r.m
 const usesTv = (r: Record<string, unknown>) => r.method === 'tv' || r.method === 'wtv' || r.method === 'prior';
 const isReweighted = (r: Record<string, unknown>) => r.method === 'wtv' || r.method === 'prior';
 const isPrior = (r: Record<string, unknown>) => r.method === 'prior';
+const hasOutline = (r: Record<string, unknown>) => !!(r.knowledge as { outline?: unknown } | undefined)?.outline;
 
 /** Described fields, in form order. */
 export const RECIPE_FIELDS: RecipeField[] = [
@@ -101,8 +104,9 @@ export const RECIPE_FIELDS: RecipeField[] = [
     help: 'Spatial frequency where the filter window ends, in line pairs per cm at the isocentre (empty: the detector\'s Nyquist frequency).',
   },
   {
-    key: 'extend', label: 'Truncation correction', kind: 'choice', choices: choicesOf(EXTEND_METHODS, { cosine: 'Cosine taper of the edge value' }), appliesTo: isFbp,
-    help: 'How the cut-off projections are continued beyond the detector edges before filtering, as far as the object is estimated to reach.',
+    key: 'extend', label: 'Truncation correction', kind: 'choice', appliesTo: isFbp,
+    choices: [...choicesOf(EXTEND_METHODS, { cosine: 'Cosine taper of the edge value' }), { value: 'outline', label: 'Outline filled with water', when: hasOutline }],
+    help: 'How the cut-off projections are continued beyond the detector edges before filtering, as far as the object is estimated to reach (or, with the outline as knowledge, as far as the outline).',
   },
   { key: 'grid', label: 'Image grid', kind: 'grid', help: 'Pixels along each side and pixel size; automatic covers the measured field of view and the estimated object.' },
   {

@@ -44,7 +44,10 @@ export function correctionWords(recipe: RecipeLike): string {
 
 /** "FBP, water cylinder": the method and its correction, and what it knows beyond the data (the CLI's short label). */
 export function methodAndCorrection(recipe: RecipeLike): string {
-  return [methodWords(recipe), correctionWords(recipe), knowledgePhrase(recipe.knowledge as Knowledge | undefined)].filter(Boolean).join(', ');
+  const k = recipe.knowledge as Knowledge | undefined;
+  // Extending from the outline names the outline already.
+  const known = recipe.method === 'fbp' && recipe.extend === 'outline' && k ? { ...k, outline: undefined } : k;
+  return [methodWords(recipe), correctionWords(recipe), knowledgePhrase(known)].filter(Boolean).join(', ');
 }
 
 function formatValue(f: RecipeField, v: unknown): string {

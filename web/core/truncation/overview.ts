@@ -3,10 +3,12 @@
 // plane (centralRow, which follows a vertical detector offset), analysed as a fan-beam scan.
 // Left/right truncation is the same in every row of a circular scan to within the cone's
 // divergence.
+import { suggestedOutline, type SuggestedOutline } from '../completion/suggested-outline';
 import type { Scan } from '../scan';
 import type { Geometry } from '../geometry/types';
 import { centralRow, rowGeometry, rowScan } from './central-row';
 import { detectTruncation, type TruncationReport } from './detect';
+import { analyseEdges } from './edges';
 import { recommendCorrection, type CorrectionAdvice } from './recommend';
 
 export interface TruncationOverview {
@@ -17,13 +19,15 @@ export interface TruncationOverview {
   report: TruncationReport;
   /** The correction the report suggests (the page's recipe default, inspect's last line). */
   advice: CorrectionAdvice;
+  /** The outline the views' edges suggest (the analysed row of a cone-beam scan), for the user to compare and correct; null when the views do not go round the object. */
+  suggestedOutline: SuggestedOutline | null;
 }
 
 /** The analysed row (cone beam) and its truncation report. */
 export function truncationOverview(scan: Scan): TruncationOverview {
   if (scan.geometry.kind !== 'cone') {
     const report = detectTruncation(scan);
-    return { row: undefined, sinogram: scan.data, report, advice: recommendCorrection(report.summary) };
+    return { row: undefined, sinogram: scan.data, report, advice: recommendCorrection(report.summary), suggestedOutline: suggestedOutline(analyseEdges(scan)) };
   }
   const row = centralRow(scan.geometry);
   return rowOverview(scan.geometry, row, rowScan(scan, row).data, scan.muWater);
@@ -31,6 +35,7 @@ export function truncationOverview(scan: Scan): TruncationOverview {
 
 /** The overview of a cone-beam scan from its analysed row alone (views x channels), as stored. */
 export function rowOverview(g: Geometry, row: number, sinogram: Float32Array, muWater?: number): TruncationOverview {
-  const report = detectTruncation({ geometry: rowGeometry(g), data: sinogram, muWater });
-  return { row, sinogram, report, advice: recommendCorrection(report.summary) };
+  const analysed: Scan = { geometry: rowGeometry(g), data: sinogram, muWater };
+  const report = detectTruncation(analysed);
+  return { row, sinogram, report, advice: recommendCorrection(report.summary), suggestedOutline: suggestedOutline(analyseEdges(analysed)) };
 }

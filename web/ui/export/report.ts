@@ -3,6 +3,7 @@
 import { correctionWords } from '../../core/recipe/label';
 import type { Comparison, RegionFigures } from '../../core/compare';
 import type { DataResidual } from '../../core/data-residual';
+import type { ResultKnowledge } from '../logic/result-knowledge';
 
 export interface ReportImage {
   label: string;
@@ -16,6 +17,8 @@ export interface ReportImage {
   /** Re-projection against the measured data. */
   residual?: DataResidual | null;
   region?: { mean: number; sd: number; pixels: number };
+  /** What the result knew beyond the data (known regions, outline) and what the knowledge did. */
+  knowledge?: ResultKnowledge;
 }
 
 export interface ReportInput {
@@ -49,6 +52,15 @@ function correctionOf(recipe: Record<string, unknown>): string {
   return correctionWords(recipe) || 'made elsewhere (image file)';
 }
 
+/** One result's knowledge: the items in words, each region's value before and after, and the residual before and after. */
+function knowledgeSection(label: string, colour: string, k: ResultKnowledge): string {
+  const rows = k.regions.map((g) => `<tr><th scope="row">${esc(g.name)}</th><td>${f(g.knownHu, 0)}</td><td>${f(g.beforeHu, 0)}</td><td>${f(g.afterHu, 0)}</td></tr>`).join('');
+  const pct = (v: number) => (Number.isFinite(v) ? `${(100 * v).toFixed(2)}%` : '–');
+  return `<h3><span class="dot" style="background:${esc(colour)}"></span>${esc(label)}</h3><ul>${k.used.map((u) => `<li>${esc(u)}</li>`).join('')}</ul>
+${rows ? `<table><thead><tr><th></th><th>Known (HU)</th><th>Correction alone (HU)</th><th>With the knowledge (HU)</th></tr></thead><tbody>${rows}</tbody></table>` : ''}
+${k.residual ? `<p class="meta">Residual against the measured data: ${pct(k.residual.before.relative)} with the correction alone, ${pct(k.residual.after.relative)} with the knowledge.</p>` : ''}`;
+}
+
 /** The report as a complete HTML document. */
 export function buildReport(r: ReportInput): string {
   const unit = r.images.find((i) => i.metrics)?.metrics?.unit ?? r.unit;
@@ -59,6 +71,7 @@ export function buildReport(r: ReportInput): string {
     <td>${pct(i.residual!.relative)}</td><td>${i.residual!.rms.toPrecision(3)}</td><td>${i.residual!.bias.toPrecision(3)}</td><td>${i.residual!.worstView}${i.residual!.sampled ? ` (${esc(i.residual!.sampled)})` : ''}</td></tr>`).join('');
   const regionRows = r.images.filter((i) => i.region).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td>${f(i.region!.mean, 1)}</td><td>${f(i.region!.sd, 1)}</td><td>${i.region!.pixels}</td></tr>`).join('');
   const recipes = r.images.filter((i) => i.recipe).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td class="left">${esc(correctionOf(i.recipe!))}</td><td class="left"><code>${esc(JSON.stringify(i.recipe))}</code></td><td>${f(i.seconds, 1)} s</td></tr>`).join('');
+  const knowledge = r.images.filter((i) => i.knowledge).map((i) => knowledgeSection(i.label, i.colour, i.knowledge!)).join('');
   const warnings = r.images.flatMap((i) => i.warnings.map((w) => `<li>${esc(i.label)}: ${esc(w)}</li>`)).join('');
   return `<!doctype html>
 <html lang="en"><head><meta charset="utf-8">
@@ -66,7 +79,7 @@ export function buildReport(r: ReportInput): string {
 <title>${esc(r.title)}</title>
 <style>
   body { font: 13px/1.45 system-ui, -apple-system, 'Segoe UI', Roboto, Arial, sans-serif; color: #1c2430; margin: 24px auto; max-width: 960px; padding: 0 16px; }
-  h1 { font-size: 20px; margin: 0 0 4px; } h2 { font-size: 15px; margin: 22px 0 8px; border-bottom: 1px solid #d8dce2; padding-bottom: 4px; }
+  h1 { font-size: 20px; margin: 0 0 4px; } h3 { font-size: 13px; margin: 12px 0 4px; } h2 { font-size: 15px; margin: 22px 0 8px; border-bottom: 1px solid #d8dce2; padding-bottom: 4px; }
   .caution { background: #fff4df; color: #8a5300; border: 1px solid #f0dcb4; border-radius: 6px; padding: 8px 12px; font-weight: 600; }
   .meta { color: #5d6877; }
   .images { display: grid; grid-template-columns: repeat(2, 1fr); gap: 12px; }
@@ -94,6 +107,8 @@ ${residualRows ? `<h2>Agreement with the measured data</h2>
 <p class="meta">Each image re-projected onto the measured detector channels and compared with the measured line integrals: ‖Af − p‖ / ‖p‖. A positive mean means the image holds too much along the measured rays.</p>` : ''}
 ${regionRows ? `<h2>Region statistics (${esc(r.unit)})</h2><table><thead><tr><th></th><th>Mean</th><th>SD</th><th>Pixels</th></tr></thead><tbody>${regionRows}</tbody></table>` : ''}
 ${r.profileSvg ? `<h2>Line profile</h2>${r.profileCaption ? `<p class="meta">${esc(r.profileCaption)}</p>` : ''}${r.profileSvg}` : ''}
+${knowledge ? `<h2>Knowledge beyond the data</h2>${knowledge}
+<p class="meta">Each known region's mean with the truncation correction alone and with the knowledge; the residual against the measured data should not grow (the knowledge settles only what the truncated data leave open).</p>` : ''}
 ${recipes ? `<h2>Recipes</h2><table><thead><tr><th></th><th class="left">Truncation correction</th><th class="left">Recipe</th><th>Time</th></tr></thead><tbody>${recipes}</tbody></table>` : ''}
 ${warnings ? `<h2>Warnings</h2><ul>${warnings}</ul>` : ''}
 <p class="caution">${CAUTION}</p>

@@ -15,6 +15,7 @@ import { validateGeometry } from '../../../core/geometry/validate';
 import { fovRadius } from '../../../core/geometry/view-vectors';
 import { gridOrigin, type Image2D } from '../../../core/image';
 import type { KnownCircle, Outline } from '../../../core/knowledge';
+import { bodyMask } from '../../../core/knowledge/threshold-mask';
 import { rasterize, type EllipsePhantom } from '../../../core/phantoms/ellipse';
 import { addPhotonNoise } from '../../../core/simulate/noise';
 import { thorax } from '../../../core/phantoms/thorax';
@@ -89,56 +90,6 @@ export function completeGeometry(c: SevereCase, reach: number): Geometry {
   return validateGeometry({ ...g, detector: { ...g.detector, channels: 2 * Math.ceil(uMax / pitch), offset: [0, g.detector.offset[1]] } });
 }
 
-/** The body: the largest 4-connected set of pixels above -500 HU, its holes filled. */
-function bodyMask(img: Image2D, muWater: number): Uint8Array {
-  const g = img.grid;
-  const above = (q: number) => img.data[q] > 0.5 * muWater;
-  const label = new Int32Array(g.nx * g.ny);
-  let best = 0, bestSize = 0, next = 0;
-  for (let seed = 0; seed < label.length; seed++) {
-    if (label[seed] || !above(seed)) continue;
-    const id = ++next;
-    let size = 0;
-    const stack = [seed];
-    while (stack.length) {
-      const q = stack.pop()!;
-      if (label[q] || !above(q)) continue;
-      label[q] = id;
-      size++;
-      const i = q % g.nx, j = (q - i) / g.nx;
-      if (i > 0) stack.push(q - 1);
-      if (i < g.nx - 1) stack.push(q + 1);
-      if (j > 0) stack.push(q - g.nx);
-      if (j < g.ny - 1) stack.push(q + g.nx);
-    }
-    if (size > bestSize) [best, bestSize] = [id, size];
-  }
-  return fillHoles(Uint8Array.from(label, (l) => (l === best && best > 0 ? 1 : 0)), g.nx, g.ny);
-}
-
-/**
- * The mask with its holes filled (lungs, airways, bowel gas): every pixel that cannot be
- * reached from the image border without crossing the mask. A user's outline goes around the
- * body, not around its tissue.
- */
-function fillHoles(mask: Uint8Array, nx: number, ny: number): Uint8Array {
-  const outside = new Uint8Array(mask.length);
-  const stack: number[] = [];
-  for (let i = 0; i < nx; i++) stack.push(i, (ny - 1) * nx + i);
-  for (let j = 0; j < ny; j++) stack.push(j * nx, j * nx + nx - 1);
-  while (stack.length) {
-    const q = stack.pop()!;
-    if (outside[q] || mask[q]) continue;
-    outside[q] = 1;
-    const i = q % nx, j = (q - i) / nx;
-    if (i > 0) stack.push(q - 1);
-    if (i < nx - 1) stack.push(q + 1);
-    if (j > 0) stack.push(q - nx);
-    if (j < ny - 1) stack.push(q + nx);
-  }
-  return Uint8Array.from(outside, (o) => 1 - o);
-}
-
 /** The ellipse with the mask's centroid and second moments (a uniform ellipse has variance a^2 / 4 along its axis). */
 function momentEllipse(mask: Uint8Array, img: Image2D): { outline: Outline; halfWidth: number } {
   const g = img.grid;
@@ -186,7 +137,7 @@ function uniformDisk(img: Image2D, fov: number, muWater: number): KnownCircle {
 /** Knowledge and geometry for an object image; `project` gives the object's line integrals for a geometry. */
 async function buildCase(name: string, about: string, truth: Image2D, o: CaseOptions, project: (g: Geometry) => Promise<Float32Array>): Promise<SevereCase> {
   const muWater = truth.muWater!;
-  const body = bodyMask(truth, muWater);
+  const body = bodyMask(truth, 0.5 * muWater); // above -500 HU
   const { outline, halfWidth } = momentEllipse(body, truth);
   const fov0 = (o.fovFraction ?? 0.42) * halfWidth;
   const geometry = o.geometry ?? cArmFan(fov0, o.views ?? 360, o.pitch ?? 0.8, o.arcDeg);
@@ -202,7 +153,7 @@ async function buildCase(name: string, about: string, truth: Image2D, o: CaseOpt
 
 /** Half of the width along x of the body in an image, mm. */
 function halfWidthOf(img: Image2D): number {
-  return momentEllipse(bodyMask(img, img.muWater!), img).halfWidth;
+  return momentEllipse(bodyMask(img, 0.5 * img.muWater!), img).halfWidth;
 }
 
 /** The convex hull (a polygon, counter-clockwise) of every pixel above -500 HU, by Andrew's monotone chain (common practice). */
@@ -259,7 +210,7 @@ export async function realSlice(file: string, muWater = MU_WATER_SLICES): Promis
  * (a head holder, the table) stay.
  */
 function clearAir(img: Image2D): Image2D {
-  const body = bodyMask(img, img.muWater!);
+  const body = bodyMask(img, 0.5 * img.muWater!);
   const limit = 0.5 * img.muWater!;
   return { ...img, data: img.data.map((v, q) => (body[q] || v > limit ? v : 0)) };
 }
