@@ -25,37 +25,50 @@ export function coneFilterViews(
   H: usize, nPad: i32, twRe: usize, twIm: usize, bitrev: usize, re: usize, im: usize,
   out: usize, stride: i32,
 ): void {
-  const rowBytes = <usize>stride << 2;
-  const blockBytes = <usize>(nRows + 3) * rowBytes;
-  const lane = f32x4(0, 1, 2, 3);
+  const blockBytes = <usize>(nRows + 3) * (<usize>stride << 2);
   for (let v = view0; v < view1; v++) {
-    const b = views + (<usize>(v * VIEW_STRIDE) << 2);
-    const cx = ldf(b, 3) - ldf(b, 0), cy = ldf(b, 4) - ldf(b, 1), cz = ldf(b, 5) - ldf(b, 2);
-    const d2 = f32x4.splat(cx * cx + cy * cy + cz * cz);
-    const rows = proj + (<usize>(v - chunk0) * <usize>nRows * <usize>nCh << 2);
-    const w = viewWeights + (<usize>v * <usize>nCh << 2);
-    for (let r = 0; r < nRows; r++) {
-      const vr = v0 + <f32>r * pitchV;
-      const v2 = f32x4.splat(vr * vr);
-      const row = rows + (<usize>r * <usize>nCh << 2);
-      let k = 0;
-      for (; k + 4 <= nCh; k += 4) {
-        const u = f32x4.add(f32x4.splat(u0 + <f32>k * pitchU), f32x4.mul(lane, f32x4.splat(pitchU)));
-        const inPlane = f32x4.add(d2, f32x4.mul(u, u));
-        const cosKappa = f32x4.sqrt(f32x4.div(inPlane, f32x4.add(inPlane, v2)));
-        const p = row + (<usize>k << 2);
-        v128.store(p, f32x4.mul(f32x4.mul(v128.load(p), v128.load(w + (<usize>k << 2))), cosKappa));
-      }
-      for (; k < nCh; k++) {
-        const u = u0 + <f32>k * pitchU;
-        const inPlane = cx * cx + cy * cy + cz * cz + u * u;
-        const p = row + (<usize>k << 2);
-        store<f32>(p, load<f32>(p) * ldf(w, k) * Mathf.sqrt(inPlane / (inPlane + vr * vr)));
-      }
-    }
-    const block = out + <usize>(v - chunk0) * blockBytes;
-    memory.fill(block, 0, rowBytes);
-    filterViews(rows, nCh, 0, nRows, 0, 0, H, nPad, twRe, twIm, bitrev, re, im, block + rowBytes, stride);
-    memory.fill(block + <usize>(nRows + 1) * rowBytes, 0, rowBytes << 1);
+    filterConeView(proj, nCh, nRows, chunk0, v, views, viewWeights, u0, pitchU, v0, pitchV,
+      H, nPad, twRe, twIm, bitrev, re, im, out + <usize>(v - chunk0) * blockBytes, stride);
   }
+}
+
+/**
+ * Weights and filters view v of the chunk (as coneFilterViews) into one padded block at
+ * `block`: nRows + 3 row slots of `stride` floats.
+ */
+export function filterConeView(
+  proj: usize, nCh: i32, nRows: i32, chunk0: i32, v: i32,
+  views: usize, viewWeights: usize, u0: f32, pitchU: f32, v0: f32, pitchV: f32,
+  H: usize, nPad: i32, twRe: usize, twIm: usize, bitrev: usize, re: usize, im: usize,
+  block: usize, stride: i32,
+): void {
+  const rowBytes = <usize>stride << 2;
+  const lane = f32x4(0, 1, 2, 3);
+  const b = views + (<usize>(v * VIEW_STRIDE) << 2);
+  const cx = ldf(b, 3) - ldf(b, 0), cy = ldf(b, 4) - ldf(b, 1), cz = ldf(b, 5) - ldf(b, 2);
+  const d2 = f32x4.splat(cx * cx + cy * cy + cz * cz);
+  const rows = proj + (<usize>(v - chunk0) * <usize>nRows * <usize>nCh << 2);
+  const w = viewWeights + (<usize>v * <usize>nCh << 2);
+  for (let r = 0; r < nRows; r++) {
+    const vr = v0 + <f32>r * pitchV;
+    const v2 = f32x4.splat(vr * vr);
+    const row = rows + (<usize>r * <usize>nCh << 2);
+    let k = 0;
+    for (; k + 4 <= nCh; k += 4) {
+      const u = f32x4.add(f32x4.splat(u0 + <f32>k * pitchU), f32x4.mul(lane, f32x4.splat(pitchU)));
+      const inPlane = f32x4.add(d2, f32x4.mul(u, u));
+      const cosKappa = f32x4.sqrt(f32x4.div(inPlane, f32x4.add(inPlane, v2)));
+      const p = row + (<usize>k << 2);
+      v128.store(p, f32x4.mul(f32x4.mul(v128.load(p), v128.load(w + (<usize>k << 2))), cosKappa));
+    }
+    for (; k < nCh; k++) {
+      const u = u0 + <f32>k * pitchU;
+      const inPlane = cx * cx + cy * cy + cz * cz + u * u;
+      const p = row + (<usize>k << 2);
+      store<f32>(p, load<f32>(p) * ldf(w, k) * Mathf.sqrt(inPlane / (inPlane + vr * vr)));
+    }
+  }
+  memory.fill(block, 0, rowBytes);
+  filterViews(rows, nCh, 0, nRows, 0, 0, H, nPad, twRe, twIm, bitrev, re, im, block + rowBytes, stride);
+  memory.fill(block + <usize>(nRows + 1) * rowBytes, 0, rowBytes << 1);
 }

@@ -50,9 +50,14 @@ export function josephAdjointCone(
   views: usize, view0: i32, view1: i32, nCh: i32, nRows: i32, u0: f32, pitchU: f32, v0: f32, pitchV: f32,
   data: usize, own0: i32, own1: i32,
 ): void {
-  const lane = f32x4(0, 1, 2, 3);
   const laneI = i32x4(0, 1, 2, 3);
   const zLo: f32 = <f32>(own0 - 1), zHi: f32 = <f32>own1;
+  // The forward projection takes four neighbouring channels per step; the adjoint four channels
+  // a quarter of the detector apart, whose cells never meet (neighbouring lanes' scattered adds
+  // to the same or overlapping cells stall on store-to-load forwarding).
+  const spread = adjoint ? (nCh + 3) >> 2 : 1;
+  const kStep = adjoint ? 1 : 4;
+  const kEnd = adjoint ? spread : nCh;
   for (let v = view0; v < view1; v++) {
     const b = views + (<usize>(v * VIEW_STRIDE) << 2);
     const sx = ldf(b, 0), sy = ldf(b, 1), sz = ldf(b, 2);
@@ -64,18 +69,19 @@ export function josephAdjointCone(
       const vr = v0 + <f32>r * pitchV;
       const bx = ldf(b, 3) - sx + vr * vx, by = ldf(b, 4) - sy + vr * vy, bz = ldf(b, 5) - sz + vr * vz;
       const row = data + ((<usize>v * <usize>nRows + <usize>r) * <usize>nCh << 2);
-      for (let k = 0; k < nCh; k += 4) {
-        const u = f32x4.add(f32x4.splat(u0 + <f32>k * pitchU), f32x4.mul(lane, f32x4.splat(pitchU)));
+      for (let k = 0; k < kEnd; k += kStep) {
+        const chan = i32x4.add(i32x4.splat(k), i32x4.mul(laneI, i32x4.splat(spread)));
+        const u = f32x4.add(f32x4.splat(u0), f32x4.mul(f32x4.convert_i32x4_s(chan), f32x4.splat(pitchU)));
         const ddx = f32x4.add(f32x4.splat(bx), f32x4.mul(u, f32x4.splat(ux)));
         const ddy = f32x4.add(f32x4.splat(by), f32x4.mul(u, f32x4.splat(uy)));
         const ddz = f32x4.add(f32x4.splat(bz), f32x4.mul(u, f32x4.splat(uz)));
         const len = f32x4.sqrt(f32x4.add(f32x4.add(f32x4.mul(ddx, ddx), f32x4.mul(ddy, ddy)), f32x4.mul(ddz, ddz)));
-        const active = i32x4.lt_s(i32x4.add(i32x4.splat(k), laneI), i32x4.splat(nCh));
+        const active = i32x4.lt_s(chan, i32x4.splat(nCh));
         const xMajor = v128.and(f32x4.ge(f32x4.abs(ddx), f32x4.abs(ddy)), active);
         const yMajor = v128.andnot(active, xMajor);
         const p = row + (<usize>k << 2);
         if (adjoint) {
-          const y = loadLanes(p, nCh - k);
+          const y = gatherLanes(row, chan, active);
           sweep(padT, true, y, xMajor, ddx, ddy, ddz, len, sx, sy, sz, x0, y0, z0, dx, dy, dz, nx, ny, nz, zLo, zHi, own0, own1);
           sweep(pad, true, y, yMajor, ddy, ddx, ddz, len, sy, sx, sz, y0, x0, z0, dy, dx, dz, ny, nx, nz, zLo, zHi, own0, own1);
         } else {
@@ -219,13 +225,13 @@ export function josephAdjointCone(
   return <i32>p;
 }
 
-/** Loads n (1..4, or more meaning 4) floats at p into lanes, zero beyond. */
-@inline function loadLanes(p: usize, n: i32): v128 {
-  if (n >= 4) return v128.load(p);
+/** The floats of channels `chan` (i32 lanes) of a detector row, zero where `active` is not set. */
+@inline function gatherLanes(row: usize, chan: v128, active: v128): v128 {
   let y = f32x4.splat(0);
-  y = f32x4.replace_lane(y, 0, load<f32>(p));
-  if (n > 1) y = f32x4.replace_lane(y, 1, load<f32>(p + 4));
-  if (n > 2) y = f32x4.replace_lane(y, 2, load<f32>(p + 8));
+  if (i32x4.extract_lane(active, 0) != 0) y = f32x4.replace_lane(y, 0, load<f32>(row + (<usize>i32x4.extract_lane(chan, 0) << 2)));
+  if (i32x4.extract_lane(active, 1) != 0) y = f32x4.replace_lane(y, 1, load<f32>(row + (<usize>i32x4.extract_lane(chan, 1) << 2)));
+  if (i32x4.extract_lane(active, 2) != 0) y = f32x4.replace_lane(y, 2, load<f32>(row + (<usize>i32x4.extract_lane(chan, 2) << 2)));
+  if (i32x4.extract_lane(active, 3) != 0) y = f32x4.replace_lane(y, 3, load<f32>(row + (<usize>i32x4.extract_lane(chan, 3) << 2)));
   return y;
 }
 

@@ -2,7 +2,7 @@
 // playwright-core: once served from a loopback static server (cross-origin isolated: shared
 // engine memory) and once opened from disk (file://: separate memories). Builds the page first
 // when it is missing or older than its sources. Prints "N passed, N failed"; exits 1 on failure.
-// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--first-hour-only] [--knowledge-only]
+// Usage: node test/browser/run.mjs [--rebuild] [--only http|file] [--priors-only] [--first-hour-only] [--knowledge-only] [--big-cone-only]
 import { execSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -15,6 +15,7 @@ import { knowledgeTests } from './knowledge-tests.mjs';
 import { coneReference } from './cli-cone-reference.mjs';
 import { Harness } from './harness.mjs';
 import { pageTests } from './page-tests.mjs';
+import { bigConeTests } from './big-cone-tests.mjs';
 import { priorReference } from './prior-reference.mjs';
 import { priorTests } from './prior-tests.mjs';
 import { ensurePageBuilt } from '../../scripts/page-build.mjs';
@@ -27,6 +28,8 @@ const argv = process.argv.slice(2);
 const only = argv.includes('--only') ? argv[argv.indexOf('--only') + 1] : undefined;
 /** Only the network-prior steps (on a fresh profile the page makes the demo scan itself). */
 const priorsOnly = argv.includes('--priors-only');
+/** Only the steps of the large cone-beam path (big-cone-tests.mjs). */
+const bigConeOnly = argv.includes('--big-cone-only');
 /** Only the first-hour steps on laptop screens (first-hour-tests.mjs). */
 const firstHourOnly = argv.includes('--first-hour-only');
 /** Only the knowledge steps on laptop screens (knowledge-tests.mjs). */
@@ -57,10 +60,10 @@ async function main() {
   }
   mkdirSync(artifacts, { recursive: true });
   let reference;
-  if (!laptopOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
+  if (!laptopOnly && !bigConeOnly) await h.step('command-line reference: the demo job through build/cli.mjs', async () => {
     reference = cliReference(root);
   });
-  if (!priorsOnly && !laptopOnly) {
+  if (!priorsOnly && !laptopOnly && !bigConeOnly) {
     await h.step('command-line reference: the cone-beam demo job through build/cli.mjs', async () => {
       reference.cone = coneReference(root);
     });
@@ -82,7 +85,8 @@ async function main() {
       const profile = mkdtempSync(join(tmpdir(), 'rimfill-profile-'));
       const context = await chromium.launchPersistentContext(profile, { executablePath, args: FLAGS, viewport: { width: 1440, height: 1000 }, acceptDownloads: true });
       try {
-        if (!priorsOnly) await pageTests(h, { context, ...m, artifacts, reference });
+        if (!priorsOnly && !bigConeOnly) await pageTests(h, { context, ...m, artifacts, reference });
+        if (!priorsOnly) await bigConeTests(h, { context, ...m, root });
         if (prior) await priorTests(h, { context, ...m, artifacts, prior });
       } finally {
         await context.close();
@@ -91,8 +95,8 @@ async function main() {
     }
     // Laptop screens, once each, on a fresh profile (the page opened from disk unless --only http).
     const laptop = [
-      { name: 'first hour', run: firstHourTests, skip: priorsOnly || knowledgeOnly },
-      { name: 'knowledge', run: knowledgeTests, skip: priorsOnly || firstHourOnly },
+      { name: 'first hour', run: firstHourTests, skip: priorsOnly || knowledgeOnly || bigConeOnly },
+      { name: 'knowledge', run: knowledgeTests, skip: priorsOnly || firstHourOnly || bigConeOnly },
     ];
     for (const phase of laptop.filter((p) => !p.skip)) {
       const m = modes.find((x) => x.mode === 'file') ?? modes[0];

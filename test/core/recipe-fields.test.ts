@@ -55,6 +55,7 @@ describe('recipe fields', () => {
     expect(recipeLabel({ method: 'tv', filter: 'ramp', start: 'zero' })).toBe('TV, from an empty image, automatic grid');
     expect(methodAndCorrection({ method: 'wtv', start: 'fbp' })).toBe('reweighted TV, from FBP with water cylinder');
     expect(methodAndCorrection({ method: 'sart', knowledge: { outline: { shape: 'ellipse', cx: 0, cy: 0, a: 150, b: 100 } } })).toBe('SART, from FBP with outline filled with water, outline');
+    expect(recipeLabel({ method: 'fbp', volume: { slices: 20, spacing: 6 }, reduce: { bin: 2, rows: [10, 90] } })).toBe('FBP, no correction, automatic grid, 20 slices × 6 mm, 2 x 2 detector binning, rows 10 to 89');
     expect(methodAndCorrection({ method: 'fbp', extend: 'cosine' })).toBe('FBP, cosine taper');
     expect(methodAndCorrection({ method: 'fbp', extend: 'edge' })).toBe('FBP, edge value');
     expect(methodAndCorrection({ method: 'fbp', extend: 'mirror' })).toBe('FBP, mirror');

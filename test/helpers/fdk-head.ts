@@ -16,7 +16,7 @@ export const R = 500, D = 900;
 const headScan = (spanDeg: number, views: number) => cone({ channels: 176, rows: 200, pitch: 2, views, spanDeg, R, D, startDeg: 10 });
 export const headGrid = cubicGrid(128, 1.5, 128);
 
-const reconstructions = new Map<string, Promise<{ g: Geometry; volume: Float32Array }>>();
+const reconstructions = new Map<string, Promise<{ g: Geometry; data: Float32Array; volume: Float32Array }>>();
 export function headFdk(variant: 'original' | 'modified', spanDeg: number, views: number) {
   const key = `${variant} ${spanDeg}`;
   if (!reconstructions.has(key)) {
@@ -26,8 +26,9 @@ export function headFdk(variant: 'original' | 'modified', spanDeg: number, views
       const ws = await localWorkspace(2);
       const r = await fdk3d(ws, { geometry: g, data }, { grid: headGrid });
       expect(r.warnings).toEqual([]);
+      expect(r.backprojector).toBe('axial');
       expect(r.scanType).toBe(spanDeg === 360 ? 'full' : 'short');
-      return { g, volume: r.volume.data };
+      return { g, data, volume: r.volume.data };
     })());
   }
   return reconstructions.get(key)!;

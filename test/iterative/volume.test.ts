@@ -3,8 +3,11 @@
 // lower the measured residual monotonically (Andersen & Kak 1984: SART converges on consistent
 // systems for relaxation in (0, 2); REFERENCES.md [andersen-kak-1984]); TV and reweighted TV (ASD-POCS,
 // Sidky & Pan 2008, posed in 3D) and the prior-guided method run on volumes with the 3D kernels.
+// Holding or recomputing the per-subset pixel weights (the memory budget's choice) gives the same
+// volume to the bit; progress covers the set-up; a cancel stops within a batch of views.
 import { describe, expect, it } from 'vitest';
-import { InputError } from '../../web/core/errors';
+import type { Part, Workspace } from '../../web/core/engine/workspace';
+import { CancelledError, InputError } from '../../web/core/errors';
 import { cropDetector } from '../../web/core/geometry/presets';
 import { voxelize, type SolidPhantom } from '../../web/core/phantoms/solid';
 import { validateRecipe } from '../../web/core/recipe/recipe';
@@ -120,6 +123,51 @@ describe('iterative methods on volumes', () => {
     // the report, not a warning (only a prior the user gives is worth one).
     expect(r.warnings.join(' ')).not.toMatch(/negative attenuation/);
     expect((rep.prior as unknown as { negative: { count: number; what: string } }).negative).toMatchObject({ what: 'voxels' });
+  });
+
+  it('pixel weights recomputed at each step (when every subset\'s do not fit the budget) give the same volume to the bit', async () => {
+    const data = await dataPromise;
+    const scan = { geometry: g, data, muWater: 0.02 };
+    const recipe = validateRecipe({ method: 'sart', ...recipeGrid, iterations: 2, subsets: 6 });
+    const ws = await localWorkspace(2);
+    const held = await runRecipe(ws, scan, recipe);
+    const recomputed = await runRecipe(ws, scan, recipe, {}, { pixelWeightFloats: 0 });
+    expect(Array.from(recomputed.volume!.data)).toEqual(Array.from(held.volume!.data));
+  });
+
+  it('progress covers the set-up (each subset\'s weights) and the iterations; a cancel stops within a batch of views, not a whole projection', async () => {
+    const data = await dataPromise;
+    const scan = { geometry: g, data, muWater: 0.02 };
+    // 36 views in 3 subsets: 12 views a projection, taken 4 at a time by 2 workers.
+    const recipe = validateRecipe({ method: 'sart', ...recipeGrid, iterations: 2, subsets: 3 });
+    const seen: Array<[number, string]> = [];
+    await runRecipe(await localWorkspace(2), scan, recipe, { onProgress: (f, stage) => seen.push([f, stage]) });
+    expect(seen.filter(([, s]) => s.startsWith('setup: weights of subset')).map(([, s]) => s)).toEqual(['setup: weights of subset 1 of 3', 'setup: weights of subset 2 of 3', 'setup: weights of subset 3 of 3']);
+    for (let k = 1; k < seen.length; k++) expect(seen[k][0]).toBeGreaterThanOrEqual(seen[k - 1][0]);
+    expect(seen.at(-1)).toEqual([1, 'done']);
+
+    // Cancel once the first subset step's backprojection has run one batch of views.
+    const inner = await localWorkspace(2);
+    const controller = new AbortController();
+    let iterating = false, batches = 0, afterCancel = 0;
+    const counting: Workspace = new Proxy(inner, {
+      get(target, key, receiver) {
+        if (key !== 'run') return Reflect.get(target, key, receiver);
+        return async (parts: Part[]) => {
+          if (controller.signal.aborted && parts.some((q) => q.kernel.startsWith('joseph'))) afterCancel++;
+          const out = await target.run(parts);
+          if (iterating && parts[0]?.kernel === 'josephAdjointCone' && ++batches === 1) controller.abort();
+          return out;
+        };
+      },
+    });
+    const run = runRecipe(counting, scan, recipe, {
+      signal: controller.signal,
+      onProgress: (_, stage) => { if (stage === 'setup: weights of subset 3 of 3') iterating = true; },
+    });
+    await expect(run).rejects.toBeInstanceOf(CancelledError);
+    expect(batches).toBe(1);
+    expect(afterCancel).toBe(0);
   });
 
   it('refuses what a volume cannot take, naming it', async () => {

@@ -119,7 +119,7 @@ describe('records', () => {
 describe('quota', () => {
   it('a quota error becomes a message naming the largest stored items', async () => {
     const store = freshStore();
-    const big = await saveScan({ ...scanInput('big scan'), scan: { ...scanInput().scan, data: new Float32Array(3000 * 4) } }, store);
+    const big = await saveScan({ ...scanInput('big scan'), scan: { geometry: { ...geometry, anglesDeg: { start: 0, step: 0.12, count: 3000 } }, data: new Float32Array(3000 * 4) } }, store);
     await saveScan(scanInput('small scan'), store);
     const quota = new DOMException('quota', 'QuotaExceededError');
     const err = await toStorageError(quota, store);

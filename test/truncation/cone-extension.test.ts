@@ -50,7 +50,7 @@ describe('row-wise detector extension of cone-beam scans', () => {
     const nE = plan.left + nC + plan.right;
     const src = ws.alloc('src', data.length);
     const dst = ws.alloc('dst', nV * nR * nE);
-    await hook.prepare!(ws, { geometry: cut, data });
+    await hook.prepare!(ws);
     await ws.write(src, data);
     await hook.extendRows(ws, src, dst, 0, nV);
     const out = await ws.read(dst);

@@ -7,7 +7,7 @@ import { pixelAt, regionStats, sampleProfile, valueAt } from '../../web/ui/logic
 import { formatDuration, remainingMs } from '../../web/ui/logic/time-left';
 import { toImage, toScreen, zoomAbout, pan, INITIAL_VIEW } from '../../web/ui/logic/view-transform';
 import { autoWindow, dragWindow, greyOf, windowBounds, WINDOW_PRESETS } from '../../web/ui/logic/window-level';
-import { geometrySummary } from '../../web/ui/logic/describe';
+import { geometrySummary, scanSummary } from '../../web/ui/logic/describe';
 import { presetGeometry } from '../../web/core/geometry/presets';
 
 describe('window and level', () => {
@@ -153,6 +153,13 @@ describe('time left', () => {
 describe('descriptions', () => {
   it('summarize a geometry in plain words', () => {
     expect(geometrySummary(presetGeometry('demo')!)).toBe('Fan beam, flat detector 1100 × 1 mm, 720 views over 360°, source 600 mm / detector 1000 mm from the source');
+  });
+
+  it('name the reduction a scan was imported with, and from what', () => {
+    const g = presetGeometry('demo')!;
+    expect(scanSummary({ geometry: g })).toBe(geometrySummary(g));
+    expect(scanSummary({ geometry: g, reduction: { applied: { bin: 2, viewStep: 3 }, from: { channels: 2200, rows: 1, views: 2160 } } }))
+      .toBe(`${geometrySummary(g)}; imported with 2 x 2 detector binning, every 3rd view from 2200 × 1 cells, 2160 views`);
   });
 });
 

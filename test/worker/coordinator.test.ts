@@ -52,7 +52,7 @@ async function nrrdFile(name: string): Promise<File> {
 describe('import', () => {
   it('stores a valid scan file under its file name', async () => {
     const { c, store } = coordinator();
-    const meta = await c.importScan([await nrrdFile('phantom.nrrd')], undefined, {});
+    const meta = await c.importScan([await nrrdFile('phantom.nrrd')], undefined, undefined, {});
     expect(meta).toMatchObject({ name: 'phantom.nrrd', hasReference: false, source: { type: 'file', fileNames: ['phantom.nrrd'] } });
     const back = await loadScan(meta.id, store);
     expect(Array.from(back.scan.data.subarray(0, 50))).toEqual(Array.from(smallScan().scan.data.subarray(0, 50)));
@@ -62,20 +62,20 @@ describe('import', () => {
     const { c, store } = coordinator();
     const good = await writeScanNrrd(smallScan().scan);
     const damaged = new File([good.subarray(0, good.length - 1000) as BlobPart], 'cut.nrrd');
-    await expect(c.importScan([damaged], undefined, {})).rejects.toThrow(/cut\.nrrd: NRRD: the header promises 46080 bytes of data from byte \d+, the file holds 45080/);
-    await expect(c.importScan([new File(['hello'], 'notes.txt')], undefined, {})).rejects.toThrow(InputError);
+    await expect(c.importScan([damaged], undefined, undefined, {})).rejects.toThrow(/cut\.nrrd: NRRD: the header promises 46080 bytes of data from byte \d+, the file holds 45080/);
+    await expect(c.importScan([new File(['hello'], 'notes.txt')], undefined, undefined, {})).rejects.toThrow(InputError);
     const nan = smallScan().scan;
     nan.data[7] = NaN;
-    await expect(c.importScan([new File([(await writeScanNrrd(nan)) as BlobPart], 'nan.nrrd')], undefined, {})).rejects.toThrow(/1 of 11520 line integrals are not finite numbers/);
+    await expect(c.importScan([new File([(await writeScanNrrd(nan)) as BlobPart], 'nan.nrrd')], undefined, undefined, {})).rejects.toThrow(/1 of 11520 line integrals are not finite numbers/);
     expect(await listScans(store)).toEqual([]);
   });
 
   it('takes a .json geometry beside the scan file', async () => {
     const { c } = coordinator();
     const g2 = { ...geometry, anglesDeg: { start: 90, step: 1.5, count: 120 } };
-    const meta = await c.importScan([await nrrdFile('p.nrrd'), new File([JSON.stringify(g2)], 'p.json')], 'with side file', {});
+    const meta = await c.importScan([await nrrdFile('p.nrrd'), new File([JSON.stringify(g2)], 'p.json')], 'with side file', undefined, {});
     expect(meta.geometry.anglesDeg).toEqual(g2.anglesDeg);
-    await expect(c.importScan([await nrrdFile('p.nrrd'), new File(['{"kind":"fan"'], 'g.json')], undefined, {})).rejects.toThrow(/g\.json: not valid JSON/);
+    await expect(c.importScan([await nrrdFile('p.nrrd'), new File(['{"kind":"fan"'], 'g.json')], undefined, undefined, {})).rejects.toThrow(/g\.json: not valid JSON/);
   });
 });
 

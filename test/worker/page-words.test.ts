@@ -33,7 +33,7 @@ describe('messages in the page', () => {
   it('TIFF frames without a geometry: the file is named, and the way out is said in the page\'s words', async () => {
     const { c } = coordinator();
     const frames = writeTiffStack({ width: 8, height: 1, frames: 4, data: new Float32Array(32).fill(1000) });
-    const err = await refusal(c.importScan([new File([frames as BlobPart], 'frames.tif')], undefined, {}));
+    const err = await refusal(c.importScan([new File([frames as BlobPart], 'frames.tif')], undefined, undefined, {}));
     expect(err.pageMessage).toMatch(/^frames\.tif: scan \(TIFF\): the file carries no geometry; add its geometry \(a \.json file\) to the same import$/);
     expect(err.pageMessage).not.toMatch(OPTION);
     // The command line keeps its own words.
@@ -54,7 +54,7 @@ describe('messages in the page', () => {
     const { c } = coordinator();
     const geometry = { kind: 'parallel' as const, detector: { shape: 'flat' as const, channels: 16, rows: 1, pitch: [1, 1] as [number, number], offset: [0, 0] as [number, number] }, anglesDeg: { start: 0, step: 20, count: 9 } };
     const bytes = await writeScanNrrd({ geometry, data: new Float32Array(16 * 9) });
-    await expect(c.importScan([new File([bytes as BlobPart], 'fine.nrrd')], undefined, {})).resolves.toMatchObject({ name: 'fine.nrrd' });
+    await expect(c.importScan([new File([bytes as BlobPart], 'fine.nrrd')], undefined, undefined, {})).resolves.toMatchObject({ name: 'fine.nrrd' });
   });
 
   it('no message the page can show names a command-line option outside a remedy\'s command-line words', () => {

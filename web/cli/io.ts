@@ -1,6 +1,6 @@
 // File access for the CLI: reads with clear errors, writes all-or-nothing (temporary file, then
 // rename), so a failed command leaves no half-written output.
-import { accessSync, constants, existsSync, type Stats, readFileSync, renameSync, writeFileSync, unlinkSync, statSync } from 'node:fs';
+import { accessSync, closeSync, constants, existsSync, fstatSync, openSync, type Stats, readFileSync, renameSync, writeFileSync, writeSync, unlinkSync, statSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { InputError } from '../core/errors';
 
@@ -114,4 +114,47 @@ export class PendingWrites {
 /** Warnings naming the files that replaced existing ones. */
 export function replacedWarnings(written: WrittenFile[]): string[] {
   return written.filter((w) => w.replaced).map((w) => `replaced the existing file ${w.path}`);
+}
+
+/**
+ * A file written in pieces through a temporary name and renamed when complete, so a failed
+ * command leaves no half-written output (as PendingWrites does for files made in memory).
+ */
+export class StreamedFile {
+  private readonly tmp: string;
+  private fd: number | undefined;
+
+  constructor(readonly path: string) {
+    this.tmp = `${path}.rimfill-${process.pid}.tmp`;
+    try {
+      this.fd = openSync(this.tmp, 'w');
+    } catch (err) {
+      throw new InputError(`cannot write output: ${(err as Error).message}`);
+    }
+  }
+
+  write(bytes: Uint8Array): void {
+    if (this.fd === undefined) throw new Error(`${this.path}: written after it was closed`);
+    let done = 0;
+    while (done < bytes.length) done += writeSync(this.fd, bytes, done, bytes.length - done);
+  }
+
+  /** Closes the file and gives it its name. */
+  commit(): WrittenFile[] {
+    if (this.fd === undefined) throw new Error(`${this.path}: committed twice`);
+    const bytes = fstatSync(this.fd).size;
+    closeSync(this.fd);
+    this.fd = undefined;
+    const replaced = existsSync(this.path);
+    renameSync(this.tmp, this.path);
+    return [{ path: this.path, bytes, replaced }];
+  }
+
+  /** Closes and deletes the temporary file. */
+  discard(): void {
+    if (this.fd === undefined) return;
+    closeSync(this.fd);
+    this.fd = undefined;
+    unlinkSync(this.tmp);
+  }
 }

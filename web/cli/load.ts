@@ -6,26 +6,35 @@ import { presetGeometry, PRESET_NAMES } from '../core/geometry/presets';
 import type { Geometry } from '../core/geometry/types';
 import { validateGeometry } from '../core/geometry/validate';
 import { readImage2D, readImageFile } from '../core/formats/read-image';
-import { readScanFile } from '../core/formats/read-scan';
+import { readScanFile, type ScanFileOptions } from '../core/formats/read-scan';
+import { openScanStream } from '../core/formats/scan-stream';
+import { viewCount } from '../core/geometry/types';
+import { readWholeScan, scanSource, type ProjectionSource } from '../core/projection-source';
+import { checkReduction, isIdentity, reduceSource, type Reduction } from '../core/reduction';
 import type { ScanReadResult } from '../core/formats/scan-assembly';
 import { asMuVolume, imageAsMu, volumeSlice } from '../core/formats/volume';
 import type { Image2D } from '../core/image';
 import { checkMuWater } from '../core/preprocess/hu-calibration';
 import type { Scan } from '../core/scan';
 import type { OptionType, ParsedArgs } from './args';
-import { gatherFiles } from './gather';
+import { gatherFiles, gatherSources } from './gather';
 import { readJson } from './io';
 
 /** Options every command that reads a scan accepts (README, "Command line"). */
 export const SCAN_INPUT_OPTIONS: Record<string, OptionType> = {
   geometry: 'string', flat: 'string', dark: 'string', i0: 'number', 'mu-water': 'number', 'memory-limit': 'number', 'line-integrals': 'flag',
   saturation: 'number', 'bad-pixels': 'string', 'water-polynomial': 'string',
+  bin: 'int', 'view-step': 'int', rows: 'string',
 };
 
 export const SCAN_INPUT_HELP = `    [--geometry geom.json] [--flat F] [--dark F] [--i0 N] [--mu-water X] [--memory-limit MB]
     [--line-integrals] [--saturation N] [--bad-pixels mask] [--water-polynomial c1,c2,...]
+    [--bin 2|4] [--view-step K] [--rows FIRST:END]
     (TIFF frames are intensities unless --line-integrals; the mask is one frame, non-zero = bad;
-    the polynomial maps each line integral p to c1 p + c2 p^2 + ...)`;
+    the polynomial maps each line integral p to c1 p + c2 p^2 + ...; --bin averages 2 x 2 or
+    4 x 4 detector cells, --view-step keeps every K-th view, --rows keeps rows FIRST to END - 1;
+    --memory-limit also bounds the run: the CLI refuses, before any work, a run it estimates
+    above the limit and names the binning that fits)`;
 import type { Volume } from '../core/volume';
 
 /** A geometry from a preset name or a JSON file. */
@@ -53,8 +62,70 @@ function polynomial(text: string | undefined): number[] | undefined {
   return c;
 }
 
+/** The reduction the options ask for (--bin, --view-step, --rows), checked against `g`. */
+export function reductionOf(a: ParsedArgs | undefined, g: Geometry): Reduction {
+  const o = a?.options ?? {};
+  const raw: Record<string, unknown> = {};
+  if (o.bin !== undefined) raw.bin = o.bin;
+  if (o['view-step'] !== undefined) raw.viewStep = o['view-step'];
+  if (o.rows !== undefined) {
+    const m = /^\s*(\d+)\s*:\s*(\d+)\s*$/.exec(String(o.rows));
+    if (!m) throw new InputError(`option --rows: got "${o.rows}", expected FIRST:END (detector rows FIRST to END - 1)`);
+    raw.rows = [Number(m[1]), Number(m[2])];
+  }
+  try {
+    return checkReduction(raw, g, 'reduction');
+  } catch (err) {
+    if (!(err instanceof InputError)) throw err;
+    const names: Record<string, string> = { bin: 'bin', viewStep: 'view-step', rows: 'rows' };
+    const m = /^reduction\.(\w+): (.*)$/s.exec(err.message);
+    throw m ? new InputError(`option --${names[m[1]] ?? m[1]}: ${m[2]}`) : err;
+  }
+}
+
+/** A scan input opened for reading a chunk of views at a time (streamed when the format allows). */
+export interface ScanInput {
+  /** Line integrals, reduced as the options ask. */
+  source: ProjectionSource;
+  reduction: Reduction;
+  /** The data's size before reduction. */
+  from: { channels: number; rows: number; views: number };
+  /** What reading noticed (complete once every view was read). */
+  warnings: () => string[];
+  streamed: boolean;
+}
+
+/** Opens a scan (file or folder) with the scan-input options of `a`; streams raw NRRD and TIFF frame folders. */
+export async function openScanInput(path: string, a?: ParsedArgs): Promise<ScanInput> {
+  const options = await scanFileOptions(a);
+  const stream = await openScanStream(gatherSources(path, 'scan'), options);
+  let source: ProjectionSource, warnings: () => string[];
+  if (stream) {
+    source = stream.source;
+    warnings = stream.warnings;
+  } else {
+    const r = await readScanFile(gatherFiles(path, 'scan'), options);
+    source = scanSource(r.scan);
+    warnings = () => r.warnings;
+  }
+  const g = source.geometry;
+  const reduction = reductionOf(a, g);
+  return {
+    source: reduceSource(source, reduction), reduction, warnings, streamed: !!stream,
+    from: { channels: g.detector.channels, rows: g.detector.rows, views: viewCount(g) },
+  };
+}
+
 /** Reads a scan (file or folder) with the scan-input options of `a`, reporting what preprocessing did. */
 export async function loadScanWithReport(path: string, a?: ParsedArgs): Promise<ScanReadResult> {
+  const r = await readScanFile(gatherFiles(path, 'scan'), await scanFileOptions(a));
+  const reduction = reductionOf(a, r.scan.geometry);
+  if (isIdentity(reduction)) return r;
+  return { ...r, scan: await readWholeScan(reduceSource(scanSource(r.scan), reduction)) };
+}
+
+/** The reader options the scan-input options of `a` give. */
+async function scanFileOptions(a?: ParsedArgs): Promise<ScanFileOptions> {
   const o = a?.options ?? {};
   const str = (k: string) => (typeof o[k] === 'string' ? (o[k] as string) : undefined);
   const num = (k: string) => (typeof o[k] === 'number' ? (o[k] as number) : undefined);
@@ -67,7 +138,7 @@ export async function loadScanWithReport(path: string, a?: ParsedArgs): Promise<
   const i0 = num('i0');
   if (i0 !== undefined && !(i0 > 0)) throw new InputError(`option --i0: got ${i0}, expected the positive reading of the unattenuated beam`);
   const mw = num('mu-water');
-  return readScanFile(gatherFiles(path, 'scan'), {
+  return {
     geometry: str('geometry') ? loadGeometry(str('geometry')!) : undefined,
     flat: level('flat'), dark: level('dark'), i0,
     quantity: o['line-integrals'] ? 'line-integral' : undefined,
@@ -75,7 +146,7 @@ export async function loadScanWithReport(path: string, a?: ParsedArgs): Promise<
     correction: { saturation: num('saturation'), waterPolynomial: polynomial(str('water-polynomial')) },
     muWater: mw === undefined ? undefined : checkMuWater(mw, 'option --mu-water'),
     maxBytes: memoryLimit(a),
-  });
+  };
 }
 
 /** Reads a scan; `geometryPath` supplies or replaces its geometry (kept for callers that pass only that). */

@@ -10,6 +10,7 @@ import { ssimBorder, ssimMap } from './metrics';
 import { checkOverlap } from './overlap';
 import { resampleTrilinear, sameVolumeGrid } from './resample-volume';
 import { volumeOrigin, type Volume, type VolumeGrid } from './volume';
+import type { VolumeInfo } from './volume-sink';
 
 export type VolumeRegion = 'volume' | 'object' | 'insideFov' | 'outsideFov';
 
@@ -68,50 +69,79 @@ class Sums {
 
 /** Compares `volume` with `reference` (both mu); the reference is resampled (trilinear) onto the volume's grid when they differ. */
 export function compareVolumes(volume: Volume, reference: Volume, options: VolumeCompareOptions = {}): VolumeComparison {
-  const g = volume.grid;
-  const notes: string[] = [];
   let bad = 0;
   for (const v of volume.data) if (!Number.isFinite(v)) bad++;
   if (bad) throw new InputError(`volume: ${bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
-  const { overlap, note } = checkOverlap(g, reference.grid, 'volume');
-  if (note) notes.push(note);
-  const resampled = !sameVolumeGrid(g, reference.grid);
-  const ref = resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
-  if (resampled) notes.push('reference resampled (trilinear) onto the volume grid');
-  const muWater = volume.muWater ?? reference.muWater;
-  const scale = muWater ? 1000 / muWater : 1;
-  let lo = Infinity, hi = -Infinity;
-  for (let i = 0; i < ref.length; i++) {
-    lo = Math.min(lo, ref[i]);
-    hi = Math.max(hi, ref[i]);
-  }
-  const c: SliceContext = {
-    g, data: volume.data, ref, offset: muWater ?? 0, scale, range: (hi - lo) * scale || 1,
-    threshold: OBJECT_THRESHOLD * (muWater ?? hi), fov: options.fovRadius, fovH: options.fovHalfHeight,
-  };
-  if (c.fov !== undefined && c.fovH === undefined) notes.push('no FOV half height known: the FOV cylinder spans every slice');
-  const total = REGIONS.map(() => new Sums());
-  const slices: SliceFigures[] = [];
-  for (let k = 0; k < g.nz; k++) {
-    const here = addSlice(c, k, total);
-    if (options.perSlice) slices.push({ k, z: volumeOrigin(g).z0 + k * g.dz, regions: figuresOf(here, c.range) });
-  }
-  return {
-    unit: muWater ? 'HU' : '1/mm',
-    regions: figuresOf(total, c.range),
-    resampled,
-    overlap,
-    fovRadiusMm: c.fov ?? null,
-    fovHalfHeightMm: c.fovH ?? null,
-    ...(options.perSlice ? { slices } : {}),
-    notes,
-  };
+  const c = new VolumeComparer(volume, reference, options);
+  c.addSlices(0, volume.data);
+  return c.result();
 }
 
-/** What every slice of a comparison shares: volumes (mu), HU scale, data range, object and FOV. */
+/**
+ * compareVolumes for a volume that arrives slab by slab (whole axial slices, in any order, each
+ * once): the reference is held whole (resampled onto the volume's grid), the volume never.
+ */
+export class VolumeComparer {
+  private readonly c: SliceContext;
+  private readonly notes: string[] = [];
+  private readonly resampled: boolean;
+  private readonly overlap: number;
+  private readonly total = REGIONS.map(() => new Sums());
+  private readonly slices: SliceFigures[] = [];
+  private bad = 0;
+  private readonly muWater?: number;
+
+  constructor(volume: VolumeInfo, reference: Volume, private readonly options: VolumeCompareOptions = {}) {
+    const g = volume.grid;
+    const { overlap, note } = checkOverlap(g, reference.grid, 'volume');
+    this.overlap = overlap;
+    if (note) this.notes.push(note);
+    this.resampled = !sameVolumeGrid(g, reference.grid);
+    const ref = this.resampled ? resampleTrilinear(reference.data, reference.grid, g) : reference.data;
+    if (this.resampled) this.notes.push('reference resampled (trilinear) onto the volume grid');
+    this.muWater = volume.muWater ?? reference.muWater;
+    const scale = this.muWater ? 1000 / this.muWater : 1;
+    let lo = Infinity, hi = -Infinity;
+    for (let i = 0; i < ref.length; i++) {
+      lo = Math.min(lo, ref[i]);
+      hi = Math.max(hi, ref[i]);
+    }
+    this.c = {
+      g, ref, offset: this.muWater ?? 0, scale, range: (hi - lo) * scale || 1,
+      threshold: OBJECT_THRESHOLD * (this.muWater ?? hi), fov: options.fovRadius, fovH: options.fovHalfHeight,
+    };
+    if (this.c.fov !== undefined && this.c.fovH === undefined) this.notes.push('no FOV half height known: the FOV cylinder spans every slice');
+  }
+
+  /** Adds slices [k0, k0 + slab.length / (nx ny)). */
+  addSlices(k0: number, slab: Float32Array): void {
+    const g = this.c.g, nxy = g.nx * g.ny;
+    for (let i = 0; i < slab.length; i++) if (!Number.isFinite(slab[i])) this.bad++;
+    if (this.bad) return;
+    for (let k = k0; k < k0 + slab.length / nxy; k++) {
+      const here = addSlice(this.c, k, slab.subarray((k - k0) * nxy, (k - k0 + 1) * nxy), this.total);
+      if (this.options.perSlice) this.slices.push({ k, z: volumeOrigin(g).z0 + k * g.dz, regions: figuresOf(here, this.c.range) });
+    }
+  }
+
+  /** The figures; throws InputError when a voxel was not a finite number. */
+  result(): VolumeComparison {
+    if (this.bad) throw new InputError(`volume: ${this.bad} voxels are not finite numbers (NaN or infinity); the comparison would be meaningless`);
+    return {
+      unit: this.muWater ? 'HU' : '1/mm',
+      regions: figuresOf(this.total, this.c.range),
+      resampled: this.resampled,
+      overlap: this.overlap,
+      fovRadiusMm: this.c.fov ?? null,
+      fovHalfHeightMm: this.c.fovH ?? null,
+      ...(this.options.perSlice ? { slices: [...this.slices].sort((p, q) => p.k - q.k) } : {}),
+      notes: this.notes,
+    };
+  }
+}
+
 interface SliceContext {
   g: VolumeGrid;
-  data: Float32Array;
   ref: Float32Array;
   /** Values shown as (mu - offset) * scale (HU when mu_water is known). */
   offset: number;
@@ -123,15 +153,15 @@ interface SliceContext {
   fovH: number | undefined;
 }
 
-/** Adds axial slice k to the running totals; returns the slice's own sums. */
-function addSlice(c: SliceContext, k: number, total: Sums[]): Sums[] {
+/** Adds axial slice k (its voxels in `slice`) to the running totals; returns the slice's own sums. */
+function addSlice(c: SliceContext, k: number, slice: Float32Array, total: Sums[]): Sums[] {
   const { g, fov } = c;
   const nxy = g.nx * g.ny, border = ssimBorder();
   const { x0, y0, z0 } = volumeOrigin(g);
   const inHeight = c.fovH === undefined || Math.abs(z0 + k * g.dz) <= c.fovH;
   const a = new Float32Array(nxy), b = new Float32Array(nxy);
   for (let i = 0; i < nxy; i++) {
-    a[i] = (c.data[k * nxy + i] - c.offset) * c.scale;
+    a[i] = (slice[i] - c.offset) * c.scale;
     b[i] = (c.ref[k * nxy + i] - c.offset) * c.scale;
   }
   const map = ssimMap(a, b, g.nx, g.ny, c.range);

@@ -25,6 +25,8 @@ export interface DataResidual {
   worstViewRms: number;
   /** RMS residual per view (for plotting). */
   perViewRms: number[];
+  /** Set when the figures come from a sample of the rays (large volumes): what was sampled. */
+  sampled?: string;
 }
 
 /** Residual of `image` (mu) re-projected onto the measured channels of `scan` (resets the workspace's layout). */

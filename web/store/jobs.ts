@@ -31,7 +31,7 @@ export type JobChange = Partial<Pick<JobRecord, 'state' | 'session' | 'resultId'
  * finished one stays as it is, so a late cancel never undoes "done"); `reopen` also applies to a
  * finished one. A job no longer stored (forgotten from another tab) stays forgotten.
  */
-export async function changeJob(tx: Tx, id: string, change: JobChange, reopen = false): Promise<void> {
+export async function changeJob(tx: Pick<Tx, 'get' | 'put'>, id: string, change: JobChange, reopen = false): Promise<void> {
   const key = keys.job(id);
   const old = await tx.get(key);
   if (old === undefined) return;

@@ -10,11 +10,23 @@ import type { KnownRegion, Outline } from '../core/knowledge';
 import type { Ring } from '../core/knowledge/mask-contour';
 import type { ModelInfo } from '../core/model/description';
 import type { ModelSignature } from '../core/model/signature';
+import type { Reduction } from '../core/reduction';
 import type { StoredConsistency } from './consistency';
 import type { StoredVolumeInfo, VolumeSlab } from './volumes';
 
-/** Version of the record layout this build writes. */
-export const SCHEMA_VERSION = 1;
+/**
+ * Version of the record layout this build writes. Schema 1 kept a scan's projections in one
+ * record (ScanData.projections); schema 2 keeps them in chunks of views (projection-chunk) with
+ * a preview row (scan-preview). Every other record is the same in both, and this build reads
+ * both (a schema-1 scan is read from its one record).
+ */
+export const SCHEMA_VERSION = 2;
+
+/** Oldest record layout this build still reads. */
+export const OLDEST_SCHEMA = 1;
+
+/** Record layouts this build reads. */
+export type Schema = 1 | 2;
 
 /** Where a scan came from. */
 export type ScanSource = { type: 'file'; fileNames: string[] } | { type: 'demo'; description: string };
@@ -35,7 +47,7 @@ export type ScanCalibration =
 
 /** A stored scan's description (small; listed without loading projections). */
 export interface ScanMeta {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'scan';
   id: string;
   name: string;
@@ -56,8 +68,39 @@ export interface ScanMeta {
   referenceVolume?: StoredVolumeInfo;
   /** Things the reader noticed about the data (e.g. negative line integrals). */
   warnings: string[];
+  /** Schema 2: the projections in chunks of views (absent: schema 1, in ScanData). */
+  projections?: StoredProjections;
+  /** Binning or cropping applied on import, and the size of the data before it. */
+  reduction?: { applied: Reduction; from: { channels: number; rows: number; views: number } };
   /** What the user knows about the object (known regions, the outline), set only by the knowledge op (worker/knowledge-ops.ts). */
   knowledge?: ScanKnowledge;
+}
+
+/** How a scan's projections are stored: `chunks` records of `viewsPerChunk` views (the last may hold fewer). */
+export interface StoredProjections {
+  viewsPerChunk: number;
+  chunks: number;
+}
+
+/** Views [v0, v0 + views) of a scan's line integrals, [view][row][channel]. */
+export interface ProjectionChunk {
+  schema: Schema;
+  kind: 'projection-chunk';
+  owner: string;
+  index: number;
+  v0: number;
+  views: number;
+  data: Float32Array;
+}
+
+/** One detector row of every view (the row nearest the orbit plane): what the page draws as the sinogram. */
+export interface ScanPreview {
+  schema: Schema;
+  kind: 'scan-preview';
+  id: string;
+  row: number;
+  /** views x channels line integrals. */
+  data: Float32Array;
 }
 
 /**
@@ -115,17 +158,17 @@ export interface StoredImage {
 
 /** A stored scan's projections and optional reference image. */
 export interface ScanData {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'scan-data';
   id: string;
-  /** Line integrals, [view][row][channel]. */
-  projections: Float32Array;
+  /** Schema 1 only: line integrals, [view][row][channel] (schema 2: projection-chunk records). */
+  projections?: Float32Array;
   reference?: StoredImage;
 }
 
 /** A finished reconstruction's description. */
 export interface ResultMeta {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'result';
   id: string;
   scanId: string;
@@ -156,7 +199,7 @@ export interface ResultMeta {
 
 /** A finished reconstruction's pixels (mu, 1/mm, x fastest). */
 export interface ResultData {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'result-data';
   id: string;
   data: Float32Array;
@@ -169,7 +212,7 @@ export interface ResultData {
 
 /** Page settings. */
 export interface Settings {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'settings';
   /** The demo scan was created once; it is not re-created after the user deletes it. */
   demoCreated: boolean;
@@ -177,7 +220,7 @@ export interface Settings {
 
 /** A user's network (ONNX) with its rimfill-model/1 description, checked on import. */
 export interface ModelMeta {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'model';
   id: string;
   name: string;
@@ -195,7 +238,7 @@ export interface ModelMeta {
 
 /** A stored network's ONNX bytes and the description as the user wrote it. */
 export interface ModelData {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'model-data';
   id: string;
   onnx: Uint8Array;
@@ -210,7 +253,7 @@ export type JobState = 'waiting' | 'running' | 'done' | 'failed' | 'cancelled';
  * that was waiting or running when its page went away shows as interrupted, with its recipe.
  */
 export interface JobRecord {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'job';
   id: string;
   /** The page (tab and load) that queued it; while that page lives, its unfinished jobs are its own. */
@@ -232,11 +275,14 @@ export interface JobRecord {
   error?: string;
 }
 
-export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData | JobRecord | MaskData;
+export type StoredRecord = ScanMeta | ScanData | ResultMeta | ResultData | Settings | VolumeSlab | ModelMeta | ModelData | ProjectionChunk | ScanPreview | JobRecord | MaskData;
 
 export const keys = {
   scan: (id: string) => `scan/${id}`,
   scanData: (id: string) => `scan-data/${id}`,
+  scanPreview: (id: string) => `scan-preview/${id}`,
+  /** Prefix of a scan's projection chunks (projections.ts names each chunk). */
+  scanChunks: (id: string) => `scan-proj/${id}/`,
   result: (id: string) => `result/${id}`,
   resultData: (id: string) => `result-data/${id}`,
   settings: 'settings',
@@ -263,10 +309,10 @@ export function checkRecord<T extends StoredRecord>(value: unknown, kind: T['kin
   if (typeof value !== 'object' || value === null) throw new RecordError(`stored record ${key}: missing or not an object`);
   const r = value as { schema?: unknown; kind?: unknown };
   if (r.kind !== kind) throw new RecordError(`stored record ${key}: kind "${String(r.kind)}", expected "${kind}"`);
-  if (r.schema !== SCHEMA_VERSION) {
+  if (typeof r.schema !== 'number' || r.schema < OLDEST_SCHEMA || r.schema > SCHEMA_VERSION || !Number.isInteger(r.schema)) {
     const newer = typeof r.schema === 'number' && r.schema > SCHEMA_VERSION;
     throw new RecordError(
-      `stored record ${key}: schema ${String(r.schema)}, this page reads ${SCHEMA_VERSION}` +
+      `stored record ${key}: schema ${String(r.schema)}, this page reads ${OLDEST_SCHEMA} to ${SCHEMA_VERSION}` +
         (newer ? ' (written by a newer version of Rimfill: open it with that version)' : ''),
     );
   }

@@ -6,7 +6,13 @@ import { keysWithPrefix, pageStore } from './db';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
 import { checkName, newId } from './scans';
 import { patchRecord, putResultEntries, transact, type Tx } from './transact';
-import { loadVolume, slabPrefix, volumeEntries } from './volumes';
+import { loadVolume, slabPrefix, volumeEntries, type StoredVolumeInfo } from './volumes';
+
+/** A volume whose slabs were already written (SlabWriter) under result id `id`. */
+export interface StoredVolume {
+  id: string;
+  info: StoredVolumeInfo;
+}
 
 export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius' | 'volume'>;
 
@@ -25,10 +31,11 @@ export async function saveResult(
 
 /** The records of a new result (several are written in one transaction with putResultEntries). */
 export function resultRecords(
-  input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}, volume?: Volume,
+  input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}, volume?: Volume | StoredVolume,
 ): { meta: ResultMeta; entries: Array<[string, unknown]> } {
-  const id = newId();
-  const slabs = volume ? volumeEntries('result', id, volume) : undefined;
+  const stored = volume && !('data' in volume) ? volume : undefined;
+  const id = stored?.id ?? newId();
+  const slabs = volume && 'data' in volume ? volumeEntries('result', id, volume) : stored ? { info: stored.info, entries: [] } : undefined;
   const c = extra.consistency;
   const meta: ResultMeta = {
     ...input,
@@ -40,7 +47,7 @@ export function resultRecords(
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength + (volume ? volume.data.byteLength : 0) + (c ? c.residual.byteLength + c.flagged.byteLength + (c.map?.byteLength ?? 0) : 0),
+    bytes: image.data.byteLength + (slabs ? 4 * slabs.info.grid.nx * slabs.info.grid.ny * slabs.info.grid.nz : 0) + (c ? c.residual.byteLength + c.flagged.byteLength + (c.map?.byteLength ?? 0) : 0),
     ...(slabs ? { volume: slabs.info } : {}),
   };
   const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data, ...extra };

@@ -6,8 +6,12 @@ import { viewCount, type Geometry } from '../core/geometry/types';
 import { checkGeometryMatchesData, validateGeometry } from '../core/geometry/validate';
 import type { Image2D } from '../core/image';
 import type { Scan } from '../core/scan';
+import { asSource, readWholeScan, viewSize, type ProjectionSource } from '../core/projection-source';
+import type { RunHooks } from '../core/run-hooks';
+import { throwIfCancelled } from '../core/errors';
 import type { Volume } from '../core/volume';
-import { keysWithPrefix, pageStore, putAll } from './db';
+import { keysWithPrefix, pageStore, streamTransaction } from './db';
+import { chunkKey, chunkRecord, PreviewRow, projectionLayout, storedProjections } from './projections';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ScanData, type ScanMeta, type ScanSource, type StoredImage } from './records';
 import { patchRecord, transact } from './transact';
 import { loadVolume, slabPrefix, volumeEntries } from './volumes';
@@ -28,38 +32,73 @@ export function checkName(name: unknown): string {
 
 export interface NewScan {
   name: string;
-  scan: Scan;
+  /** The projections: a scan in memory, or a source read a chunk of views at a time. */
+  scan: Scan | ProjectionSource;
   source: ScanSource;
   reference?: StoredImage;
   /** Cone-beam scans: the whole reference volume (`reference` then holds its central slice). */
   referenceVolume?: Volume;
   warnings?: string[];
+  /** Binning or cropping applied on import. */
+  reduction?: ScanMeta['reduction'];
 }
 
-/** Stores a scan (and its reference image) in one transaction; returns its description. */
-export async function saveScan(input: NewScan, store: UseStore = pageStore()): Promise<ScanMeta> {
+export interface SaveHooks extends RunHooks {
+  /** Sees each chunk of views before it is stored (may throw to refuse the scan). */
+  inspect?: (data: Float32Array, v0: number) => void;
+  /** Warnings known only once every view was read (a streamed import's conversion counts). */
+  lateWarnings?: () => string[];
+}
+
+/**
+ * Stores a scan in ONE transaction: its projections in chunks of views (read from the source
+ * one chunk at a time), a preview row, its description and any reference. Nothing is stored
+ * when reading, a check, the quota or a cancel stops it, or when the page goes away meanwhile.
+ */
+export async function saveScan(input: NewScan, store: UseStore = pageStore(), hooks: SaveHooks = {}): Promise<ScanMeta> {
   const id = newId();
-  const { scan } = input;
+  const source = asSource(input.scan);
+  const g = source.geometry;
+  const views = viewCount(g), frame = viewSize(g);
+  const layout = projectionLayout(g);
+  const name = checkName(input.name);
   const refBytes = (input.reference ? input.reference.data.byteLength : 0) + (input.referenceVolume ? input.referenceVolume.data.byteLength : 0);
   const slabs = input.referenceVolume ? volumeEntries('scan', id, input.referenceVolume) : undefined;
-  const meta: ScanMeta = {
-    schema: SCHEMA_VERSION,
-    kind: 'scan',
-    id,
-    name: checkName(input.name),
-    createdAt: Date.now(),
-    geometry: scan.geometry,
-    muWater: scan.muWater,
-    notes: scan.notes,
-    source: input.source,
-    bytes: scan.data.byteLength + refBytes,
-    hasReference: !!input.reference,
-    ...(slabs ? { referenceVolume: slabs.info } : {}),
-    warnings: input.warnings ?? [],
-  };
-  const data: ScanData = { schema: SCHEMA_VERSION, kind: 'scan-data', id, projections: scan.data, reference: input.reference };
-  await putAll([[keys.scan(id), meta], [keys.scanData(id), data], ...(slabs?.entries ?? [])], store);
-  return meta;
+  return streamTransaction(store, async (tx) => {
+    const preview = new PreviewRow(g);
+    for (let c = 0; c < layout.chunks; c++) {
+      throwIfCancelled(hooks.signal);
+      const v0 = c * layout.viewsPerChunk, v1 = Math.min(views, v0 + layout.viewsPerChunk);
+      const data = await source.read(v0, v1);
+      hooks.inspect?.(data, v0);
+      preview.add(v0, data);
+      await tx.put(chunkKey(id, c), chunkRecord(id, c, v0, v1 - v0, data.length === (v1 - v0) * frame ? data : data.slice(0, (v1 - v0) * frame)));
+      hooks.onProgress?.(v1 / views, 'storing views');
+    }
+    throwIfCancelled(hooks.signal);
+    const meta: ScanMeta = {
+      schema: SCHEMA_VERSION,
+      kind: 'scan',
+      id,
+      name,
+      createdAt: Date.now(),
+      geometry: g,
+      muWater: source.muWater,
+      notes: source.notes,
+      source: input.source,
+      bytes: views * frame * 4 + refBytes,
+      hasReference: !!input.reference,
+      ...(slabs ? { referenceVolume: slabs.info } : {}),
+      warnings: [...(input.warnings ?? []), ...(hooks.lateWarnings?.() ?? [])],
+      projections: layout,
+      ...(input.reduction ? { reduction: input.reduction } : {}),
+    };
+    const data: ScanData = { schema: SCHEMA_VERSION, kind: 'scan-data', id, reference: input.reference };
+    for (const [k, v] of [[keys.scan(id), meta], [keys.scanData(id), data], [keys.scanPreview(id), preview.record(id)], ...(slabs?.entries ?? [])] as Array<[string, unknown]>) {
+      await tx.put(k, v);
+    }
+    return meta;
+  });
 }
 
 /** A cone-beam scan's reference volume; throws RecordError when it has none or a slab is damaged. */
@@ -81,14 +120,19 @@ export async function getScanMeta(id: string, store: UseStore = pageStore()): Pr
   return checkRecord<ScanMeta>(await get(keys.scan(id), store), 'scan', keys.scan(id));
 }
 
-/** A stored scan ready to reconstruct, and its reference image when it has one. */
-export async function loadScan(id: string, store: UseStore = pageStore()): Promise<{ meta: ScanMeta; scan: Scan; reference?: Image2D }> {
+/** A stored scan's description and its reference image, when it has one (projections not read). */
+export async function loadScanReference(id: string, store: UseStore = pageStore()): Promise<{ meta: ScanMeta; reference?: Image2D }> {
   const [m, d] = await getMany([keys.scan(id), keys.scanData(id)], store);
   const meta = checkRecord<ScanMeta>(m, 'scan', keys.scan(id));
-  const data = checkRecord<ScanData>(d, 'scan-data', keys.scanData(id));
-  const scan: Scan = { geometry: meta.geometry, data: data.projections, muWater: meta.muWater, notes: meta.notes };
-  const r = data.reference;
+  const r = checkRecord<ScanData>(d, 'scan-data', keys.scanData(id)).reference;
   const reference: Image2D | undefined = r ? { grid: r.grid, data: r.data, quantity: 'mu', muWater: r.muWater ?? meta.muWater, fovRadius: r.fovRadius } : undefined;
+  return { meta, reference };
+}
+
+/** A stored scan with all its projections in memory (for methods that need them whole), and its reference image. */
+export async function loadScan(id: string, store: UseStore = pageStore(), signal?: AbortSignal): Promise<{ meta: ScanMeta; scan: Scan; reference?: Image2D }> {
+  const { meta, reference } = await loadScanReference(id, store);
+  const scan = await readWholeScan(storedProjections(meta, store), signal);
   return { meta, scan, reference };
 }
 
@@ -119,7 +163,7 @@ export async function deleteScan(id: string, store: UseStore = pageStore()): Pro
   await transact(store, async (tx) => {
     const resultKeys = await tx.keys('result/');
     const metas = await tx.getMany(resultKeys);
-    const doomed: string[] = [keys.scan(id), keys.scanData(id), ...(await tx.keys(slabPrefix('scan', id))), ...(await tx.keys(keys.maskData(id, '')))];
+    const doomed: string[] = [keys.scan(id), keys.scanData(id), keys.scanPreview(id), ...(await tx.keys(keys.scanChunks(id))), ...(await tx.keys(slabPrefix('scan', id))), ...(await tx.keys(keys.maskData(id, '')))];
     for (let i = 0; i < metas.length; i++) {
       if ((metas[i] as { scanId?: string } | undefined)?.scanId !== id) continue;
       const rid = resultKeys[i].slice('result/'.length);

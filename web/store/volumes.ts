@@ -6,7 +6,7 @@
 import { getMany, type UseStore } from 'idb-keyval';
 import type { Volume, VolumeGrid } from '../core/volume';
 import { pageStore } from './db';
-import { checkRecord, RecordError, SCHEMA_VERSION } from './records';
+import { checkRecord, RecordError, SCHEMA_VERSION, type Schema } from './records';
 
 /** Largest slab, in voxels (16 MiB of float32). */
 export const SLAB_VOXELS = 4 * 2 ** 20;
@@ -27,7 +27,7 @@ export interface StoredVolumeInfo {
 
 /** One slab of slices [k0, k0 + slices) of a volume (mu, 1/mm, x fastest). */
 export interface VolumeSlab {
-  schema: typeof SCHEMA_VERSION;
+  schema: Schema;
   kind: 'volume-slab';
   owner: string;
   index: number;
@@ -61,6 +61,50 @@ export function volumeEntries(owner: VolumeOwner, id: string, v: Volume, slabVox
     entries.push([slabKey(owner, id, s), { schema: SCHEMA_VERSION, kind: 'volume-slab', owner: id, index: s, k0, slices, data }]);
   }
   return { info: { grid: g, muWater: v.muWater, fovRadius: v.fovRadius, fovHalfHeight: v.fovHalfHeight, slicesPerSlab, slabs }, entries };
+}
+
+/**
+ * Writes a volume's slab records as its slices arrive (whole slices, in increasing k, each once),
+ * through `put` (the owner's transaction), in the layout volumeEntries gives a whole volume.
+ */
+export class SlabWriter {
+  readonly info: StoredVolumeInfo;
+  private readonly pending: Float32Array;
+  private filled = 0;
+  private next = 0;
+
+  constructor(private readonly owner: VolumeOwner, private readonly id: string, v: Omit<Volume, 'data'>, private readonly put: (key: string, value: VolumeSlab) => Promise<void>, slabVoxels = SLAB_VOXELS) {
+    const g = v.grid, perSlice = g.nx * g.ny;
+    const slicesPerSlab = Math.max(1, Math.min(g.nz, Math.floor(slabVoxels / perSlice)));
+    this.info = { grid: g, muWater: v.muWater, fovRadius: v.fovRadius, fovHalfHeight: v.fovHalfHeight, slicesPerSlab, slabs: Math.ceil(g.nz / slicesPerSlab) };
+    this.pending = new Float32Array(slicesPerSlab * perSlice);
+  }
+
+  async write(k0: number, slab: Float32Array): Promise<void> {
+    const g = this.info.grid, perSlice = g.nx * g.ny;
+    if (k0 !== this.next) throw new Error(`volume slabs out of order: slice ${k0} after ${this.next}`);
+    let at = 0;
+    while (at < slab.length) {
+      const take = Math.min(slab.length - at, this.pending.length - this.filled);
+      this.pending.set(slab.subarray(at, at + take), this.filled);
+      this.filled += take;
+      at += take;
+      const s = Math.floor(this.next / this.info.slicesPerSlab);
+      const slices = Math.min(this.info.slicesPerSlab, g.nz - s * this.info.slicesPerSlab);
+      if (this.filled === slices * perSlice) {
+        const k = s * this.info.slicesPerSlab;
+        await this.put(slabKey(this.owner, this.id, s), { schema: SCHEMA_VERSION, kind: 'volume-slab', owner: this.id, index: s, k0: k, slices, data: this.pending.slice(0, this.filled) });
+        this.filled = 0;
+      }
+    }
+    this.next = k0 + slab.length / perSlice;
+  }
+
+  /** Throws when slices are missing. */
+  finish(): StoredVolumeInfo {
+    if (this.next !== this.info.grid.nz || this.filled) throw new Error(`volume: ${this.next} of ${this.info.grid.nz} slices stored`);
+    return this.info;
+  }
 }
 
 /** Reads a stored volume; throws RecordError when a slab is missing or does not fit its description. */

@@ -17,7 +17,8 @@ import { listScans } from '../store/scans';
 import { loadSettings } from '../store/settings';
 import type { EngineInfo } from '../worker/app-protocol';
 import type { EngineClient } from '../worker/client';
-import { geometrySummary } from './logic/describe';
+import type { Reduction } from '../core/reduction';
+import { scanSummary } from './logic/describe';
 import { defaultGridText } from './logic/scan-defaults';
 import { baselineOf, offer, replace, withdraw } from './logic/compare-set';
 import type { ImageImportState } from './result-list';
@@ -33,7 +34,7 @@ import './run-queue';
 import './scan-library';
 import './scan-view';
 import './volume-view';
-import { volumeChoices, volumeLoader } from './volume-choices';
+import { volumeChoices, volumePlanes } from './volume-choices';
 
 type Tab = 'scan' | 'reconstruct' | 'images' | 'prior';
 
@@ -63,7 +64,7 @@ export class AppShell extends LitElement {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
     compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
-    importing: { state: true }, importError: { state: true }, imageImport: { state: true }, calibrating: { state: true }, knowledgeState: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
+    importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, knowledgeState: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
   /** The engine facade (set by main.ts). */
@@ -80,6 +81,12 @@ export class AppShell extends LitElement {
   declare referenceId: string;
   declare comparisons: Map<string, Comparison | string>;
   declare importing: boolean;
+  /** How far the running import got, and the reduction the next import applies. */
+  declare importFraction: number;
+  declare importReduce: Reduction;
+  /** The memory budget of runs, GB ('' : what the browser reports). */
+  declare memoryBudgetGb: string;
+  private importController?: AbortController;
   declare importError: string;
   /** An image file being added to the chosen scan (Images tab). */
   declare imageImport: ImageImportState;
@@ -102,7 +109,7 @@ export class AppShell extends LitElement {
     done: (result) => this.act('The finished run could not be shown', () => this.jobDone(result)),
     ended: () => this.act('Storage use could not be read', () => this.storageUseRefresh()),
     problem: (text) => { this.alert = text; },
-  });
+  }, () => this.budgetBytes());
 
   static styles = [theme, css`
     :host { min-height: 100vh; background: var(--bg); display: flex; flex-direction: column; }
@@ -141,6 +148,9 @@ export class AppShell extends LitElement {
     this.referenceId = '';
     this.comparisons = new Map();
     this.importing = false;
+    this.importFraction = 0;
+    this.importReduce = {};
+    this.memoryBudgetGb = '';
     this.importError = '';
     this.imageImport = { busy: false, error: '' };
     this.dicomExport = { busy: false, error: '' };
@@ -235,7 +245,11 @@ export class AppShell extends LitElement {
     this.importing = true;
     this.importError = '';
     try {
-      const meta = await this.client.importScan(files);
+      this.importController = new AbortController();
+      this.importFraction = 0;
+      const meta = await this.client.importScan(files, {
+        reduce: this.importReduce, signal: this.importController.signal, onProgress: (p) => (this.importFraction = p.fraction),
+      });
       await this.refreshLibrary();
       await this.selectScan(meta.id);
       this.tab = 'scan';
@@ -361,6 +375,12 @@ export class AppShell extends LitElement {
     this.storage = await storageUse();
   }
 
+  /** The memory budget of runs in bytes when the user set one (else the coordinator takes half of what the browser reports). */
+  private budgetBytes(): number | undefined {
+    const gb = Number(this.memoryBudgetGb);
+    return this.memoryBudgetGb.trim() !== '' && gb > 0 ? gb * 1e9 : undefined;
+  }
+
   private async jobDone(result: ResultMeta) {
     this.results = await listResults();
     if (result.scanId === this.selectedScanId) await this.offerResult(result.id);
@@ -453,6 +473,9 @@ export class AppShell extends LitElement {
             .priorResults=${this.priorChoices(scan)} .knowledge=${scan.knowledge}
             @recipe-queue=${(e: CustomEvent) => this.act('The recipe could not be queued', () => this.queue.add(scan, e.detail.recipe, e.detail.name))}></rf-recipe-form></div>
         <div class="side-cards"><div class="card"><h2>Queue</h2>
+          <label class="budget">Memory budget <input type="number" id="memory-budget" min="0.1" max="4" step="0.1" placeholder="browser's"
+            .value=${this.memoryBudgetGb} @input=${(e: Event) => (this.memoryBudgetGb = (e.target as HTMLInputElement).value)}> GB
+            <span class="muted">(empty: half the device memory the browser reports; a run that would need more is refused before it starts, naming the binning that fits)</span></label>
           <rf-run-queue .jobs=${this.queue.jobs}
             @job-cancel=${(e: CustomEvent) => this.queue.cancel(e.detail.key)}
             @job-rerun=${(e: CustomEvent) => this.act('The run could not be queued again', () => this.queue.rerun(e.detail.key))}
@@ -474,7 +497,7 @@ export class AppShell extends LitElement {
   private imagesTab(scan: ScanMeta) {
     return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images}
       .truth=${this.loaded?.id === scan.id ? this.loaded.truth : undefined} .referenceId=${this.referenceId} .comparisons=${this.comparisons}
-      .scanName=${scan.name} .scanSummary=${geometrySummary(scan.geometry)} ?cone=${scan.geometry.kind === 'cone'} .imageImport=${this.imageImport}
+      .scanName=${scan.name} .scanSummary=${scanSummary(scan)} ?cone=${scan.geometry.kind === 'cone'} .imageImport=${this.imageImport}
       @image-files-chosen=${(e: CustomEvent) => this.act('The image could not be added', () => this.importImage(scan.id, e.detail.files, e.detail.slice))}
       @image-import-error-dismiss=${() => (this.imageImport = { ...this.imageImport, error: '' })}
       .muWater=${scan.muWater} .calibration=${scan.calibration} .calibrating=${this.calibrating}
@@ -496,7 +519,7 @@ export class AppShell extends LitElement {
       @knowledge-error-dismiss=${() => (this.knowledgeState = { ...this.knowledgeState, error: '' })}
       .dicomExport=${this.dicomExport} @export-dicom=${(e: CustomEvent) => this.act('The DICOM export failed', () => this.exportDicom(e.detail.id))}
       @reference-change=${(e: CustomEvent) => this.act('The reference could not be loaded', () => this.setReference(e.detail.id))}></rf-results-view>
-      ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .load=${volumeLoader(scan.id)}></rf-volume-view>` : nothing}`;
+      ${scan.geometry.kind === 'cone' ? html`<rf-volume-view .choices=${volumeChoices(scan, this.results)} .planes=${volumePlanes(this.client, scan.id)}></rf-volume-view>` : nothing}`;
   }
 
   private priorTab(scan: ScanMeta) {
@@ -525,6 +548,9 @@ export class AppShell extends LitElement {
       <div class="body">
         <aside>
           <rf-scan-library .scans=${this.scans} .selectedId=${this.selectedScanId} ?importing=${this.importing} .importError=${this.importError}
+            .importFraction=${this.importFraction} .importReduce=${this.importReduce}
+            @reduction-change=${(e: CustomEvent) => (this.importReduce = e.detail.reduce)}
+            @import-cancel=${() => this.importController?.abort()}
             ?demoBusy=${this.demoBusy} ?coneDemoBusy=${this.coneDemoBusy} .coneDemoFraction=${this.coneDemoFraction} .storage=${this.storage}
             .libraryBytes=${this.scans.reduce((a, s) => a + s.bytes, 0) + this.results.reduce((a, r) => a + r.bytes, 0)}
             @scan-select=${(e: CustomEvent) => this.act('The scan could not be opened', () => this.selectScan(e.detail.id))}

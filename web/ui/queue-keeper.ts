@@ -29,7 +29,11 @@ export class QueueKeeper implements ReactiveController {
   readonly session = startSession();
   private controllers = new Map<string, AbortController>();
 
-  constructor(private readonly host: ReactiveControllerHost, private readonly client: () => EngineClient, private readonly on: QueueEvents) {
+  /** `budget`: the memory budget of each run in bytes, read when the run starts (undefined: the coordinator's default). */
+  constructor(
+    private readonly host: ReactiveControllerHost, private readonly client: () => EngineClient, private readonly on: QueueEvents,
+    private readonly budget: () => number | undefined = () => undefined,
+  ) {
     host.addController(this);
   }
 
@@ -105,8 +109,9 @@ export class QueueKeeper implements ReactiveController {
     const controller = new AbortController();
     this.controllers.set(key, controller);
     this.patch(key, { state: 'running' });
+    const budget = this.budget();
     this.client().run(next.scanId, next.recipe, {
-      name: next.name, jobId: key, signal: controller.signal,
+      name: next.name, jobId: key, signal: controller.signal, ...(budget !== undefined ? { budget } : {}),
       onProgress: (p) => this.patch(key, { fraction: p.fraction, stage: p.stage, remainingMs: remainingMs(p.fraction, p.elapsedMs) }),
     }).then(
       (result) => {

@@ -6,6 +6,8 @@ import { describeRecipeFields, type RecipeField } from '../core/recipe/fields';
 import { recipeLabel } from '../core/recipe/label';
 import { DEFAULT_GRID_SIZE } from '../core/recipe/grid';
 import { DEFAULT_VOLUME_SIZE } from '../core/recipe/volume-grid';
+import type { Reduction } from '../core/reduction';
+import './reduction-input';
 import { DEFAULT_RECIPE, validateRecipe } from '../core/recipe/recipe';
 import type { CorrectionAdvice } from '../core/truncation/recommend';
 import type { ScanKnowledge } from '../store/records';
@@ -26,7 +28,7 @@ export class RecipeForm extends LitElement {
   static properties = {
     referenceGrid: { attribute: false }, disabled: { type: Boolean }, cone: { type: Boolean }, priorResults: { attribute: false },
     advice: { attribute: false }, defaultGrid: { type: String }, knowledge: { attribute: false },
-    values: { state: true }, off: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true },
+    values: { state: true }, off: { state: true }, gridMode: { state: true }, error: { state: true }, slicesMode: { state: true }, reduce: { state: true },
   };
   /** Grid of the scan's reference image, offered as "match the ground truth" (undefined: none). */
   declare referenceGrid: ImageGrid | undefined;
@@ -45,6 +47,8 @@ export class RecipeForm extends LitElement {
   /** Knowledge items left out of the recipe (region ids, 'outline'). */
   declare off: ReadonlySet<string>;
   declare slicesMode: 'auto' | 'custom';
+  /** Binning, view step and rows for this run (reduction.ts). */
+  declare reduce: Reduction;
   declare values: Record<string, unknown>;
   declare gridMode: GridMode;
   declare error: string;
@@ -80,6 +84,7 @@ export class RecipeForm extends LitElement {
     this.error = '';
     this.cone = false;
     this.slicesMode = 'auto';
+    this.reduce = {};
     this.priorResults = [];
     this.advice = undefined;
     this.defaultGrid = '';
@@ -108,6 +113,7 @@ export class RecipeForm extends LitElement {
     if (this.gridMode === 'reference' && g) r.grid = { size: g.nx, pixel: g.dx };
     if (this.gridMode === 'custom') r.grid = { ...this.customGrid };
     if (this.cone && this.slicesMode === 'custom') r.volume = { ...this.customSlices };
+    if (Object.keys(this.reduce).length) r.reduce = { ...this.reduce };
     if (typeof r.prior === 'string' && r.prior.startsWith(RESULT_PRIOR)) {
       const id = r.prior.slice(RESULT_PRIOR.length);
       const chosen = this.priorResults.find((p) => p.id === id);
@@ -219,6 +225,9 @@ export class RecipeForm extends LitElement {
           ${f.key === 'extend' && this.advice ? html`<span class="advice" id="extend-advice">Suggested for this scan: <strong>${this.advice.label}</strong>. ${this.advice.reason}.</span>` : nothing}
           <span class="help">${f.help}</span></div>`)}
         ${this.cone ? this.slicesInput() : nothing}
+        <div class="field wide"><label>Reduce the scan for this run</label>
+          <rf-reduction-input name="recipe" ?cone=${this.cone} .reduce=${this.reduce}
+            @reduction-change=${(e: CustomEvent) => { e.stopPropagation(); this.reduce = e.detail.reduce; this.error = ''; }}></rf-reduction-input></div>
         ${this.knowledgeInput()}
       </form>
       <div class="actions">

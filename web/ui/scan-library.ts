@@ -1,7 +1,9 @@
 import { html, LitElement, css, nothing } from 'lit';
 import { formatBytes, type StorageUse } from '../store/quota';
 import type { ScanMeta } from '../store/records';
+import { describeReduction, type Reduction } from '../core/reduction';
 import { geometrySummary } from './logic/describe';
+import './reduction-input';
 import { theme } from './theme';
 import './file-drop';
 import './storage-meter';
@@ -18,6 +20,8 @@ const emit = (el: HTMLElement, name: string, detail: unknown = {}) =>
  * @fires cone-demo-request - the user asks for the cone-beam demo scan (likewise)
  * @fires files-chosen - from the drop area, detail: { files }
  * @fires import-error-dismiss - the user closed the import error
+ * @fires import-cancel - the user stops the running import (nothing is stored)
+ * @fires reduction-change - from the import options, detail: { reduce }
  */
 export class ScanLibrary extends LitElement {
   static properties = {
@@ -25,6 +29,8 @@ export class ScanLibrary extends LitElement {
     selectedId: { type: String },
     importing: { type: Boolean },
     importError: { type: String },
+    importFraction: { type: Number },
+    importReduce: { attribute: false },
     demoBusy: { type: Boolean },
     coneDemoBusy: { type: Boolean },
     coneDemoFraction: { type: Number },
@@ -41,6 +47,10 @@ export class ScanLibrary extends LitElement {
   declare importing: boolean;
   /** Why the last import failed ('' when it did not). */
   declare importError: string;
+  /** How far the running import got (0 to 1). */
+  declare importFraction: number;
+  /** Binning, view step and rows applied to the next import. */
+  declare importReduce: Reduction;
   /** The demo scan is being made. */
   declare demoBusy: boolean;
   /** The cone-beam demo scan is being made, and how far it got (0 to 1). */
@@ -79,6 +89,8 @@ export class ScanLibrary extends LitElement {
     this.selectedId = '';
     this.importing = false;
     this.importError = '';
+    this.importFraction = 0;
+    this.importReduce = {};
     this.demoBusy = false;
     this.coneDemoBusy = false;
     this.coneDemoFraction = 0;
@@ -111,6 +123,7 @@ export class ScanLibrary extends LitElement {
         <span class="tag">${formatBytes(s.bytes)}</span>
         ${s.hasReference ? html`<span class="tag">with ground truth</span>` : nothing}
         ${s.source.type === 'demo' ? html`<span class="tag">simulated</span>` : nothing}
+        ${s.reduction ? html`<span class="tag" title=${`imported from ${s.reduction.from.channels} × ${s.reduction.from.rows} cells, ${s.reduction.from.views} views`}>${describeReduction(s.reduction.applied)}</span>` : nothing}
         ${s.warnings.length ? html`<span class="tag warn" title=${s.warnings.join('\n')}>check data</span>` : nothing}
       </div>
       ${selected ? html`<div class="actions" @click=${(e: Event) => e.stopPropagation()}>
@@ -134,6 +147,10 @@ export class ScanLibrary extends LitElement {
     return html`
       <h2>Scans</h2>
       <rf-file-drop ?busy=${this.importing}></rf-file-drop>
+      ${this.importing ? html`<div class="sub" id="import-progress">Importing: ${Math.round(100 * this.importFraction)}% stored
+        <button class="small" id="import-cancel" @click=${() => emit(this, 'import-cancel')}>Cancel</button></div>` : nothing}
+      <details id="import-options"><summary class="sub">Reduce on import (binning, views, rows)</summary>
+        <rf-reduction-input name="import" .reduce=${this.importReduce}></rf-reduction-input></details>
       ${this.importError ? html`<div class="error dismissable" role="alert" id="import-error"><span>${this.importError}</span>
         <button class="small" aria-label="Dismiss" @click=${() => emit(this, 'import-error-dismiss')}>×</button></div>` : nothing}
       ${this.scans.length

@@ -1,13 +1,12 @@
 import { html, LitElement, css, nothing } from 'lit';
 import type { VolumeComparison } from '../core/compare-volume';
-import { writeVolumeNrrd } from '../core/formats/volume-nrrd';
-import type { Volume } from '../core/volume';
+import type { VolumeInfo } from '../core/volume-sink';
 import { fileName, saveFile } from './export/download';
 import type { LineMark, RegionMark, Tool } from './image-viewer';
 import type { PlotSeries } from './line-plot';
 import type { DisplayImage } from './logic/display';
 import { regionStats, sampleProfile, type Point } from './logic/measure';
-import { atIndex, fromPlane, planeCount, planeImage, planeIndex, PLANES, toPlane, type Plane, type Point3 } from './logic/volume-planes';
+import { atIndex, fromPlane, planeCount, planeImageOf, planeIndex, PLANES, toPlane, type Plane, type Point3 } from './logic/volume-planes';
 import { INITIAL_VIEW, type ViewState } from './logic/view-transform';
 import { autoWindow, type DisplayWindow } from './logic/window-level';
 import { SERIES_COLOURS, theme } from './theme';
@@ -21,8 +20,16 @@ import './volume-metrics';
 export interface VolumeChoice {
   key: string;
   label: string;
+  /** Its description (grid, FOV, mu_water), as stored. */
+  info: VolumeInfo;
   /** Figures against the reference volume, when stored with the result. */
   metrics?: VolumeComparison | null;
+}
+
+/** How the view reads what it shows: one plane at a time, and the whole volume as a file to save. */
+export interface VolumePlanes {
+  plane(key: string, plane: Plane, index: number): Promise<Float32Array>;
+  file(key: string): Promise<Blob>;
 }
 
 const PLANE_LABELS: Record<Plane, string> = { axial: 'Axial', coronal: 'Coronal', sagittal: 'Sagittal' };
@@ -32,21 +39,23 @@ const AXIS: Record<Plane, 'z' | 'y' | 'x'> = { axial: 'z', coronal: 'y', sagitta
  * A volume in three linked planes (axial, coronal, sagittal): the slice tool (or the sliders)
  * moves the point all three planes pass through, the crosshair shows it in each; the same
  * window presets, line profile and region tools as the 2D images; the FOV cylinder marked.
- * Volumes come through `load` (the app shell reads them from storage).
+ * Planes come through `planes` one at a time (the engine's coordinator reads them from the stored
+ * slabs), so the page never holds a volume.
  */
 export class VolumeView extends LitElement {
   static properties = {
-    choices: { attribute: false }, load: { attribute: false },
+    choices: { attribute: false }, planes: { attribute: false },
     key: { state: true }, volume: { state: true }, loading: { state: true }, error: { state: true }, point: { state: true },
     window: { state: true }, tool: { state: true }, views: { state: true }, hover: { state: true }, line: { state: true },
     region: { state: true }, showFov: { state: true },
   };
   /** Volumes on offer, in list order. */
   declare choices: VolumeChoice[];
-  /** Reads a volume by choice key. */
-  declare load: (key: string) => Promise<Volume>;
+  /** Reads planes and files by choice key. */
+  declare planes: VolumePlanes;
   declare key: string;
-  declare volume: Volume | undefined;
+  /** The volume shown: its description (its voxels stay in storage). */
+  declare volume: VolumeInfo | undefined;
   declare loading: boolean;
   declare error: string;
   /** The point the three planes pass through, mm. */
@@ -59,6 +68,7 @@ export class VolumeView extends LitElement {
   declare region: { plane: Plane; mark: RegionMark } | null;
   declare showFov: boolean;
   private planeCache = new Map<string, DisplayImage>();
+  private lastShown: Partial<Record<Plane, DisplayImage>> = {};
   private request = 0;
 
   static styles = [theme, css`
@@ -99,22 +109,46 @@ export class VolumeView extends LitElement {
   }
 
   private async show(key: string) {
-    const ticket = ++this.request;
+    const choice = this.choices.find((c) => c.key === key);
+    if (!choice) return;
+    ++this.request;
     this.key = key;
-    this.loading = true;
     this.error = '';
+    const g = choice.info.grid;
+    const inside = (c: number, centre: number, n: number, d: number) => Math.abs(c - centre) <= (n * d) / 2;
+    if (!this.volume || !(inside(this.point.x, g.cx, g.nx, g.dx) && inside(this.point.y, g.cy, g.ny, g.dy) && inside(this.point.z, g.cz, g.nz, g.dz))) {
+      this.point = { x: g.cx, y: g.cy, z: g.cz };
+      this.views = { axial: { zoom: 1, centre: toPlane('axial', this.point) }, coronal: { zoom: 1, centre: toPlane('coronal', this.point) }, sagittal: { zoom: 1, centre: toPlane('sagittal', this.point) } };
+    }
+    this.planeCache.clear();
+    this.lastShown = {};
+    this.volume = choice.info;
+  }
+
+  /** Reads the planes through the current point that are not cached yet. */
+  updated(changed: Map<string, unknown>) {
+    if (changed.has('volume') || changed.has('point')) void this.readPlanes();
+  }
+
+  private async readPlanes() {
+    const v = this.volume;
+    if (!v) return;
+    const ticket = this.request, key = this.key, point = this.point;
+    const missing = PLANES.filter((p) => !this.planeCache.has(this.cacheKey(p, planeIndex(v.grid, p, point))));
+    if (!missing.length) return;
+    this.loading = true;
     try {
-      const v = await this.load(key);
-      if (ticket !== this.request) return;
-      const g = v.grid;
-      const inside = (c: number, centre: number, n: number, d: number) => Math.abs(c - centre) <= (n * d) / 2;
-      if (!this.volume || !(inside(this.point.x, g.cx, g.nx, g.dx) && inside(this.point.y, g.cy, g.ny, g.dy) && inside(this.point.z, g.cz, g.nz, g.dz))) {
-        this.point = { x: g.cx, y: g.cy, z: g.cz };
-        this.views = { axial: { zoom: 1, centre: toPlane('axial', this.point) }, coronal: { zoom: 1, centre: toPlane('coronal', this.point) }, sagittal: { zoom: 1, centre: toPlane('sagittal', this.point) } };
+      for (const plane of missing) {
+        const index = planeIndex(v.grid, plane, point);
+        const values = await this.planes.plane(key, plane, index);
+        if (ticket !== this.request) return;
+        const at = atIndex(v.grid, plane, index, point);
+        if (this.planeCache.size > 60) this.planeCache.clear();
+        this.planeCache.set(this.cacheKey(plane, index), planeImageOf(v, plane, values, at, `${PLANE_LABELS[plane]}, ${AXIS[plane]} = ${at[AXIS[plane]].toFixed(1)} mm`));
       }
-      this.planeCache.clear();
-      this.volume = v;
-      this.window ??= this.image('axial').unit === 'HU' ? { width: 400, level: 40 } : autoWindow(this.image('axial').values);
+      const axial = this.image('axial');
+      if (axial) this.window ??= axial.unit === 'HU' ? { width: 400, level: 40 } : autoWindow(axial.values);
+      this.requestUpdate();
     } catch (err) {
       if (ticket === this.request) this.error = `The volume could not be read: ${err instanceof Error ? err.message : String(err)}`;
     } finally {
@@ -122,19 +156,19 @@ export class VolumeView extends LitElement {
     }
   }
 
-  /** The plane through the current point (cached per slice: its FOV marks depend on the slice only). */
-  private image(plane: Plane): DisplayImage {
+  private cacheKey(plane: Plane, index: number): string {
+    return `${this.key}:${plane}:${index}`;
+  }
+
+  /**
+   * The plane through the current point once read (cached per slice: its FOV marks depend on the
+   * slice only); until then the plane shown last, so the view does not flicker while it reads.
+   */
+  private image(plane: Plane): DisplayImage | undefined {
     const v = this.volume!;
-    const index = planeIndex(v.grid, plane, this.point);
-    const key = `${plane}:${index}`;
-    let d = this.planeCache.get(key);
-    if (!d) {
-      const at = atIndex(v.grid, plane, index, this.point);
-      d = planeImage(v, plane, at, `${PLANE_LABELS[plane]}, ${AXIS[plane]} = ${at[AXIS[plane]].toFixed(1)} mm`);
-      if (this.planeCache.size > 60) this.planeCache.clear();
-      this.planeCache.set(key, d);
-    }
-    return d;
+    const d = this.planeCache.get(this.cacheKey(plane, planeIndex(v.grid, plane, this.point)));
+    if (d) this.lastShown[plane] = d;
+    return d ?? this.lastShown[plane];
   }
 
   private setPoint(plane: Plane, q: Point) {
@@ -142,11 +176,10 @@ export class VolumeView extends LitElement {
   }
 
   private saveVolume() {
-    const v = this.volume;
     const choice = this.choices.find((c) => c.key === this.key);
-    if (!v || !choice) return;
-    writeVolumeNrrd(v).then(
-      (bytes) => saveFile(bytes as BlobPart, fileName(`${choice.label}-mu`, 'nrrd'), 'application/octet-stream'),
+    if (!choice) return;
+    this.planes.file(choice.key).then(
+      (blob) => saveFile(blob, fileName(`${choice.label}-mu`, 'nrrd'), 'application/octet-stream'),
       (err) => (this.error = `The volume could not be saved: ${err instanceof Error ? err.message : String(err)}`),
     );
   }
@@ -154,6 +187,7 @@ export class VolumeView extends LitElement {
   private planeView(plane: Plane) {
     const v = this.volume!;
     const img = this.image(plane);
+    if (!img || !this.window) return html`<div class="plane"><h3>${PLANE_LABELS[plane]}</h3><p class="muted">Reading the plane…</p></div>`;
     const index = planeIndex(v.grid, plane, this.point), n = planeCount(v.grid, plane);
     return html`<div class="plane">
       <h3>${PLANE_LABELS[plane]} <span class="num">${AXIS[plane]} = ${atIndex(v.grid, plane, index, this.point)[AXIS[plane]].toFixed(1)} mm · slice ${index + 1} of ${n}</span></h3>
@@ -173,15 +207,17 @@ export class VolumeView extends LitElement {
 
   private measurements() {
     const out = [];
-    if (this.line) {
-      const d = this.image(this.line.plane);
+    const line = this.line && this.image(this.line.plane);
+    if (this.line && line) {
+      const d = line;
       const s = sampleProfile(d.values, d.grid, this.line.mark.p0, this.line.mark.p1);
       const series: PlotSeries[] = [{ label: d.label, colour: SERIES_COLOURS[PLANES.indexOf(this.line.plane)], x: s.distance, y: s.values }];
       out.push(html`<div class="card"><h2>Line profile</h2>
         <rf-line-plot id="volume-profile" xLabel="distance along the line (mm)" yLabel=${d.unit} caption="Values along the drawn line" .series=${series}></rf-line-plot></div>`);
     }
-    if (this.region) {
-      const d = this.image(this.region.plane);
+    const region = this.region && this.image(this.region.plane);
+    if (this.region && region) {
+      const d = region;
       const stats = regionStats(d.values, d.grid, this.region.mark.centre, this.region.mark.radius);
       out.push(html`<div class="card"><h2>Region</h2><rf-region-table .unit=${d.unit} .radius=${this.region.mark.radius}
         .rows=${[{ label: d.label, colour: SERIES_COLOURS[PLANES.indexOf(this.region.plane)], stats }]}></rf-region-table></div>`);
@@ -193,7 +229,8 @@ export class VolumeView extends LitElement {
     if (!this.choices.length) return nothing;
     const v = this.volume;
     const choice = this.choices.find((c) => c.key === this.key);
-    const unit = v ? this.image('axial').unit : 'HU';
+    const axial = v ? this.image('axial') : undefined;
+    const unit = axial?.unit ?? 'HU';
     const g = v?.grid;
     return html`
       <div class="card">
@@ -207,9 +244,9 @@ export class VolumeView extends LitElement {
           <button class="small" id="export-volume" ?disabled=${!v} @click=${() => this.saveVolume()}>Save volume (NRRD, µ)</button>
         </div>
         ${this.error ? html`<div class="error" role="alert">${this.error}</div>` : nothing}
-        ${v ? html`<rf-viewer-toolbar sliceTool .window=${this.window!} .unit=${unit} .tool=${this.tool} .showFov=${this.showFov}
+        ${v && axial && this.window ? html`<rf-viewer-toolbar sliceTool .window=${this.window} .unit=${unit} .tool=${this.tool} .showFov=${this.showFov}
           @window-change=${(e: CustomEvent) => (this.window = e.detail.window)}
-          @window-auto=${() => (this.window = autoWindow(this.image('axial').values))}
+          @window-auto=${() => (this.window = autoWindow(axial.values))}
           @tool-change=${(e: CustomEvent) => (this.tool = e.detail.tool)}
           @fov-toggle=${(e: CustomEvent) => (this.showFov = e.detail.show)}></rf-viewer-toolbar>
           <p class="point muted num" id="volume-point">Planes through x ${this.point.x.toFixed(1)} mm, y ${this.point.y.toFixed(1)} mm, z ${this.point.z.toFixed(1)} mm${v.fovRadius !== undefined

@@ -18,16 +18,17 @@ import type { KnowledgeRequest } from './knowledge-ops';
 export const APP_PROTOCOL_VERSION = 8;
 
 export type { CalibrationRequest, KnowledgeRequest, LibraryRequest, NetworkPriorRequest, PriorCheckRequest };
-export type { ScanOverview } from './library-ops';
+export type { ScanOverview, StoredVolumeRef } from './library-ops';
+export type { VolumePlane } from '../store/volume-planes';
 
 /** What a comparison measures against: the scan's reference image or another result. */
 export type CompareTarget = { kind: 'reference' } | { kind: 'result'; id: string };
 
 export type AppRequest =
-  | { op: 'import'; files: File[]; name?: string }
+  | { op: 'import'; files: File[]; name?: string; reduce?: unknown }
   | { op: 'demo' }
   | { op: 'demo-cone' }
-  | { op: 'run'; scanId: string; recipe: unknown; name?: string; jobId?: string }
+  | { op: 'run'; scanId: string; recipe: unknown; name?: string; jobId?: string; budget?: number }
   | { op: 'queue-add'; job: NewJob }
   | { op: 'queue-settle'; jobId: string; state: 'failed' | 'cancelled'; error?: string }
   | { op: 'queue-requeue'; jobId: string; session: string }

@@ -7,7 +7,8 @@ import { CancelledError, InputError } from '../core/errors';
 import { StorageFullError } from '../store/quota';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo, FromCoordinator, WireError } from './app-protocol';
 import type { NewJob } from '../store/jobs';
-import type { CalibrationRequest, KnowledgeRequest, NetworkPriorRequest, PriorCheckRequest } from './app-protocol';
+import type { CalibrationRequest, KnowledgeRequest, NetworkPriorRequest, PriorCheckRequest, StoredVolumeRef, VolumePlane } from './app-protocol';
+import type { Reduction } from '../core/reduction';
 
 /** What the client needs of a Worker (a real Web Worker, or a stand-in in tests). */
 export interface WorkerLike {
@@ -74,8 +75,8 @@ export class EngineClient {
   constructor(private readonly starter: EngineStarter) {}
 
   /** Reads files into a stored scan. */
-  importScan(files: File[], options: CallOptions & { name?: string } = {}): Promise<AppReplies['import']> {
-    return this.call({ op: 'import', files, name: options.name }, options);
+  importScan(files: File[], options: CallOptions & { name?: string; reduce?: Reduction } = {}): Promise<AppReplies['import']> {
+    return this.call({ op: 'import', files, name: options.name, reduce: options.reduce }, options);
   }
 
   /** Simulates and stores the demo scan. */
@@ -89,8 +90,8 @@ export class EngineClient {
   }
 
   /** Runs a recipe on a stored scan; resolves to the stored result. With a queue job, the job's record follows the run. */
-  run(scanId: string, recipe: unknown, options: CallOptions & { name?: string; jobId?: string } = {}): Promise<AppReplies['run']> {
-    return this.call({ op: 'run', scanId, recipe, name: options.name, ...(options.jobId ? { jobId: options.jobId } : {}) }, options);
+  run(scanId: string, recipe: unknown, options: CallOptions & { name?: string; jobId?: string; budget?: number } = {}): Promise<AppReplies['run']> {
+    return this.call({ op: 'run', scanId, recipe, name: options.name, budget: options.budget, ...(options.jobId ? { jobId: options.jobId } : {}) }, options);
   }
 
   /** Stores a queued job (so a reload cannot lose it). */
@@ -151,6 +152,16 @@ export class EngineClient {
   /** What the page draws of a stored scan: its analysed sinogram row, truncation report and reference image. */
   scanOverview(scanId: string, options: CallOptions = {}): Promise<AppReplies['scan-overview']> {
     return this.call({ op: 'scan-overview', scanId }, options);
+  }
+
+  /** One plane of a stored volume (read slab by slab in the worker: the volume never comes here). */
+  volumePlane(volume: StoredVolumeRef, plane: VolumePlane, index: number, options: CallOptions = {}): Promise<AppReplies['volume-plane']> {
+    return this.call({ op: 'volume-plane', volume, plane, index }, options);
+  }
+
+  /** A stored volume as an NRRD file, for saving (a Blob the browser may keep on disk). */
+  volumeFile(volume: StoredVolumeRef, options: CallOptions = {}): Promise<AppReplies['volume-file']> {
+    return this.call({ op: 'volume-file', volume }, options);
   }
 
   /** Renames a stored scan. */

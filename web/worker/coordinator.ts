@@ -1,41 +1,43 @@
 // The coordinator: imports, the demo, recipe runs and comparisons, off the page's main thread.
 // It is the only writer of scans and results; runs take turns on one engine workspace.
 import { compareImages, type Comparison } from '../core/compare';
-import { compareVolumes, type VolumeComparison } from '../core/compare-volume';
-import { dataResidual } from '../core/data-residual';
 import { CancelledError, InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
 import { axialSlice, sliceAt, type Volume } from '../core/volume';
 import { coneFovHalfHeight } from '../core/geometry/cone';
+import { viewCount } from '../core/geometry/types';
 import { fovRadius } from '../core/geometry/view-vectors';
-import type { Scan } from '../core/scan';
-import { recipeLabel } from '../core/recipe/label';
-import { validateRecipe, type Recipe } from '../core/recipe/recipe';
-import { runRecipe, type RecipeInputs } from '../core/recipe/run';
+import { browserBudget } from './browser-budget';
+import { readWholeScan } from '../core/projection-source';
+import type { Recipe } from '../core/recipe/recipe';
+import type { RecipeInputs } from '../core/recipe/run';
+import { checkReduction, isIdentity, reduceSource } from '../core/reduction';
+import { planResidual, ResidualTap } from '../core/residual-sample';
 import type { RunHooks } from '../core/run-hooks';
-import { volumeDataResidual } from '../core/volume-residual';
 import { pageStore, type UseStore } from '../store/db';
+import { storedProjections } from '../store/projections';
 import { RecordError, type ModelMeta, type ResultMeta, type ScanMeta } from '../store/records';
-import { getResultMeta, loadResultImage, loadResultVolume, saveResult } from '../store/results';
-import { loadReferenceVolume, loadScan, saveScan } from '../store/scans';
+import { getResultMeta, loadResultImage, loadResultVolume } from '../store/results';
+import { loadReferenceVolume, loadScan, loadScanReference, saveScan } from '../store/scans';
 import { saveSettings } from '../store/settings';
 import type { NetworkRunner } from '../core/model/runner';
 import { saveModel } from '../store/models';
-import { addJob, changeJob, deleteJobs, updateJob } from '../store/jobs';
+import { addJob, deleteJobs, updateJob } from '../store/jobs';
 import type { AppReplies, AppRequest, CompareTarget, EngineInfo } from './app-protocol';
 import { buildConeDemoScan, CONE_DEMO, CONE_DEMO_NAME, type ConeDemoSettings } from './demo-cone-scan';
 import { buildDemoScan, DEMO, DEMO_NAME, type DemoSettings } from './demo-scan';
 import { checkModelFiles } from './import-model-files';
-import { readScanFiles, type InputFile } from './import-scan';
+import { negativeCount, negativeWarning, openScanFiles, type InputFile } from './import-scan';
 import { readImageFiles, readVolumeFiles } from './read-image-files';
 import { runNetworkPriorJob } from './network-prior-job';
 import { runPriorCheckJob } from './prior-check-job';
 import { calibrateScan } from './calibrate-job';
+import { runRecipeJob, storeImageResult } from './run-job';
+import { storeVolumeResult } from './volume-result';
 import { isLibraryRequest, libraryOp } from './library-ops';
 import { exportDicomJob } from './export-dicom-job';
 import { changeKnowledge } from './knowledge-ops';
-import { loadMasks, maskNamesOf } from '../store/knowledge';
 
 export interface CoordinatorOptions {
   /** Opens the engine workspace (called on the first run, and again after a failure). */
@@ -65,13 +67,13 @@ export class Coordinator {
     if (isLibraryRequest(r)) return (await libraryOp(this.store, r)) as AppReplies[K];
     switch (r.op) {
       case 'import':
-        return (await this.importScan(r.files, r.name, hooks)) as AppReplies[K];
+        return (await this.importScan(r.files, r.name, r.reduce, hooks)) as AppReplies[K];
       case 'demo':
         return (await this.createDemo(hooks)) as AppReplies[K];
       case 'demo-cone':
         return (await this.createConeDemo(hooks)) as AppReplies[K];
       case 'run':
-        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks, r.jobId))) as AppReplies[K];
+        return (await this.exclusive(() => this.run(r.scanId, r.recipe, r.name, hooks, r.jobId, r.budget))) as AppReplies[K];
       case 'queue-add':
         return (await addJob(r.job, this.store)) as AppReplies[K];
       case 'queue-settle':
@@ -101,14 +103,34 @@ export class Coordinator {
     }
   }
 
-  /** Reads the files, checks them and stores the scan (nothing is stored when anything fails). */
-  async importScan(files: File[], name: string | undefined, hooks: RunHooks): Promise<ScanMeta> {
+  /**
+   * Reads the files (a chunk of views at a time when the format allows), reduces them as asked
+   * (binning, view step, row range), checks and stores the scan in one transaction: nothing is
+   * stored when anything fails, is cancelled, or the page goes away meanwhile.
+   */
+  async importScan(files: File[], name: string | undefined, reduceInput: unknown, hooks: RunHooks): Promise<ScanMeta> {
     hooks.onProgress?.(0, 'reading');
-    const { scan, warnings } = await readScanFiles(files);
+    const opened = await openScanFiles(files);
+    const g = opened.source.geometry;
+    const reduce = checkReduction(reduceInput, g, 'import reduce');
+    const source = reduceSource(opened.source, reduce);
     throwIfCancelled(hooks.signal);
-    hooks.onProgress?.(0.8, 'storing');
     const fileNames = files.map((f) => f.name);
-    return saveScan({ name: name ?? fileNames.find((n) => /\.nrrd$/i.test(n)) ?? fileNames[0], scan, source: { type: 'file', fileNames }, warnings }, this.store);
+    let negative = 0, values = 0;
+    return saveScan({
+      name: name ?? fileNames.find((n) => /\.nrrd$/i.test(n)) ?? fileNames[0],
+      scan: source,
+      source: { type: 'file', fileNames },
+      warnings: opened.warnings,
+      ...(isIdentity(reduce) ? {} : { reduction: { applied: reduce, from: { channels: g.detector.channels, rows: g.detector.rows, views: viewCount(g) } } }),
+    }, this.store, {
+      ...hooks,
+      inspect: (data) => {
+        negative += negativeCount(data);
+        values += data.length;
+      },
+      lateWarnings: () => [...opened.lateWarnings(), ...negativeWarning(negative, values)],
+    });
   }
 
   /** Checks a network (ONNX + description) in the runtime and stores it (nothing is stored when it does not fit). */
@@ -158,37 +180,26 @@ export class Coordinator {
   /**
    * Reconstructs a stored scan and stores the result with its comparison to the scan's reference.
    * With a queue job: the job is marked running, then done with the result in the same
-   * transaction, or failed / cancelled.
+   * transaction, or failed / cancelled. `budget`: the page's memory budget (bytes; else half of
+   * what the browser reports).
    */
-  async run(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks, jobId?: string): Promise<ResultMeta> {
-    if (!jobId) return this.reconstruct(scanId, recipeInput, name, hooks);
-    await updateJob(jobId, { state: 'running' }, this.store);
+  async run(scanId: string, recipe: unknown, name: string | undefined, hooks: RunHooks, jobId?: string, budget?: number): Promise<ResultMeta> {
+    if (jobId) await updateJob(jobId, { state: 'running' }, this.store);
     try {
-      return await this.reconstruct(scanId, recipeInput, name, hooks, jobId);
+      const ws = await this.openWorkspace();
+      return await runRecipeJob({
+        ws, store: this.store, sharedMemory: this.options.sharedMemory,
+        budget: budget !== undefined ? { bytes: budget, source: 'the page\'s memory budget' } : browserBudget(),
+        inputs: (r: Recipe, cone: boolean) => this.recipeInputs(r, cone),
+      }, { scanId, recipe, name, jobId }, hooks);
     } catch (err) {
       const cancelled = err instanceof CancelledError;
-      await updateJob(jobId, cancelled ? { state: 'cancelled' } : { state: 'failed', error: err instanceof InputError ? err.pageMessage : String((err as Error)?.message ?? err) }, this.store)
-        .catch(() => undefined); // the run's own failure is what the page must hear
+      if (jobId) {
+        await updateJob(jobId, cancelled ? { state: 'cancelled' } : { state: 'failed', error: err instanceof InputError ? err.pageMessage : String((err as Error)?.message ?? err) }, this.store)
+          .catch(() => undefined); // the run's own failure is what the page must hear
+      }
       throw err;
     }
-  }
-
-  private async reconstruct(scanId: string, recipeInput: unknown, name: string | undefined, hooks: RunHooks, jobId?: string): Promise<ResultMeta> {
-    const t0 = performance.now();
-    const recipe = validateRecipe(recipeInput);
-    const { meta: scanMeta, scan, reference } = await loadScan(scanId, this.store);
-    throwIfCancelled(hooks.signal);
-    const inputs = { ...(await this.recipeInputs(recipe, scan.geometry.kind === 'cone')), masks: await loadMasks(this.store, scanMeta, maskNamesOf(recipe.knowledge)) };
-    const ws = await this.openWorkspace();
-    // The reconstruction takes the first 95% of the bar; checks and storing the rest.
-    const out = await runRecipe(ws, scan, recipe, { ...hooks, onProgress: hooks.onProgress && ((f, stage) => hooks.onProgress!(0.95 * f, stage)) }, inputs);
-    throwIfCancelled(hooks.signal);
-    return this.checkAndStore(ws, { scanId, scanMeta, scan, reference }, out, {
-      name: name ?? recipeLabel(recipe as unknown as Record<string, unknown>),
-      recipe: recipe as unknown as Record<string, unknown>,
-      t0,
-      jobId,
-    }, hooks);
   }
 
   /**
@@ -199,75 +210,33 @@ export class Coordinator {
    */
   async importImage(scanId: string, files: InputFile[], slice: number | undefined, hooks: RunHooks): Promise<ResultMeta> {
     const t0 = performance.now();
-    const loaded = await loadScan(scanId, this.store);
-    const { scan } = loaded;
+    const { meta, reference } = await loadScanReference(scanId, this.store);
     hooks.onProgress?.(0, 'reading');
-    const g = scan.geometry;
+    const g = meta.geometry;
     const fov = fovRadius(g);
-    let out: { image: Image2D; volume?: Volume; warnings: string[]; report: Record<string, unknown> };
-    let read: { name: string; fileNames: string[] };
-    if (g.kind === 'cone') {
-      if (slice !== undefined) throw new InputError('image import: a cone-beam scan takes the whole volume; leave the slice empty');
-      const r = await readVolumeFiles(files, scan.muWater);
-      const volume: Volume = { ...r.value, fovRadius: fov, fovHalfHeight: coneFovHalfHeight(g) };
-      out = { image: axialSlice(volume, sliceAt(volume.grid, 0)), volume, warnings: r.warnings, report: {} };
-      read = r;
-    } else {
-      const r = await readImageFiles(files, scan.muWater, slice);
-      out = { image: { ...r.value, fovRadius: fov }, warnings: r.warnings, report: {} };
-      read = r;
-    }
-    throwIfCancelled(hooks.signal);
     const ws = await this.openWorkspace();
-    return this.checkAndStore(ws, { scanId, scanMeta: loaded.meta, scan, reference: loaded.reference }, out, {
-      name: `Image file: ${read.name}`,
-      recipe: { method: 'imported', fileNames: read.fileNames, ...(slice !== undefined ? { slice } : {}) },
-      t0,
-    }, hooks);
-  }
-
-  /**
-   * Compares an image (or volume) with the scan's reference, re-projects it against the measured
-   * data, and stores it as a result of the scan (warnings for values that cannot be trusted).
-   */
-  private async checkAndStore(
-    ws: Workspace,
-    s: { scanId: string; scanMeta: ScanMeta; scan: Scan; reference?: Image2D },
-    out: { image: Image2D; volume?: Volume; warnings: string[]; report: Record<string, unknown> },
-    what: { name: string; recipe: Record<string, unknown>; t0: number; jobId?: string },
-    hooks: RunHooks,
-  ): Promise<ResultMeta> {
-    const warnings = [...out.warnings];
-    const bad = countNonFinite(out.volume?.data ?? out.image.data);
-    if (bad) warnings.push(`${bad} ${out.volume ? 'voxels' : 'pixels'} are not finite numbers (NaN or infinity): the ${out.volume ? 'volume' : 'image'} is not trustworthy`);
-    let metrics: Comparison | null = null;
-    if (s.reference) {
-      try {
-        metrics = compareImages(out.image, s.reference, out.image.fovRadius);
-      } catch (err) {
-        if (!(err instanceof InputError)) throw err;
-        warnings.push(`no comparison with the reference: ${err.message}`);
-      }
+    const recipe = (fileNames: string[]) => ({ method: 'imported', fileNames, ...(slice !== undefined ? { slice } : {}) });
+    if (g.kind !== 'cone') {
+      const r = await readImageFiles(files, meta.muWater, slice);
+      throwIfCancelled(hooks.signal);
+      const scan = await loadScan(scanId, this.store, hooks.signal);
+      return storeImageResult({ ws, store: this.store }, { scanId, scan: scan.scan, reference }, { image: { ...r.value, fovRadius: fov }, warnings: r.warnings, report: {} },
+        { name: `Image file: ${r.name}`, recipe: recipe(r.fileNames), t0 }, hooks);
     }
-    let volumeMetrics: VolumeComparison | null | undefined;
-    if (out.volume) volumeMetrics = s.scanMeta.referenceVolume && !bad ? await this.compareWithReferenceVolume(s.scanId, out.volume, hooks) : null;
-    hooks.onProgress?.(0.97, 'checking against the measured data');
-    const checkHooks = { signal: hooks.signal };
-    const residual = out.volume ? await volumeDataResidual(ws, out.volume, s.scan, checkHooks) : await dataResidual(ws, out.image, s.scan, checkHooks);
-    hooks.onProgress?.(1, 'storing');
-    const seconds = (performance.now() - what.t0) / 1000;
-    const job = what.jobId;
-    return saveResult({
-      scanId: s.scanId,
-      name: what.name,
-      recipe: what.recipe,
-      warnings,
-      report: out.report,
-      metrics,
-      residual,
-      seconds,
-      ...(out.volume ? { volumeMetrics } : {}),
-    }, out.image, this.store, out.volume, job ? (meta, tx) => changeJob(tx, job, { state: 'done', resultId: meta.id, seconds }) : undefined);
+    if (slice !== undefined) throw new InputError('image import: a cone-beam scan takes the whole volume; leave the slice empty');
+    const r = await readVolumeFiles(files, meta.muWater);
+    const volume: Volume = { ...r.value, fovRadius: fov, fovHalfHeight: coneFovHalfHeight(g) };
+    throwIfCancelled(hooks.signal);
+    // The measured data pass through the residual's tap once, a chunk of views at a time.
+    const plan = planResidual(volume.grid, g);
+    const tap = new ResidualTap(storedProjections(meta, this.store), plan);
+    await readWholeScan(tap.source, hooks.signal).then(() => undefined);
+    const referenceVolume = meta.referenceVolume ? await loadReferenceVolume(scanId, this.store) : undefined;
+    return storeVolumeResult(
+      { ws, store: this.store, scanId, scanMeta: meta, reference, referenceVolume, residual: { plan, tap }, hooks },
+      { name: `Image file: ${r.name}`, recipe: recipe(r.fileNames), t0 },
+      async () => ({ image: axialSlice(volume, sliceAt(volume.grid, 0)), volume, warnings: r.warnings, report: {} }),
+    );
   }
 
   /**
@@ -293,19 +262,12 @@ export class Coordinator {
     return { prior: (await loadResultImage(p.resultId, this.store)).image };
   }
 
-  /** The volume against the scan's reference volume, inside and outside its FOV cylinder. */
-  private async compareWithReferenceVolume(scanId: string, volume: Volume, hooks: RunHooks): Promise<VolumeComparison> {
-    hooks.onProgress?.(0.96, 'comparing with the reference volume');
-    const reference = await loadReferenceVolume(scanId, this.store);
-    return compareVolumes(volume, reference, { fovRadius: volume.fovRadius, fovHalfHeight: volume.fovHalfHeight });
-  }
-
   /** Compares a stored result with its scan's reference image or with another result. */
   async compare(resultId: string, against: CompareTarget): Promise<Comparison> {
     const { meta, image } = await loadResultImage(resultId, this.store);
     let reference: Image2D;
     if (against.kind === 'reference') {
-      const s = await loadScan(meta.scanId, this.store);
+      const s = await loadScanReference(meta.scanId, this.store);
       if (!s.reference) throw new InputError(`compare: scan of result "${meta.name}" has no reference image`);
       reference = s.reference;
     } else {
@@ -341,10 +303,4 @@ export class Coordinator {
     this.turn = next.catch(() => undefined);
     return next;
   }
-}
-
-function countNonFinite(d: Float32Array): number {
-  let n = 0;
-  for (let i = 0; i < d.length; i++) if (!Number.isFinite(d[i])) n++;
-  return n;
 }

@@ -3,13 +3,14 @@
 // peak resident memory is its own; the excess over (file bytes + float32 output) shows
 // whether the reader copied the data more than once.
 import { execFileSync } from 'node:child_process';
-import { closeSync, fsyncSync, mkdtempSync, openSync, readFileSync, rmSync, statSync, writeSync } from 'node:fs';
+import { closeSync, fsyncSync, mkdtempSync, openSync, rmSync, statSync, writeSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { readProjectionData } from '../../core/formats/read-scan';
 import { writeNrrd } from '../../core/formats/nrrd';
 import { writeTiffStack } from '../../core/formats/tiff';
 import { gatherFiles } from '../gather';
+import { peakRssMb } from './peak-memory';
 
 const MB = 2 ** 20;
 
@@ -23,20 +24,6 @@ export interface FormatReadFigures {
   peakRssMb: number;
   /** Peak minus baseline minus file bytes, in units of the float32 output: about 1 = one copy. */
   copiesOfOutput: number;
-}
-
-/**
- * Peak resident memory of this process, MB: VmHWM from /proc (reset by exec, unlike getrusage's
- * maxRSS, which a child inherits from the process that forked it), else maxRSS.
- */
-function peakRssMb(): number {
-  try {
-    const m = /VmHWM:\s*(\d+)\s*kB/.exec(readFileSync('/proc/self/status', 'utf8'));
-    if (m) return Number(m[1]) / 1024;
-  } catch {
-    // not Linux: fall back below
-  }
-  return process.resourceUsage().maxRSS / 1024;
 }
 
 /** Writes a file and flushes it to disk, so that its reading is not slowed by write-back. */

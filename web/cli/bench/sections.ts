@@ -8,6 +8,8 @@ import { benchFdk } from './fdk-bench';
 import { benchFormats, formatFiguresText } from './formats';
 import { benchIterative, iterativeLines } from './iterative';
 import { benchKernels } from './kernels';
+import { benchIterative3d } from './iterative-3d';
+import { benchNativeFdk } from './native-fdk';
 import { benchNetwork, networkBenchText } from './network';
 import type { SectionResult } from './section';
 import { openWorkspace } from '../engine-node';
@@ -67,6 +69,14 @@ export const SECTIONS: BenchSection[] = [
       const { text, ...json } = await benchFdk((line) => process.stderr.write(`${line}\n`));
       return { json, lines: text.split('\n') };
     },
+  },
+  {
+    name: 'iterative3d', about: '20 iterations of 3D OS-SART and 5 of the prior-guided method on 256^3 from 360 projections of 512x384, with peak memory and a cancel (2 workers; an hour or more)',
+    run: () => benchIterative3d((line) => process.stderr.write(`${line}\n`)),
+  },
+  {
+    name: 'native', about: 'rimfill reconstruct (FDK 256^3) against a straightforward native C build (FFTW, OpenMP), both on 2 cores',
+    run: (_r, cliPath) => benchNativeFdk(cliPath, (line) => process.stderr.write(`${line}\n`)),
   },
   {
     name: 'formats', about: 'read speed and peak memory for a 200 MB NRRD scan and a 200 MB TIFF stack',

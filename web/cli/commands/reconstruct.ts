@@ -1,9 +1,18 @@
 // rimfill reconstruct: a scan file in, an image file out.
 import { InputError } from '../../core/errors';
 import { writeImageNrrd } from '../../core/formats/image-nrrd';
-import { writeVolumeNrrd } from '../../core/formats/volume-nrrd';
+import { rowsToLps } from '../../core/formats/volume';
+import { volumeNrrdHeader, writeVolumeNrrd } from '../../core/formats/volume-nrrd';
+import type { Workspace } from '../../core/engine/workspace';
+import { checkMemoryBudget } from '../../core/memory-budget';
+import { readWholeScan } from '../../core/projection-source';
+import type { Recipe } from '../../core/recipe/recipe';
+import { describeReduction, isIdentity } from '../../core/reduction';
+import type { RunHooks } from '../../core/run-hooks';
+import type { VolumeInfo } from '../../core/volume-sink';
+import { availableParallelism, freemem } from 'node:os';
 import { muToHu } from '../../core/image';
-import { METHODS, validateRecipe } from '../../core/recipe/recipe';
+import { METHODS, usesKnowledge, validateRecipe } from '../../core/recipe/recipe';
 import { FILTER_WINDOWS } from '../../core/recon/filter-design';
 import { RECIPE_EXTENDS } from '../../core/truncation/extend-methods';
 import { describeResult } from '../../core/recipe/describe-result';
@@ -13,9 +22,9 @@ import { runRecipe } from '../../core/recipe/run';
 import { methodAndCorrection } from '../../core/recipe/label';
 import { addIterativeFields, ITERATIVE_FIELD_OPTIONS, ITERATIVE_HELP, ITERATIVE_OPTIONS, iterationSummary, iterativeInputs } from '../iterative-options';
 import { parseArgs, requireString, type ParsedArgs } from '../args';
-import { checkOutputs, PendingWrites, replacedWarnings } from '../io';
+import { checkOutputs, PendingWrites, replacedWarnings, StreamedFile } from '../io';
 import { priorConsistency } from '../prior-consistency';
-import { loadScanWithReport, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS } from '../load';
+import { memoryLimit, openScanInput, SCAN_INPUT_HELP, SCAN_INPUT_OPTIONS, type ScanInput } from '../load';
 import { openWorkspace } from '../engine-node';
 import { progressLine } from '../progress';
 import type { CommandResult } from './types';
@@ -93,17 +102,31 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
   const recipe = recipeFromArgs(a);
   const maskOut = a.options.undetermined as string | undefined;
   checkOutputs([['out', out], ['undetermined', maskOut]]);
-  const { scan, warnings: readWarnings } = await loadScanWithReport(path, a);
-  if (a.options.hu && !scan.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
-  if (recipe.volume && scan.geometry.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${scan.geometry.kind} beam)`);
-  const ws = await openWorkspace(a.options.workers as number | undefined);
+  const input = await openScanInput(path, a);
+  const g = input.source.geometry;
+  if (a.options.hu && !input.source.muWater) throw new InputError('option --hu: the scan has no mu_water (rimfill.muWater); give --mu-water or write mu');
+  if (recipe.volume && g.kind !== 'cone') throw new InputError(`options --slices and --slice-spacing: only for cone-beam scans (this scan is ${g.kind} beam)`);
+  const workers = a.options.workers as number | undefined;
+  const budget = memoryLimit(a) ?? process.availableMemory?.() ?? freemem();
+  const estimate = checkMemoryBudget(g, recipe, { workers: workers ?? Math.max(1, availableParallelism()), sharedMemory: true, scanInMemory: !input.streamed }, budget,
+    memoryLimit(a) !== undefined ? '--memory-limit' : 'the memory this computer has free');
+  const ws = await openWorkspace(workers);
   try {
     const t0 = performance.now();
     const hooks = { onProgress: a.options.json ? undefined : progressLine(recipe.method) };
+    const facts = {
+      ...(isIdentity(input.reduction) ? {} : { reduction: { applied: input.reduction, description: describeReduction(input.reduction), from: input.from } }),
+      memory: { estimateMb: Math.round(estimate.bytes / 2 ** 20), budgetMb: Math.round(budget / 2 ** 20) },
+    };
+    // FDK streams into the file; with known regions or the outline it holds the scan (and masks) like the other methods.
+    if (g.kind === 'cone' && recipe.method === 'fbp' && !usesKnowledge(recipe)) return await fdkToFile(ws, input, recipe, out, a, hooks, t0, facts);
+    const scan = await readWholeScan(input.source);
+    const readWarnings = input.warnings();
     const { inputs, warnings: priorWarnings, priorReport, checkedPrior } = await iterativeInputs(recipe, a, ws, scan, hooks);
     readWarnings.push(...priorWarnings);
     const masks = await knowledgeMasks(recipe, scan);
     if (masks) inputs.masks = masks;
+    if (estimate.pixelWeightFloats !== undefined) inputs.pixelWeightFloats = estimate.pixelWeightFloats;
     const r = await runRecipe(ws, scan, recipe, hooks, inputs);
     const knowledge = r.report.knowledge as KnowledgeReport | undefined;
     const knowledgeText = knowledge ? `\n${knowledgeLines(knowledge, recipe.extend === 'outline' ? 'water' : recipe.extend ?? 'none').join('\n')}` : '';
@@ -118,25 +141,69 @@ export async function reconstruct(argv: string[]): Promise<CommandResult> {
       const v = r.volume;
       writes.add(out, await writeVolumeNrrd(a.options.hu ? { ...v, data: muToHu(v.data, scan.muWater!), quantity: 'hu', description } : { ...v, description }));
       readWarnings.push(...replacedWarnings(writes.commit()));
-      const vg = v.grid;
-      return {
-        json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report: r.report, warnings: r.warnings },
-        text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>).replace(/^FBP/, 'FDK')} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}`,
-        warnings: [...readWarnings, ...r.warnings],
-      };
+      return volumeResult(out, recipe, v, seconds, r.report, r.warnings, readWarnings, facts, knowledgeText);
     }
     const written = a.options.hu ? { ...image, data: muToHu(image.data, scan.muWater!), quantity: 'hu' as const } : image;
     writes.add(out, await writeImageNrrd(written));
     if (maskOut && r.undetermined) writes.add(maskOut, await writeUndeterminedNrrd(image.grid, r.undetermined));
     readWarnings.push(...replacedWarnings(writes.commit()));
-    const g = image.grid;
+    const grid = image.grid;
     return {
-      json: { out, ...(maskOut ? { undetermined: maskOut } : {}), recipe, grid: g, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
-      text: `wrote ${out}: ${g.nx} x ${g.ny} pixels of ${g.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
+      json: { out, ...(maskOut ? { undetermined: maskOut } : {}), recipe, grid, fovRadiusMm: image.fovRadius, seconds, report: r.report, ...facts, ...(consistency ? { consistency: consistency.json } : {}), warnings: r.warnings },
+      text: `wrote ${out}: ${grid.nx} x ${grid.ny} pixels of ${grid.dx.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>)} in ${seconds.toFixed(2)} s${iterationSummary(r.report)}${knowledgeText}` +
         (consistency ? `\n${consistency.text}` : ''),
       warnings: [...readWarnings, ...r.warnings, ...(consistency?.warnings ?? [])],
     };
   } finally {
     ws.dispose();
   }
+}
+
+/**
+ * FDK of a cone-beam scan straight into the output file: the projections stream from the input
+ * a chunk of views at a time and the volume is written slab by slab as it leaves the engine.
+ */
+async function fdkToFile(
+  ws: Workspace, input: ScanInput, recipe: Recipe, out: string, a: ParsedArgs, hooks: RunHooks, t0: number, facts: Record<string, unknown>,
+): Promise<CommandResult> {
+  const muWater = input.source.muWater;
+  const description = describeResult(recipe as unknown as Record<string, unknown>).detail;
+  const file = new StreamedFile(out);
+  let info: VolumeInfo | undefined;
+  try {
+    const r = await runRecipe(ws, input.source, recipe, hooks, {}, {
+      sink: (v) => {
+        info = { ...v, description, ...(a.options.hu ? { quantity: 'hu' as const } : {}) };
+        file.write(volumeNrrdHeader(info));
+        const { nx, ny } = v.grid;
+        return {
+          write: async (_k0, slab) => {
+            // Rows from anterior to posterior, as the header's LPS frame says.
+            const values = rowsToLps(a.options.hu ? muToHu(slab, muWater!) : slab, nx, ny);
+            file.write(new Uint8Array(values.buffer, values.byteOffset, values.byteLength));
+          },
+        };
+      },
+    });
+    const replaced = replacedWarnings(file.commit());
+    const seconds = (performance.now() - t0) / 1000;
+    return volumeResult(out, recipe, info!, seconds, r.report, r.warnings, [...input.warnings(), ...replaced], facts);
+  } catch (err) {
+    file.discard();
+    throw err;
+  }
+}
+
+/** The command's answer for a volume written to `out`. */
+function volumeResult(
+  out: string, recipe: Recipe, v: VolumeInfo, seconds: number, report: Record<string, unknown>, warnings: string[], readWarnings: string[], facts: Record<string, unknown>,
+  knowledgeText = '',
+): CommandResult {
+  const vg = v.grid;
+  const reduction = facts.reduction as { description: string } | undefined;
+  return {
+    json: { out, recipe, grid: vg, fovRadiusMm: v.fovRadius, fovHalfHeightMm: v.fovHalfHeight, seconds, report, ...facts, warnings },
+    text: `wrote ${out}: ${vg.nx} x ${vg.ny} x ${vg.nz} voxels of ${vg.dx.toFixed(3)} x ${vg.dy.toFixed(3)} x ${vg.dz.toFixed(3)} mm, ${methodAndCorrection(recipe as unknown as Record<string, unknown>).replace(/^FBP/, 'FDK')}${reduction ? ` from the scan with ${reduction.description}` : ''} in ${seconds.toFixed(2)} s${iterationSummary(report)}${knowledgeText}`,
+    warnings: [...readWarnings, ...warnings],
+  };
 }

@@ -20,6 +20,7 @@ export type KernelName =
   | 'chordGram' | 'chordBand' | 'chordFactor' | 'chordSolve' | 'chordMultiply'
   | 'extendViews'
   | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
+  | 'coneFilterPairs' | 'backprojectConeAxial' | 'columnsToSlab'
   | 'josephForwardCone' | 'josephAdjointCone'
   | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'
   | 'tvScale' | 'tvGradient' | 'tvWeights'

@@ -8,10 +8,10 @@ import { InputError } from '../errors';
 import type { Image2D } from '../image';
 import type { ReadLimits } from './limits';
 import type { NamedBytes } from './named-file';
-import { parseNrrd, writeNrrd, type WrittenType } from './nrrd';
+import { nrrdHeaderBytes, parseNrrd, writeNrrd, type WrittenType } from './nrrd';
 import { positiveKey } from './projections';
 import { NRRD_EXPORT_SPACE, nrrdSpaceSigns } from './patient-frame';
-import { flipAxes, imageAsVolume, toLps, type ImageVolume, type VolumeQuantity } from './volume';
+import { flipAxes, imageAsVolume, lpsOrigin, toLps, type ImageVolume, type VolumeQuantity } from './volume';
 
 function vectors(text: string | undefined): number[][] {
   if (!text) return [];
@@ -98,13 +98,24 @@ export function imageKeys(v: { quantity: string; muWater?: number; fovRadius?: n
  */
 export function writePlacedNrrd(v: ImageVolume, dims: 2 | 3, keys: Record<string, string>, compress = false, type: WrittenType = 'float32'): Promise<Uint8Array> {
   const p = toLps(v);
+  return writeNrrd(p.data, [v.nx, v.ny, v.nz].slice(0, dims), placedFields(v, p.origin, dims), keys, compress, type);
+}
+
+/**
+ * The header of an uncompressed float32 file as writePlacedNrrd writes it, for writers that
+ * stream the voxels after it (each slice with its rows reversed, volume.ts rowsToLps).
+ */
+export function placedNrrdHeader(v: Omit<ImageVolume, 'data'>, dims: 2 | 3, keys: Record<string, string>): Uint8Array {
+  return nrrdHeaderBytes([v.nx, v.ny, v.nz].slice(0, dims), placedFields(v, lpsOrigin(v), dims), keys);
+}
+
+function placedFields(v: Omit<ImageVolume, 'data'>, origin: readonly number[], dims: 2 | 3): Record<string, string> {
   const [dx, dy, dz] = v.spacing;
-  const directions = [`(${dx},0,0)`, `(0,${dy},0)`, `(0,0,${dz})`].slice(0, dims).join(' ');
-  return writeNrrd(p.data, [v.nx, v.ny, v.nz].slice(0, dims), {
+  return {
     space: NRRD_EXPORT_SPACE,
-    'space directions': directions,
-    'space origin': `(${p.origin.join(',')})`,
+    'space directions': [`(${dx},0,0)`, `(0,${dy},0)`, `(0,0,${dz})`].slice(0, dims).join(' '),
+    'space origin': `(${origin.join(',')})`,
     'space units': Array(3).fill('"mm"').join(' '),
     kinds: Array(dims).fill('domain').join(' '),
-  }, keys, compress, type);
+  };
 }

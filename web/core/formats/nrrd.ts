@@ -46,7 +46,8 @@ function headerEnd(bytes: Uint8Array): { end: number; dataStart: number } {
   throw new InputError('NRRD: no blank line ends the header within the first MiB');
 }
 
-function parseHeader(bytes: Uint8Array): { fields: Record<string, string>; keys: Record<string, string>; dataStart: number } {
+/** Parses the header at the start of `bytes` (fields lower-cased, key/value pairs, where the data start). */
+export function parseNrrdHeader(bytes: Uint8Array): { fields: Record<string, string>; keys: Record<string, string>; dataStart: number } {
   const magic = new TextDecoder().decode(bytes.subarray(0, 8));
   if (!/^NRRD000[1-5]$/.test(magic)) throw new InputError('NRRD: the file does not start with "NRRD000x"');
   const { end, dataStart } = headerEnd(bytes);
@@ -66,16 +67,12 @@ function parseHeader(bytes: Uint8Array): { fields: Record<string, string>; keys:
 
 /** The bytes that hold the (possibly compressed) data: attached, or the named data file. */
 function dataSource(bytes: Uint8Array, dataStart: number, fields: Record<string, string>, files: readonly NamedBytes[]): Uint8Array {
-  const detached = fields['data file'] ?? fields.datafile;
-  if (!detached) return bytes.subarray(dataStart);
-  const parts = detached.split(/\s+/);
-  if (parts.length !== 1 || parts[0] === 'LIST') {
-    throw new InputError(`NRRD data file: got "${detached.slice(0, 60)}", expected the name of one data file`);
-  }
-  return companion(files, parts[0], 'NRRD data file').bytes;
+  const detached = nrrdDataFile(fields);
+  return detached ? companion(files, detached, 'NRRD data file').bytes : bytes.subarray(dataStart);
 }
 
-function byteSkip(fields: Record<string, string>, encoding: string, available: number, need: number): number {
+/** Bytes to skip before the data ("byte skip"; -1: the data end the raw file). */
+export function byteSkip(fields: Record<string, string>, encoding: string, available: number, need: number): number {
   const text = fields['byte skip'] ?? fields.byteskip;
   if (text === undefined) return 0;
   const skip = Number(text);
@@ -96,9 +93,8 @@ function parseAscii(src: Uint8Array, count: number, out: Float32Array): void {
   if (n < count) throw new InputError(`NRRD ascii data: the header promises ${count} samples, the file holds ${n}`);
 }
 
-/** Parses NRRD bytes. Throws InputError for anything it cannot trust. */
-export async function parseNrrd(bytes: Uint8Array, options: NrrdReadOptions = {}): Promise<Nrrd> {
-  const { fields, keys, dataStart } = parseHeader(bytes);
+/** Sample type, sizes, sample count, encoding and byte order a header announces (checked). */
+export function nrrdLayout(fields: Record<string, string>): { type: SampleType; sizes: number[]; count: number; encoding: string; endian: string } {
   const type = TYPE_ALIASES[fields.type ?? ''];
   if (!type) throw new InputError(`NRRD type: got "${fields.type}", expected a numeric type (int8 ... double)`);
   const dim = Number(fields.dimension);
@@ -108,13 +104,30 @@ export async function parseNrrd(bytes: Uint8Array, options: NrrdReadOptions = {}
     throw new InputError(`NRRD sizes: got "${fields.sizes}", expected ${dim} positive whole numbers`);
   }
   const count = sampleCount(sizes, 'NRRD sizes');
-  const size = SAMPLE_BYTES[type];
-  const need = count * size;
   const encoding = (fields.encoding ?? '').toLowerCase();
   const endian = (fields.endian ?? 'little').toLowerCase();
-  if (size > 1 && encoding !== 'ascii' && endian !== 'little' && endian !== 'big') {
+  if (SAMPLE_BYTES[type] > 1 && encoding !== 'ascii' && endian !== 'little' && endian !== 'big') {
     throw new InputError(`NRRD endian: got "${fields.endian}", expected little or big`);
   }
+  return { type, sizes, count, encoding, endian };
+}
+
+/** The detached data file a header names, or undefined for attached data. */
+export function nrrdDataFile(fields: Record<string, string>): string | undefined {
+  const detached = fields['data file'] ?? fields.datafile;
+  if (!detached) return undefined;
+  const parts = detached.split(/\s+/);
+  if (parts.length !== 1 || parts[0] === 'LIST') {
+    throw new InputError(`NRRD data file: got "${detached.slice(0, 60)}", expected the name of one data file`);
+  }
+  return parts[0];
+}
+
+/** Parses NRRD bytes. Throws InputError for anything it cannot trust. */
+export async function parseNrrd(bytes: Uint8Array, options: NrrdReadOptions = {}): Promise<Nrrd> {
+  const { fields, keys, dataStart } = parseNrrdHeader(bytes);
+  const { type, sizes, count, encoding, endian } = nrrdLayout(fields);
+  const need = count * SAMPLE_BYTES[type];
   const src = dataSource(bytes, dataStart, fields, options.files ?? []);
   let raw: Uint8Array;
   const data = (extra: number) => {
@@ -147,6 +160,17 @@ export async function parseNrrd(bytes: Uint8Array, options: NrrdReadOptions = {}
 /** Sample types the writer produces. */
 export type WrittenType = 'float32' | 'int16';
 
+/** The header of an NRRD file (attached data follow it), for writers that stream the data. */
+export function nrrdHeaderBytes(sizes: number[], fields: Record<string, string>, keys: Record<string, string>, compress = false, type: WrittenType = 'float32'): Uint8Array {
+  const lines = ['NRRD0004', '# Written by Rimfill', `type: ${type === 'int16' ? 'short' : 'float'}`, `dimension: ${sizes.length}`, `sizes: ${sizes.join(' ')}`, 'endian: little', `encoding: ${compress ? 'gzip' : 'raw'}`];
+  for (const [k, v] of Object.entries(fields)) lines.push(`${k}: ${v}`);
+  for (const [k, v] of Object.entries(keys)) {
+    if (/[\r\n]/.test(v) || k.includes(':=')) throw new Error(`NRRD key ${k}: values must be one line`);
+    lines.push(`${k}:=${v}`);
+  }
+  return new TextEncoder().encode(`${lines.join('\n')}\n\n`);
+}
+
 /**
  * Serializes samples with the given fields and key/value pairs, little-endian, as float32 or
  * (rounded, clamped) int16.
@@ -154,13 +178,7 @@ export type WrittenType = 'float32' | 'int16';
 export async function writeNrrd(
   data: Float32Array, sizes: number[], fields: Record<string, string>, keys: Record<string, string>, compress = false, type: WrittenType = 'float32',
 ): Promise<Uint8Array> {
-  const lines = ['NRRD0004', '# Written by Rimfill', `type: ${type === 'int16' ? 'short' : 'float'}`, `dimension: ${sizes.length}`, `sizes: ${sizes.join(' ')}`, 'endian: little', `encoding: ${compress ? 'gzip' : 'raw'}`];
-  for (const [k, v] of Object.entries(fields)) lines.push(`${k}: ${v}`);
-  for (const [k, v] of Object.entries(keys)) {
-    if (/[\r\n]/.test(v) || k.includes(':=')) throw new Error(`NRRD key ${k}: values must be one line`);
-    lines.push(`${k}:=${v}`);
-  }
-  const head = new TextEncoder().encode(`${lines.join('\n')}\n\n`);
+  const head = nrrdHeaderBytes(sizes, fields, keys, compress, type);
   let body = encodeSamples(data, type).bytes;
   if (compress) body = await gzip(body);
   const out = new Uint8Array(head.length + body.length);

@@ -89,13 +89,17 @@ async function mask(m: Uint8Array | NamedBytes[] | undefined, frameSize: number,
   return Uint8Array.from(p.data, (v) => (v !== 0 ? 1 : 0));
 }
 
+/** The corrections of `options` with reference frames and masks read (frames of `frameSize` elements). */
+export async function resolveCorrections(options: ScanFileOptions, frameSize: number): Promise<IntensityCorrection> {
+  const dark = await reference(options.dark, frameSize, 'dark frame', options);
+  const flat = await reference(options.flat, frameSize, 'flat frame', options);
+  const badPixels = await mask(options.badPixels, frameSize, options);
+  return { ...options.correction, dark, flat, i0: options.i0, badPixels };
+}
+
 /** Reads a scan from files of any supported format. */
 export async function readScanFile(files: readonly NamedBytes[], options: ScanFileOptions = {}): Promise<ScanReadResult> {
   const p = await readProjectionData(files, options);
-  const frame = p.channels * p.rows;
-  const dark = await reference(options.dark, frame, 'dark frame', options);
-  const flat = await reference(options.flat, frame, 'flat frame', options);
-  const badPixels = await mask(options.badPixels, frame, options);
-  const correction: IntensityCorrection = { ...options.correction, dark, flat, i0: options.i0, badPixels };
+  const correction = await resolveCorrections(options, p.channels * p.rows);
   return assembleScan(p, { ...options, correction });
 }

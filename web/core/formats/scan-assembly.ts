@@ -38,8 +38,23 @@ function countNonFinite(data: Float32Array): number {
   return n;
 }
 
-/** Turns projection data into a validated scan. */
-export function assembleScan(p: ProjectionData, o: ScanAssemblyOptions = {}): ScanReadResult {
+/** Projection data as described before any sample is read. */
+export type ProjectionHeader = Omit<ProjectionData, 'data'>;
+
+/** How the views of a scan become line integrals: decided once, applied to every chunk of views. */
+export interface ScanPlan {
+  geometry: Geometry;
+  quantity: ProjectionQuantity;
+  correction: IntensityCorrection;
+  channels: number;
+  rows: number;
+  muWater?: number;
+  notes?: Record<string, string>;
+  format: string;
+}
+
+/** Attaches and checks the geometry and settles the quantity and corrections (no sample read). */
+export function planScan(p: ProjectionHeader, o: ScanAssemblyOptions = {}): ScanPlan {
   let geometry = o.geometry;
   if (!geometry) {
     if (p.geometry === undefined) {
@@ -54,28 +69,65 @@ export function assembleScan(p: ProjectionData, o: ScanAssemblyOptions = {}): Sc
   const corrections = c.flat !== undefined || c.i0 !== undefined || c.dark !== undefined;
   const i0 = c.i0 ?? (c.flat === undefined ? p.i0 : undefined);
   const quantity = o.quantity ?? p.quantity ?? (corrections ? 'intensity' : 'line-integral');
-  const warnings: string[] = [];
-  let intensity: IntensityReport | undefined;
-  if (quantity === 'intensity') {
-    intensity = intensitiesToLineIntegrals(p.data, p.channels, p.rows, { ...c, i0 }, o.hooks);
-    warnings.push(...describeIntensityReport(intensity));
-  } else {
+  if (quantity === 'line-integral') {
     if (corrections || c.saturation !== undefined) {
       throw new InputError(`scan (${p.format}): the values are line integrals already; flat, dark, i0 and saturation apply to intensity data`);
     }
-    const bad = countNonFinite(p.data);
-    if (bad) throw new InputError(`scan (${p.format}): ${bad} of ${p.data.length} line integrals are not finite numbers (NaN or infinite)`);
-    if (c.badPixels) {
-      const mask = c.badPixels;
-      if (mask.length !== p.channels * p.rows) throw new InputError(`bad-pixel mask: got ${mask.length} values, expected one frame of ${p.channels * p.rows}`);
-      const f = fillBadElements(p.data, p.channels, p.rows, (_, i) => mask[i] === 1);
-      if (f.rowsWithoutGood) warnings.push(`${f.rowsWithoutGood} detector rows had no good element and were left as read`);
-    }
-    if (c.waterPolynomial) applyWaterPolynomial(p.data, checkWaterPolynomial(c.waterPolynomial));
+    if (c.badPixels && c.badPixels.length !== p.channels * p.rows) throw new InputError(`bad-pixel mask: got ${c.badPixels.length} values, expected one frame of ${p.channels * p.rows}`);
+    if (c.waterPolynomial) checkWaterPolynomial(c.waterPolynomial);
   }
-  const scan: Scan = { geometry, data: p.data };
   const mw = o.muWater ?? p.muWater;
-  if (mw !== undefined) scan.muWater = checkMuWater(mw, o.muWater !== undefined ? 'mu_water' : 'scan mu_water');
-  if (p.notes && Object.keys(p.notes).length) scan.notes = p.notes;
-  return { scan, warnings, intensity, format: p.format };
+  return {
+    geometry, quantity, correction: { ...c, i0 }, channels: p.channels, rows: p.rows, format: p.format,
+    muWater: mw === undefined ? undefined : checkMuWater(mw, o.muWater !== undefined ? 'mu_water' : 'scan mu_water'),
+    notes: p.notes && Object.keys(p.notes).length ? p.notes : undefined,
+  };
+}
+
+/** Counts over every chunk converted so far (intensity data), or rows left unfilled (line integrals). */
+export interface ConversionTally {
+  intensity?: IntensityReport;
+  rowsWithoutGood: number;
+}
+
+/** Adds one chunk's intensity report to a running one (elements dead in the flat count once). */
+function addReport(sum: IntensityReport | undefined, r: IntensityReport): IntensityReport {
+  if (!sum) return { ...r };
+  return {
+    readings: sum.readings + r.readings, nonPositive: sum.nonPositive + r.nonPositive, saturated: sum.saturated + r.saturated,
+    nonFinite: sum.nonFinite + r.nonFinite, deadInFlat: r.deadInFlat, filled: sum.filled + r.filled, rowsWithoutGood: sum.rowsWithoutGood + r.rowsWithoutGood,
+  };
+}
+
+/** Turns whole views (as read, in place) into line integrals as `plan` says, adding to `tally`. */
+export function convertViews(data: Float32Array, plan: ScanPlan, tally: ConversionTally, hooks?: RunHooks): void {
+  const c = plan.correction;
+  if (plan.quantity === 'intensity') {
+    tally.intensity = addReport(tally.intensity, intensitiesToLineIntegrals(data, plan.channels, plan.rows, c, hooks));
+    return;
+  }
+  const bad = countNonFinite(data);
+  if (bad) throw new InputError(`scan (${plan.format}): ${bad} of ${data.length} line integrals are not finite numbers (NaN or infinite)`);
+  if (c.badPixels) {
+    const mask = c.badPixels;
+    tally.rowsWithoutGood += fillBadElements(data, plan.channels, plan.rows, (_, i) => mask[i] === 1).rowsWithoutGood;
+  }
+  if (c.waterPolynomial) applyWaterPolynomial(data, c.waterPolynomial);
+}
+
+/** Sentences for the user about what conversion clamped or filled. */
+export function tallyWarnings(tally: ConversionTally): string[] {
+  if (tally.intensity) return describeIntensityReport(tally.intensity);
+  return tally.rowsWithoutGood ? [`${tally.rowsWithoutGood} detector rows had no good element and were left as read`] : [];
+}
+
+/** Turns projection data into a validated scan. */
+export function assembleScan(p: ProjectionData, o: ScanAssemblyOptions = {}): ScanReadResult {
+  const plan = planScan(p, o);
+  const tally: ConversionTally = { rowsWithoutGood: 0 };
+  convertViews(p.data, plan, tally, o.hooks);
+  const scan: Scan = { geometry: plan.geometry, data: p.data };
+  if (plan.muWater !== undefined) scan.muWater = plan.muWater;
+  if (plan.notes) scan.notes = plan.notes;
+  return { scan, warnings: tallyWarnings(tally), intensity: tally.intensity, format: p.format };
 }

@@ -99,7 +99,25 @@ export function flipAxes(v: ImageVolume, flipX: boolean, flipY: boolean, flipZ =
  */
 export function toLps(v: ImageVolume): { data: Float32Array; origin: [number, number, number] } {
   const f = flipAxes(v, false, true);
-  return { data: f.data, origin: [v.origin[0], -(v.origin[1] + (v.ny - 1) * v.spacing[1]), v.origin[2]] };
+  return { data: f.data, origin: lpsOrigin(v) };
+}
+
+/** The LPS centre of the first voxel as toLps stores it: (x, -y, z) of the most anterior row. */
+export function lpsOrigin(v: Pick<ImageVolume, 'origin' | 'ny' | 'spacing'>): [number, number, number] {
+  return [v.origin[0], -(v.origin[1] + (v.ny - 1) * v.spacing[1]), v.origin[2]];
+}
+
+/**
+ * Whole slices (x fastest, `nx` x `ny` each) with their rows reversed, as toLps stores them:
+ * the slab-by-slab twin of toLps for writers that stream a volume.
+ */
+export function rowsToLps(slab: Float32Array, nx: number, ny: number): Float32Array {
+  const out = new Float32Array(slab.length);
+  const slice = nx * ny;
+  for (let at = 0; at < slab.length; at += slice) {
+    for (let j = 0; j < ny; j++) out.set(slab.subarray(at + (ny - 1 - j) * nx, at + (ny - j) * nx), at + j * nx);
+  }
+  return out;
 }
 
 /**

@@ -87,7 +87,7 @@ export class OsSart {
     await ws.write(s.target, inputs.target);
     await ws.write(s.dataWeight, inputs.dataWeight);
     // Row sums A 1 over the support; a ray crossing less than a tenth of a pixel is dropped.
-    await projector.forward(s.support, s.corr);
+    await projector.forward(s.support, s.corr, 0, projector.nViews, hooks.signal);
     const minRow = 0.1 * Math.min(inputs.grid.dx, inputs.grid.dy);
     await new BandOps(ws, s.nCh, s.nViews * rows).run((from, to) => ({
       kernel: 'sartWeights',
@@ -103,7 +103,8 @@ export class OsSart {
     if (this.pixelWeights.length === 1 && this.subsets > 1) return;
     for (let q = 0; q < this.subsets; q++) {
       throwIfCancelled(hooks.signal);
-      await this.computePixelWeights(q, this.pixelWeights[q]);
+      await this.computePixelWeights(q, this.pixelWeights[q], hooks.signal);
+      hooks.onProgress?.((q + 1) / this.subsets, `setup: weights of subset ${q + 1} of ${this.subsets}`);
     }
   }
 
@@ -118,10 +119,10 @@ export class OsSart {
   }
 
   /** Pixel weights of subset q: support_j step_j / (A_S^T w)_j. */
-  private async computePixelWeights(q: number, out: Buf): Promise<void> {
+  private async computePixelWeights(q: number, out: Buf, signal?: AbortSignal): Promise<void> {
     const { starts } = this.inputs.plan;
     const { dx, dy } = this.inputs.grid;
-    await this.projector.adjoint(this.dataWeight, this.back, starts[q], starts[q + 1]);
+    await this.projector.adjoint(this.dataWeight, this.back, starts[q], starts[q + 1], signal);
     const minCol = 1e-3 * Math.min(dx, dy);
     await this.image.run((from, to) => ({
       kernel: 'sartWeights',
@@ -136,11 +137,11 @@ export class OsSart {
    * subset's views, as they were before the step. The correction kernel works on detector rows
    * (lines of nCh channels): view v holds lines [v rows, (v + 1) rows).
    */
-  async step(x: Buf, q: number, lambda: number, floor: number): Promise<number> {
+  async step(x: Buf, q: number, lambda: number, floor: number, signal?: AbortSignal): Promise<number> {
     const [v0, v1] = [this.inputs.plan.starts[q], this.inputs.plan.starts[q + 1]];
     const [k0, k1] = this.inputs.measured;
     const r = this.rows;
-    await this.projector.forward(x, this.corr, v0, v1);
+    await this.projector.forward(x, this.corr, v0, v1, signal);
     await this.ws.run(splitRange(v1 - v0, this.ws.parallelism).map(([a, b]) => ({
       kernel: 'sartCorrection' as const,
       args: [this.corr, this.target, this.rayWeight, this.nCh, (v0 + a) * r, (v0 + b) * r, k0, k1, this.viewSums],
@@ -149,8 +150,8 @@ export class OsSart {
     const residual = await addLineSums(this.ws, this.viewSums, v0 * r, v1 * r);
     let weights = this.pixelWeights[0];
     if (this.pixelWeights.length > 1) weights = this.pixelWeights[q];
-    else if (this.subsets > 1) await this.computePixelWeights(q, weights);
-    await this.projector.adjoint(this.corr, this.back, v0, v1);
+    else if (this.subsets > 1) await this.computePixelWeights(q, weights, signal);
+    await this.projector.adjoint(this.corr, this.back, v0, v1, signal);
     await this.image.run((from, to) => ({
       kernel: 'sartUpdate',
       args: [x, this.back, weights, from, to, lambda, floor],
@@ -164,7 +165,7 @@ export class OsSart {
     let sum = 0;
     for (let q = 0; q < this.subsets; q++) {
       throwIfCancelled(hooks.signal);
-      sum += await this.step(x, q, lambda, floor);
+      sum += await this.step(x, q, lambda, floor, hooks.signal);
       onStep?.(q);
     }
     return sum;

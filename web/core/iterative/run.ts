@@ -36,6 +36,11 @@ export interface RecipeInputs {
   supportMask?: Image2D;
   /** Mask images named by the recipe's knowledge (known regions, outline), by name. */
   masks?: MaskInputs;
+  /**
+   * Floats OS-SART may spend on per-subset pixel weights (default PIXEL_WEIGHT_BUDGET); the
+   * memory budget raises it when every subset's weights fit (memory-budget.ts).
+   */
+  pixelWeightFloats?: number;
 }
 
 /** What runRecipe returns (the same shape as recipe/run.ts RecipeResult). */
@@ -176,7 +181,7 @@ export async function runIterative(
   hooks.onProgress?.(0.05, 'setup');
   const insideStep = o.insideStep ?? (ownData && truncated ? INSIDE_STEP : 1);
   const stepScale = insideStep < 1 ? insideStepScale(grid, fov, insideStep) : undefined;
-  const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support), stepScale }, hooks);
+  const sart = await OsSart.create(ws, { ...problem, support: Float32Array.from(support), stepScale, pixelWeightBudget: inputs.pixelWeightFloats }, scaled(hooks, 0.05, 0.06));
   const x = ws.alloc('image', gridSize(grid));
   const startImage = start?.data.map((v, i) => v * support[i]);
   const startResidual = await prepareStart(ws, sart, x, problem, startImage, priorWeight > 0 ? { fov } : undefined);

@@ -54,8 +54,9 @@ export interface ViewProjector {
   readonly nViews: number;
   /** Channels per detector row. */
   readonly nCh: number;
-  forward(x: Buf, out: Buf, view0?: number, view1?: number): Promise<void>;
-  adjoint(p: Buf, out: Buf, view0?: number, view1?: number): Promise<void>;
+  /** `signal`: a projector may check it between parts of its work (the 3D one does). */
+  forward(x: Buf, out: Buf, view0?: number, view1?: number, signal?: AbortSignal): Promise<void>;
+  adjoint(p: Buf, out: Buf, view0?: number, view1?: number, signal?: AbortSignal): Promise<void>;
 }
 
 /** The projector of a grid and geometry, and the detector rows of each view. */

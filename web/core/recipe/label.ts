@@ -4,6 +4,7 @@
 // "FBP, water cylinder, ramp, 576 px × 1 mm".
 import { DEFAULT_PRIOR_RECIPE, isIterativeMethod } from '../iterative/options';
 import { knowledgePhrase, type Knowledge } from '../knowledge';
+import { describeReduction, isIdentity, type Reduction } from '../reduction';
 import { fbpFieldsForKnowledge } from './best-fbp';
 import { EXTEND_WORDS, type ExtendMethod } from '../truncation/extend-methods';
 import { choiceLabel, describeRecipeFields, type RecipeField } from './fields';
@@ -82,5 +83,6 @@ export function recipeLabel(recipe: RecipeLike): string {
   }
   const v = recipe.volume as { slices?: number; spacing?: number } | undefined;
   if (v?.slices !== undefined) parts.push(`${v.slices} slices × ${v.spacing} mm`);
+  if (recipe.reduce && !isIdentity(recipe.reduce as Reduction)) parts.push(describeReduction(recipe.reduce as Reduction));
   return parts.join(', ');
 }

@@ -4,6 +4,7 @@
 import { InputError } from '../errors';
 import { FILTER_WINDOWS, MAX_BAND_LIMIT, type FilterWindow } from '../recon/filter-design';
 import { RECIPE_EXTENDS, type RecipeExtend } from '../truncation/extend-methods';
+import { checkReduction, isIdentity, type Reduction } from '../reduction';
 import { ITERATIVE_METHODS, validateIterativeFields, type IterativeFields } from '../iterative/options';
 import { validateKnowledge, type Knowledge } from '../knowledge';
 
@@ -33,6 +34,8 @@ export interface Recipe extends IterativeFields {
   volume?: SliceChoice;
   /** What the user knows beyond the data (known regions, outline); absent: nothing. */
   knowledge?: Knowledge;
+  /** Detector binning, a view step and a row range applied to the scan before this run (reduction.ts). */
+  reduce?: Reduction;
 }
 
 export interface SliceChoice {
@@ -79,6 +82,10 @@ export function validateRecipe(input: unknown): Recipe {
     out.grid = { size: g.size as number, pixel: g.pixel };
   }
   if (r.volume !== undefined) out.volume = validateSliceChoice(r.volume);
+  if (r.reduce !== undefined) {
+    const reduce = checkReduction(r.reduce, undefined, 'recipe reduce');
+    if (!isIdentity(reduce)) out.reduce = reduce;
+  }
   const knowledge = validateKnowledge(r.knowledge);
   if (knowledge) out.knowledge = knowledge;
   if (out.extend === 'outline' && !knowledge?.outline) throw new InputError('recipe extend: got "outline", which extends from the object\'s outline', { field: 'extend', remedy: { cli: 'give the outline too (--outline)', page: 'give the outline too (draw it or give an ellipse in the knowledge panel)' } });
@@ -92,4 +99,9 @@ function validateSliceChoice(v: unknown): SliceChoice {
   if (!Number.isInteger(v.slices) || (v.slices as number) < 1 || (v.slices as number) > 4096) throw new InputError(`recipe volume.slices: got ${v.slices}, expected a whole number from 1 to 4096`);
   if (typeof v.spacing !== 'number' || !(v.spacing > 0) || v.spacing > 100) throw new InputError(`recipe volume.spacing: got ${v.spacing}, expected a slice spacing in mm (0 to 100)`);
   return { slices: v.slices as number, spacing: v.spacing };
+}
+
+/** True when the recipe brings known regions or the outline (FBP and FDK then fit their tails to them). */
+export function usesKnowledge(recipe: Recipe): boolean {
+  return recipe.knowledge !== undefined || recipe.extend === 'outline';
 }

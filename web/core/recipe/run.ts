@@ -10,8 +10,10 @@ import { analyseEdges, objectRadius } from '../truncation/edges';
 import { planExtension } from '../truncation/extension-plan';
 import type { Volume } from '../volume';
 import { chooseGrid } from './grid';
-import type { Recipe } from './recipe';
-import { runConeRecipe } from './run-cone';
+import { usesKnowledge, type Recipe } from './recipe';
+import { runConeRecipe, type ConeOutput } from './run-cone';
+import { isScan, readWholeScan, type ProjectionSource } from '../projection-source';
+import type { VolumeInfo } from '../volume-sink';
 import { runKnowledgeFbp } from './run-knowledge';
 import { isIterativeMethod } from '../iterative/options';
 import { runIterative, type RecipeInputs } from '../iterative/run';
@@ -25,14 +27,22 @@ export interface RecipeResult {
   warnings: string[];
   /** Method-specific figures (timings, convergence history, ...), JSON-ready. */
   report: Record<string, unknown>;
-  /** Cone-beam scans: the whole volume (`image` is then its central slice). */
+  /** Cone-beam scans: the whole volume (`image` is then its central slice)... */
   volume?: Volume;
   /** Methods that reconstruct only part of the grid (dbp): 1 where a pixel is not determined. */
   undetermined?: Uint8Array;
+  /** ... or, when a sink took the volume slab by slab, its description. */
+  volumeInfo?: VolumeInfo;
 }
 
-/** Reconstructs `scan` as the recipe says. `inputs` carries images some methods need (a prior). */
-export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}): Promise<RecipeResult> {
+/**
+ * Reconstructs a scan (in memory, or a source read a chunk of views at a time) as the recipe
+ * says. `inputs` carries images some methods need (a prior); `out` where a cone-beam volume
+ * goes (FDK streams; the other methods read the scan whole and hand over their volume).
+ */
+export async function runRecipe(ws: Workspace, input: Scan | ProjectionSource, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}, out: ConeOutput = {}): Promise<RecipeResult> {
+  if (input.geometry.kind === 'cone' && !isIterativeMethod(recipe.method)) return runConeRecipe(ws, input, recipe, hooks, inputs, out);
+  const scan = isScan(input) ? input : await readWholeScan(input, hooks.signal);
   if (isIterativeMethod(recipe.method)) {
     return runIterative(ws, scan, recipe, hooks, inputs, (nested, h) => runRecipe(ws, scan, nested, h, inputs));
   }
@@ -40,10 +50,9 @@ export async function runRecipe(ws: Workspace, scan: Scan, recipe: Recipe, hooks
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
   const g = scan.geometry;
-  if (g.kind === 'cone') return runConeRecipe(ws, scan, recipe, hooks, inputs);
   const is2d = g.detector.rows === 1;
-  if (is2d && (recipe.knowledge || extend === 'outline')) return runKnowledgeFbp(ws, scan, recipe, hooks, inputs);
-  if (recipe.knowledge || extend === 'outline') throw new InputError(`recipe knowledge: known regions and outlines work on 2D and cone-beam scans; this ${g.kind} scan has ${g.detector.rows} rows`);
+  if (is2d && usesKnowledge(recipe)) return runKnowledgeFbp(ws, scan, recipe, hooks, inputs);
+  if (usesKnowledge(recipe) || extend === 'outline') throw new InputError(`recipe knowledge: known regions and outlines work on 2D and cone-beam scans; this ${g.kind} scan has ${g.detector.rows} rows`);
   if (extend !== 'none' && !is2d) throw new InputError(`recipe extend: got "${extend}" for a ${g.kind} scan with ${g.detector.rows} rows, expected "none" (detector extension works on single-row and cone-beam scans)`);
   const analysis = is2d && (extend !== 'none' || !recipe.grid) ? analyseEdges(scan) : undefined;
   const grid = chooseGrid(scan, recipe.grid, analysis && objectRadius(analysis));

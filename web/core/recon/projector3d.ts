@@ -8,13 +8,16 @@
 // accumulators. The padded copies double as the adjoint's accumulators: a forward call always
 // re-pads, an adjoint call always zeroes them first.
 import type { Buf, Workspace } from '../engine/workspace';
-import { InputError } from '../errors';
+import { InputError, throwIfCancelled } from '../errors';
 import { maxConeAngle, requireCone } from '../geometry/cone';
 import type { Geometry } from '../geometry/types';
 import { firstChannelU, firstRowV, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type VolumeGrid } from '../volume';
 import { requireGridInsideSourceCircle } from './projector';
 import { splitRange } from './split';
+
+/** Views each worker takes between two checks for a cancel. */
+const VIEWS_PER_WORKER_BATCH = 2;
 
 /** Largest angle a ray may lean out of the xy plane (Joseph steps along x or y only). */
 const MAX_CONE_ANGLE = Math.PI / 4;
@@ -84,8 +87,21 @@ export class Projector3d {
     return splitRange(this.grid.nz + 3, this.ws.parallelism);
   }
 
+  /**
+   * Runs views [view0, view1) in batches of a few views per worker, checking `signal` between
+   * batches: a cancel stops a projection of a large volume within a batch, not a whole call.
+   * Each voxel still receives its views in view order, so batches do not change a bit.
+   */
+  private async inBatches(view0: number, view1: number, signal: AbortSignal | undefined, run: (a: number, b: number) => Promise<unknown>): Promise<void> {
+    const batch = VIEWS_PER_WORKER_BATCH * this.ws.parallelism;
+    for (let a = view0; a < view1; a += batch) {
+      throwIfCancelled(signal);
+      await run(a, Math.min(view1, a + batch));
+    }
+  }
+
   /** proj[v, r, k] = (A volume)[v, r, k] for views [view0, view1) (default all). */
-  async forward(volume: Buf, proj: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
+  async forward(volume: Buf, proj: Buf, view0 = 0, view1 = this.nViews, signal?: AbortSignal): Promise<void> {
     const { nx, ny, nz } = this.grid;
     const plane = (nx + 3) * (ny + 3);
     await this.ws.run(
@@ -96,29 +112,29 @@ export class Projector3d {
       })),
     );
     const per = this.nRows * this.nCh;
-    await this.ws.run(
-      splitRange(view1 - view0, this.ws.parallelism).map(([a, b]) => ({
+    await this.inBatches(view0, view1, signal, (c0, c1) => this.ws.run(
+      splitRange(c1 - c0, this.ws.parallelism).map(([a, b]) => ({
         kernel: 'josephForwardCone' as const,
-        args: [this.pad, this.padT, ...this.args(), this.views, view0 + a, view0 + b, ...this.detectorArgs(), proj],
-        writes: [{ buf: proj, start: (view0 + a) * per, length: (b - a) * per }],
+        args: [this.pad, this.padT, ...this.args(), this.views, c0 + a, c0 + b, ...this.detectorArgs(), proj],
+        writes: [{ buf: proj, start: (c0 + a) * per, length: (b - a) * per }],
       })),
-    );
+    ));
   }
 
   /** volume = A^T proj over views [view0, view1) (default all). */
-  async adjoint(proj: Buf, volume: Buf, view0 = 0, view1 = this.nViews): Promise<void> {
+  async adjoint(proj: Buf, volume: Buf, view0 = 0, view1 = this.nViews, signal?: AbortSignal): Promise<void> {
     const { nx, ny, nz } = this.grid;
     const plane = (nx + 3) * (ny + 3);
     const owned = this.planes();
     const at = (b: Buf, p: number): Buf => ({ ...b, ptr: b.ptr + p * plane * 4 });
     await this.ws.run(owned.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [at(this.pad, a), (b - a) * plane] })));
     await this.ws.run(owned.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [at(this.padT, a), (b - a) * plane] })));
-    await this.ws.run(
+    await this.inBatches(view0, view1, signal, (c0, c1) => this.ws.run(
       owned.map(([a, b]) => ({
         kernel: 'josephAdjointCone' as const,
-        args: [this.pad, this.padT, ...this.args(), this.views, view0, view1, ...this.detectorArgs(), proj, a, b],
+        args: [this.pad, this.padT, ...this.args(), this.views, c0, c1, ...this.detectorArgs(), proj, a, b],
       })),
-    );
+    ));
     // Slice k is padded plane k + 1: the worker that owns the plane folds the slice.
     await this.ws.run(
       owned.map(([a, b]) => {

@@ -2,7 +2,9 @@
 // (edges, water-cylinder reach, mass) can report on a cone-beam scan and plan its extension row
 // by row. A row's rays, projected onto the plane of the source orbit, are the central row's
 // rays: the ray coordinate s of a channel is the same in every row.
-import type { Geometry } from '../geometry/types';
+import { throwIfCancelled } from '../errors';
+import { viewCount, type Geometry } from '../geometry/types';
+import type { ProjectionSource } from '../projection-source';
 import { firstChannelU, firstRowV } from '../geometry/view-vectors';
 import type { Scan } from '../scan';
 
@@ -51,4 +53,37 @@ export function rowSecant(g: Geometry, row: number, sourceDetector: number): num
   const u0 = firstChannelU(g), u1 = u0 + (d.channels - 1) * d.pitch[0];
   const sec = (u: number) => Math.sqrt(1 + (v * v) / (sourceDetector ** 2 + u * u));
   return (sec(u0) + sec(u1)) / 2;
+}
+
+/** Collects one detector row of every view from chunks of views as they pass (views x channels). */
+export class RowCollector {
+  readonly data: Float32Array;
+  private readonly nCh: number;
+  private readonly frame: number;
+
+  constructor(g: Geometry, views: number, readonly row = g.kind === 'cone' ? centralRow(g) : 0) {
+    this.nCh = g.detector.channels;
+    this.frame = g.detector.channels * g.detector.rows;
+    this.data = new Float32Array(views * this.nCh);
+  }
+
+  /** Takes the row from the views of `chunk`, the first being view v0. */
+  add(v0: number, chunk: Float32Array): void {
+    for (let v = 0; v < chunk.length / this.frame; v++) {
+      const from = v * this.frame + this.row * this.nCh;
+      this.data.set(chunk.subarray(from, from + this.nCh), (v0 + v) * this.nCh);
+    }
+  }
+}
+
+/** The central row of a cone-beam source as a fan-beam scan, read one chunk of views at a time. */
+export async function centralRowOfSource(source: ProjectionSource, signal?: AbortSignal): Promise<Scan> {
+  const g = source.geometry, views = viewCount(g);
+  const rows = new RowCollector(g, views);
+  const step = source.chunkViews ?? Math.max(1, Math.floor(2 ** 23 / (g.detector.channels * g.detector.rows)));
+  for (let v = 0; v < views; v += step) {
+    throwIfCancelled(signal);
+    rows.add(v, await source.read(v, Math.min(views, v + step)));
+  }
+  return { geometry: rowGeometry(g), data: rows.data, muWater: source.muWater };
 }

@@ -5,7 +5,8 @@
 // divergence.
 import { suggestedOutline, type SuggestedOutline } from '../completion/suggested-outline';
 import type { Scan } from '../scan';
-import { centralRow, rowScan } from './central-row';
+import type { Geometry } from '../geometry/types';
+import { centralRow, rowGeometry, rowScan } from './central-row';
 import { detectTruncation, type TruncationReport } from './detect';
 import { analyseEdges } from './edges';
 import { recommendCorrection, type CorrectionAdvice } from './recommend';
@@ -24,8 +25,17 @@ export interface TruncationOverview {
 
 /** The analysed row (cone beam) and its truncation report. */
 export function truncationOverview(scan: Scan): TruncationOverview {
-  const row = scan.geometry.kind === 'cone' ? centralRow(scan.geometry) : undefined;
-  const analysed = row === undefined ? scan : rowScan(scan, row);
+  if (scan.geometry.kind !== 'cone') {
+    const report = detectTruncation(scan);
+    return { row: undefined, sinogram: scan.data, report, advice: recommendCorrection(report.summary), suggestedOutline: suggestedOutline(analyseEdges(scan)) };
+  }
+  const row = centralRow(scan.geometry);
+  return rowOverview(scan.geometry, row, rowScan(scan, row).data, scan.muWater);
+}
+
+/** The overview of a cone-beam scan from its analysed row alone (views x channels), as stored. */
+export function rowOverview(g: Geometry, row: number, sinogram: Float32Array, muWater?: number): TruncationOverview {
+  const analysed: Scan = { geometry: rowGeometry(g), data: sinogram, muWater };
   const report = detectTruncation(analysed);
-  return { row, sinogram: analysed.data, report, advice: recommendCorrection(report.summary), suggestedOutline: suggestedOutline(analyseEdges(analysed)) };
+  return { row, sinogram, report, advice: recommendCorrection(report.summary), suggestedOutline: suggestedOutline(analyseEdges(analysed)) };
 }

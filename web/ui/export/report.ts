@@ -68,7 +68,7 @@ export function buildReport(r: ReportInput): string {
   const rows = r.images.filter((i) => i.metrics).map((i) => `<tr><th scope="row"><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</th>
     ${figures(i.metrics!.regions.image)}${figures(i.metrics!.regions.insideFov)}${figures(i.metrics!.regions.outsideFov)}<td>${pct(i.metrics!.cupping?.excess, true)}</td></tr>`).join('');
   const residualRows = r.images.filter((i) => i.residual).map((i) => `<tr><th scope="row"><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</th>
-    <td>${pct(i.residual!.relative)}</td><td>${i.residual!.rms.toPrecision(3)}</td><td>${i.residual!.bias.toPrecision(3)}</td><td>${i.residual!.worstView}</td></tr>`).join('');
+    <td>${pct(i.residual!.relative)}</td><td>${i.residual!.rms.toPrecision(3)}</td><td>${i.residual!.bias.toPrecision(3)}</td><td>${i.residual!.worstView}${i.residual!.sampled ? ` (${esc(i.residual!.sampled)})` : ''}</td></tr>`).join('');
   const regionRows = r.images.filter((i) => i.region).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td>${f(i.region!.mean, 1)}</td><td>${f(i.region!.sd, 1)}</td><td>${i.region!.pixels}</td></tr>`).join('');
   const recipes = r.images.filter((i) => i.recipe).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td class="left">${esc(correctionOf(i.recipe!))}</td><td class="left"><code>${esc(JSON.stringify(i.recipe))}</code></td><td>${f(i.seconds, 1)} s</td></tr>`).join('');
   const knowledge = r.images.filter((i) => i.knowledge).map((i) => knowledgeSection(i.label, i.colour, i.knowledge!)).join('');

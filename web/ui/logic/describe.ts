@@ -1,5 +1,6 @@
 // Plain-words descriptions of scans for lists and reports.
 import { viewCount, type Geometry } from '../../core/geometry/types';
+import { describeReduction, type Reduction } from '../../core/reduction';
 import { fovRadius } from '../../core/geometry/view-vectors';
 
 /** Angular range covered by the views, degrees (circular model), or undefined for calibrated views. */
@@ -30,4 +31,11 @@ export function fovSummary(g: Geometry): string {
   } catch (err) {
     return `unknown (${err instanceof Error ? err.message : String(err)})`;
   }
+}
+
+/** The scan in one line: its geometry and, when it was reduced on import, how and from what. */
+export function scanSummary(meta: { geometry: Geometry; reduction?: { applied: Reduction; from: { channels: number; rows: number; views: number } } }): string {
+  const r = meta.reduction;
+  const from = r ? `; imported with ${describeReduction(r.applied)} from ${r.from.channels} × ${r.from.rows} cells, ${r.from.views} views` : '';
+  return `${geometrySummary(meta.geometry)}${from}`;
 }

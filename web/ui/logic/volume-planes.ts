@@ -97,9 +97,14 @@ export function fovOutline(plane: Plane, p: Point3, radius?: number, halfHeight?
 
 /** A plane through the cursor, ready for the image viewer (display units, FOV marks, axis names). */
 export function planeImage(v: Volume, plane: Plane, p: Point3, label: string): DisplayImage {
+  return planeImageOf(v, plane, planeValues(v, plane, p), p, label);
+}
+
+/** planeImage for a plane's voxels read on their own (`info`: the volume's description). */
+export function planeImageOf(v: Omit<Volume, 'data'>, plane: Plane, values: Float32Array, p: Point3, label: string): DisplayImage {
   const grid = planeGrid(v.grid, plane);
   const inHeight = v.fovHalfHeight === undefined || Math.abs(p.z) <= v.fovHalfHeight;
-  const d = toDisplay({ grid, data: planeValues(v, plane, p), quantity: v.quantity, muWater: v.muWater }, label);
+  const d = toDisplay({ grid, data: values, quantity: v.quantity, muWater: v.muWater }, label);
   return {
     ...d,
     fovRadius: plane === 'axial' && inHeight ? v.fovRadius : undefined,
