@@ -44,7 +44,8 @@ export async function runConeRecipe(
   ws: Workspace, input: Scan | ProjectionSource, recipe: Recipe, hooks: RunHooks = {}, inputs: RecipeInputs = {}, out: ConeOutput = {},
 ): Promise<RecipeResult> {
   if (recipe.method !== 'fbp') {
-    throw new InputError(`recipe method: got "${recipe.method}", expected fbp (FDK) for a cone-beam scan`);
+    const got = recipe.method === 'dbp' ? 'DBP takes 2D scans only (parallel or fan beam, one detector row)' : `got "${recipe.method}"`;
+    throw new InputError(`recipe method: ${got}; a cone-beam scan takes fbp (FDK) or an iterative method (sart, tv, wtv, prior)`);
   }
   const t0 = performance.now();
   const extend = recipe.extend ?? 'none';
