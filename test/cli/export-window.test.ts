@@ -69,7 +69,7 @@ describe('export --to x.png --window W --level L', () => {
     const path = await writeImage('mu.nrrd', waterDisk(MU_WATER));
     await exportCommand([path, '--to', f('mu.png'), '--window', '400', '--level', '40']);
     const grey = pngGrey(readFileSync(f('mu.png')));
-    // Water is 0 HU: (0 - (40 - 200)) * 255 / 400 = 102 (references.md 6d, linear window); air is -1000 HU: black.
+    // Water is 0 HU: (0 - (40 - 200)) * 255 / 400 = 102 (REFERENCES.md [window-presets], linear window); air is -1000 HU: black.
     expect(grey[(N / 2) * N + N / 2]).toBe(102);
     expect(grey[0]).toBe(0);
   });

@@ -1,5 +1,5 @@
 // Known regions and the outline in FDK, slice by slice, on a small C-arm short scan of the 3D
-// thorax phantom (exact ray integrals of ellipsoids and cylinders: references.md 1d) whose field
+// thorax phantom (exact ray integrals of ellipsoids and cylinders: REFERENCES.md [ellipsoid-chord]) whose field
 // of view has a radius of about 60 mm against a 340 mm wide body.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { compareVolumes } from '../../web/core/compare-volume';

@@ -19,7 +19,7 @@ function volume(seed: number, noise: number): Float32Array {
 
 describe('volume comparison', () => {
   // SSIM (Wang et al. 2004) computed in axial slices and RMSE / PSNR over the voxels, checked
-  // against scikit-image (REFERENCES.md [ssim], [psnr]): structural_similarity per slice with
+  // against scikit-image (REFERENCES.md [ssim-2004], [psnr]): structural_similarity per slice with
   // the paper's settings averaged over the slices, and numpy's RMSE / skimage's
   // peak_signal_noise_ratio with the reference's range. The volumes and skimage's figures are
   // committed fixtures made by scripts/reference/metric_values.py.

@@ -86,7 +86,7 @@ describe('calibrated views describe the same rays as the circular model', () => 
   const chord = (s: number) => (Math.abs(s) < r ? 2 * mu * Math.sqrt(r * r - s * s) : 0);
   const angles = [0, 37, 90, 211];
 
-  it('fan beam: focal spot, detector centre and channel step per view (design.md formulas)', () => {
+  it('fan beam: focal spot, detector centre and channel step per view (DEVELOPERS.md, Geometry)', () => {
     const R = 500, D = 900, pitch = 1.5, n = 80;
     const views = angles.map((deg) => {
       const b = (deg * Math.PI) / 180, c = Math.cos(b), s = Math.sin(b);

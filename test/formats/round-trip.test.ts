@@ -108,7 +108,7 @@ describe('TIFF writer', () => {
 
 describe('PNG at a window', () => {
   it('decodes to the grey levels the window rule gives (lower = L - W/2, upper = L + W/2)', async () => {
-    // HU values across and beyond a soft-tissue window W 400, L 40 (REFERENCES.md [window]).
+    // HU values across and beyond a soft-tissue window W 400, L 40 (REFERENCES.md [window-presets]).
     const hu = new Float32Array([-1000, -160, -60, 45, 140, 240, 1000, 39.9]);
     const img: Image2D = { grid: { nx: 4, ny: 2, dx: 1, dy: 1, cx: 0, cy: 0 }, data: hu, quantity: 'hu' };
     const w = await writeImageFile(img, 'win', { format: 'png', window: { width: 400, level: 40 } });

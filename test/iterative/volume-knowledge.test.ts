@@ -1,5 +1,5 @@
 // Known regions in the iterative methods on volumes: a small C-arm short scan of the 3D thorax
-// phantom (exact ray integrals of ellipsoids and cylinders, references.md 1d; the same scan as
+// phantom (exact ray integrals of ellipsoids and cylinders, REFERENCES.md [ellipsoid-chord]; the same scan as
 // test/completion/cone-knowledge.test.ts) whose field of view has a radius of about 60 mm against
 // a 340 mm wide body. A known cylinder settles the smooth field the truncated data leave open
 // (Kudo et al. 2008, REFERENCES.md [kudo2008]); the iterations start from FDK fitted to it and

@@ -4,7 +4,7 @@ import { fixtureBytes, fixtureF32, fixtureJson } from '../helpers/fixtures';
 
 // SSIM of Z. Wang, A. C. Bovik, H. R. Sheikh, E. P. Simoncelli, IEEE TIP 13(4):600-612, 2004,
 // checked against an independent general-purpose implementation: scikit-image's
-// structural_similarity with the paper's settings (REFERENCES.md [ssim]: gaussian_weights=True,
+// structural_similarity with the paper's settings (REFERENCES.md [ssim-2004]: gaussian_weights=True,
 // sigma=1.5, use_sample_covariance=False). The images and skimage's figures are committed
 // fixtures made by scripts/reference/metric_values.py (test/fixtures/MANIFEST.json).
 

@@ -3,7 +3,7 @@
 // statements (REFERENCES.md [helgason-ludwig]) and where detector tails are designed before they
 // are sampled back onto the scan's own (fan or parallel) extended detector.
 //
-// Rebinning (references.md section 4d, in this project's convention): the fan ray of view beta
+// Rebinning (Kak & Slaney chapter 3.4, REFERENCES.md [fan-fbp], in this project's convention): the fan ray of view beta
 // at fan angle gamma is the parallel ray of view theta = beta - gamma at s = R sin(gamma). The
 // same line, walked the other way, is the parallel ray (theta + pi, -s), measured by the fan view
 // beta' = theta + pi - gamma at fan angle -gamma; either one may be the view that measured it

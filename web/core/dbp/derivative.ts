@@ -13,7 +13,7 @@
 // d(phi)/d(psi) = |a'.theta| / |x - a| for the lines through x, so
 //   H_e f(x) = -(1/2pi) sum_v w sgn(theta.e) sgn(a'.theta) dg/dpsi|_alpha dpsi_v / |x - a_v|,
 // the fan-beam DBP of Noo et al. (2004). At fixed alpha the fan angle gamma follows the
-// gantry: dgamma/dpsi = -sigma with sigma = sgn(n x U) (-1 for design.md's circular views), and
+// gantry: dgamma/dpsi = -sigma with sigma = sgn(n x U) (-1 for the circular views of DEVELOPERS.md, Geometry), and
 // dg/dpsi|_alpha = dg/dpsi|_u + dgamma/dpsi * dg/dgamma, dg/dgamma = (D^2 + u^2)/D dg/du on a flat
 // detector, D dg/du on a curved one.
 // This module returns, per view and channel, everything but the factors that depend on the
