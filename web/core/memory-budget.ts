@@ -107,8 +107,14 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
   return { ...total(parts), grid };
 }
 
-/** Largest engine memory (WebAssembly's 4 GiB, less room for the module's own data). */
-const MAX_ENGINE_BYTES = 3.75 * 2 ** 30;
+/**
+ * Largest engine memory planned. WebAssembly's 32-bit memories address 4 GiB, but measured here
+ * (Node 20, the engine's shared memory grown from the main thread): the workers' kernels fault
+ * with "memory access out of bounds" on the first buffer past 2 GiB (3D OS-SART holding every
+ * subset's pixel weights at 256^3). So one engine is planned below 2 GiB, with room for the
+ * module's own data.
+ */
+const MAX_ENGINE_BYTES = 2 ** 31 - 2 ** 26;
 
 /** The estimate's engine part (the parts named "engine..."). */
 function engineBytes(e: MemoryEstimate): number {
