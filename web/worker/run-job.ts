@@ -23,7 +23,8 @@ import { changeJob } from '../store/jobs';
 import { saveResult } from '../store/results';
 import { loadMasks, maskNamesOf } from '../store/knowledge';
 import { loadReferenceVolume, loadScanReference } from '../store/scans';
-import { compareWithImage, storeVolumeResult, type ResultDescription } from './volume-result';
+import { compared } from './prior-steps';
+import { storeVolumeResult, type ResultDescription } from './volume-result';
 
 export interface RunJobContext {
   ws: Workspace;
@@ -99,7 +100,7 @@ export async function storeImageResult(
   let bad = 0;
   for (const v of out.image.data) if (!Number.isFinite(v)) bad++;
   if (bad) warnings.push(`${bad} pixels are not finite numbers (NaN or infinity): the image is not trustworthy`);
-  const metrics = compareWithImage(out.image, s.reference, warnings);
+  const metrics = compared(out.image, s.reference, warnings);
   hooks.onProgress?.(0.97, 'checking against the measured data');
   const residual = await dataResidual(ctx.ws, out.image, s.scan, { signal: hooks.signal });
   hooks.onProgress?.(1, 'storing');

@@ -3,7 +3,6 @@
 // and averaged for the data residual, and never held whole. Everything goes into ONE transaction,
 // opened when the first slab arrives (after the reconstruction has read the scan) and committed
 // with the result's description; a failure or a cancel leaves nothing.
-import { compareImages, type Comparison } from '../core/compare';
 import { VolumeComparer, type VolumeComparison } from '../core/compare-volume';
 import type { Workspace } from '../core/engine/workspace';
 import { InputError, throwIfCancelled } from '../core/errors';
@@ -18,6 +17,7 @@ import { deferredTransaction, type DeferredTx, type UseStore } from '../store/db
 import { changeJob } from '../store/jobs';
 import { RecordError, type ResultMeta, type ScanMeta } from '../store/records';
 import { resultRecords } from '../store/results';
+import { compared } from './prior-steps';
 import { newId } from '../store/scans';
 import { SlabWriter } from '../store/volumes';
 
@@ -80,7 +80,7 @@ export async function storeVolumeResult(
     const warnings = [...out.warnings, ...notes];
     const bad = parts.checks.nonFinite;
     if (bad) warnings.push(`${bad} voxels are not finite numbers (NaN or infinity): the volume is not trustworthy`);
-    const metrics = compareWithImage(out.image, job.reference, warnings);
+    const metrics = compared(out.image, job.reference, warnings);
     const volumeMetrics: VolumeComparison | null = parts.comparer && !bad ? parts.comparer.result() : null;
     hooks.onProgress?.(0.97, 'checking against the measured data');
     const residual = await volumeDataResidual(ws, parts.averager.volume(), job.residual.tap.measured(job.scanMeta.muWater), { signal: hooks.signal });
@@ -130,14 +130,3 @@ async function feedWhole(v: Volume, sink: VolumeSink): Promise<void> {
   for (let k = 0; k < v.grid.nz; k += step) await sink.write(k, v.data.subarray(k * slice, Math.min(v.grid.nz, k + step) * slice));
 }
 
-/** The central slice against the scan's reference image (none, with a warning, when they do not compare). */
-export function compareWithImage(image: Image2D, reference: Image2D | undefined, warnings: string[]): Comparison | null {
-  if (!reference) return null;
-  try {
-    return compareImages(image, reference, image.fovRadius);
-  } catch (err) {
-    if (!(err instanceof InputError)) throw err;
-    warnings.push(`no comparison with the reference: ${err.message}`);
-    return null;
-  }
-}
