@@ -208,6 +208,12 @@ export interface ResultData {
    * flagged rays through each pixel of the checked image (absent when no ray was flagged).
    */
   consistency?: { residual: Float32Array; flagged: Uint8Array; map?: Float32Array };
+  /**
+   * Methods that reconstruct only part of the grid (DBP): 1 where the pixel is not determined
+   * by the data and the knowledge (its value is a fill, not a measurement), x fastest. Absent in
+   * records of other methods and in DBP results stored before the mask was kept.
+   */
+  undetermined?: Uint8Array;
 }
 
 /** Page settings. */

@@ -1,6 +1,7 @@
 // Reconstructions in storage: description and pixels written in one transaction.
 import { get, getMany, type UseStore } from 'idb-keyval';
-import type { Image2D } from '../core/image';
+import { InputError } from '../core/errors';
+import type { Image2D, ImageGrid } from '../core/image';
 import type { Volume } from '../core/volume';
 import { keysWithPrefix, pageStore } from './db';
 import { checkRecord, keys, RecordError, SCHEMA_VERSION, type ResultData, type ResultMeta } from './records';
@@ -16,23 +17,37 @@ export interface StoredVolume {
 
 export type NewResult = Omit<ResultMeta, 'schema' | 'kind' | 'id' | 'createdAt' | 'bytes' | 'grid' | 'muWater' | 'fovRadius' | 'volume'>;
 
+/** Arrays kept with a result's pixels (ResultData): a consistency report's, a DBP result's undetermined mask. */
+export type ResultExtras = Partial<Pick<ResultData, 'consistency' | 'undetermined'>>;
+
 /**
  * Stores a reconstruction (and, for cone-beam scans, its volume in slabs) in one transaction,
  * provided its scan is still stored, with what `along` writes in the same transaction (e.g. its
- * queue job marked done); returns its description.
+ * queue job marked done) and the arrays of `extra` beside its pixels; returns its description.
  */
 export async function saveResult(
   input: NewResult, image: Image2D, store: UseStore = pageStore(), volume?: Volume, along?: (meta: ResultMeta, tx: Tx) => Promise<void>,
+  extra: ResultExtras = {},
 ): Promise<ResultMeta> {
-  const { meta, entries } = resultRecords(input, image, {}, volume);
+  const { meta, entries } = resultRecords(input, image, extra, volume);
   await putResultEntries(input.scanId, entries, store, along && ((tx) => along(meta, tx)));
   return meta;
 }
 
+/** Throws unless `mask` is a 0/1 mask of the grid's pixels (`what` names it in the message). */
+function checkMask(mask: unknown, grid: ImageGrid, what: string, fail: (m: string) => Error): asserts mask is Uint8Array {
+  const n = grid.nx * grid.ny;
+  if (!(mask instanceof Uint8Array)) throw fail(`${what}: got ${Object.prototype.toString.call(mask)}, expected a Uint8Array of ${n} pixels (1 = not determined)`);
+  if (mask.length !== n) throw fail(`${what}: got ${mask.length} pixels, expected ${n} (the image's ${grid.nx} x ${grid.ny})`);
+  const bad = mask.findIndex((v) => v > 1);
+  if (bad >= 0) throw fail(`${what}: pixel ${bad} holds ${mask[bad]}, expected 0 or 1`);
+}
+
 /** The records of a new result (several are written in one transaction with putResultEntries). */
 export function resultRecords(
-  input: NewResult, image: Image2D, extra: Partial<Pick<ResultData, 'consistency'>> = {}, volume?: Volume | StoredVolume,
+  input: NewResult, image: Image2D, extra: ResultExtras = {}, volume?: Volume | StoredVolume,
 ): { meta: ResultMeta; entries: Array<[string, unknown]> } {
+  if (extra.undetermined !== undefined) checkMask(extra.undetermined, image.grid, 'result undetermined mask', (m) => new InputError(m, { field: 'undetermined' }));
   const stored = volume && !('data' in volume) ? volume : undefined;
   const id = stored?.id ?? newId();
   const slabs = volume && 'data' in volume ? volumeEntries('result', id, volume) : stored ? { info: stored.info, entries: [] } : undefined;
@@ -47,7 +62,7 @@ export function resultRecords(
     grid: image.grid,
     muWater: image.muWater,
     fovRadius: image.fovRadius,
-    bytes: image.data.byteLength + (slabs ? 4 * slabs.info.grid.nx * slabs.info.grid.ny * slabs.info.grid.nz : 0) + (c ? c.residual.byteLength + c.flagged.byteLength + (c.map?.byteLength ?? 0) : 0),
+    bytes: image.data.byteLength + (slabs ? 4 * slabs.info.grid.nx * slabs.info.grid.ny * slabs.info.grid.nz : 0) + (c ? c.residual.byteLength + c.flagged.byteLength + (c.map?.byteLength ?? 0) : 0) + (extra.undetermined?.byteLength ?? 0),
     ...(slabs ? { volume: slabs.info } : {}),
   };
   const data: ResultData = { schema: SCHEMA_VERSION, kind: 'result-data', id, data: image.data, ...extra };
@@ -71,12 +86,15 @@ export async function listResults(scanId?: string, store: UseStore = pageStore()
     .sort((a, b) => a.createdAt - b.createdAt);
 }
 
-/** A stored result as an image (mu, 1/mm). */
-export async function loadResultImage(id: string, store: UseStore = pageStore()): Promise<{ meta: ResultMeta; image: Image2D }> {
+/** A stored result as an image (mu, 1/mm), with its undetermined mask when it keeps one (DBP results stored with it). */
+export async function loadResultImage(id: string, store: UseStore = pageStore()): Promise<{ meta: ResultMeta; image: Image2D; undetermined?: Uint8Array }> {
   const [m, d] = await getMany([keys.result(id), keys.resultData(id)], store);
   const meta = checkRecord<ResultMeta>(m, 'result', keys.result(id));
   const data = checkRecord<ResultData>(d, 'result-data', keys.resultData(id));
-  return { meta, image: { grid: meta.grid, data: data.data, quantity: 'mu', muWater: meta.muWater, fovRadius: meta.fovRadius } };
+  const image: Image2D = { grid: meta.grid, data: data.data, quantity: 'mu', muWater: meta.muWater, fovRadius: meta.fovRadius };
+  if (data.undetermined === undefined) return { meta, image };
+  checkMask(data.undetermined, meta.grid, `stored record ${keys.resultData(id)}: undetermined mask`, (msg) => new RecordError(msg));
+  return { meta, image, undetermined: data.undetermined };
 }
 
 /** One result's description. */

@@ -63,7 +63,7 @@ export class AppShell extends LitElement {
   static properties = {
     client: { attribute: false },
     scans: { state: true }, results: { state: true }, selectedScanId: { state: true }, loaded: { state: true }, tab: { state: true },
-    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, referenceId: { state: true }, comparisons: { state: true },
+    compareIds: { state: true }, waitingId: { state: true }, images: { state: true }, masks: { state: true }, referenceId: { state: true }, comparisons: { state: true },
     importing: { state: true }, importError: { state: true }, importFraction: { state: true }, importReduce: { state: true }, memoryBudgetGb: { state: true }, imageImport: { state: true }, calibrating: { state: true }, knowledgeState: { state: true }, dicomExport: { state: true }, demoBusy: { state: true }, demoFraction: { state: true }, coneDemoBusy: { state: true }, coneDemoFraction: { state: true },
     storage: { state: true }, engine: { state: true }, alert: { state: true }, geometryError: { state: true }, ready: { state: true },
   };
@@ -78,6 +78,8 @@ export class AppShell extends LitElement {
   /** A result waiting for a place in the full comparison ('' when none): the user chooses which image leaves. */
   declare waitingId: string;
   declare images: Map<string, Image2D>;
+  /** Undetermined masks of the loaded results that keep one (DBP), by result id. */
+  declare masks: Map<string, Uint8Array>;
   declare referenceId: string;
   declare comparisons: Map<string, Comparison | string>;
   declare importing: boolean;
@@ -145,6 +147,7 @@ export class AppShell extends LitElement {
     this.compareIds = [];
     this.waitingId = '';
     this.images = new Map();
+    this.masks = new Map();
     this.referenceId = '';
     this.comparisons = new Map();
     this.importing = false;
@@ -237,7 +240,12 @@ export class AppShell extends LitElement {
     if (!missing.length) return;
     const loaded = await Promise.all(missing.map((id) => loadResultImage(id)));
     const next = new Map(this.images);
-    loaded.forEach((l) => { next.set(l.meta.id, l.image); });
+    const masks = new Map(this.masks);
+    loaded.forEach((l) => {
+      next.set(l.meta.id, l.image);
+      if (l.undetermined) masks.set(l.meta.id, l.undetermined);
+    });
+    this.masks = masks;
     this.images = next;
   }
 
@@ -495,7 +503,7 @@ export class AppShell extends LitElement {
   }
 
   private imagesTab(scan: ScanMeta) {
-    return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images}
+    return html`<rf-results-view .results=${this.results.filter((r) => r.scanId === scan.id)} .selected=${this.compareIds} .images=${this.images} .masks=${this.masks}
       .truth=${this.loaded?.id === scan.id ? this.loaded.truth : undefined} .referenceId=${this.referenceId} .comparisons=${this.comparisons}
       .scanName=${scan.name} .scanSummary=${scanSummary(scan)} ?cone=${scan.geometry.kind === 'cone'} .imageImport=${this.imageImport}
       @image-files-chosen=${(e: CustomEvent) => this.act('The image could not be added', () => this.importImage(scan.id, e.detail.files, e.detail.slice))}

@@ -2,6 +2,7 @@ import { html, LitElement, css, nothing } from 'lit';
 import { greyPixels, type DisplayImage } from './logic/display';
 import { ellipseFromDrag, type Mark } from './logic/knowledge-draw';
 import { pixelAt, type Point } from './logic/measure';
+import { overlayPixels, UNDETERMINED_LEGEND, undeterminedAt } from './logic/undetermined-overlay';
 import { INITIAL_VIEW, pan, scaleFor, toImage, toScreen, zoomAbout, type ViewState } from './logic/view-transform';
 import { dragWindow, type DisplayWindow } from './logic/window-level';
 import { theme } from './theme';
@@ -26,7 +27,8 @@ const fire = (el: HTMLElement, name: string, detail: unknown) => el.dispatchEven
 
 /**
  * One image on a dark panel: window/level, zoom and pan, the value under the cursor, the
- * measured field of view, and the shared line and region marks. Linked panels share window,
+ * measured field of view, the shared line and region marks, and (for a result that leaves part
+ * of the grid undetermined) an overlay over that part, whose pixels are not read as values. Linked panels share window,
  * view, cursor and marks through their parent (properties down, events up).
  * @fires window-change - detail: { window } while dragging with the window tool (or Ctrl)
  * @fires view-change - detail: { view } on wheel zoom, move drags (or Shift / middle button) and double-click (reset)
@@ -44,6 +46,7 @@ export class ImageViewer extends LitElement {
     image: { attribute: false }, window: { attribute: false }, view: { attribute: false }, cursor: { attribute: false },
     tool: { type: String }, line: { attribute: false }, region: { attribute: false }, colour: { type: String },
     showFov: { type: Boolean }, active: { type: Boolean }, crosshair: { attribute: false }, marks: { attribute: false },
+    showUndetermined: { type: Boolean },
   };
   /** The image in display units. */
   declare image: DisplayImage;
@@ -64,8 +67,11 @@ export class ImageViewer extends LitElement {
   declare crosshair: Point | null;
   /** Knowledge drawn over the image (known regions, the outline, its suggestion, drafts). */
   declare marks: Mark[];
+  /** Draw the overlay over the pixels the image does not determine (when it has such a mask). */
+  declare showUndetermined: boolean;
 
   private cache?: { values: Float32Array; width: number; level: number; canvas: HTMLCanvasElement };
+  private overlayCache?: { mask: Uint8Array; canvas: HTMLCanvasElement };
   private size = { w: 0, h: 0 };
   private drag?: { mode: Tool; x: number; y: number; window: DisplayWindow; view: ViewState; p0: Point };
   private resize = new ResizeObserver(() => this.measure());
@@ -80,6 +86,8 @@ export class ImageViewer extends LitElement {
     .dot { width: 9px; height: 9px; border-radius: 50%; flex: none; }
     .corner { position: absolute; right: 6px; bottom: 6px; color: #c3ccd6; font-size: 11px; pointer-events: none; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
     .readout { font-size: 12px; color: var(--muted); min-height: 18px; margin-top: 4px; }
+    .legend { position: absolute; left: 6px; bottom: 6px; max-width: calc(100% - 130px); color: #e8ecf1; font-size: 11px; pointer-events: none; display: flex; gap: 6px; align-items: center; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
+    .swatch { width: 12px; height: 10px; flex: none; border-radius: 2px; background: repeating-linear-gradient(135deg, rgba(178, 92, 255, 0.95) 0 2px, rgba(178, 92, 255, 0.45) 2px 5px); }
   `];
 
   constructor() {
@@ -94,6 +102,7 @@ export class ImageViewer extends LitElement {
     this.active = false;
     this.crosshair = null;
     this.marks = [];
+    this.showUndetermined = true;
   }
 
   disconnectedCallback() {
@@ -138,6 +147,22 @@ export class ImageViewer extends LitElement {
     return canvas;
   }
 
+  /** The undetermined overlay at the image's own resolution (cached per mask). */
+  private overlay(mask: Uint8Array): HTMLCanvasElement {
+    const g = this.image.grid, c = this.overlayCache;
+    if (c && c.mask === mask) return c.canvas;
+    const canvas = c?.canvas ?? document.createElement('canvas');
+    canvas.width = g.nx;
+    canvas.height = g.ny;
+    canvas.getContext('2d')!.putImageData(new ImageData(overlayPixels(mask, g.nx, g.ny) as Uint8ClampedArray<ArrayBuffer>, g.nx, g.ny), 0, 0);
+    this.overlayCache = { mask, canvas };
+    return canvas;
+  }
+
+  private overlayShown(): Uint8Array | undefined {
+    return this.showUndetermined ? this.image.undetermined : undefined;
+  }
+
   private draw() {
     const canvas = this.renderRoot.querySelector('canvas');
     if (!canvas || !this.image || !this.size.w) return;
@@ -153,6 +178,11 @@ export class ImageViewer extends LitElement {
     const corner = toScreen({ x: g.cx - (g.nx * g.dx) / 2, y: g.cy + (g.ny * g.dy) / 2 }, g, w, h, this.view);
     ctx.imageSmoothingEnabled = s * g.dx < 3;
     ctx.drawImage(this.windowed(), corner.x, corner.y, g.nx * g.dx * s, g.ny * g.dy * s);
+    const mask = this.overlayShown();
+    if (mask) {
+      ctx.imageSmoothingEnabled = false;
+      ctx.drawImage(this.overlay(mask), corner.x, corner.y, g.nx * g.dx * s, g.ny * g.dy * s);
+    }
     const at = (p: Point) => toScreen(p, g, w, h, this.view);
     if (this.showFov && (this.image.fovRadius || this.image.outline)) this.drawFov(ctx, at, s);
     for (const m of this.marks) drawMark(ctx, m, at);
@@ -241,6 +271,11 @@ export class ImageViewer extends LitElement {
     const unit = this.image.unit;
     const axes = this.image.axes ?? ['x', 'y'];
     const fmt = (x: number) => (unit === 'HU' ? x.toFixed(0) : x.toPrecision(4));
+    const mask = this.image.undetermined;
+    const value = () => {
+      if (mask && undeterminedAt(mask, this.image.grid, this.cursor!)) return 'not determined (no value: filled with air)';
+      return Number.isFinite(v) ? `${fmt(v)} ${unit}` : 'outside the image';
+    };
     return html`<div class="panel ${this.active ? 'active' : ''}">
         <canvas aria-label=${`Image: ${this.image.label}`}
           @pointerdown=${this.down} @pointermove=${this.move} @pointerup=${this.up} @pointercancel=${this.up}
@@ -250,9 +285,10 @@ export class ImageViewer extends LitElement {
           @contextmenu=${(e: Event) => e.preventDefault()}></canvas>
         <div class="label"><span class="dot"></span><span>${this.image.label}</span></div>
         <div class="corner num">W ${fmt(this.window.width)} · L ${fmt(this.window.level)} ${unit}</div>
+        ${this.overlayShown() ? html`<div class="legend" id="undetermined-legend"><span class="swatch"></span><span>${UNDETERMINED_LEGEND}</span></div>` : nothing}
       </div>
       <div class="readout num">${this.cursor
-        ? html`${axes[0]} ${this.cursor.x.toFixed(1)} mm, ${axes[1]} ${this.cursor.y.toFixed(1)} mm: <strong>${Number.isFinite(v) ? `${fmt(v)} ${unit}` : 'outside the image'}</strong>`
+        ? html`${axes[0]} ${this.cursor.x.toFixed(1)} mm, ${axes[1]} ${this.cursor.y.toFixed(1)} mm: <strong>${value()}</strong>`
         : html`&nbsp;`}</div>`;
   }
 }

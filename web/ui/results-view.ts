@@ -6,6 +6,7 @@ import type { ResultMeta } from '../store/records';
 import { fileName, saveFile } from './export/download';
 import { pngBlob, pngDataUrl } from './export/png';
 import { buildReport } from './export/report';
+import { saveUndeterminedMask, undeterminedText } from './export/undetermined';
 import type { LineMark, RegionMark, Tool } from './image-viewer';
 import { convergenceHistories } from './logic/convergence';
 import { difference, toDisplay, type DisplayImage } from './logic/display';
@@ -75,7 +76,7 @@ export class ResultsView extends LitElement {
     showKnowledge: { state: true }, draftEllipse: { state: true }, draftPolygon: { state: true },
     window: { state: true }, diffWindow: { state: true }, view: { state: true }, cursor: { state: true }, tool: { state: true },
     line: { state: true }, region: { state: true }, showFov: { state: true }, showDifference: { state: true }, activeKey: { state: true },
-    exportError: { state: true },
+    exportError: { state: true }, masks: { attribute: false }, showUndetermined: { state: true },
   };
   /** Results of the scan, oldest first. */
   declare results: ResultMeta[];
@@ -87,6 +88,10 @@ export class ResultsView extends LitElement {
   declare baselineId: string;
   /** Loaded pixels by result id. */
   declare images: Map<string, Image2D>;
+  /** Undetermined masks by result id (DBP results that keep one; 1 = not determined). */
+  declare masks: Map<string, Uint8Array>;
+  /** Draw the overlay over undetermined pixels (on by default). */
+  declare showUndetermined: boolean;
   /** The scan's ground truth, when it has one. */
   declare truth: Image2D | undefined;
   /** 'truth', a result id, or '' for no reference. */
@@ -157,6 +162,8 @@ export class ResultsView extends LitElement {
     this.waitingId = '';
     this.baselineId = '';
     this.images = new Map();
+    this.masks = new Map();
+    this.showUndetermined = true;
     this.referenceId = '';
     this.comparisons = new Map();
     this.scanName = '';
@@ -187,10 +194,10 @@ export class ResultsView extends LitElement {
     this.draftPolygon = EMPTY_POLYGON;
   }
 
-  private display(image: Image2D, label: string): DisplayImage {
+  private display(image: Image2D, label: string, mask?: Uint8Array): DisplayImage {
     let d = this.displays.get(image);
-    if (!d || d.label !== label) {
-      d = toDisplay(image, label);
+    if (!d || d.label !== label || d.undetermined !== mask) {
+      d = toDisplay(image, label, mask);
       this.displays.set(image, d);
     }
     return d;
@@ -208,12 +215,12 @@ export class ResultsView extends LitElement {
     this.selected.forEach((id, k) => {
       const meta = this.results.find((r) => r.id === id);
       const img = this.images.get(id);
-      if (meta && img) out.push({ key: id, label: meta.name, colour: SERIES_COLOURS[k % 4], display: this.display(img, meta.name), source: img, meta });
+      if (meta && img) out.push({ key: id, label: meta.name, colour: SERIES_COLOURS[k % 4], display: this.display(img, meta.name, this.masks.get(id)), source: img, meta });
     });
     const refImg = this.referenceId === TRUTH ? this.truth : this.images.get(this.referenceId);
     if (refImg && !this.selected.includes(this.referenceId)) {
       const label = this.referenceId === TRUTH ? 'Ground truth' : this.results.find((r) => r.id === this.referenceId)?.name ?? 'reference';
-      out.push({ key: this.referenceId, label, colour: SERIES_COLOURS[4], display: this.display(refImg, label), source: refImg });
+      out.push({ key: this.referenceId, label, colour: SERIES_COLOURS[4], display: this.display(refImg, label, this.masks.get(this.referenceId)), source: refImg });
     }
     return out;
   }
@@ -261,7 +268,7 @@ export class ResultsView extends LitElement {
     else this.window = w;
   }
 
-  private async exportImage(kind: 'nrrd-hu' | 'nrrd-mu' | 'png') {
+  private async exportImage(kind: 'nrrd-hu' | 'nrrd-mu' | 'png' | 'mask') {
     this.exportError = '';
     const panels = this.panels();
     const shown = this.shown(panels);
@@ -269,7 +276,11 @@ export class ResultsView extends LitElement {
     if (!p || (kind !== 'png' && shown !== panels)) return;
     try {
       if (kind === 'png') {
-        saveFile(await pngBlob(p.display, this.currentWindow()), fileName(p.display.label, 'png'), 'image/png');
+        saveFile(await pngBlob(p.display, this.currentWindow(), this.showUndetermined), fileName(p.display.label, 'png'), 'image/png');
+        return;
+      }
+      if (kind === 'mask') {
+        await saveUndeterminedMask(p.display);
         return;
       }
       const src = p.source;
@@ -294,17 +305,19 @@ export class ResultsView extends LitElement {
       unit: shown[0]?.display.unit ?? 'HU',
       createdAt: new Date(),
       profileSvg: svg,
+      undeterminedDrawn: this.showUndetermined,
       profileCaption: this.line ? `From (${this.line.p0.x.toFixed(1)}, ${this.line.p0.y.toFixed(1)}) mm to (${this.line.p1.x.toFixed(1)}, ${this.line.p1.y.toFixed(1)}) mm.` : undefined,
       images: shown.map((p) => ({
         label: p.display.label,
         colour: p.colour,
-        png: pngDataUrl(p.display, w),
+        png: pngDataUrl(p.display, w, this.showUndetermined),
+        undetermined: undeterminedText(p.display),
         recipe: p.meta?.recipe,
         seconds: p.meta?.seconds,
         warnings: p.meta?.warnings ?? [],
         metrics: p.meta ? this.comparisonOf(p.meta) : undefined,
         residual: p.meta?.residual,
-        region: this.region ? regionStats(p.display.values, p.display.grid, this.region.centre, this.region.radius) : undefined,
+        region: this.region ? regionStats(p.display.values, p.display.grid, this.region.centre, this.region.radius, p.display.undetermined) : undefined,
         knowledge: p.meta ? resultKnowledge(p.meta) : undefined,
       })).map((i) => ({ ...i, metrics: typeof i.metrics === 'object' ? i.metrics : undefined })),
     });
@@ -373,7 +386,7 @@ export class ResultsView extends LitElement {
     const compared = panels.filter((p) => p.meta && p.key !== this.referenceId);
     const metricsRows: MetricsRow[] = compared.map((p) => ({ label: p.label, colour: p.colour, comparison: this.comparisonOf(p.meta!), residual: p.meta!.residual }));
     const profile: PlotSeries[] = this.line
-      ? shown.map((p) => { const s = sampleProfile(p.display.values, p.display.grid, this.line!.p0, this.line!.p1); return { label: p.display.label, colour: p.colour, x: s.distance, y: s.values }; })
+      ? shown.map((p) => { const s = sampleProfile(p.display.values, p.display.grid, this.line!.p0, this.line!.p1, undefined, p.display.undetermined); return { label: p.display.label, colour: p.colour, x: s.distance, y: s.values }; })
       : [];
     const active = shown.find((p) => p.key === this.activeKey);
     const differenceShown = shown !== panels;
@@ -391,6 +404,8 @@ export class ResultsView extends LitElement {
         <div class="card">
           <rf-viewer-toolbar .window=${w} .unit=${unit} .tool=${this.tool} .showFov=${this.showFov} .showDifference=${this.showDifference && !!ref} .canDifference=${!!ref && panels.length > 1}
             knowledgeTools .showKnowledge=${this.showKnowledge} @knowledge-toggle=${(e: CustomEvent) => (this.showKnowledge = e.detail.show)}
+            ?canUndetermined=${shown.some((p) => p.display.undetermined)} .showUndetermined=${this.showUndetermined}
+            @undetermined-toggle=${(e: CustomEvent) => (this.showUndetermined = e.detail.show)}
             @window-change=${(e: CustomEvent) => this.setWindow(e.detail.window)}
             @window-auto=${() => this.setWindow(autoWindow(shown[0].display.values))}
             @tool-change=${(e: CustomEvent) => (this.tool = e.detail.tool)}
@@ -407,7 +422,7 @@ export class ResultsView extends LitElement {
           @polygon-point=${(e: CustomEvent) => (this.draftPolygon = addPolygonPoint(this.draftPolygon, e.detail.point, e.detail.snap))}
           @polygon-close=${() => (this.draftPolygon = this.draftPolygon.points.length >= 3 ? { ...this.draftPolygon, closed: true } : this.draftPolygon)}>
           ${shown.map((p) => html`<rf-image-viewer data-key=${p.key} .image=${p.display} .window=${w} .view=${this.view} .cursor=${this.cursor} .tool=${this.tool}
-            .line=${this.line} .region=${this.region} .colour=${p.colour} .showFov=${this.showFov} .active=${p.key === this.activeKey} .marks=${marks}
+            .line=${this.line} .region=${this.region} .colour=${p.colour} .showFov=${this.showFov} .active=${p.key === this.activeKey} .marks=${marks} .showUndetermined=${this.showUndetermined}
             @panel-focus=${() => (this.activeKey = p.key)}></rf-image-viewer>`)}
         </div>
         ${metricsRows.length ? html`<div class="card"><h2>Agreement with ${this.referenceLabel()}</h2>
@@ -416,7 +431,7 @@ export class ResultsView extends LitElement {
           <rf-line-plot id="profile" xLabel="distance along the line (mm)" yLabel=${unit} caption="Values along the drawn line" .series=${profile}></rf-line-plot></div>` : nothing}
         ${this.region ? html`<div class="card"><h2>Region</h2>
           <rf-region-table .unit=${unit} .radius=${this.region.radius}
-            .rows=${shown.map((p) => ({ label: p.display.label, colour: p.colour, stats: regionStats(p.display.values, p.display.grid, this.region!.centre, this.region!.radius) }))}></rf-region-table></div>` : nothing}
+            .rows=${shown.map((p) => ({ label: p.display.label, colour: p.colour, stats: regionStats(p.display.values, p.display.grid, this.region!.centre, this.region!.radius, p.display.undetermined) }))}></rf-region-table></div>` : nothing}
         ${this.knowledgeCards(compared, active)}
         ${this.convergence(panels)}
         ${compared.some((p) => p.meta!.warnings.length) ? html`<div class="card"><h2>Warnings</h2>${compared.flatMap((p) => p.meta!.warnings.map((x) => html`<p class="warning">${p.label}: ${x}</p>`))}</div>` : nothing}
@@ -427,6 +442,8 @@ export class ResultsView extends LitElement {
             <button id="export-nrrd-hu" ?disabled=${active?.display.unit !== 'HU' || differenceShown} @click=${() => this.exportImage('nrrd-hu')}>NRRD in HU</button>
             <button id="export-nrrd-mu" ?disabled=${!active || differenceShown} @click=${() => this.exportImage('nrrd-mu')}>NRRD in µ (1/mm)</button>
             <button id="export-png" ?disabled=${!active} @click=${() => this.exportImage('png')}>PNG at this window</button>
+            ${active?.display.undetermined ? html`<button id="export-undetermined" ?disabled=${differenceShown} title="The pixels this result does not determine, as an NRRD mask on its grid (1 = not determined), as the command line's --undetermined writes it"
+              @click=${() => this.exportImage('mask')}>Not-determined mask (NRRD)</button>` : nothing}
             <button id="export-dicom" ?disabled=${!active?.meta?.muWater || this.dicomExport.busy}
               title=${active?.meta && !active.meta.muWater ? 'Needs the scan\'s mu_water (HU calibration)' : 'A DICOM CT series in HU, for a planning system or a PACS viewer'}
               @click=${() => this.dispatchEvent(new CustomEvent('export-dicom', { detail: { id: active!.meta!.id } }))}>${this.dicomExport.busy ? 'Encoding DICOM…' : active?.meta?.volume ? 'DICOM CT series (ZIP)' : 'DICOM CT (HU)'}</button>

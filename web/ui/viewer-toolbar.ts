@@ -30,12 +30,13 @@ const send = (el: HTMLElement, name: string, detail: unknown = {}) => el.dispatc
  * @fires fov-toggle - detail: { show }
  * @fires difference-toggle - detail: { show }
  * @fires knowledge-toggle - detail: { show }: draw the known regions and the outline
+ * @fires undetermined-toggle - detail: { show }: draw the overlay over pixels a result does not determine
  */
 export class ViewerToolbar extends LitElement {
   static properties = {
     window: { attribute: false }, unit: { type: String }, tool: { type: String },
     showFov: { type: Boolean }, showDifference: { type: Boolean }, canDifference: { type: Boolean }, sliceTool: { type: Boolean },
-    knowledgeTools: { type: Boolean }, showKnowledge: { type: Boolean },
+    knowledgeTools: { type: Boolean }, showKnowledge: { type: Boolean }, canUndetermined: { type: Boolean }, showUndetermined: { type: Boolean },
   };
   declare window: DisplayWindow;
   declare unit: DisplayUnit;
@@ -50,6 +51,9 @@ export class ViewerToolbar extends LitElement {
   /** Offer the outline tools and the switch that draws the knowledge. */
   declare knowledgeTools: boolean;
   declare showKnowledge: boolean;
+  /** A shown image leaves pixels undetermined (DBP): offer the switch of their overlay. */
+  declare canUndetermined: boolean;
+  declare showUndetermined: boolean;
 
   static styles = [theme, css`
     :host { display: flex; flex-wrap: wrap; gap: 8px 18px; align-items: center; }
@@ -89,6 +93,8 @@ export class ViewerToolbar extends LitElement {
           @change=${(e: Event) => send(this, 'difference-toggle', { show: (e.target as HTMLInputElement).checked })}>Difference from reference</label>`}
         ${this.knowledgeTools ? html`<label class="check"><input type="checkbox" name="show-knowledge" .checked=${live(this.showKnowledge)}
           @change=${(e: Event) => send(this, 'knowledge-toggle', { show: (e.target as HTMLInputElement).checked })}>Knowledge</label>` : nothing}
+        ${this.canUndetermined ? html`<label class="check" title="Mark the pixels a result does not determine (DBP: outside the measured field of view, or on chords no known region reaches)"><input type="checkbox" name="show-undetermined" .checked=${live(this.showUndetermined)}
+          @change=${(e: Event) => send(this, 'undetermined-toggle', { show: (e.target as HTMLInputElement).checked })}>Not determined</label>` : nothing}
       </div>`;
   }
 }

@@ -90,11 +90,12 @@ async function storedCentralRow(meta: ScanMeta, store: UseStore): Promise<Scan> 
 
 /**
  * Compares an image with the scan's reference, re-projects it against the measured data, and
- * stores it as a result of the scan (warnings for values that cannot be trusted).
+ * stores it as a result of the scan (warnings for values that cannot be trusted), with the mask
+ * of the pixels it does not determine when the method gives one (DBP).
  */
 export async function storeImageResult(
   ctx: Pick<RunJobContext, 'ws' | 'store'>, s: { scanId: string; scan: Scan; reference?: Image2D },
-  out: Pick<RecipeResult, 'image' | 'warnings' | 'report'>, desc: ResultDescription, hooks: RunHooks,
+  out: Pick<RecipeResult, 'image' | 'warnings' | 'report' | 'undetermined'>, desc: ResultDescription, hooks: RunHooks,
 ): Promise<ResultMeta> {
   const warnings = [...out.warnings];
   let bad = 0;
@@ -108,5 +109,6 @@ export async function storeImageResult(
   const job = desc.jobId;
   return saveResult({
     scanId: s.scanId, name: desc.name, recipe: desc.recipe, warnings, report: out.report, metrics, residual, seconds,
-  }, out.image, ctx.store, undefined, job ? (meta, tx) => changeJob(tx, job, { state: 'done', resultId: meta.id, seconds }) : undefined);
+  }, out.image, ctx.store, undefined, job ? (meta, tx) => changeJob(tx, job, { state: 'done', resultId: meta.id, seconds }) : undefined,
+  out.undetermined ? { undetermined: out.undetermined } : {});
 }

@@ -4,6 +4,7 @@
 // measurement.
 import type { Image2D } from '../image';
 import type { PlacedKnowledge } from '../knowledge';
+import { countUndetermined } from './undetermined-count';
 import type { ChordFamily } from './chords';
 import type { CoupledResult } from './coupled-solve';
 
@@ -42,14 +43,7 @@ function regionMean(img: Image2D, coverage: Float32Array): number {
 export function dbpReport(r: ReportInput): { report: Record<string, unknown>; warnings: string[] } {
   const g = r.image.grid, mw = r.image.muWater;
   const warnings: string[] = [];
-  let undetermined = 0, inFov = 0, undeterminedInFov = 0;
-  const x0 = g.cx - ((g.nx - 1) / 2) * g.dx, y0 = g.cy - ((g.ny - 1) / 2) * g.dy;
-  for (let q = 0; q < r.undetermined.length; q++) {
-    const x = x0 + (q % g.nx) * g.dx, y = y0 + Math.floor(q / g.nx) * g.dy;
-    const inside = x * x + y * y <= r.fov * r.fov;
-    if (inside) inFov++;
-    if (r.undetermined[q]) { undetermined++; if (inside) undeterminedInFov++; }
-  }
+  const { pixels: undetermined, insideFov: undeterminedInFov, fovPixels: inFov } = countUndetermined(r.undetermined, g, r.fov);
   const chordsUndetermined = r.family.count - r.determined.reduce((s, v) => s + v, 0);
   if (undeterminedInFov > 0) {
     warnings.push(`${((100 * undeterminedInFov) / inFov).toFixed(1)}% of the field of view is not determined: ${chordsUndetermined} of ${r.family.count} chords cross no known region; those pixels are set to 0 (air) and marked in the undetermined mask`);

@@ -16,7 +16,10 @@ export interface ReportImage {
   metrics?: Comparison | null;
   /** Re-projection against the measured data. */
   residual?: DataResidual | null;
-  region?: { mean: number; sd: number; pixels: number };
+  /** Mean and SD over the determined pixels of the drawn circle; `undetermined` pixels were left out. */
+  region?: { mean: number; sd: number; pixels: number; undetermined?: number };
+  /** How much of the image the result does not determine, in words (DBP results that keep their mask). */
+  undetermined?: string;
   /** What the result knew beyond the data (known regions, outline) and what the knowledge did. */
   knowledge?: ResultKnowledge;
 }
@@ -34,6 +37,8 @@ export interface ReportInput {
   /** An SVG plot of the line profile (markup), when a line was drawn. */
   profileSvg?: string;
   profileCaption?: string;
+  /** The images carry the overlay of their undetermined pixels. */
+  undeterminedDrawn?: boolean;
   createdAt: Date;
 }
 
@@ -61,6 +66,13 @@ ${rows ? `<table><thead><tr><th></th><th>Known (HU)</th><th>Correction alone (HU
 ${k.residual ? `<p class="meta">Residual against the measured data: ${pct(k.residual.before.relative)} with the correction alone, ${pct(k.residual.after.relative)} with the knowledge.</p>` : ''}`;
 }
 
+/** A region's figures over its determined pixels; a circle wholly undetermined has none. */
+function regionRow(label: string, g: NonNullable<ReportImage['region']>): string {
+  const left = g.undetermined ? ` (${g.undetermined} not determined, left out)` : '';
+  if (!g.pixels && g.undetermined) return `<tr><th scope="row">${esc(label)}</th><td colspan="2">not determined</td><td>0${left}</td></tr>`;
+  return `<tr><th scope="row">${esc(label)}</th><td>${f(g.mean, 1)}</td><td>${f(g.sd, 1)}</td><td>${g.pixels}${left}</td></tr>`;
+}
+
 /** The report as a complete HTML document. */
 export function buildReport(r: ReportInput): string {
   const unit = r.images.find((i) => i.metrics)?.metrics?.unit ?? r.unit;
@@ -69,7 +81,8 @@ export function buildReport(r: ReportInput): string {
     ${figures(i.metrics!.regions.image)}${figures(i.metrics!.regions.insideFov)}${figures(i.metrics!.regions.outsideFov)}<td>${pct(i.metrics!.cupping?.excess, true)}</td></tr>`).join('');
   const residualRows = r.images.filter((i) => i.residual).map((i) => `<tr><th scope="row"><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}</th>
     <td>${pct(i.residual!.relative)}</td><td>${i.residual!.rms.toPrecision(3)}</td><td>${i.residual!.bias.toPrecision(3)}</td><td>${i.residual!.worstView}${i.residual!.sampled ? ` (${esc(i.residual!.sampled)})` : ''}</td></tr>`).join('');
-  const regionRows = r.images.filter((i) => i.region).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td>${f(i.region!.mean, 1)}</td><td>${f(i.region!.sd, 1)}</td><td>${i.region!.pixels}</td></tr>`).join('');
+  const regionRows = r.images.filter((i) => i.region).map((i) => regionRow(i.label, i.region!)).join('');
+  const undetermined = r.images.filter((i) => i.undetermined).map((i) => `<li><span class="dot" style="background:${esc(i.colour)}"></span>${esc(i.label)}: ${esc(i.undetermined)}</li>`).join('');
   const recipes = r.images.filter((i) => i.recipe).map((i) => `<tr><th scope="row">${esc(i.label)}</th><td class="left">${esc(correctionOf(i.recipe!))}</td><td class="left"><code>${esc(JSON.stringify(i.recipe))}</code></td><td>${f(i.seconds, 1)} s</td></tr>`).join('');
   const knowledge = r.images.filter((i) => i.knowledge).map((i) => knowledgeSection(i.label, i.colour, i.knowledge!)).join('');
   const warnings = r.images.flatMap((i) => i.warnings.map((w) => `<li>${esc(i.label)}: ${esc(w)}</li>`)).join('');
@@ -105,6 +118,8 @@ ${rows ? `<h2>Agreement with ${esc(r.referenceLabel)} (${esc(unit)})</h2>
 ${residualRows ? `<h2>Agreement with the measured data</h2>
 <table><thead><tr><th></th><th>Relative residual</th><th>RMS (line integral)</th><th>Mean (line integral)</th><th>Worst view</th></tr></thead><tbody>${residualRows}</tbody></table>
 <p class="meta">Each image re-projected onto the measured detector channels and compared with the measured line integrals: ‖Af − p‖ / ‖p‖. A positive mean means the image holds too much along the measured rays.</p>` : ''}
+${undetermined ? `<h2>Not determined</h2><ul>${undetermined}</ul>
+<p class="meta">These pixels (DBP: outside the measured field of view, or on chords that cross no known region) are not set by the data and the knowledge; they hold air as a fill${r.undeterminedDrawn ? ' and are drawn with violet stripes in the images above' : ''}.</p>` : ''}
 ${regionRows ? `<h2>Region statistics (${esc(r.unit)})</h2><table><thead><tr><th></th><th>Mean</th><th>SD</th><th>Pixels</th></tr></thead><tbody>${regionRows}</tbody></table>` : ''}
 ${r.profileSvg ? `<h2>Line profile</h2>${r.profileCaption ? `<p class="meta">${esc(r.profileCaption)}</p>` : ''}${r.profileSvg}` : ''}
 ${knowledge ? `<h2>Knowledge beyond the data</h2>${knowledge}
