@@ -82,4 +82,14 @@ describe('water calibration', () => {
     expect(() => checkMuWater(-0.02)).toThrow(/mu_water: got -0.02/);
     expect(() => checkMuWater(19.2)).toThrow(/expected the attenuation of water in 1\/mm/);
   });
+
+  it('refuses a region over pixels the result does not determine (a DBP result\'s fill), and measures one beside them', () => {
+    const grid = squareGrid(10, 1);
+    const image = { grid, data: new Float32Array(100).fill(0.02), quantity: 'mu' as const };
+    // Pixel centres at -4.5 ... 4.5 mm; the left three columns (x = -4.5, -3.5, -2.5 mm) are not determined:
+    // the first rectangle holds two of their pixels (x -2.5, y +-0.5), the second none.
+    const undetermined = Uint8Array.from({ length: 100 }, (_, q) => (q % 10 < 3 ? 1 : 0));
+    expect(() => measureMuWater(image, { shape: 'rectangle', x0: -3, y0: -1, x1: 1, y1: 1 }, 0, undetermined)).toThrow(/2 pixels of the marked region are not determined by this result/);
+    expect(measureMuWater(image, { shape: 'rectangle', x0: -2, y0: -2, x1: 3, y1: 2 }, 0, undetermined).muWater).toBeCloseTo(0.02, 7);
+  });
 });

@@ -38,9 +38,9 @@ async function newValue(req: CalibrationRequest, store: UseStore): Promise<{ muW
   const r = req.region;
   if (!r || ![r.cx, r.cy, r.radius].every(Number.isFinite) || !(r.radius > 0)) throw new InputError('water calibration: mark a region (a circle) on an image first');
   if (!Number.isFinite(req.materialHu)) throw new InputError(`water calibration: material HU ${String(req.materialHu)}, expected a number (0 for water)`);
-  const { meta, image } = await loadResultImage(req.resultId, store);
+  const { meta, image, undetermined } = await loadResultImage(req.resultId, store);
   if (meta.scanId !== req.scanId) throw new InputError(`water calibration: result "${meta.name}" belongs to another scan`);
-  const measurement = measureMuWater({ ...image, quantity: 'mu' }, { shape: 'circle', ...r }, req.materialHu);
+  const measurement = measureMuWater({ ...image, quantity: 'mu' }, { shape: 'circle', ...r }, req.materialHu, undetermined);
   const muWater = checkMuWater(measurement.muWater, 'water calibration: the measured mu_water');
   return {
     muWater, measurement,

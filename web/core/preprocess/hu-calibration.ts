@@ -48,12 +48,15 @@ export function regionMask(image: Image2D, region: Region): Uint8Array {
 
 /**
  * Measures mu_water from a region of a mu image that the user marks as a material of known HU
- * (0 for water). Non-finite pixels make the measurement fail rather than be skipped.
+ * (0 for water). Non-finite pixels, and pixels the result does not determine (`undetermined`,
+ * 1 = not determined: a DBP result's fill), make the measurement fail rather than be skipped.
  */
-export function measureMuWater(image: Image2D, region: Region, referenceHu = 0): WaterMeasurement {
+export function measureMuWater(image: Image2D, region: Region, referenceHu = 0, undetermined?: Uint8Array): WaterMeasurement {
   if (image.quantity !== 'mu') throw new InputError('water calibration: the image must hold mu (1/mm), not HU');
   if (!(referenceHu > -1000 && referenceHu < 3000)) throw new InputError(`reference HU: got ${referenceHu}, expected the HU of the marked material (0 for water)`);
   const mask = regionMask(image, region);
+  const unset = undetermined ? mask.reduce((a, m, k) => a + (m & undetermined[k]), 0) : 0;
+  if (unset) throw new InputError(`water calibration: ${unset} pixels of the marked region are not determined by this result (they hold a fill, not a measurement); mark a region inside the part it determines`, { field: 'region' });
   let n = 0, sum = 0, sum2 = 0;
   for (let k = 0; k < mask.length; k++) {
     if (!mask[k]) continue;
