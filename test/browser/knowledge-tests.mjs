@@ -14,26 +14,8 @@ import { join } from 'node:path';
 import { check } from './harness.mjs';
 import { JOB_TIMEOUT, queueAndFinish } from './queue-steps.mjs';
 import { overflowing } from './layout.mjs';
-
-/** The demo's reference grid: 576 px of 1 mm (the recipe form's default "match the ground truth"). */
-const GRID = { n: 576, pixel: 1 };
-
-/** Screen point of image point (x, y) mm on a panel at its first view (the whole grid fits the panel). */
-async function screenPoint(panel, x, y) {
-  const b = await panel.locator('canvas').boundingBox();
-  const s = Math.min(b.width, b.height) / (GRID.n * GRID.pixel);
-  return { x: b.x + b.width / 2 + x * s, y: b.y + b.height / 2 - y * s };
-}
-
-/** Drags on a panel from image point a to b (mm). */
-async function drag(page, panel, a, b) {
-  await panel.locator('canvas').scrollIntoViewIfNeeded();
-  const p = await screenPoint(panel, a.x, a.y), q = await screenPoint(panel, b.x, b.y);
-  await page.mouse.move(p.x, p.y);
-  await page.mouse.down();
-  await page.mouse.move(q.x, q.y, { steps: 4 });
-  await page.mouse.up();
-}
+import { drag, screenPoint } from './panel-points.mjs';
+import { undeterminedSteps } from './undetermined-steps.mjs';
 
 /** Inside-FOV RMSE (HU) of the metrics table row whose label starts with `prefix`. */
 async function insideRmse(page, prefix) {
@@ -162,6 +144,8 @@ export async function knowledgeTests(h, { context, mode, url, artifacts }) {
     check(/DBP, field of view only.*outside the measured field of view .* not determined by DBP/.test(warnings), `the undetermined part is stated: ${warnings}`);
     await shot(page, '1280-images-dbp', true);
   });
+
+  await undeterminedSteps(h, { page, mode, artifacts, shot });
 
   await h.step(`${mode}: an outline ellipse drawn round the body, FBP extended from it alone: the error inside the field drops`, async () => {
     const fbp = page.locator('rf-image-viewer').first();

@@ -86,7 +86,8 @@ export class ImageViewer extends LitElement {
     .dot { width: 9px; height: 9px; border-radius: 50%; flex: none; }
     .corner { position: absolute; right: 6px; bottom: 6px; color: #c3ccd6; font-size: 11px; pointer-events: none; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
     .readout { font-size: 12px; color: var(--muted); min-height: 18px; margin-top: 4px; }
-    .legend { position: absolute; left: 6px; bottom: 6px; max-width: calc(100% - 130px); color: #e8ecf1; font-size: 11px; pointer-events: none; display: flex; gap: 6px; align-items: center; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
+    .legend { position: absolute; left: 6px; top: 32px; max-width: calc(100% - 12px); color: #e8ecf1; font-size: 11px; pointer-events: none; display: flex; gap: 6px; align-items: center; background: rgba(15, 19, 24, 0.72); padding: 1px 6px; border-radius: 4px; }
+    .legend span:last-child { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; }
     .swatch { width: 12px; height: 10px; flex: none; border-radius: 2px; background: repeating-linear-gradient(135deg, rgba(178, 92, 255, 0.95) 0 2px, rgba(178, 92, 255, 0.45) 2px 5px); }
   `];
 

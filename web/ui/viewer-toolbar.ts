@@ -93,7 +93,7 @@ export class ViewerToolbar extends LitElement {
           @change=${(e: Event) => send(this, 'difference-toggle', { show: (e.target as HTMLInputElement).checked })}>Difference from reference</label>`}
         ${this.knowledgeTools ? html`<label class="check"><input type="checkbox" name="show-knowledge" .checked=${live(this.showKnowledge)}
           @change=${(e: Event) => send(this, 'knowledge-toggle', { show: (e.target as HTMLInputElement).checked })}>Knowledge</label>` : nothing}
-        ${this.canUndetermined ? html`<label class="check" title="Mark the pixels a result does not determine (DBP: outside the measured field of view, or on chords no known region reaches)"><input type="checkbox" name="show-undetermined" .checked=${live(this.showUndetermined)}
+        ${this.canUndetermined ? html`<label class="check" title="Violet stripes over the pixels a result does not determine (DBP: outside the measured field of view, or on chords that cross no known region): they hold air as a fill, not a measurement, and give no value"><input type="checkbox" name="show-undetermined" .checked=${live(this.showUndetermined)}
           @change=${(e: Event) => send(this, 'undetermined-toggle', { show: (e.target as HTMLInputElement).checked })}>Not determined</label>` : nothing}
       </div>`;
   }

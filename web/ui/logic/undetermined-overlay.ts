@@ -36,5 +36,5 @@ export function undeterminedAt(mask: Uint8Array, g: ImageGrid, p: Point): boolea
   return i >= 0 && j >= 0 && i < g.nx && j < g.ny && mask[j * g.nx + i] === 1;
 }
 
-/** The legend beside the overlay, in words. */
-export const UNDETERMINED_LEGEND = 'Violet stripes: not determined by the data (filled with air, no value)';
+/** The legend on the panel (short: the switch's tooltip and the report say why). */
+export const UNDETERMINED_LEGEND = 'Not determined (no value)';
