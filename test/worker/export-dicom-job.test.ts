@@ -61,4 +61,16 @@ describe('DICOM export in the page', () => {
     const r2 = await c.run(none.id, { method: 'fbp', grid: { size: 16, pixel: 2 } }, undefined, {});
     await expect(c.handle({ op: 'export-dicom', resultId: r2.id })).rejects.toThrow(/mu_water is unknown, so its values cannot be written in HU/);
   });
+
+  it('a DBP result: the note says how many pixels hold air as a fill (DICOM has no mark for them)', async () => {
+    const { c, store } = coordinator();
+    // 32 channels of 2 mm measure a disk of radius 32 mm; the 32 x 2 mm grid's corners reach 44 mm.
+    const geometry = { kind: 'parallel' as const, detector: { shape: 'flat' as const, channels: 32, rows: 1, pitch: [2, 2] as [number, number], offset: [0, 0] as [number, number] }, anglesDeg: { start: 0, step: 6, count: 30 } };
+    const s = await saveScan({ name: 'p', scan: { geometry, data: new Float32Array(32 * 30), muWater: 0.02 }, source: { type: 'file', fileNames: [] } }, store);
+    const r = await c.run(s.id, { method: 'dbp', grid: { size: 32, pixel: 2 } }, undefined, {});
+    const unset = (r.report.dbp as { undetermined: { pixels: number } }).undetermined.pixels;
+    expect(unset).toBeGreaterThan(0);
+    const out = await c.handle({ op: 'export-dicom', resultId: r.id });
+    expect(out.warnings[0]).toBe(`${unset} pixels are not determined by this result (DBP) and hold air (-1000 HU) as a fill, not a measurement: DICOM has no mark for them; export the not-determined mask (NRRD) beside it`);
+  });
 });

@@ -25,8 +25,8 @@ export interface DicomExportOutcome {
   warnings: string[];
 }
 
-/** The stored result as an image volume in HU (one slice for 2D results). */
-async function resultInHu(resultId: string, store: UseStore): Promise<{ name: string; derivation: string; volume: ImageVolume }> {
+/** The stored result as an image volume in HU (one slice for 2D results), with what the user must know about its values. */
+async function resultInHu(resultId: string, store: UseStore): Promise<{ name: string; derivation: string; volume: ImageVolume; notes?: string[] }> {
   const meta = await getResultMeta(resultId, store);
   // A run's knowledge at length; a result added from a file is known by its name.
   const derivation = meta.recipe.method === 'imported' ? meta.name : describeResult(meta.recipe).detail;
@@ -38,10 +38,12 @@ async function resultInHu(resultId: string, store: UseStore): Promise<{ name: st
     const { x0, y0, z0 } = volumeOrigin(g);
     return { name: meta.name, derivation, volume: { nx: g.nx, ny: g.ny, nz: g.nz, spacing: [g.dx, g.dy, g.dz], origin: [x0, y0, z0], data: muToHu(volume.data, mw), quantity: 'hu', format: 'result' } };
   }
-  const { image } = await loadResultImage(resultId, store);
+  const { image, undetermined } = await loadResultImage(resultId, store);
   const g = image.grid;
   const origin: [number, number, number] = [g.cx - ((g.nx - 1) / 2) * g.dx, g.cy - ((g.ny - 1) / 2) * g.dy, 0];
-  return { name: meta.name, derivation, volume: { nx: g.nx, ny: g.ny, nz: 1, spacing: [g.dx, g.dy, 1], origin, data: muToHu(image.data, mw), quantity: 'hu', format: 'result' } };
+  const unset = undetermined?.reduce((a, v) => a + v, 0);
+  const notes = unset ? [`${unset} pixels are not determined by this result (DBP) and hold air (-1000 HU) as a fill, not a measurement: DICOM has no mark for them; export the not-determined mask (NRRD) beside it`] : [];
+  return { name: meta.name, derivation, notes, volume: { nx: g.nx, ny: g.ny, nz: 1, spacing: [g.dx, g.dy, 1], origin, data: muToHu(image.data, mw), quantity: 'hu', format: 'result' } };
 }
 
 /** A folder name of safe characters. */
@@ -51,10 +53,10 @@ function folderName(name: string): string {
 
 export async function exportDicomJob(store: UseStore, resultId: string, hooks: RunHooks = {}): Promise<DicomExportOutcome> {
   hooks.onProgress?.(0, 'reading the result');
-  const { name, derivation, volume } = await resultInHu(resultId, store);
+  const { name, derivation, volume, notes = [] } = await resultInHu(resultId, store);
   hooks.onProgress?.(0.3, 'encoding DICOM');
   const series = writeDicomSeries({ volume, description: name, derivation });
-  const common = { name, slices: series.files.length, rescale: series.rescale, warnings: series.warnings };
+  const common = { name, slices: series.files.length, rescale: series.rescale, warnings: [...notes, ...series.warnings] };
   if (series.files.length === 1) return { ...common, kind: 'dcm', blob: new Blob([series.files[0].bytes as BlobPart], { type: 'application/dicom' }) };
   hooks.onProgress?.(0.8, 'packing the series');
   const folder = folderName(name);
