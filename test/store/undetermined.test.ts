@@ -3,13 +3,15 @@
 // method) has none and still loads; a bad mask is refused and stores nothing; a damaged stored
 // mask is reported, never drawn. Through the page's run path (the coordinator), a DBP run keeps
 // the mask its geometry implies: every pixel outside the measured field of view, whose radius
-// follows from the detector alone (parallel beam: half the detector's width, common practice).
+// follows from the detector alone (parallel beam: half the detector's width, common practice),
+// and its comparison with the ground truth leaves those pixels out.
 import 'fake-indexeddb/auto';
 import { createStore, get, set } from 'idb-keyval';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../web/core/errors';
 import type { Geometry } from '../../web/core/geometry/types';
 import { gridOrigin, squareGrid } from '../../web/core/image';
+import { rasterize } from '../../web/core/phantoms/ellipse';
 import { sheppLogan } from '../../web/core/phantoms/shepp-logan';
 import { analyticSinogram } from '../../web/core/simulate/analytic';
 import { keysWithPrefix } from '../../web/store/db';
@@ -96,7 +98,8 @@ describe('a DBP run in the page keeps its mask', () => {
     const phantom = { ...sheppLogan('modified', 40, 0.02), muWater: 0.02 };
     const store = freshStore();
     const c = new Coordinator({ openWorkspace: () => localWorkspace(2), sharedMemory: false, store });
-    const s = await saveScan({ name: 'complete', scan: { geometry, data: analyticSinogram(phantom, geometry, 2), muWater: 0.02 }, source: { type: 'file', fileNames: ['p.nrrd'] } }, store);
+    const truth = { grid: squareGrid(64, 1.75), data: rasterize(phantom, squareGrid(64, 1.75), 2) };
+    const s = await saveScan({ name: 'complete', scan: { geometry, data: analyticSinogram(phantom, geometry, 2), muWater: 0.02 }, reference: truth, source: { type: 'file', fileNames: ['p.nrrd'] } }, store);
     const meta = await c.run(s.id, { method: 'dbp', grid: { size: 64, pixel: 1.75 } }, undefined, {});
     const { image: img, undetermined } = await loadResultImage(meta.id, store);
     expect(undetermined).toBeDefined();
@@ -117,5 +120,8 @@ describe('a DBP run in the page keeps its mask', () => {
     const report = meta.report.dbp as { undetermined: { pixels: number } };
     expect(report.undetermined.pixels).toBe(undetermined!.reduce((a, v) => a + v, 0));
     expect(meta.bytes).toBe(g.nx * g.ny * 5);
+    // The comparison with the ground truth leaves the undetermined pixels out of every figure.
+    expect(meta.metrics!.regions.image!.pixels).toBe(g.nx * g.ny - report.undetermined.pixels);
+    expect(meta.metrics!.notes).toContain(`${report.undetermined.pixels} pixels the image does not determine are left out of every figure`);
   });
 });

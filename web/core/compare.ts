@@ -33,13 +33,27 @@ export interface Comparison {
 const OBJECT_THRESHOLD = 0.05;
 
 /**
+ * The pixels that count (1) when `exclude` marks those the image does not determine (DBP: a fill,
+ * not a value); undefined when every pixel counts. Says in `notes` how many were left out.
+ */
+function keptPixels(g: Image2D['grid'], exclude: Uint8Array | undefined, notes: string[]): Uint8Array | undefined {
+  if (!exclude) return undefined;
+  if (exclude.length !== g.nx * g.ny) throw new InputError(`compare: the mask of undetermined pixels has ${exclude.length} pixels, expected ${g.nx * g.ny} (the image's grid)`);
+  const keep = exclude.map((v) => (v ? 0 : 1));
+  const left = exclude.length - keep.reduce((a, v) => a + v, 0);
+  if (left) notes.push(`${left} pixels the image does not determine are left out of every figure`);
+  return keep;
+}
+
+/**
  * Compares `image` with `reference` (both mu). The reference is resampled onto the image grid
  * when the grids differ. `fovRadius` (mm), when given, splits the object into inside / outside
- * the field of view.
+ * the field of view. Pixels marked in `exclude` (1 = not determined by the image) enter no figure.
  */
-export function compareImages(image: Image2D, reference: Image2D, fovRadius?: number): Comparison {
+export function compareImages(image: Image2D, reference: Image2D, fovRadius?: number, exclude?: Uint8Array): Comparison {
   const notes: string[] = [];
   const g = image.grid;
+  const keep = keptPixels(g, exclude, notes);
   const { overlap, note } = checkOverlap(g, reference.grid);
   if (note) notes.push(note);
   const resampled = !sameGrid(g, reference.grid);
@@ -60,7 +74,7 @@ export function compareImages(image: Image2D, reference: Image2D, fovRadius?: nu
   }
   const range = hi - lo || 1;
   const threshold = OBJECT_THRESHOLD * (muWater ?? refMax);
-  const object = ref.map((v) => (v > threshold ? 1 : 0)) as unknown as Uint8Array;
+  const object = ref.map((v, i) => (v > threshold && (!keep || keep[i]) ? 1 : 0)) as unknown as Uint8Array;
   const figures = (mask?: Uint8Array): RegionFigures | null => {
     const pixels = mask ? mask.reduce((s, v) => s + v, 0) : a.length;
     if (pixels === 0) return null;
@@ -80,7 +94,7 @@ export function compareImages(image: Image2D, reference: Image2D, fovRadius?: nu
   return {
     unit: muWater ? 'HU' : '1/mm',
     regions: {
-      image: figures(),
+      image: figures(keep),
       object: figures(Uint8Array.from(object)),
       insideFov: inside ? figures(inside) : null,
       outsideFov: outside ? figures(outside) : null,

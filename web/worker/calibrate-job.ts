@@ -63,8 +63,8 @@ async function resultPatches(store: UseStore, scan: ScanMeta, reference: Image2D
     const patch: Partial<ResultPatch> = { muWater, ...(r.volume ? { volume: { ...r.volume, muWater } } : {}) };
     try {
       if (r.metrics && reference) {
-        const { image } = await loadResultImage(r.id, store);
-        patch.metrics = compareImages({ ...image, muWater }, reference, r.fovRadius);
+        const { image, undetermined } = await loadResultImage(r.id, store);
+        patch.metrics = compareImages({ ...image, muWater }, reference, r.fovRadius, undetermined);
       }
       if (r.volume && r.volumeMetrics && scan.referenceVolume) {
         referenceVolume ??= await loadReferenceVolume(scan.id, store);

@@ -4,6 +4,7 @@ import { compareImages, type Comparison } from '../core/compare';
 import { CancelledError, InputError, throwIfCancelled } from '../core/errors';
 import type { Workspace } from '../core/engine/workspace';
 import type { Image2D } from '../core/image';
+import { sameGrid } from '../core/resample';
 import { axialSlice, sliceAt, type Volume } from '../core/volume';
 import { coneFovHalfHeight } from '../core/geometry/cone';
 import { viewCount } from '../core/geometry/types';
@@ -262,18 +263,23 @@ export class Coordinator {
     return { prior: (await loadResultImage(p.resultId, this.store)).image };
   }
 
-  /** Compares a stored result with its scan's reference image or with another result. */
+  /**
+   * Compares a stored result with its scan's reference image or with another result, leaving out
+   * the pixels either does not determine (DBP; the reference's only when it is on the same grid).
+   */
   async compare(resultId: string, against: CompareTarget): Promise<Comparison> {
-    const { meta, image } = await loadResultImage(resultId, this.store);
-    let reference: Image2D;
+    const { meta, image, undetermined } = await loadResultImage(resultId, this.store);
+    let reference: Image2D, exclude = undetermined;
     if (against.kind === 'reference') {
       const s = await loadScanReference(meta.scanId, this.store);
       if (!s.reference) throw new InputError(`compare: scan of result "${meta.name}" has no reference image`);
       reference = s.reference;
     } else {
-      reference = (await loadResultImage(against.id, this.store)).image;
+      const other = await loadResultImage(against.id, this.store);
+      reference = other.image;
+      if (other.undetermined && sameGrid(image.grid, reference.grid)) exclude = exclude ? exclude.map((v, i) => v | other.undetermined![i]) : other.undetermined;
     }
-    return compareImages(image, reference, image.fovRadius);
+    return compareImages(image, reference, image.fovRadius, exclude);
   }
 
   async info(): Promise<EngineInfo> {

@@ -41,10 +41,10 @@ export function require2dScan(scan: Scan, scanName: string, what: string): void 
 }
 
 /** The image against the scan's reference, or null (with the reason in `warnings`). */
-export function compared(image: Image2D, reference: Image2D | undefined, warnings: string[]): Comparison | null {
+export function compared(image: Image2D, reference: Image2D | undefined, warnings: string[], undetermined?: Uint8Array): Comparison | null {
   if (!reference) return null;
   try {
-    return compareImages(image, reference, image.fovRadius);
+    return compareImages(image, reference, image.fovRadius, undetermined);
   } catch (err) {
     if (!(err instanceof InputError)) throw err;
     warnings.push(`no comparison with the reference: ${err.message}`);

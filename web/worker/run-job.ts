@@ -101,7 +101,7 @@ export async function storeImageResult(
   let bad = 0;
   for (const v of out.image.data) if (!Number.isFinite(v)) bad++;
   if (bad) warnings.push(`${bad} pixels are not finite numbers (NaN or infinity): the image is not trustworthy`);
-  const metrics = compared(out.image, s.reference, warnings);
+  const metrics = compared(out.image, s.reference, warnings, out.undetermined);
   hooks.onProgress?.(0.97, 'checking against the measured data');
   const residual = await dataResidual(ctx.ws, out.image, s.scan, { signal: hooks.signal });
   hooks.onProgress?.(1, 'storing');
