@@ -450,7 +450,7 @@ export class ResultsView extends LitElement {
             <span class="muted">All shown:</span>
             <button id="export-report" class="primary" @click=${() => this.exportReport(panels)}>Report (HTML, printable)</button>
           </div>
-          <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header${differenceShown ? '; they hold images, not differences (turn the difference off to save one)' : ''}.</p>
+          <p class="hint">Click an image to highlight it. NRRD files keep full precision, with pixel spacing and the field-of-view radius in the header${differenceShown ? '; they hold images, not differences (turn the difference off to save one)' : ''}${active?.display.undetermined ? '; pixels this result does not determine hold air there, and its not-determined mask marks them' : ''}.</p>
           ${this.exportError || this.dicomExport.error ? html`<div class="error" role="alert">${this.exportError || this.dicomExport.error}</div>` : nothing}
           ${this.dicomExport.note ? html`<p class="hint" id="dicom-note">${this.dicomExport.note}</p>` : nothing}
         </div>
