@@ -15,6 +15,7 @@ import { chooseVolumeGrid } from './recipe/volume-grid';
 import { fdkChunkViews } from './recon/fdk';
 import { backprojectorFloats } from './recon/fdk-backprojectors';
 import { paddedLength } from './recon/filter-design';
+import { Projector3d } from './recon/projector3d';
 import { reducedGeometry } from './reduction';
 import { MAX_RESIDUAL_RAYS, MAX_RESIDUAL_VOXELS } from './residual-sample';
 import type { VolumeGrid } from './volume';
@@ -73,10 +74,10 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
   if (isIterativeMethod(recipe.method)) {
     if (!ctx.scanInMemory) parts.push(['the scan, read whole', scanBytes]);
     parts.push(['data to fit and weights (held by the program)', 2 * scanBytes]);
-    const padded = (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3);
+    const projector = Projector3d.floats(grid, g.detector.channels, g.detector.rows, ctx.workers);
     const subsets = Math.min(recipe.subsets ?? 20, viewCount(g));
     const pixelWeights = ctx.keepPixelWeights ? subsets * voxels : Math.min(subsets * voxels, PIXEL_WEIGHT_BUDGET);
-    parts.push(['engine: projections, weights, padded volumes', copies * (4 * scanBytes + (2 * padded + pixelWeights + 8 * voxels) * F)]);
+    parts.push(['engine: projections, weights, padded volumes', copies * (4 * scanBytes + (projector + pixelWeights + 8 * voxels) * F)]);
     parts.push(['the volume', 2 * voxels * F]);
     if (recipe.method === 'prior') parts.push(['the prior (an FDK volume)', voxels * F]);
   } else {
