@@ -109,13 +109,12 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
 }
 
 /**
- * Largest engine memory planned. WebAssembly's 32-bit memories address 4 GiB, but measured here
- * (Node 20, the engine's shared memory grown from the main thread): the workers' kernels fault
- * with "memory access out of bounds" on the first buffer past 2 GiB (3D OS-SART holding every
- * subset's pixel weights at 256^3). So one engine is planned below 2 GiB, with room for the
- * module's own data.
+ * Largest engine memory planned: the 4 GiB a 32-bit WebAssembly memory addresses (65536 pages
+ * of 64 KiB, WebAssembly Core Specification 1.0, 2.5.4), less room for the module's own data.
+ * (Runs past 2 GiB once faulted: the layout's 16-byte rounding was bitwise, 32-bit in
+ * JavaScript, and turned addresses past 2^31 negative; workspace.ts now rounds arithmetically.)
  */
-const MAX_ENGINE_BYTES = 2 ** 31 - 2 ** 26;
+const MAX_ENGINE_BYTES = 2 ** 32 - 2 ** 26;
 
 /** The estimate's engine part (the parts named "engine..."). */
 function engineBytes(e: MemoryEstimate): number {
