@@ -12,6 +12,7 @@ export { chordGram, chordBand, chordFactor, chordSolve, chordMultiply, CHORD_TAB
 export { extendViews, EXTEND_ZERO, EXTEND_EDGE, EXTEND_MIRROR, EXTEND_WATER, EXTEND_COSINE, EXTEND_PARAMS } from './extend';
 export { coneFilterViews } from './cone-filter';
 export { backprojectCone } from './cone-backproject';
+export { padConeRows, packRows } from './cone-blocks';
 export { coneFilterPairs, backprojectConeAxial, columnsToSlab } from './cone-backproject-axial';
 export { padVolume, unpadVolume } from './cone-volume';
 export { josephForwardCone, josephAdjointCone } from './cone-joseph';

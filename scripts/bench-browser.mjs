@@ -163,7 +163,17 @@ async function main() {
       await page.locator('rf-recipe-form input[name="volumeSlices"]').fill(String(P.size));
       await page.locator('rf-recipe-form input[name="volumeSpacing"]').fill(String(P.voxel));
       const uaMemory = [];
-      const measure = setInterval(() => page.evaluate(() => performance.measureUserAgentSpecificMemory().then((m) => m.bytes)).then((b) => uaMemory.push(b), () => undefined), 3000);
+      // Each measurement with its breakdown summed by the scope it is attributed to and by type
+      // (a SharedArrayBuffer, such as the engine's shared memory, is listed once per agent that
+      // holds it, so the sum can exceed what the process holds).
+      const measure = setInterval(() => page.evaluate(() => performance.measureUserAgentSpecificMemory().then((m) => {
+        const byScope = {};
+        for (const e of m.breakdown) {
+          const key = `${e.attribution.map((a) => a.scope).join('+') || 'unattributed'} ${e.types.join('+') || 'untyped'}`;
+          byScope[key] = (byScope[key] ?? 0) + e.bytes;
+        }
+        return { bytes: m.bytes, byScope };
+      })).then((b) => uaMemory.push(b), () => undefined), 3000);
       const rendererCpu = () => chromiumProcesses().filter((p) => p.role === 'renderer').reduce((sum, p) => sum + (cpuSecondsOf(p.pid) ?? 0), 0);
       const cpu0 = rendererCpu();
       t = performance.now();
@@ -183,7 +193,9 @@ async function main() {
       for (const x of samples) byProcess.set(x.pid, { role: x.role, peak: Math.max(byProcess.get(x.pid)?.peak ?? 0, x.peak) });
       out.page.rendererPeakMb = renderer;
       out.page.allChromiumPeaksMb = [...byProcess.values()].map((p) => ({ role: p.role, peakMb: Math.round(p.peak) }));
-      out.page.measuredUserAgentMemoryPeakMb = uaMemory.length ? Math.max(...uaMemory) / MB : null;
+      const uaPeak = uaMemory.reduce((a, b) => (a && a.bytes >= b.bytes ? a : b), null);
+      out.page.measuredUserAgentMemoryPeakMb = uaPeak ? uaPeak.bytes / MB : null;
+      out.page.measuredUserAgentMemoryPeakByScopeMb = uaPeak ? Object.fromEntries(Object.entries(uaPeak.byScope).map(([k, v]) => [k, Math.round(v / MB)])) : null;
       log(`page FDK: ${out.pageRunSeconds.toFixed(1)} s (renderers' processor time ${out.pageRunRendererCpuSeconds.toFixed(1)} s); renderer peak ${renderer.toFixed(0)} MB`);
       const cmp = await context.newPage();
       await cmp.goto(`${server.url}compare.html`);

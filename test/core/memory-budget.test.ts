@@ -58,13 +58,13 @@ describe('pixel weights of iterative methods', () => {
     expect(() => checkMemoryBudget(g, sart, cli, lean.bytes - 1, '--memory-limit')).toThrow(/with 2 x 2 detector binning/);
   });
 
-  it('never plans more engine memory than the engine addresses (2 GiB, measured), however large the budget', () => {
-    // 256^3: every subset's weights (20 x 67 MB) would pass 2 GiB in one engine, where the
-    // workers' kernels faulted (measured: memory-budget.ts); without them it runs.
-    expect(checkMemoryBudget(g, sart256, cli, 100 * GB, '--memory-limit').pixelWeightFloats).toBe(48 * 2 ** 20);
-    // 512^3: ten volume-sized engine arrays alone pass 2 GiB: refused before any work, with the binning that fits.
+  it('never plans more engine memory than one WebAssembly memory addresses (4 GiB), however large the budget', () => {
+    // WebAssembly Core Specification 1.0, 2.5.4: a 32-bit memory holds at most 65536 pages of 64 KiB.
+    // 256^3: every subset's weights (20 x 67 MB) fit in one engine (about 2.8 GB): held.
+    expect(checkMemoryBudget(g, sart256, cli, 100 * GB, '--memory-limit').pixelWeightFloats).toBe(Number.MAX_SAFE_INTEGER);
+    // 512^3: ten volume-sized engine arrays alone pass 4 GiB: refused before any work, with the binning that fits.
     const big = validateRecipe({ ...sart, grid: { size: 512, pixel: 0.5 }, volume: { slices: 512, spacing: 0.5 } });
-    expect(() => checkMemoryBudget(g, big, cli, 100 * GB, '--memory-limit')).toThrow(/of engine memory .*more than the 2\.1 GB one WebAssembly engine can address; with 2 x 2 detector binning and a 256 x 256 x 256 volume/);
+    expect(() => checkMemoryBudget(g, big, cli, 100 * GB, '--memory-limit')).toThrow(/of engine memory .*more than the 4\.2 GB one WebAssembly engine can address; with 2 x 2 detector binning and a 256 x 256 x 256 volume/);
   });
 });
 

@@ -25,16 +25,17 @@ async function run(ws: Workspace, views: number, plan: ConeExtensionPlan) {
   const e = await fdk3d(ws, { geometry: g, data: proj.map((x) => 1 + x) }, { grid, chunkBytes: 4 * 17 * wide * views, extension: coneRowExtension(plan, 36) });
   ws.reset();
   const p = await Projector3d.create(ws, grid, g);
-  const [vb, pb, ab, tb] = [ws.alloc('v', vol.length), ws.alloc('p', proj.length), ws.alloc('a', proj.length), ws.alloc('t', vol.length)];
+  const [vb, pb, ab, tb, bb] = [ws.alloc('v', vol.length), ws.alloc('p', proj.length), ws.alloc('a', proj.length), ws.alloc('t', vol.length), ws.alloc('b', vol.length)];
   await ws.write(vb, vol);
   await ws.write(pb, proj);
   await p.forward(vb, ab);
   await p.adjoint(pb, tb);
-  return { fdk: f.volume.data, extended: e.volume.data, forward: await ws.read(ab), adjoint: await ws.read(tb) };
+  await p.backprojectVoxels(pb, bb);
+  return { fdk: f.volume.data, extended: e.volume.data, forward: await ws.read(ab), adjoint: await ws.read(tb), voxelDriven: await ws.read(bb) };
 }
 
 describe('cone-beam kernels on workers with private memories', () => {
-  it('FDK (also with row extension, in chunks of views), forward and adjoint match the in-thread results', async () => {
+  it('FDK (also with row extension, in chunks of views), forward, adjoint and the voxel-driven backprojector match the in-thread results', async () => {
     // Every row cut off at both edges (values well above the air threshold): mirror tails everywhere.
     const plan = await planConeExtension({ geometry: g, data: proj.map((x) => 1 + x) }, 'mirror');
     expect(plan.left).toBeGreaterThan(3);
@@ -43,7 +44,7 @@ describe('cone-beam kernels on workers with private memories', () => {
     const pool = await privatePool(3);
     try {
       const got = await run(pool, 5, plan);
-      for (const k of ['fdk', 'extended', 'forward', 'adjoint'] as const) {
+      for (const k of ['fdk', 'extended', 'forward', 'adjoint', 'voxelDriven'] as const) {
         let worst = 0, scale = 0;
         for (let i = 0; i < ref[k].length; i++) {
           worst = Math.max(worst, Math.abs(ref[k][i] - got[k][i]));

@@ -146,7 +146,7 @@ describe('iterative methods on volumes', () => {
     for (let k = 1; k < seen.length; k++) expect(seen[k][0]).toBeGreaterThanOrEqual(seen[k - 1][0]);
     expect(seen.at(-1)).toEqual([1, 'done']);
 
-    // Cancel once the first subset step's backprojection has run one batch of views.
+    // Cancel once the first subset step's (voxel-driven) backprojection has run one batch of views.
     const inner = await localWorkspace(2);
     const controller = new AbortController();
     let iterating = false, batches = 0, afterCancel = 0;
@@ -154,9 +154,9 @@ describe('iterative methods on volumes', () => {
       get(target, key, receiver) {
         if (key !== 'run') return Reflect.get(target, key, receiver);
         return async (parts: Part[]) => {
-          if (controller.signal.aborted && parts.some((q) => q.kernel.startsWith('joseph'))) afterCancel++;
+          if (controller.signal.aborted && parts.some((q) => q.kernel.startsWith('joseph') || q.kernel === 'backprojectCone')) afterCancel++;
           const out = await target.run(parts);
-          if (iterating && parts[0]?.kernel === 'josephAdjointCone' && ++batches === 1) controller.abort();
+          if (iterating && parts[0]?.kernel === 'backprojectCone' && ++batches === 1) controller.abort();
           return out;
         };
       },

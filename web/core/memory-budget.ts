@@ -15,6 +15,7 @@ import { chooseVolumeGrid } from './recipe/volume-grid';
 import { fdkChunkViews } from './recon/fdk';
 import { backprojectorFloats } from './recon/fdk-backprojectors';
 import { paddedLength } from './recon/filter-design';
+import { Projector3d } from './recon/projector3d';
 import { reducedGeometry } from './reduction';
 import { MAX_RESIDUAL_RAYS, MAX_RESIDUAL_VOXELS } from './residual-sample';
 import type { VolumeGrid } from './volume';
@@ -73,10 +74,10 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
   if (isIterativeMethod(recipe.method)) {
     if (!ctx.scanInMemory) parts.push(['the scan, read whole', scanBytes]);
     parts.push(['data to fit and weights (held by the program)', 2 * scanBytes]);
-    const padded = (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3);
+    const projector = Projector3d.floats(grid, g.detector.channels, g.detector.rows, ctx.workers);
     const subsets = Math.min(recipe.subsets ?? 20, viewCount(g));
     const pixelWeights = ctx.keepPixelWeights ? subsets * voxels : Math.min(subsets * voxels, PIXEL_WEIGHT_BUDGET);
-    parts.push(['engine: projections, weights, padded volumes', copies * (4 * scanBytes + (2 * padded + pixelWeights + 8 * voxels) * F)]);
+    parts.push(['engine: projections, weights, padded volumes', copies * (4 * scanBytes + (projector + pixelWeights + 8 * voxels) * F)]);
     parts.push(['the volume', 2 * voxels * F]);
     if (recipe.method === 'prior') parts.push(['the prior (an FDK volume)', voxels * F]);
   } else {
@@ -108,13 +109,12 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
 }
 
 /**
- * Largest engine memory planned. WebAssembly's 32-bit memories address 4 GiB, but measured here
- * (Node 20, the engine's shared memory grown from the main thread): the workers' kernels fault
- * with "memory access out of bounds" on the first buffer past 2 GiB (3D OS-SART holding every
- * subset's pixel weights at 256^3). So one engine is planned below 2 GiB, with room for the
- * module's own data.
+ * Largest engine memory planned: the 4 GiB a 32-bit WebAssembly memory addresses (65536 pages
+ * of 64 KiB, WebAssembly Core Specification 1.0, 2.5.4), less room for the module's own data.
+ * (Runs past 2 GiB once faulted: the layout's 16-byte rounding was bitwise, 32-bit in
+ * JavaScript, and turned addresses past 2^31 negative; workspace.ts now rounds arithmetically.)
  */
-const MAX_ENGINE_BYTES = 2 ** 31 - 2 ** 26;
+const MAX_ENGINE_BYTES = 2 ** 32 - 2 ** 26;
 
 /** The estimate's engine part (the parts named "engine..."). */
 function engineBytes(e: MemoryEstimate): number {

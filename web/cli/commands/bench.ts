@@ -62,10 +62,12 @@ export async function bench(argv: string[]): Promise<CommandResult> {
   const text: string[] = [];
   for (const s of selected(a.options.only)) {
     if (!a.options.json) process.stderr.write(`bench: ${s.name}...\n`);
+    // The section's progress lines and errors go straight to our stderr (some sections run
+    // for many minutes); its result is the last line of its stdout.
     const child = spawnSync(process.execPath, [cliPath, 'bench', '--section', s.name, '--repeat', String(repeat), ...(rows ? ['--rows', rows.join(',')] : []), '--json'], {
-      encoding: 'utf8', maxBuffer: 64 * 2 ** 20,
+      encoding: 'utf8', maxBuffer: 64 * 2 ** 20, stdio: ['ignore', 'pipe', 'inherit'],
     });
-    if (child.status !== 0) throw new Error(`bench section ${s.name} failed: ${child.stderr.trim().split('\n').slice(-3).join(' ')}`);
+    if (child.status !== 0) throw new Error(`bench section ${s.name} failed (exit ${child.status ?? child.signal}; its messages are above)`);
     const o = JSON.parse(child.stdout.trim().split('\n').at(-1)!) as SectionOutput;
     outputs.push(o);
     text.push(`== ${o.name}`, ...o.lines, `peak resident memory of this section: ${o.peakRssMb.toFixed(0)} MB`, '');

@@ -19,7 +19,7 @@ export type KernelName =
   | 'backproject2d' | 'atanApprox' | 'dbpPoints'
   | 'chordGram' | 'chordBand' | 'chordFactor' | 'chordSolve' | 'chordMultiply'
   | 'extendViews'
-  | 'coneFilterViews' | 'backprojectCone' | 'padVolume' | 'unpadVolume'
+  | 'coneFilterViews' | 'backprojectCone' | 'padConeRows' | 'packRows' | 'padVolume' | 'unpadVolume'
   | 'coneFilterPairs' | 'backprojectConeAxial' | 'columnsToSlab'
   | 'josephForwardCone' | 'josephAdjointCone'
   | 'sartWeights' | 'sartCorrection' | 'sartUpdate' | 'squaredDistances' | 'copyRange'

@@ -73,8 +73,9 @@ export class Layout {
   }
 }
 
+/** n rounded up to a multiple of 16 (arithmetic, not bitwise: addresses reach past 2^31). */
 function align16(n: number): number {
-  return (n + 15) & ~15;
+  return Math.ceil(n / 16) * 16;
 }
 
 /** Normalizes a write declaration to a range. */

@@ -1,8 +1,10 @@
 // Ordered-subsets SART (Andersen & Kak 1984; assembly/sart.ts has the update formula) over a
 // workspace: the projector runs on the permuted, extended geometry so each subset is a view
 // range; ray weights w_i / (A 1)_i and, per subset, pixel weights 1 / (A_S^T w)_j are computed
-// once at setup. Rays with data weight 0 (unmeasured channels) carry no data term. Images (2D
-// scans) and volumes (cone-beam scans, each view `rows` detector rows) alike (space.ts).
+// once at setup. On volumes A^T is the voxel-driven backprojector close to it
+// (Projector3d.backprojectVoxels), in the update and the pixel weights alike. Rays with data
+// weight 0 (unmeasured channels) carry no data term. Images (2D scans) and volumes (cone-beam
+// scans, each view `rows` detector rows) alike (space.ts).
 import type { Buf, Workspace } from '../engine/workspace';
 import { throwIfCancelled } from '../errors';
 import type { Geometry } from '../geometry/types';
@@ -114,6 +116,12 @@ export class OsSart {
     await this.preparePixelWeights(hooks);
   }
 
+  /** The update's backprojector: the voxel-driven one where the projector has it (volumes), else the adjoint. */
+  private backproject(p: Buf, out: Buf, view0: number, view1: number, signal?: AbortSignal): Promise<void> {
+    if (this.projector.backprojectVoxels) return this.projector.backprojectVoxels(p, out, view0, view1, signal);
+    return this.projector.adjoint(p, out, view0, view1, signal);
+  }
+
   get subsets(): number {
     return this.inputs.plan.starts.length - 1;
   }
@@ -122,7 +130,7 @@ export class OsSart {
   private async computePixelWeights(q: number, out: Buf, signal?: AbortSignal): Promise<void> {
     const { starts } = this.inputs.plan;
     const { dx, dy } = this.inputs.grid;
-    await this.projector.adjoint(this.dataWeight, this.back, starts[q], starts[q + 1], signal);
+    await this.backproject(this.dataWeight, this.back, starts[q], starts[q + 1], signal);
     const minCol = 1e-3 * Math.min(dx, dy);
     await this.image.run((from, to) => ({
       kernel: 'sartWeights',
@@ -151,7 +159,7 @@ export class OsSart {
     let weights = this.pixelWeights[0];
     if (this.pixelWeights.length > 1) weights = this.pixelWeights[q];
     else if (this.subsets > 1) await this.computePixelWeights(q, weights, signal);
-    await this.projector.adjoint(this.corr, this.back, v0, v1, signal);
+    await this.backproject(this.corr, this.back, v0, v1, signal);
     await this.image.run((from, to) => ({
       kernel: 'sartUpdate',
       args: [x, this.back, weights, from, to, lambda, floor],

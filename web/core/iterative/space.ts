@@ -57,6 +57,11 @@ export interface ViewProjector {
   /** `signal`: a projector may check it between parts of its work (the 3D one does). */
   forward(x: Buf, out: Buf, view0?: number, view1?: number, signal?: AbortSignal): Promise<void>;
   adjoint(p: Buf, out: Buf, view0?: number, view1?: number, signal?: AbortSignal): Promise<void>;
+  /**
+   * A faster backprojector close to the adjoint (volumes: voxel-driven, Projector3d); OS-SART
+   * uses it for its update and pixel weights when present.
+   */
+  backprojectVoxels?(p: Buf, out: Buf, view0?: number, view1?: number, signal?: AbortSignal): Promise<void>;
 }
 
 /** The projector of a grid and geometry, and the detector rows of each view. */

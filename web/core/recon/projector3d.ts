@@ -7,6 +7,12 @@
 // worker a range of padded z planes to write (cone-joseph.ts), so it needs no per-worker
 // accumulators. The padded copies double as the adjoint's accumulators: a forward call always
 // re-pads, an adjoint call always zeroes them first.
+//
+// backprojectVoxels is a second, voxel-driven backprojector (the FDK kernel without the ramp
+// filter, cone-backproject.ts): not the exact transpose of the forward projector but close to
+// it, and several times faster, because it gathers from the detector instead of scattering
+// into the volume. OS-SART on volumes uses it for its update and pixel weights (an unmatched
+// projector/backprojector pair, as in REFERENCES.md [mueller-1999] and [zeng-gullberg-2000]).
 import type { Buf, Workspace } from '../engine/workspace';
 import { InputError, throwIfCancelled } from '../errors';
 import { maxConeAngle, requireCone } from '../geometry/cone';
@@ -14,10 +20,17 @@ import type { Geometry } from '../geometry/types';
 import { firstChannelU, firstRowV, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type VolumeGrid } from '../volume';
 import { requireGridInsideSourceCircle } from './projector';
+import { rowBlockFloats } from './fdk-backprojectors';
 import { splitRange } from './split';
 
 /** Views each worker takes between two checks for a cancel. */
 const VIEWS_PER_WORKER_BATCH = 2;
+
+/** Views padded and backprojected together by backprojectVoxels (about 0.8 MB each at 512 x 384). */
+const VOXEL_BATCH_VIEWS = 16;
+
+/** Floats of per-view constants the voxel-driven kernel keeps per view (assembly CONE_VIEW_FLOATS). */
+const CONE_VIEW_FLOATS = 16;
 
 /** Largest angle a ray may lean out of the xy plane (Joseph steps along x or y only). */
 const MAX_CONE_ANGLE = Math.PI / 4;
@@ -33,6 +46,9 @@ export class Projector3d {
   private readonly u0: number;
   private readonly v0: number;
   private readonly origin: { x0: number; y0: number; z0: number };
+  /** backprojectVoxels: padded detector rows of a batch of views, and per-worker view constants. */
+  private readonly rowBlocks: Buf;
+  private readonly coneViews: Buf[];
 
   private constructor(
     private readonly ws: Workspace,
@@ -50,6 +66,13 @@ export class Projector3d {
     this.views = ws.alloc('views', viewTable.length);
     this.pad = ws.alloc('pad3', padLen);
     this.padT = ws.alloc('padT3', padLen);
+    this.rowBlocks = ws.alloc('rowBlocks3', VOXEL_BATCH_VIEWS * rowBlockFloats(this.nCh, this.nRows));
+    this.coneViews = ws.allocPerWorker('coneViews3', CONE_VIEW_FLOATS * VOXEL_BATCH_VIEWS);
+  }
+
+  /** Engine floats a projector lays out for a grid and detector (memory estimates). */
+  static floats(grid: VolumeGrid, nCh: number, nRows: number, workers: number): number {
+    return 2 * (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3) + VOXEL_BATCH_VIEWS * rowBlockFloats(nCh, nRows) + workers * CONE_VIEW_FLOATS * VOXEL_BATCH_VIEWS;
   }
 
   /** Lays out a projector in `ws` (after whatever the workspace already holds). */
@@ -146,5 +169,47 @@ export class Projector3d {
         };
       }),
     );
+  }
+
+  /**
+   * volume = B proj over views [view0, view1): for every voxel and view, the detector value
+   * where the ray through the voxel centre lands (bilinear), times (D / l)^2 dx dy dz / (pu pv),
+   * l the voxel's distance from the source along the central ray. That factor is the number of
+   * rays of one view a voxel meets, times their step weight, so B's column sums match the forward
+   * projector's (A^T 1) to within the obliquity of the rays, while B itself is a voxel-driven
+   * gather. The padded copies serve as the accumulator (rows of nxs = nx rounded up to 4).
+   */
+  async backprojectVoxels(proj: Buf, volume: Buf, view0 = 0, view1 = this.nViews, signal?: AbortSignal): Promise<void> {
+    const { nx, ny, nz, dx, dy, dz } = this.grid;
+    const { x0, y0, z0 } = this.origin;
+    const [pu, pv] = this.geometry.detector.pitch;
+    const nxs = (nx + 3) & ~3;
+    const slabs = splitRange(nz, this.ws.parallelism);
+    const slice = nxs * ny;
+    const acc = this.pad;
+    await this.ws.run(slabs.map(([a, b]) => ({ kernel: 'zeroArray' as const, args: [{ ...acc, ptr: acc.ptr + a * slice * 4 }, (b - a) * slice] })));
+    const stride = this.nCh + 3;
+    const block = rowBlockFloats(this.nCh, this.nRows);
+    const scale = (dx * dy * dz) / (pu * pv);
+    for (let c0 = view0; c0 < view1; c0 += VOXEL_BATCH_VIEWS) {
+      throwIfCancelled(signal);
+      const c1 = Math.min(view1, c0 + VOXEL_BATCH_VIEWS);
+      await this.ws.run(splitRange(c1 - c0, this.ws.parallelism).map(([a, b]) => ({
+        kernel: 'padConeRows' as const,
+        args: [proj, this.nCh, this.nRows, this.views, c0 + a, c0 + b, scale, { ...this.rowBlocks, ptr: this.rowBlocks.ptr + a * block * 4 }, stride],
+        writes: [{ buf: this.rowBlocks, start: a * block, length: (b - a) * block }],
+      })));
+      // Each worker keeps its slab of the accumulator in every batch (private memories too).
+      await this.ws.run(slabs.map(([a, b], i) => ({
+        kernel: 'backprojectCone' as const,
+        args: [acc, nxs, ny, a, b, dx, dy, dz, x0, y0, z0, this.views, c0, c1, this.coneViews[i],
+          this.rowBlocks, this.nRows, stride, this.nCh, this.u0, pu, this.v0, pv],
+      })));
+    }
+    await this.ws.run(slabs.map(([a, b]) => ({
+      kernel: 'packRows' as const,
+      args: [acc, nxs, nx, a * ny, b * ny, volume],
+      writes: [{ buf: volume, start: a * ny * nx, length: (b - a) * ny * nx }],
+    })));
   }
 }
