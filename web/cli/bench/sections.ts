@@ -71,7 +71,7 @@ export const SECTIONS: BenchSection[] = [
     },
   },
   {
-    name: 'iterative3d', about: '20 iterations of 3D OS-SART and 5 of the prior-guided method on 256^3 from 360 projections of 512x384, with peak memory and a cancel (2 workers; an hour or more)',
+    name: 'iterative3d', about: '20 iterations of 3D OS-SART and 5 of the prior-guided method on 256^3 from 360 projections of 512x384, with peak memory and a cancel (2 workers; about 40 minutes)',
     run: () => benchIterative3d((line) => process.stderr.write(`${line}\n`)),
   },
   {
