@@ -5,22 +5,13 @@
 import { describe, expect, it } from 'vitest';
 import type { Workspace } from '../../web/core/engine/workspace';
 import { openWorkspace } from '../../web/cli/engine-node';
-import { voxelize, type SolidPhantom } from '../../web/core/phantoms/solid';
+import { voxelize } from '../../web/core/phantoms/solid';
 import { validateRecipe } from '../../web/core/recipe/recipe';
 import { runRecipe } from '../../web/core/recipe/run';
-import type { VolumeGrid } from '../../web/core/volume';
-import { cone, project } from '../helpers/cone';
+import { ballsCase, project } from '../helpers/cone';
 import { localWorkspace } from '../helpers/engine';
 
-const phantom: SolidPhantom = {
-  name: 'balls', muWater: 0.02, radius: 25, halfHeight: 25,
-  solids: [
-    { shape: 'ellipsoid', cx: 0, cy: 0, cz: 0, a: 25, b: 25, c: 25, phiDeg: 0, value: 0.02 },
-    { shape: 'ellipsoid', cx: 8, cy: -4, cz: 5, a: 8, b: 8, c: 8, phiDeg: 0, value: 0.02 },
-  ],
-};
-const grid: VolumeGrid = { nx: 24, ny: 24, nz: 20, dx: 3, dy: 3, dz: 3, cx: 0, cy: 0, cz: 0 };
-const g = cone({ channels: 48, rows: 32, pitch: 4, views: 36, R: 300, D: 540 });
+const { phantom, grid, geometry: g } = ballsCase;
 
 /** `ws` with a 2 GiB filler laid out first after every reset, so the run's buffers lie past 2^31. */
 function highUp(ws: Workspace): Workspace {

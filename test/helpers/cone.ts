@@ -8,6 +8,7 @@ import { basename } from 'node:path';
 import { readImageFile } from '../../web/core/formats/read-image';
 import { asMuVolume } from '../../web/core/formats/volume';
 import type { Volume, VolumeGrid } from '../../web/core/volume';
+import type { SolidPhantom } from '../../web/core/phantoms/solid';
 
 /** A circular cone-beam geometry with a flat detector (mm, degrees). */
 export function cone(opts: {
@@ -39,3 +40,21 @@ export async function project(ws: Workspace, grid: VolumeGrid, g: Geometry, volu
 export async function readVolumeFile(path: string, muWater?: number): Promise<Volume> {
   return asMuVolume((await readImageFile([{ name: basename(path), bytes: new Uint8Array(readFileSync(path)) }])).volume, muWater);
 }
+
+/**
+ * A small volume case: a water ball (25 mm radius) holding a denser ball, on a 24 x 24 x 20 grid
+ * of 3 mm; a cone beam whose 48 x 32 cells of 4 mm see all of it (FOV radius 52 mm, half height
+ * 33 mm), 36 views.
+ */
+export const ballsCase = {
+  phantom: {
+    name: 'balls', muWater: 0.02, radius: 25, halfHeight: 25,
+    solids: [
+      { shape: 'ellipsoid', cx: 0, cy: 0, cz: 0, a: 25, b: 25, c: 25, phiDeg: 0, value: 0.02 },
+      { shape: 'ellipsoid', cx: 8, cy: -4, cz: 5, a: 8, b: 8, c: 8, phiDeg: 0, value: 0.02 },
+    ],
+  } as SolidPhantom,
+  grid: { nx: 24, ny: 24, nz: 20, dx: 3, dy: 3, dz: 3, cx: 0, cy: 0, cz: 0 } as VolumeGrid,
+  recipeGrid: { grid: { size: 24, pixel: 3 }, volume: { slices: 20, spacing: 3 } },
+  geometry: cone({ channels: 48, rows: 32, pitch: 4, views: 36, R: 300, D: 540 }),
+};

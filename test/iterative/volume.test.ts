@@ -9,26 +9,15 @@ import { describe, expect, it } from 'vitest';
 import type { Part, Workspace } from '../../web/core/engine/workspace';
 import { CancelledError, InputError } from '../../web/core/errors';
 import { cropDetector } from '../../web/core/geometry/presets';
-import { voxelize, type SolidPhantom } from '../../web/core/phantoms/solid';
+import { voxelize } from '../../web/core/phantoms/solid';
 import { validateRecipe } from '../../web/core/recipe/recipe';
 import { runRecipe } from '../../web/core/recipe/run';
 import { addPhotonNoise } from '../../web/core/simulate/noise';
-import type { VolumeGrid } from '../../web/core/volume';
-import { cone, project } from '../helpers/cone';
+import { ballsCase, project } from '../helpers/cone';
 import { localWorkspace } from '../helpers/engine';
 
-// A water ball (25 mm radius) holding a denser ball, on a 24 x 24 x 20 grid of 3 mm; a cone
-// beam whose 48 x 32 cells of 4 mm see all of it (FOV radius 52 mm, half height 33 mm).
-const phantom: SolidPhantom = {
-  name: 'balls', muWater: 0.02, radius: 25, halfHeight: 25,
-  solids: [
-    { shape: 'ellipsoid', cx: 0, cy: 0, cz: 0, a: 25, b: 25, c: 25, phiDeg: 0, value: 0.02 },
-    { shape: 'ellipsoid', cx: 8, cy: -4, cz: 5, a: 8, b: 8, c: 8, phiDeg: 0, value: 0.02 },
-  ],
-};
-const grid: VolumeGrid = { nx: 24, ny: 24, nz: 20, dx: 3, dy: 3, dz: 3, cx: 0, cy: 0, cz: 0 };
-const recipeGrid = { grid: { size: 24, pixel: 3 }, volume: { slices: 20, spacing: 3 } };
-const g = cone({ channels: 48, rows: 32, pitch: 4, views: 36, R: 300, D: 540 });
+const { phantom, grid, geometry: g } = ballsCase;
+const { recipeGrid } = ballsCase;
 const truth = voxelize(phantom, grid, 2);
 const dataPromise = localWorkspace().then((ws) => project(ws, grid, g, truth));
 
