@@ -106,4 +106,14 @@ export async function undeterminedSteps(h, { page, mode, artifacts, shot }) {
     const line = /<li>[^<]*<span class="dot"[^>]*><\/span>DBP, field of view only[^<]*<\/li>/.exec(report)?.[0] ?? '';
     check(line.includes(`${share.toFixed(1)}% of the image (0.0% of the field of view)`), `report: ${line || 'no Not determined section'} (mask: ${share.toFixed(1)}%)`);
   });
+
+  await h.step(`${mode}: the comparison table marks DBP's data residual (measured rays cross its air fill), not FBP's`, async () => {
+    const cellOf = (label) => page.locator(`rf-metrics-table tr[data-label^="${label}"] td[data-metric="residual"]`).first();
+    const dbpCell = cellOf('DBP, field of view only');
+    const fbpCell = cellOf('FBP, water cylinder, ramp');
+    check(/^\d+\.\d%†$/.test((await dbpCell.innerText()).trim()), `DBP residual cell: ${await dbpCell.innerText()}`);
+    check(/^\d+\.\d%$/.test((await fbpCell.innerText()).trim()), `FBP residual cell: ${await fbpCell.innerText()}`);
+    check(/† The image leaves pixels undetermined/.test(await page.locator('rf-metrics-table #residual-caveat').innerText()), 'the table says what the mark means');
+    await page.locator('rf-metrics-table').screenshot({ path: join(artifacts, `knowledge-${mode}-1280-undetermined-table.png`) });
+  });
 }

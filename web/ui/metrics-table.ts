@@ -10,6 +10,11 @@ export interface MetricsRow {
   comparison?: Comparison | string;
   /** Re-projection of the image against the measured data, when computed. */
   residual?: DataResidual | null;
+  /**
+   * True when the image leaves pixels undetermined (a DBP result's air fill outside the field):
+   * measured rays cross them, so the residual mostly measures the fill, not the determined part.
+   */
+  residualCaveat?: boolean;
 }
 
 const REGIONS: Array<{ key: keyof Comparison['regions']; label: string }> = [
@@ -28,8 +33,10 @@ const cuppingCell = (c: Comparison | undefined) => {
 };
 
 /** Relative residual ||A f - p|| / ||p|| on the measured channels (core/data-residual.ts). */
-const residualCell = (r: DataResidual | null | undefined) =>
-  html`<td class="num" data-metric="residual">${r ? `${(100 * r.relative).toFixed(1)}%` : '–'}</td>`;
+const residualCell = (r: DataResidual | null | undefined, caveat?: boolean) =>
+  html`<td class="num" data-metric="residual" title=${caveat ? CAVEAT : ''}>${r ? `${(100 * r.relative).toFixed(1)}%` : '–'}${caveat && r ? html`<sup class="caveat">†</sup>` : nothing}</td>`;
+
+const CAVEAT = 'The image leaves pixels undetermined (held at air) that measured rays cross: this residual mostly measures that fill, not the determined part';
 
 /**
  * RMSE, PSNR and SSIM against the reference, over the image and inside / outside the measured
@@ -77,10 +84,10 @@ export class MetricsTable extends LitElement {
           ${typeof r.comparison === 'object'
             ? html`${REGIONS.map((g) => { const f = (r.comparison as Comparison).regions[g.key]; return html`${cell(f, 'rmse', 1)}${cell(f, 'psnr', 1)}${cell(f, 'ssim', 3)}`; })}${cuppingCell(r.comparison)}`
             : html`<td class="reason" colspan="10">${r.comparison ?? 'computing…'}</td>`}
-          ${residualCell(r.residual)}
+          ${residualCell(r.residual, r.residualCaveat)}
         </tr>`)}</tbody>
       </table>
-      <p class="note">Against ${this.referenceLabel}. PSNR uses the reference's value range; SSIM follows Wang et al. 2004 (11×11 Gaussian window). Cupping: rim / centre ratio inside the measured field relative to the reference's (0% = right shape). Residual: the image re-projected onto the measured channels against the measured data (‖Af − p‖ / ‖p‖).${notes.length ? ` ${notes.join('; ')}.` : ''}</p>`;
+      <p class="note">Against ${this.referenceLabel}. PSNR uses the reference's value range; SSIM follows Wang et al. 2004 (11×11 Gaussian window). Cupping: rim / centre ratio inside the measured field relative to the reference's (0% = right shape). Residual: the image re-projected onto the measured channels against the measured data (‖Af − p‖ / ‖p‖).${this.rows.some((r) => r.residualCaveat) ? html` <span id="residual-caveat">† ${CAVEAT}.</span>` : nothing}${notes.length ? ` ${notes.join('; ')}.` : ''}</p>`;
   }
 }
 customElements.define('rf-metrics-table', MetricsTable);

@@ -384,7 +384,7 @@ export class ResultsView extends LitElement {
     const unit = shown[0]?.display.unit ?? 'HU';
     const ref = this.reference(panels);
     const compared = panels.filter((p) => p.meta && p.key !== this.referenceId);
-    const metricsRows: MetricsRow[] = compared.map((p) => ({ label: p.label, colour: p.colour, comparison: this.comparisonOf(p.meta!), residual: p.meta!.residual }));
+    const metricsRows: MetricsRow[] = compared.map((p) => ({ label: p.label, colour: p.colour, comparison: this.comparisonOf(p.meta!), residual: p.meta!.residual, residualCaveat: p.display.undetermined?.some((v) => v !== 0) ?? false }));
     const profile: PlotSeries[] = this.line
       ? shown.map((p) => { const s = sampleProfile(p.display.values, p.display.grid, this.line!.p0, this.line!.p1, undefined, p.display.undetermined); return { label: p.display.label, colour: p.colour, x: s.distance, y: s.values }; })
       : [];
