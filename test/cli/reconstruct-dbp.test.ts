@@ -4,6 +4,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'no
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { compare } from '../../web/cli/commands/compare';
 import { reconstruct } from '../../web/cli/commands/reconstruct';
 import { simulate } from '../../web/cli/commands/simulate';
 import { InputError } from '../../web/core/errors';
@@ -50,6 +51,28 @@ describe('rimfill reconstruct --method dbp', () => {
     // Regression pin: measured 4% of the skull's value on this coarse 2.5 mm grid (edges dominate;
     // the outside check against the phantom itself is in test/dbp/dbp-recon.test.ts).
     expect(Math.sqrt(s / n)).toBeLessThan(0.1 * Math.max(...fbp.data));
+  });
+
+  it('compare --undetermined leaves the marked pixels out of every figure and marks the data residual', async () => {
+    // A 240 mm grid: its corners lie outside the 106 mm field of view, which DBP does not determine.
+    const grid = ['--size', '48', '--pixel', '5', '--workers', '1'];
+    await reconstruct([f('wide.nrrd'), '--method', 'dbp', ...grid, '--out', f('big-dbp.nrrd'), '--undetermined', f('big-mask.nrrd')]);
+    await reconstruct([f('wide.nrrd'), '--method', 'fbp', ...grid, '--out', f('big-fbp.nrrd')]);
+    const mask = await readImageNrrd(new Uint8Array(readFileSync(f('big-mask.nrrd'))));
+    const marked = mask.data.reduce((s, v) => s + v, 0);
+    expect(marked).toBeGreaterThan(0);
+    type Out = { regions: { image: { pixels: number } }; residualCaveat?: string };
+    const all = (await compare([f('big-dbp.nrrd'), '--reference', f('big-fbp.nrrd'), '--json'])).json as Out;
+    const kept = await compare([f('big-dbp.nrrd'), '--reference', f('big-fbp.nrrd'), '--undetermined', f('big-mask.nrrd'), '--scan', f('wide.nrrd'), '--workers', '1', '--json']);
+    const json = kept.json as Out;
+    expect(all.regions.image.pixels).toBe(48 * 48);
+    expect(json.regions.image.pixels).toBe(48 * 48 - marked);
+    expect(json.residualCaveat).toMatch(new RegExp(`leaves ${marked} pixels undetermined`));
+    expect((kept.warnings ?? []).join(' ')).toMatch(/left out of every figure/);
+    // A mask on another grid is refused by name (the first test's 48 x 48 image against this mask
+    // is the same size: use a 24 x 24 one).
+    await reconstruct([f('wide.nrrd'), '--method', 'dbp', '--size', '24', '--pixel', '10', '--workers', '1', '--out', f('small-dbp.nrrd'), '--undetermined', f('small-mask.nrrd')]);
+    await expect(compare([f('big-dbp.nrrd'), '--reference', f('big-fbp.nrrd'), '--undetermined', f('small-mask.nrrd')])).rejects.toThrow(/--undetermined .*got a 24 x 24 mask, expected one of 48 x 48 pixels/);
   });
 
   it('refuses FBP options and says why; nothing is written', async () => {

@@ -16,7 +16,7 @@ import { compareVolumeFiles } from './compare-volume';
 import type { CommandResult } from './types';
 
 export const compareHelp = `rimfill compare image.nrrd [--reference truth.nrrd] [--scan scan.nrrd] [--fov]
-    [--fov-radius mm] [--fov-half-height mm] [--per-slice] [--workers N] [--json]
+    [--fov-radius mm] [--fov-half-height mm] [--per-slice] [--undetermined mask.nrrd] [--workers N] [--json]
 ${SCAN_INPUT_HELP}
   With --reference: RMSE (HU when mu_water is known), PSNR and SSIM (Wang et al. 2004) over the
   image, the object, and with --fov inside and outside the measured field of view (radius from
@@ -25,7 +25,10 @@ ${SCAN_INPUT_HELP}
   measured channels. At least one of the two. Images may be NRRD, MetaImage, raw + JSON, DICOM
   or TIFF. mu_water (--mu-water, else the files' or the scan's) turns HU into mu; two HU images
   compare in HU without it. A reference that covers less than 90% of the image is reported
-  with the share it covers; one that does not overlap it at all is refused.`;
+  with the share it covers; one that does not overlap it at all is refused. --undetermined: the
+  mask of pixels the image does not determine (as reconstruct --method dbp --undetermined writes
+  it, or any mask on the image's grid, 1 = not determined): they enter no figure, and the data
+  residual is marked, since measured rays cross them.`;
 
 function table(c: Comparison): string {
   const rows = [['region', 'pixels', `RMSE (${c.unit})`, 'PSNR (dB)', 'SSIM']];
@@ -80,7 +83,7 @@ async function readInputs(a: ParsedArgs, path: string, refPath: string | undefin
 export async function compare(argv: string[]): Promise<CommandResult> {
   const a = parseArgs(argv, {
     ...SCAN_INPUT_OPTIONS, reference: 'string', scan: 'string', fov: 'flag', 'fov-radius': 'number', 'fov-half-height': 'number',
-    'per-slice': 'flag', workers: 'int', json: 'flag',
+    'per-slice': 'flag', undetermined: 'string', workers: 'int', json: 'flag',
   }, 1);
   const path = a.positional[0];
   if (!path) throw new InputError('compare: give the image file, e.g. rimfill compare image.nrrd --reference truth.nrrd');
@@ -90,6 +93,7 @@ export async function compare(argv: string[]): Promise<CommandResult> {
   const inputs = await readInputs(a, path, refPath, scan);
   const mw = inputs.muWater;
   if (inputs.image.nz > 1) {
+    if (a.options.undetermined !== undefined) throw new InputError('option --undetermined: only for images (this file holds a volume of several slices)');
     const volume = asMuVolume(inputs.image, mw);
     const v = compareVolumeFiles(a, volume, inputs.reference && asMuVolume(inputs.reference, mw), refPath);
     const residual = scan ? await residualOf(a, scan, undefined, volume) : undefined;
@@ -98,6 +102,7 @@ export async function compare(argv: string[]): Promise<CommandResult> {
   }
   if (a.options['per-slice'] || a.options['fov-half-height'] !== undefined) throw new InputError('options --per-slice and --fov-half-height: only for volumes (this image has one slice)');
   const image = imageAsMu(volumeSlice(inputs.image, 0), mw);
+  const undetermined = a.options.undetermined !== undefined ? await readUndetermined(a, a.options.undetermined as string, image) : undefined;
   let comparison: Comparison | undefined;
   if (inputs.reference) {
     if (inputs.reference.nz > 1) throw new InputError(`reference ${refPath}: got ${inputs.reference.nz} slices, expected one image to compare with the image`);
@@ -108,9 +113,30 @@ export async function compare(argv: string[]): Promise<CommandResult> {
       fov = image.fovRadius ?? reference.fovRadius;
       if (fov === undefined) throw new InputError('option --fov: neither file records the field of view; give --fov-radius mm');
     }
-    comparison = compareImages(image, reference, fov);
+    comparison = compareImages(image, reference, fov, undetermined?.mask);
   }
   const residual = scan ? await residualOf(a, scan, image, undefined) : undefined;
+  const caveat = residual && undetermined?.count ? `the image leaves ${undetermined.count} pixels undetermined that measured rays cross: the data residual mostly measures what fills them, not the determined part` : undefined;
   const text = [comparison ? table(comparison) : '', residual ? residualLine(residual) : ''].filter(Boolean).join('\n');
-  return { json: { ...(comparison ?? {}), ...(residual ? { residual } : {}) }, text, warnings: [...inputs.warnings, ...(comparison?.notes ?? [])] };
+  return {
+    json: { ...(comparison ?? {}), ...(residual ? { residual } : {}), ...(caveat ? { residualCaveat: caveat } : {}) },
+    text, warnings: [...inputs.warnings, ...(comparison?.notes ?? []), ...(caveat ? [caveat] : [])],
+  };
+}
+
+/** The mask of undetermined pixels (--undetermined), on the image's grid: values above 0.5 mark a pixel. */
+async function readUndetermined(a: ParsedArgs, path: string, image: Image2D): Promise<{ mask: Uint8Array; count: number }> {
+  const file = await readImageFile(gatherFiles(path, 'mask of undetermined pixels'), { maxBytes: memoryLimit(a) });
+  const v = file.volume;
+  const { nx, ny } = image.grid;
+  if (v.nz !== 1 || v.nx !== nx || v.ny !== ny) {
+    throw new InputError(`option --undetermined ${path}: got a ${v.nx} x ${v.ny}${v.nz > 1 ? ` x ${v.nz}` : ''} mask, expected one of ${nx} x ${ny} pixels (the image's grid)`);
+  }
+  const mask = new Uint8Array(nx * ny);
+  let count = 0;
+  for (let q = 0; q < mask.length; q++) {
+    if (!Number.isFinite(v.data[q])) throw new InputError(`option --undetermined ${path}: pixel ${q} is not a number; a mask holds 0 and 1`);
+    if (v.data[q] > 0.5) { mask[q] = 1; count++; }
+  }
+  return { mask, count };
 }
