@@ -46,5 +46,11 @@ export function ensureMemory(memory: WebAssembly.Memory, bytes: number): void {
   if (have / PAGE_BYTES + pages > MAX_PAGES) {
     throw new RangeError(`the job needs ${(bytes / 2 ** 20).toFixed(0)} MiB of engine memory, more than the 4 GiB a WebAssembly memory can hold`);
   }
-  memory.grow(pages);
+  try {
+    memory.grow(pages);
+  } catch (err) {
+    // The browser or Node may refuse below the 4 GiB limit (address space, memory pressure).
+    const why = err instanceof Error ? err.message : String(err);
+    throw new RangeError(`the job needs ${(bytes / 2 ** 20).toFixed(0)} MiB of engine memory and the engine's memory could not grow from ${(have / 2 ** 20).toFixed(0)} MiB (${why}): bin the detector, take fewer views or a smaller grid, or close other tabs and programs`);
+  }
 }
