@@ -88,9 +88,9 @@ export function estimateRun(g0: Geometry, recipe: Recipe, ctx: RunContext): Memo
     if (extend && !ctx.scanInMemory) parts.push(['the scan, read whole (truncation correction)', scanBytes]);
     if (usesKnowledge(recipe)) {
       // FDK before and after the fit, each volume held whole, then both re-projected against the data.
-      const padded = (grid.nx + 3) * (grid.ny + 3) * (grid.nz + 3);
+      const projector = Projector3d.floats(grid, nCh, nRows, ctx.workers);
       parts.push(['volumes before and after the knowledge', 2 * voxels * F]);
-      parts.push(['engine: residual projections, padded volumes', copies * (scanBytes + (2 * padded + voxels) * F)]);
+      parts.push(['engine: residual projections, padded volumes', copies * (scanBytes + (projector + voxels) * F)]);
       parts.push(['re-projected data', scanBytes]);
     }
     const chunk = fdkChunkViews(nChF, nRows, viewCount(g), ctx.workers);

@@ -16,7 +16,7 @@ import type { FilterTables } from './filter-response';
 import { splitRange } from './split';
 
 /** Floats of per-view constants the backprojectors keep per view (assembly CONE_VIEW_FLOATS). */
-const CONE_VIEW_FLOATS = 16;
+export const CONE_VIEW_FLOATS = 16;
 
 /** What both backprojectors need to know about the job. */
 export interface FdkJob {

@@ -20,7 +20,7 @@ import type { Geometry } from '../geometry/types';
 import { firstChannelU, firstRowV, viewVectors, VIEW_STRIDE } from '../geometry/view-vectors';
 import { checkVolumeGrid, volumeOrigin, withVolumeMemory, type VolumeGrid } from '../volume';
 import { requireGridInsideSourceCircle } from './projector';
-import { rowBlockFloats } from './fdk-backprojectors';
+import { CONE_VIEW_FLOATS, rowBlockFloats } from './fdk-backprojectors';
 import { splitRange } from './split';
 
 /** Views each worker takes between two checks for a cancel. */
@@ -28,9 +28,6 @@ const VIEWS_PER_WORKER_BATCH = 2;
 
 /** Views padded and backprojected together by backprojectVoxels (about 0.8 MB each at 512 x 384). */
 const VOXEL_BATCH_VIEWS = 16;
-
-/** Floats of per-view constants the voxel-driven kernel keeps per view (assembly CONE_VIEW_FLOATS). */
-const CONE_VIEW_FLOATS = 16;
 
 /** Largest angle a ray may lean out of the xy plane (Joseph steps along x or y only). */
 const MAX_CONE_ANGLE = Math.PI / 4;
