@@ -6,24 +6,20 @@
 // hold it at its value in every slice.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { compareVolumes } from '../../web/core/compare-volume';
-import { validateGeometry } from '../../web/core/geometry/validate';
 import { fovRadius } from '../../web/core/geometry/view-vectors';
 import { voxelize } from '../../web/core/phantoms/solid';
 import { thorax3d } from '../../web/core/phantoms/thorax-3d';
 import { validateRecipe } from '../../web/core/recipe/recipe';
 import { runRecipe } from '../../web/core/recipe/run';
 import type { Scan } from '../../web/core/scan';
-import { analyticConeProjections } from '../../web/core/simulate/analytic-cone';
 import { localWorkspace } from '../helpers/engine';
+import { truncatedConeScan, truncatedThoraxConeGeometry } from '../helpers/truncated-thorax';
 
-const geometry = validateGeometry({
-  kind: 'cone', detector: { shape: 'flat', channels: 120, rows: 10, pitch: [1.6, 5], offset: [0, 0] },
-  sourceIsocenter: 750, sourceDetector: 1200, anglesDeg: { start: 0, step: 2, count: 100 },
-});
+const geometry = truncatedThoraxConeGeometry;
 const p = thorax3d();
 let scan: Scan;
 beforeAll(async () => {
-  scan = { geometry, data: await analyticConeProjections(p, geometry), muWater: p.muWater };
+  scan = await truncatedConeScan(p);
 });
 
 // The grid covers the whole body (384 mm): what the rays cross beyond the grid cannot be placed,
