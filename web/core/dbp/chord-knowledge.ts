@@ -40,7 +40,7 @@ export function centreRegion(regions: PlacedRegion[], g: ImageGrid): { region: P
 }
 
 /** Nearest-pixel value of a grid array at (x, y); 0 off the grid. */
-function atPoint(data: Float32Array, g: ImageGrid, x: number, y: number): number {
+export function atPoint(data: Float32Array, g: ImageGrid, x: number, y: number): number {
   const { x0, y0 } = gridOrigin(g);
   const i = Math.round((x - x0) / g.dx), j = Math.round((y - y0) / g.dy);
   return i < 0 || j < 0 || i >= g.nx || j >= g.ny ? 0 : data[j * g.nx + i];

@@ -30,6 +30,11 @@ export interface ChordProblem {
   equations: ChordEquation[];
   /** Strength of the slope penalty int f'^2 outside the field of view. */
   smoothOutside: number;
+  /**
+   * An estimate of the profile outside the field of view (a value per node) and the weight (per
+   * mm of chord, against one Hilbert sample) that draws the profile there toward it.
+   */
+  exterior?: { values: Float64Array; weight: number };
   /** Nodes [inside0, inside1) lie inside the field of view. */
   inside0: number;
   inside1: number;
@@ -117,5 +122,26 @@ export function outsideSlopeBand(p: ChordProblem, diag: Float64Array, sub: Float
     diag[j] += w;
     diag[j + 1] += w;
     sub[j] -= w;
+  }
+}
+
+/** Length of chord a node stands for: half of each neighbouring interval, mm. */
+function nodeLength(nodes: Float64Array, j: number): number {
+  return ((j + 1 < nodes.length ? nodes[j + 1] - nodes[j] : 0) + (j > 0 ? nodes[j] - nodes[j - 1] : 0)) / 2;
+}
+
+/**
+ * The pull toward the exterior estimate, weight * int (f - g)^2 over the chord outside the field
+ * of view (node by node): weight * length on the diagonal, weight * length * g on the right-hand
+ * side. No exterior estimate: nothing.
+ */
+export function exteriorPull(p: ChordProblem, diag: Float64Array, rhs: Float64Array): void {
+  if (!p.exterior) return;
+  const { values, weight } = p.exterior;
+  for (let j = 0; j < p.nodes.length; j++) {
+    if (j >= p.inside0 && j < p.inside1) continue;
+    const w = weight * nodeLength(p.nodes, j);
+    diag[j] += w;
+    rhs[j] += w * values[j];
   }
 }

@@ -14,7 +14,7 @@ import type { RunHooks } from '../run-hooks';
 import type { ChordFamily } from './chords';
 import type { Workspace } from '../engine/workspace';
 import { ChordBlocks } from './chord-blocks';
-import { chordRows, outsideSlopeBand, rowsTransposeTargets, type ChordProblem } from './chord-solve';
+import { chordRows, exteriorPull, outsideSlopeBand, rowsTransposeTargets, type ChordProblem } from './chord-solve';
 
 export interface CouplingOptions {
   /** Tie between neighbouring chords (dimensionless; per arc length between them). */
@@ -135,6 +135,7 @@ export async function solveCoupled(ws: Workspace, family: ChordFamily, problemOf
     const rows = chordRows(p);
     rhs.set(rowsTransposeTargets(rows, sizes[m]), offsets[m]);
     outsideSlopeBand(p, ownBand.diag.subarray(offsets[m]), ownBand.sub.subarray(offsets[m]));
+    exteriorPull(p, ownBand.diag.subarray(offsets[m]), rhs.subarray(offsets[m]));
     return rows;
   }, (done) => { throwIfCancelled(hooks.signal); hooks.onProgress?.((0.3 * done) / sizes.length, 'chord equations'); });
 

@@ -24,6 +24,8 @@ export interface ReportInput {
   undetermined: Uint8Array;
   determined: Uint8Array;
   solved: CoupledResult;
+  /** What the chords take outside the field of view. */
+  exterior: string;
   truncatedViews: number;
   nViews: number;
   fov: number;
@@ -63,6 +65,7 @@ export function dbpReport(r: ReportInput): { report: Record<string, unknown>; wa
         stepMm: Number(r.family.step.toFixed(3)),
         samples: r.family.chords.reduce((s, c) => s + c.at.length, 0),
         support: r.decision.supportFrom,
+        exterior: r.exterior,
         truncatedViews: r.truncatedViews,
         views: r.nViews,
         knownRegions: regions,

@@ -5,7 +5,9 @@
 //   1. the weighted ray derivatives (derivative.ts) and their backprojection at points along
 //      chords through a known region (dbp-points.ts): the Hilbert transform along each chord;
 //   2. per chord, the normal equations of the profile (chord-solve.ts) from those values, the
-//      chord's measured line integral and the known regions' means (chord-knowledge.ts);
+//      chord's measured line integral and the known regions' means (chord-knowledge.ts), and
+//      outside the field of view the outline as the support, or without one, an estimate of
+//      the object from the known regions (exterior.ts);
 //   3. all chords solved together (coupled-solve.ts) and drawn on the grid (chord-image.ts).
 // DBP needs every line through a point: only the measured field of view is reconstructed. The
 // rest of the grid is not determined: it is set to 0 (air) and reported as a mask, never given a
@@ -31,6 +33,7 @@ import { chordFamily, samplePoints } from './chords';
 import { solveCoupled, type CouplingOptions } from './coupled-solve';
 import { dbpAtPoints } from './dbp-points';
 import { dbpDerivative } from './derivative';
+import { exteriorFromKnownRegions } from './exterior';
 import { dbpReport, type DbpDecision } from './report';
 import { chordLineIntegral, sinogramView } from './line-integral';
 
@@ -115,6 +118,9 @@ export async function runDbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: R
   const hilbert = await dbpAtPoints(ws, g, derivative.data, samplePoints(family), scaled(hooks, 0, 0.3));
   const t2 = performance.now();
 
+  // On a truncated scan with no outline the exterior is estimated from the known regions (exterior.ts).
+  const exterior = placed.regions.length && truncatedViews > 0 && !recipe.knowledge?.outline
+    ? await exteriorFromKnownRegions(ws, scan, recipe.knowledge!, grid, masks, hooks) : undefined;
   const sino = sinogramView(scan.data, viewVectors(g), kernelKind(g), g);
   const determined = new Uint8Array(family.count);
   const sampleStart = new Int32Array(family.count + 1);
@@ -127,6 +133,7 @@ export async function runDbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: R
       nodes: c.nodes, at: c.at, hilbert: hilbert.subarray(sampleStart[m], sampleStart[m + 1]),
       lineIntegral: chordLineIntegral(sino, family.cx, family.cy, c.ex, c.ey), lineWeight: LINE_WEIGHT,
       equations, smoothOutside: SMOOTH_OUTSIDE, inside0: c.inside0, inside1: c.inside1,
+      exterior: exterior && { weight: exterior.weight, values: Float64Array.from(c.nodes, (t) => exterior.at(family.cx + t * c.ex, family.cy + t * c.ey)) },
     };
   };
   const { edgeHu, ...coupling } = DEFAULT_COUPLING;
@@ -138,7 +145,7 @@ export async function runDbp(ws: Workspace, scan: Scan, recipe: Recipe, hooks: R
   const drawn = chordImage(family, solved.profiles, determined, grid, fov, 0);
   const image: Image2D = { grid, data: drawn.data, quantity: 'mu', muWater: scan.muWater, fovRadius: fov };
   const timings = { derivative: (t1 - t0) / 1000, backprojection: (t2 - t1) / 1000, solve: (t3 - t2) / 1000, total: (performance.now() - t0) / 1000 };
-  const { report, warnings } = dbpReport({ decision, family, placed, image, undetermined: drawn.undetermined, determined, solved, truncatedViews, nViews: analysis.nViews, fov, timings });
+  const { report, warnings } = dbpReport({ decision, family, placed, image, undetermined: drawn.undetermined, determined, solved, exterior: exterior?.from ?? (recipe.knowledge?.outline ? 'zero beyond the outline, kept smooth inside it' : 'none needed (no view is truncated)'), truncatedViews, nViews: analysis.nViews, fov, timings });
   hooks.onProgress?.(1, 'done');
   return { image, undetermined: drawn.undetermined, warnings: [...derivative.warnings, ...warnings], report };
 }
